@@ -1,0 +1,96 @@
+"""Helpers shared by every command of the CLI (argument parsing, JSON out)."""
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+from typing import Any, Iterable
+
+import numpy as np
+
+from ._errors import InputError
+
+__all__ = ["common_options", "print_json", "to_jsonable", "float_list", "json_dumps"]
+
+
+def common_options() -> argparse.ArgumentParser:
+    """A parent parser holding the options every subcommand accepts."""
+    p = argparse.ArgumentParser(add_help=False)
+    p.add_argument("--json", action="store_true", default=argparse.SUPPRESS,
+                   help="print one JSON document on stdout (SI units)")
+    p.add_argument("--quiet", action="store_true", default=argparse.SUPPRESS,
+                   help="no progress bars on stderr")
+    p.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                   help="show a traceback on errors")
+    return p
+
+
+def to_jsonable(obj: Any) -> Any:
+    """Convert numpy scalars/arrays, tuples and dataclass-likes to JSON types.
+
+    Non-finite floats become ``None`` (JSON has no NaN).
+    """
+    if isinstance(obj, dict):
+        return {str(k): to_jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [to_jsonable(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return to_jsonable(obj.tolist())
+    if isinstance(obj, (np.bool_, bool)):
+        return bool(obj)
+    if isinstance(obj, (np.integer,)):
+        return int(obj)
+    if isinstance(obj, (float, np.floating)):
+        f = float(obj)
+        return f if math.isfinite(f) else None
+    if hasattr(obj, "to_dict"):
+        return to_jsonable(obj.to_dict())
+    return obj
+
+
+def json_dumps(obj: Any, *, indent: int | None = 2) -> str:
+    """Deterministic JSON text (sorted keys off: insertion order is the schema order)."""
+    return json.dumps(to_jsonable(obj), indent=indent, allow_nan=False, ensure_ascii=False)
+
+
+def print_json(obj: Any) -> None:
+    """Print one JSON document on stdout."""
+    sys.stdout.write(json_dumps(obj) + "\n")
+
+
+def float_list(text: str, *, name: str, positive: bool = False,
+               minimum: float | None = None) -> list[float]:
+    """Parse ``"a,b,c"`` into floats; raise :class:`InputError` naming the option."""
+    try:
+        values = [float(s) for s in text.replace(";", ",").split(",") if s.strip()]
+    except ValueError:
+        raise InputError(f"{name}: {text!r} is not a comma-separated list of numbers") from None
+    if not values:
+        raise InputError(f"{name}: give at least one number")
+    for v in values:
+        if not math.isfinite(v):
+            raise InputError(f"{name}: {v} is not finite")
+        if positive and v <= 0:
+            raise InputError(f"{name}: {v:g} must be > 0")
+        if minimum is not None and v < minimum:
+            raise InputError(f"{name}: {v:g} must be >= {minimum:g}")
+    return values
+
+
+def table(rows: Iterable[Iterable[Any]], header: Iterable[str]) -> str:
+    """A plain fixed-width text table."""
+    header = [str(h) for h in header]
+    body = [[_fmt(c) for c in r] for r in rows]
+    widths = [max([len(h)] + [len(r[i]) for r in body]) for i, h in enumerate(header)]
+    lines = ["  ".join(h.ljust(w) for h, w in zip(header, widths)),
+             "  ".join("-" * w for w in widths)]
+    lines += ["  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(r, widths)))
+              for r in body]
+    return "\n".join(lines)
+
+
+def _fmt(c: Any) -> str:
+    if isinstance(c, (float, np.floating)):
+        return f"{c:.4g}"
+    return str(c)

@@ -1,0 +1,67 @@
+"""Progress on stderr for long steps; silent when stderr is not a terminal or when quiet."""
+from __future__ import annotations
+
+import sys
+import time
+
+__all__ = ["Progress", "set_quiet"]
+
+_QUIET = False
+
+
+def set_quiet(quiet: bool) -> None:
+    """Silence (or restore) every progress bar of this process."""
+    global _QUIET
+    _QUIET = bool(quiet)
+
+
+class Progress:
+    """A minimal text progress bar.
+
+    ``with Progress("modes", total=30) as p: p.advance()``. It draws only when
+    stderr is a terminal and quiet mode is off, and redraws at most 10 times a
+    second, so it costs nothing in a hot loop's outer level.
+    """
+
+    def __init__(self, label: str, total: int | None = None, *, stream=None):
+        self.label = label
+        self.total = total
+        self.done = 0
+        self.stream = sys.stderr if stream is None else stream
+        isatty = getattr(self.stream, "isatty", lambda: False)
+        self.enabled = (not _QUIET) and bool(isatty())
+        self._last = 0.0
+        self._t0 = time.perf_counter()
+
+    def __enter__(self) -> "Progress":
+        self._draw(force=True)
+        return self
+
+    def __exit__(self, *exc) -> None:
+        if self.enabled:
+            if exc[0] is None and self.total is not None:
+                self.done = self.total
+            self._draw(force=True)
+            self.stream.write("\n")
+            self.stream.flush()
+
+    def advance(self, n: int = 1) -> None:
+        self.done += n
+        self._draw()
+
+    def _draw(self, force: bool = False) -> None:
+        if not self.enabled:
+            return
+        now = time.perf_counter()
+        if not force and now - self._last < 0.1:
+            return
+        self._last = now
+        elapsed = now - self._t0
+        if self.total:
+            frac = min(1.0, self.done / self.total)
+            bar = "#" * int(frac * 24)
+            msg = f"\r{self.label:<14} [{bar:<24}] {self.done}/{self.total} {elapsed:5.1f} s"
+        else:
+            msg = f"\r{self.label:<14} {self.done} {elapsed:5.1f} s"
+        self.stream.write(msg)
+        self.stream.flush()
