@@ -23,6 +23,7 @@ _LAZY = {
     "Spectrum": "groundshake.spectra",
     "response_spectrum": "groundshake.spectra",
     "load_scenario": "groundshake.scenario",
+    "CAUTIONS": "groundshake._cautions",
     "GroundshakeError": "groundshake._errors",
     "InputError": "groundshake._errors",
     "GroundshakeWarning": "groundshake._errors",
