@@ -1,0 +1,116 @@
+"""Writing records: MiniSEED and SAC through ObsPy, and CSV. Always in m/s²."""
+from __future__ import annotations
+
+import re
+from pathlib import Path
+from typing import Iterable
+
+import numpy as np
+
+from .._atomic import atomic_path, atomic_write_text
+from .._errors import InputError
+from ._record import Record
+
+__all__ = ["write_record", "WRITE_FORMATS"]
+
+#: File extension -> format written.
+WRITE_FORMATS = {".mseed": "MSEED", ".miniseed": "MSEED", ".sac": "SAC", ".csv": "CSV"}
+
+
+def write_record(records: Record | Iterable[Record], path) -> Path:
+    """Write one or more records, in m/s², choosing the format by extension.
+
+    Parameters
+    ----------
+    records : Record or iterable of Record
+        What to write. SAC holds one record; CSV holds several only if they share
+        ``dt`` and length (one time column, one column per record).
+    path : str or path-like
+        ``.mseed`` (MiniSEED, 64-bit floats), ``.sac`` (SAC, 32-bit floats as the
+        format stores them; units in header ``kuser0``) or ``.csv`` (header
+        comments ``# units: m/s2``, ``# dt: ...``; columns ``time [s]``,
+        ``NAME [m/s2]``). Written atomically.
+
+    Returns
+    -------
+    Path
+        The path written.
+
+    Raises
+    ------
+    InputError
+        Unknown extension, or records that the format cannot hold together.
+
+    Notes
+    -----
+    MiniSEED has no field for units; reading a MiniSEED file back needs
+    ``units="m/s2"``. SAC and CSV files written here state their units.
+    """
+    recs = [records] if isinstance(records, Record) else list(records)
+    path = Path(path)
+    fmt = WRITE_FORMATS.get(path.suffix.lower())
+    if fmt is None:
+        raise InputError(f"{path}: unknown output format {path.suffix or '(no extension)'!r}; "
+                         f"allowed: {', '.join(WRITE_FORMATS)}")
+    if not recs:
+        raise InputError(f"{path}: nothing to write")
+    if fmt == "CSV":
+        atomic_write_text(path, _csv_text(recs, path))
+        return path
+    if fmt == "SAC" and len(recs) > 1:
+        raise InputError(f"{path}: a SAC file holds one record, {len(recs)} were given; "
+                         f"write one file per record")
+    from obspy import Stream
+
+    stream = Stream([_trace(r, sac=(fmt == "SAC")) for r in recs])
+    with atomic_path(path) as tmp:
+        if fmt == "MSEED":
+            stream.write(str(tmp), format="MSEED", encoding="FLOAT64")
+        else:
+            stream.write(str(tmp), format="SAC")
+    return path
+
+
+def _code(text: str, size: int) -> str:
+    return re.sub(r"[^A-Za-z0-9]", "", str(text or ""))[:size].upper()
+
+
+def _trace(rec: Record, *, sac: bool):
+    from obspy import Trace, UTCDateTime
+
+    md = rec.metadata
+    header = {
+        "network": _code(md.get("network", ""), 2),
+        "station": _code(md.get("station", "") or rec.name, 5),
+        "location": _code(md.get("location", ""), 2),
+        "channel": rec.component if re.fullmatch(r"[A-Za-z0-9]{1,3}", rec.component or "")
+        else _code(md.get("channel", ""), 3),
+        "sampling_rate": 1.0 / rec.dt,
+        "starttime": UTCDateTime(rec.start_time) if rec.start_time else UTCDateTime(0),
+    }
+    tr = Trace(data=np.ascontiguousarray(rec.acc, dtype=np.float64 if not sac else np.float32),
+               header=header)
+    if sac:
+        tr.stats.sac = {"kuser0": "m/s2", "kcmpnm": (rec.component or "")[:8]}
+    return tr
+
+
+def _csv_text(recs: list[Record], path: Path) -> str:
+    n, dt = recs[0].n, recs[0].dt
+    for r in recs[1:]:
+        if r.n != n or not np.isclose(r.dt, dt, rtol=1e-9, atol=0):
+            raise InputError(f"{path}: records of different length or time step cannot share "
+                             f"one CSV file ({recs[0].name}: {n} x {dt:g} s, "
+                             f"{r.name}: {r.n} x {r.dt:g} s)")
+    names = [re.sub(r"[,;\[\]()\s]+", "_", r.name).strip("_") or f"acc{k + 1}"
+             for k, r in enumerate(recs)]
+    lines = ["# groundshake acceleration record (SI units)", "# units: m/s2", f"# dt: {dt!r}"]
+    if any(r.component for r in recs):
+        lines.append("# components: " + ",".join(r.component for r in recs))
+    if recs[0].start_time:
+        lines.append(f"# start: {recs[0].start_time}")
+    lines.append(",".join(["time [s]", *[f"{nm} [m/s2]" for nm in names]]))
+    time = np.round(np.arange(n) * dt, 12)
+    cols = [time] + [r.acc for r in recs]
+    body = "\n".join(",".join(repr(float(v)) for v in row) for row in zip(*cols))
+    return "\n".join(lines) + "\n" + body + "\n"
