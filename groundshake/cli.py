@@ -29,7 +29,7 @@ _COMMAND_MODULES = (
     "groundshake.matching._cli",     # match
     "groundshake.model._cli",        # modes
     "groundshake.results._cli",      # run
-    "groundshake.suite_cli",         # suite
+    "groundshake.suite._cli",        # suite
     "groundshake.report._cli",       # demo
 )
 

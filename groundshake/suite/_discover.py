@@ -1,0 +1,206 @@
+"""Finding record sets for a suite: a folder, a glob pattern or a manifest CSV.
+
+A *record set* is what one run needs: one file per ground-motion component
+(x, y horizontal; z vertical), each with a scale factor and units.
+
+File-name rule (used for folders and globs). The component is the last word of
+the file's stem, after a ``-``, ``_`` or ``.``, case-insensitive:
+
+====================  =========
+last word             component
+====================  =========
+x, h1, e, ew, east    x
+y, h2, n, ns, north   y
+z, up, v, ud, vert    z
+====================  =========
+
+Files whose stems agree once that word is removed form one set, named by the
+remaining stem (``rec07-h1.mseed``, ``rec07-h2.mseed``, ``rec07-up.mseed`` →
+set ``rec07``). When the scenario's ``[motion]`` has a single component, every
+file is a set of its own applied to that component, whatever its name.
+
+Manifest (CSV with a header row): ``set`` (or ``name``), ``x``, ``y``, ``z``
+(file paths, relative to the manifest; blank where absent), and optionally
+``scale`` (all components), ``scale_x``, ``scale_y``, ``scale_z``, ``units``.
+"""
+from __future__ import annotations
+
+import csv
+import glob
+import math
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Mapping
+
+from .._errors import InputError
+
+__all__ = ["RecordSet", "discover_record_sets", "COMPONENT_WORDS"]
+
+COMPONENT_WORDS: Mapping[str, str] = {
+    **dict.fromkeys(("x", "h1", "e", "ew", "east"), "x"),
+    **dict.fromkeys(("y", "h2", "n", "ns", "north"), "y"),
+    **dict.fromkeys(("z", "up", "v", "ud", "vert"), "z"),
+}
+
+_SPLIT = re.compile(r"^(?P<stem>.+?)[-_.](?P<word>[A-Za-z0-9]+)$")
+_RECORD_SUFFIXES = {".mseed", ".miniseed", ".ms", ".sac", ".csv", ".txt", ".dat", ".asc",
+                    ".evt", ".v1", ".v2", ".knt", ".ew", ".ns", ".ud", ""}
+
+
+@dataclass(frozen=True)
+class RecordSet:
+    """Files for one run of a suite: plain data only (safe to send to any worker).
+
+    Attributes
+    ----------
+    name : str
+        Set name, unique within the suite.
+    files : dict
+        Component (``"x"``, ``"y"``, ``"z"``) → file path (str).
+    scale : dict
+        Component → scale factor (default 1.0).
+    units : str or None
+        Units of every file of the set (None: from the file, or the suite's ``--units``).
+    """
+
+    name: str
+    files: Mapping[str, str]
+    scale: Mapping[str, float] = field(default_factory=dict)
+    units: str | None = None
+
+    def to_dict(self) -> dict:
+        return {"name": self.name, "files": dict(self.files),
+                "scale": {c: float(self.scale.get(c, 1.0)) for c in self.files},
+                "units": self.units}
+
+    @classmethod
+    def from_dict(cls, d: Mapping) -> "RecordSet":
+        return cls(name=str(d["name"]), files=dict(d["files"]), scale=dict(d.get("scale", {})),
+                   units=d.get("units"))
+
+
+def _component_of(path: Path) -> tuple[str, str] | None:
+    m = _SPLIT.match(path.stem)
+    if not m:
+        return None
+    comp = COMPONENT_WORDS.get(m.group("word").lower())
+    return None if comp is None else (m.group("stem"), comp)
+
+
+def _candidate_files(spec: str) -> list[Path]:
+    p = Path(spec)
+    if p.is_dir():
+        files = [q for q in sorted(p.iterdir()) if q.is_file() and not q.name.startswith(".")
+                 and q.suffix.lower() in _RECORD_SUFFIXES and q.name.lower() != "readme.md"]
+        if not files:
+            raise InputError(f"{spec}: folder holds no record files")
+        return files
+    if any(ch in spec for ch in "*?["):
+        files = [Path(f) for f in sorted(glob.glob(spec)) if Path(f).is_file()]
+        if not files:
+            raise InputError(f"{spec}: pattern matches no files")
+        return files
+    if not p.exists():
+        raise InputError(f"{spec}: no such folder, pattern or manifest")
+    return [p]
+
+
+def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", "z"),
+                         units: str | None = None) -> list[RecordSet]:
+    """Record sets from a folder, a glob pattern or a manifest CSV.
+
+    Parameters
+    ----------
+    spec : str
+        A folder, a glob pattern (``"recs/*.mseed"``) or a ``.csv`` manifest.
+    components : tuple of str
+        Components the scenario's ``[motion]`` applies; with a single one, every
+        file is a set of its own applied to it.
+    units : str, optional
+        Units for every file that does not state its own.
+
+    Raises
+    ------
+    InputError
+        Nothing found, a file whose component cannot be told, two files for one
+        component of a set, or a bad manifest row (with its line number).
+    """
+    p = Path(spec)
+    if p.is_file() and p.suffix.lower() == ".csv" and _looks_like_manifest(p):
+        return _read_manifest(p, units=units)
+    files = _candidate_files(spec)
+    if len(components) == 1:
+        comp = components[0]
+        sets = [RecordSet(name=f.stem, files={comp: str(f)}, units=units) for f in files]
+        _check_unique([s.name for s in sets], spec)
+        return sets
+    groups: dict[str, dict[str, str]] = {}
+    for f in files:
+        found = _component_of(f)
+        if found is None:
+            raise InputError(
+                f"{f}: cannot tell the component from the name; end the stem with one of "
+                f"{', '.join(sorted(COMPONENT_WORDS))} (e.g. rec01-h1.mseed) or use a manifest CSV")
+        stem, comp = found
+        group = groups.setdefault(stem, {})
+        if comp in group:
+            raise InputError(f"{f}: set {stem!r} already has a {comp} component ({group[comp]})")
+        group[comp] = str(f)
+    return [RecordSet(name=stem, files=dict(sorted(g.items())), units=units)
+            for stem, g in sorted(groups.items())]
+
+
+def _looks_like_manifest(path: Path) -> bool:
+    try:
+        with open(path, newline="", encoding="utf-8") as fh:
+            first = fh.readline()
+    except (OSError, UnicodeDecodeError):
+        return False
+    words = {w.strip().lower() for w in first.split(",")}
+    return bool(words & {"set", "name"}) and bool(words & {"x", "y", "z"})
+
+
+def _check_unique(names: list[str], where: str) -> None:
+    seen = set()
+    for n in names:
+        if n in seen:
+            raise InputError(f"{where}: two record sets are named {n!r}")
+        seen.add(n)
+
+
+def _read_manifest(path: Path, *, units: str | None) -> list[RecordSet]:
+    base = path.parent
+    sets: list[RecordSet] = []
+    with open(path, newline="", encoding="utf-8") as fh:
+        reader = csv.DictReader(fh)
+        fields = [f.strip().lower() for f in (reader.fieldnames or [])]
+        allowed = {"set", "name", "x", "y", "z", "scale", "scale_x", "scale_y", "scale_z", "units"}
+        unknown = [f for f in fields if f not in allowed]
+        if unknown:
+            raise InputError(f"{path}:1: unknown manifest column(s) {unknown}; allowed "
+                             f"{sorted(allowed)}")
+        for lineno, row in enumerate(reader, start=2):
+            row = {k.strip().lower(): (v or "").strip() for k, v in row.items() if k}
+            name = row.get("set") or row.get("name")
+            if not name:
+                raise InputError(f"{path}:{lineno}: the set name is empty")
+            files = {c: str((base / row[c]).resolve()) for c in ("x", "y", "z") if row.get(c)}
+            if not files:
+                raise InputError(f"{path}:{lineno}: set {name!r} names no file in x, y or z")
+            scale = {}
+            for c in files:
+                text = row.get(f"scale_{c}") or row.get("scale") or "1"
+                try:
+                    value = float(text)
+                except ValueError:
+                    raise InputError(f"{path}:{lineno}: scale {text!r} is not a number") from None
+                if not math.isfinite(value) or value == 0:
+                    raise InputError(f"{path}:{lineno}: scale {text!r} must be finite and non-zero")
+                scale[c] = value
+            sets.append(RecordSet(name=name, files=files, scale=scale,
+                                  units=row.get("units") or units))
+    if not sets:
+        raise InputError(f"{path}: manifest has no rows")
+    _check_unique([s.name for s in sets], str(path))
+    return sets
