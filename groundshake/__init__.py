@@ -23,6 +23,8 @@ _LAZY = {
     "Spectrum": "groundshake.spectra",
     "response_spectrum": "groundshake.spectra",
     "load_scenario": "groundshake.scenario",
+    "Scenario": "groundshake.scenario",
+    "ScenarioError": "groundshake._errors",
     "CAUTIONS": "groundshake._cautions",
     "GroundshakeError": "groundshake._errors",
     "InputError": "groundshake._errors",

@@ -1,0 +1,57 @@
+"""The scenario file (TOML): schema, validation, defaults.
+
+``load_scenario(path)`` reads and validates a scenario; attribute names of the
+result equal the TOML keys (``scenario.mesh.element_size``,
+``scenario.parts[0].origin``, ``scenario.motion.x.file``...). Units are SI;
+damping is in percent, as in the file. Errors are one-line
+:class:`~groundshake.ScenarioError` messages
+``FILE:LINE: key.path: given VALUE; allowed WHAT``.
+"""
+from ._geometry import MAX_ESTIMATED_DOFS, estimated_dofs
+from ._load import box_rotary_inertia, load_scenario, parse_scenario_text
+from ._schema import schema_rows
+from ._types import (
+    RECORD_UNITS,
+    AnalysisSettings,
+    AnchorCapacity,
+    DampingSettings,
+    Equipment,
+    FloorSpectraSettings,
+    FpParameters,
+    Material,
+    MeshSettings,
+    MotionComponent,
+    MotionSettings,
+    Part,
+    PeriodRange,
+    ProcessingOptions,
+    Scenario,
+    Sensor,
+    SupportSettings,
+)
+
+__all__ = [
+    "load_scenario",
+    "parse_scenario_text",
+    "Scenario",
+    "MotionComponent",
+    "MotionSettings",
+    "ProcessingOptions",
+    "Material",
+    "Part",
+    "MeshSettings",
+    "SupportSettings",
+    "DampingSettings",
+    "AnchorCapacity",
+    "FpParameters",
+    "Equipment",
+    "Sensor",
+    "AnalysisSettings",
+    "PeriodRange",
+    "FloorSpectraSettings",
+    "RECORD_UNITS",
+    "MAX_ESTIMATED_DOFS",
+    "estimated_dofs",
+    "box_rotary_inertia",
+    "schema_rows",
+]

@@ -1,0 +1,394 @@
+"""The scenario's frozen dataclasses; their fields are the schema.
+
+Each field's ``metadata`` says what the TOML key accepts (kind, range, unit,
+a one-line description), so validation, the README table and ``to_dict`` all
+come from the same declarations. Attribute names equal the TOML key names.
+Units: SI (m, kg, Pa, s, Hz); damping in percent, as written in the file.
+"""
+from __future__ import annotations
+
+import dataclasses
+import os
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Literal
+
+__all__ = [
+    "Scenario",
+    "MotionComponent",
+    "MotionSettings",
+    "ProcessingOptions",
+    "Material",
+    "Part",
+    "MeshSettings",
+    "SupportSettings",
+    "DampingSettings",
+    "AnchorCapacity",
+    "FpParameters",
+    "Equipment",
+    "Sensor",
+    "AnalysisSettings",
+    "PeriodRange",
+    "FloorSpectraSettings",
+    "RECORD_UNITS",
+]
+
+#: Record units a motion component may name (case as written).
+RECORD_UNITS = ("g", "m/s2", "cm/s2", "gal", "mm/s2", "ft/s2", "in/s2")
+
+_MISSING = dataclasses.MISSING
+_KEEP_MARK = object()  # "leave as it is" for Scenario.with_motion
+
+
+def spec(kind: str, default: Any = _MISSING, *, doc: str, unit: str = "",
+         factory: Any = _MISSING, derived: str | None = None, **rules: Any):
+    """A dataclass field that also describes its TOML key.
+
+    ``kind`` is one of number, integer, bool, string, choice, vector, numbers,
+    points, path, trace, target, table, array, named; ``rules`` holds range
+    limits (gt, ge, lt, le), ``choices``, ``length``, ``cls`` and ``allowed``
+    (text overriding the generated one). No default means the key is required;
+    ``derived`` names a default that is computed from other keys.
+    """
+    meta = {"kind": kind, "doc": doc, "unit": unit, "derived": derived, **rules}
+    if factory is not _MISSING:
+        return field(default_factory=factory, metadata=meta)
+    return field(default=default, metadata=meta)
+
+
+def _internal(default: Any = _MISSING, factory: Any = _MISSING):
+    meta = {"internal": True}
+    if factory is not _MISSING:
+        return field(default_factory=factory, metadata=meta, compare=False)
+    return field(default=default, metadata=meta, compare=False)
+
+
+# --- motion ------------------------------------------------------------------------------
+
+@dataclass(frozen=True, kw_only=True)
+class MotionComponent:
+    """One ground-motion component: a record file and how to read it."""
+
+    file: Path = spec("path", doc="record file, relative to the scenario file")
+    units: str | None = spec("choice", None, choices=RECORD_UNITS,
+                             doc="units of the record; none = as the file says")
+    scale: float = spec("number", 1.0, nonzero=True, doc="factor applied to the record")
+    dt: float | None = spec("number", None, gt=0.0, unit="s",
+                            doc="time step, for one-column text files")
+    trace: int | str | None = spec("trace", None,
+                                   doc="trace index (from 0) or channel code in a multi-trace file")
+
+
+@dataclass(frozen=True, kw_only=True)
+class MotionSettings:
+    """The ``[motion]`` table: up to three components; ``z`` is vertical."""
+
+    x: MotionComponent | None = spec("table", None, cls=MotionComponent,
+                                     doc="horizontal component along x")
+    y: MotionComponent | None = spec("table", None, cls=MotionComponent,
+                                     doc="horizontal component along y")
+    z: MotionComponent | None = spec("table", None, cls=MotionComponent,
+                                     doc="vertical component")
+    target: str | None = spec("target", None,
+                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8` "
+                                  "or a CSV of period [s], PSA [g] (relative path)")
+    match_target: bool = spec("bool", False, doc="adjust the records to the target first")
+
+    def components(self) -> dict[str, MotionComponent]:
+        """The given components in x, y, z order, keyed by axis name."""
+        return {k: v for k, v in (("x", self.x), ("y", self.y), ("z", self.z)) if v is not None}
+
+
+# --- processing --------------------------------------------------------------------------
+
+@dataclass(frozen=True, kw_only=True)
+class ProcessingOptions:
+    """The ``[processing]`` table; same names as ``groundshake.processing.ProcessingSettings``."""
+
+    enabled: bool = spec("bool", True, doc="false uses the records exactly as read")
+    mean_removal: Literal["whole", "pre-event"] = spec(
+        "choice", "whole", choices=("whole", "pre-event"),
+        doc="remove the mean of the whole record or of its pre-event part")
+    pre_event_s: float = spec("number", 0.0, ge=0.0, unit="s",
+                              doc="length of the pre-event part")
+    baseline_order: int = spec("integer", 1, ge=0, le=6,
+                               doc="order of the polynomial baseline removed")
+    highpass_hz: float = spec("number", 0.1, gt=0.0, unit="Hz", doc="high-pass corner")
+    lowpass_hz: float | None = spec("number", None, gt=0.0, unit="Hz",
+                                    doc="low-pass corner; none = no low-pass")
+    filter_order: int = spec("integer", 4, ge=1, le=12, doc="Butterworth filter order")
+    taper_percent: float = spec("number", 5.0, ge=0.0, le=50.0, unit="%",
+                                doc="cosine taper at each end, percent of the length")
+    pad: bool = spec("bool", True, doc="pad with zeros before filtering (kept in the result)")
+
+
+# --- model -------------------------------------------------------------------------------
+
+@dataclass(frozen=True, kw_only=True)
+class Material:
+    """A ``[materials.NAME]`` table: isotropic linear elasticity."""
+
+    youngs_modulus: float = spec("number", gt=0.0, unit="Pa", doc="Young's modulus E")
+    poisson_ratio: float = spec("number", ge=0.0, lt=0.5, doc="Poisson's ratio ν")
+    density: float = spec("number", gt=0.0, unit="kg/m³", doc="mass density ρ")
+
+
+@dataclass(frozen=True, kw_only=True)
+class Part:
+    """A ``[[parts]]`` entry: a rectangular box on the model's common grid."""
+
+    name: str = spec("string", doc="name, unique among the parts")
+    material: str = spec("string", doc="name of a `[materials.NAME]` table")
+    origin: tuple[float, float, float] = spec("vector", length=3, unit="m",
+                                              doc="corner with the least x, y, z")
+    size: tuple[float, float, float] = spec("vector", length=3, gt=0.0, unit="m",
+                                            doc="lengths along x, y, z")
+
+    @property
+    def upper(self) -> tuple[float, float, float]:
+        """Corner with the greatest x, y, z [m]."""
+        return tuple(o + s for o, s in zip(self.origin, self.size))  # type: ignore[return-value]
+
+
+@dataclass(frozen=True, kw_only=True)
+class MeshSettings:
+    """The ``[mesh]`` table."""
+
+    element_size: float = spec("number", gt=0.0, unit="m",
+                               doc="target element size; grid lines also fall on faces, "
+                                   "footprints and sensors")
+    element: Literal["hex8-incompatible", "hex8"] = spec(
+        "choice", "hex8-incompatible", choices=("hex8-incompatible", "hex8"),
+        doc="brick with incompatible modes, or the plain trilinear brick")
+    mass: Literal["consistent", "lumped"] = spec(
+        "choice", "consistent", choices=("consistent", "lumped"), doc="mass matrix")
+
+
+@dataclass(frozen=True, kw_only=True)
+class SupportSettings:
+    """The ``[support]`` table; the soil keys are required when ``kind = "soil"``."""
+
+    kind: Literal["fixed", "soil"] = spec("choice", "fixed", choices=("fixed", "soil"),
+                                          doc="base face fixed to the ground, or on soil springs")
+    shear_wave_velocity: float | None = spec("number", None, gt=0.0, unit="m/s",
+                                             doc="soil shear-wave velocity (soil only)")
+    poisson_ratio: float | None = spec("number", None, ge=0.0, lt=0.5,
+                                       doc="soil Poisson's ratio (soil only)")
+    density: float | None = spec("number", None, gt=0.0, unit="kg/m³",
+                                 doc="soil mass density (soil only)")
+    radiation_damping: bool = spec("bool", True, doc="add radiation dashpots (soil only)")
+    springs: Literal["lumped", "distributed"] = spec(
+        "choice", "lumped", choices=("lumped", "distributed"),
+        doc="six springs at a rigid base, or a spring bed with the same totals")
+
+
+@dataclass(frozen=True, kw_only=True)
+class DampingSettings:
+    """The ``[damping]`` table."""
+
+    ratio_percent: float = spec("number", 5.0, ge=0.0, lt=100.0, unit="%",
+                                doc="modal damping of the block")
+    rayleigh_hz: tuple[float, float] | None = spec(
+        "vector", None, length=2, gt=0.0, unit="Hz",
+        doc="two frequencies f1 < f2 for a Rayleigh matrix; none = modal damping")
+
+
+# --- equipment and sensors ---------------------------------------------------------------
+
+@dataclass(frozen=True, kw_only=True)
+class AnchorCapacity:
+    """User-supplied capacity of one anchor bolt [N]."""
+
+    tension: float = spec("number", gt=0.0, unit="N", doc="tension capacity per bolt")
+    shear: float = spec("number", gt=0.0, unit="N", doc="shear capacity per bolt")
+
+
+@dataclass(frozen=True, kw_only=True)
+class FpParameters:
+    """Inputs of the ASCE 7-16 §13.3.1 equivalent static force Fp (for comparison)."""
+
+    sds: float = spec("number", gt=0.0, unit="g", doc="design spectral acceleration S_DS")
+    ap: float = spec("number", gt=0.0, doc="component amplification factor a_p")
+    rp: float = spec("number", gt=0.0, doc="component response modification factor R_p")
+    ip: float = spec("number", 1.0, gt=0.0, doc="component importance factor I_p")
+    z_over_h: float = spec("number", 0.0, ge=0.0, le=1.0,
+                           doc="height of attachment over roof height z/h (0 at grade)")
+
+
+@dataclass(frozen=True, kw_only=True)
+class Equipment:
+    """An ``[[equipment]]`` entry: a lumped mass on the top face."""
+
+    name: str = spec("string", doc="name, unique among the equipment")
+    mass: float = spec("number", gt=0.0, unit="kg", doc="total mass")
+    mount: tuple[float, float] = spec("vector", length=2, unit="m",
+                                      doc="x, y of the footprint centre on a top face")
+    footprint: tuple[float, float] = spec("vector", length=2, gt=0.0, unit="m",
+                                          doc="footprint lengths along x, y")
+    cg_height: float = spec("number", ge=0.0, unit="m",
+                            doc="height of the centre of gravity above the mount")
+    frequency_hz: tuple[float, float, float] | None = spec(
+        "vector", None, length=3, gt=0.0, unit="Hz",
+        doc="support frequencies in x, y, z; none = rigidly attached")
+    damping_percent: float | None = spec("number", None, ge=0.0, lt=100.0, unit="%",
+                                         derived="damping.ratio_percent",
+                                         doc="damping of the flexible support")
+    rotary_inertia: tuple[float, float, float] | None = spec(
+        "vector", None, length=3, ge=0.0, unit="kg·m²",
+        derived="solid box: footprint × 2·cg_height",
+        doc="rotary inertia about the CG, axes x, y, z")
+    anchors: tuple[tuple[float, float], ...] = spec(
+        "points", (), unit="m", doc="bolt positions [[x, y], ...] from the mount")
+    dead_load_factor: float = spec("number", 1.0, ge=0.0, le=1.0,
+                                   doc="share of the weight that resists uplift")
+    capacity: AnchorCapacity | None = spec("table", None, cls=AnchorCapacity,
+                                           doc="bolt capacities {tension, shear}, user supplied")
+    fp: FpParameters | None = spec("table", None, cls=FpParameters,
+                                   doc="ASCE 7-16 Fp inputs {sds, ap, rp, ip, z_over_h}")
+
+
+@dataclass(frozen=True, kw_only=True)
+class Sensor:
+    """A ``[[sensors]]`` entry: a point where responses are reported."""
+
+    name: str = spec("string", doc="name, unique among the sensors")
+    at: tuple[float, float, float] = spec("vector", length=3, unit="m",
+                                          doc="position, inside or on a part")
+
+
+# --- analysis and outputs ----------------------------------------------------------------
+
+@dataclass(frozen=True, kw_only=True)
+class AnalysisSettings:
+    """The ``[analysis]`` table."""
+
+    method: Literal["modal", "direct"] = spec(
+        "choice", "modal", choices=("modal", "direct"),
+        doc="modal superposition with missing mass, or direct integration")
+    cutoff_hz: float = spec("number", 50.0, gt=0.0, unit="Hz", doc="modes up to this frequency")
+    modes: int | None = spec("integer", None, ge=1, le=10000,
+                             doc="a fixed number of modes instead of the cutoff")
+    hht_alpha: float = spec("number", 0.0, ge=-1.0 / 3.0, le=0.0,
+                            allowed="a number in [-1/3, 0]",
+                            doc="HHT-α of direct integration (0 = average acceleration)")
+    solver: Literal["auto", "scipy", "pardiso"] = spec(
+        "choice", "auto", choices=("auto", "scipy", "pardiso"), doc="sparse solver")
+
+
+@dataclass(frozen=True, kw_only=True)
+class PeriodRange:
+    """Log-spaced periods for floor spectra."""
+
+    min: float = spec("number", 0.02, gt=0.0, unit="s", doc="shortest period")
+    max: float = spec("number", 5.0, gt=0.0, unit="s", doc="longest period")
+    count: int = spec("integer", 120, ge=2, le=100000, doc="number of periods")
+
+
+@dataclass(frozen=True, kw_only=True)
+class FloorSpectraSettings:
+    """The ``[floor_spectra]`` table."""
+
+    damping_percent: tuple[float, ...] = spec("numbers", (2.0, 5.0), ge=0.0, lt=100.0, unit="%",
+                                              doc="oscillator damping values")
+    broadening_percent: float = spec("number", 15.0, ge=0.0, le=50.0, unit="%",
+                                     doc="peak broadening, ± percent of the period")
+    periods: PeriodRange = spec("table", factory=PeriodRange, cls=PeriodRange,
+                                doc="period range {min, max, count}")
+
+
+# --- the scenario ------------------------------------------------------------------------
+
+@dataclass(frozen=True, kw_only=True)
+class Scenario:
+    """A validated scenario. Build one with :func:`load_scenario` or :meth:`from_dict`.
+
+    Attribute names equal the TOML keys; units are SI, damping in percent.
+    ``source`` is the scenario file (or ``"<dict>"``), ``base_dir`` the folder
+    relative paths were resolved against, and ``notes`` lists things the
+    summary should show (paths leaving the scenario's folder, doubtful input).
+    """
+
+    title: str = spec("string", derived="file name without extension", doc="title of the run")
+    motion: MotionSettings | None = spec("table", None, cls=MotionSettings,
+                                         doc="ground motion; may be left out (modes only)")
+    processing: ProcessingOptions = spec("table", factory=ProcessingOptions,
+                                         cls=ProcessingOptions, doc="record processing")
+    materials: dict[str, Material] = spec("named", cls=Material, doc="materials by name")
+    parts: tuple[Part, ...] = spec("array", cls=Part, doc="boxes of the model")
+    mesh: MeshSettings = spec("table", cls=MeshSettings, doc="mesh")
+    support: SupportSettings = spec("table", factory=SupportSettings, cls=SupportSettings,
+                                    doc="support of the base face")
+    damping: DampingSettings = spec("table", factory=DampingSettings, cls=DampingSettings,
+                                    doc="damping of the block")
+    equipment: tuple[Equipment, ...] = spec("array", (), cls=Equipment,
+                                            doc="equipment on the top face")
+    sensors: tuple[Sensor, ...] = spec("array", (), cls=Sensor, doc="response points")
+    analysis: AnalysisSettings = spec("table", factory=AnalysisSettings, cls=AnalysisSettings,
+                                      doc="analysis")
+    floor_spectra: FloorSpectraSettings = spec("table", factory=FloorSpectraSettings,
+                                               cls=FloorSpectraSettings, doc="floor spectra")
+    source: str = _internal("<dict>")
+    base_dir: Path = _internal(factory=Path.cwd)
+    notes: tuple[str, ...] = _internal(())
+
+    @classmethod
+    def from_dict(cls, d: dict, *, source: str = "<dict>",
+                  base_dir: str | os.PathLike | None = None) -> "Scenario":
+        """Validate nested dicts (as from ``tomllib`` or :meth:`to_dict`) into a Scenario.
+
+        ``base_dir`` (default: the current folder) resolves relative paths; ``None``
+        values count as absent keys. Raises ``ScenarioError`` like :func:`load_scenario`.
+        """
+        from ._load import scenario_from_dict
+        return scenario_from_dict(d, source=source, base_dir=base_dir)
+
+    def to_dict(self) -> dict:
+        """Every key with its value or default (JSON-able; paths as absolute strings).
+
+        The result goes back through :meth:`from_dict` to an equal scenario; it holds
+        no ``source``/``notes`` (show :attr:`notes` beside it in a summary).
+        """
+        from ._load import scenario_to_dict
+        return scenario_to_dict(self)
+
+    def with_motion(self, *, x: Any = None, y: Any = None, z: Any = None,
+                    target: Any = _KEEP_MARK, match_target: Any = _KEEP_MARK) -> "Scenario":
+        """A copy with another ground motion (the suite runner swaps records in).
+
+        Each of ``x``, ``y``, ``z`` is a record path (absolute, or relative to
+        :attr:`base_dir`), a :class:`MotionComponent`, or ``None`` for no
+        component; components not given are absent in the copy. ``target`` and
+        ``match_target`` are kept from this scenario unless given. With no
+        component at all the copy has ``motion = None``.
+        """
+        from ._load import _KEEP, replace_motion
+        return replace_motion(self, {"x": x, "y": y, "z": z},
+                              _KEEP if target is _KEEP_MARK else target,
+                              _KEEP if match_target is _KEEP_MARK else match_target)
+
+    def processing_settings(self):
+        """``groundshake.processing.ProcessingSettings`` built from :attr:`processing`."""
+        from groundshake.processing import ProcessingSettings
+        return ProcessingSettings(**{f.name: getattr(self.processing, f.name)
+                                     for f in dataclasses.fields(self.processing)})
+
+    def estimated_dofs(self) -> float:
+        """Rough number of degrees of freedom of the mesh (3 per grid node); an estimate."""
+        from ._geometry import estimated_dofs
+        return estimated_dofs(self.parts, self.mesh.element_size)
+
+    def mount_position(self, equipment: int | str) -> tuple[float, float, float]:
+        """Point [m] where an equipment's footprint centre sits on the top face.
+
+        ``equipment`` is an index into :attr:`equipment` or a name.
+        """
+        from ._geometry import _tolerance, top_face_height
+        if isinstance(equipment, str):
+            matches = [e for e in self.equipment if e.name == equipment]
+            if not matches:
+                raise KeyError(equipment)
+            e = matches[0]
+        else:
+            e = self.equipment[equipment]
+        z, _ = top_face_height(self.parts, e.mount, e.footprint, _tolerance(self.parts))
+        return (e.mount[0], e.mount[1], z)
