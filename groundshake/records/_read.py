@@ -130,8 +130,9 @@ def _file_units_and_scale(tr) -> tuple[str | None, float, str]:
     """(units the file states or None, factor from stored values to those units, note)."""
     fmt = getattr(tr.stats, "_format", "") or ""
     if fmt == "KNET":
-        # obspy turns the header's "Scale Factor N(gal)/D" into calib in m/s² per count
-        return "m/s2", float(tr.stats.calib), "scale factor from the K-NET header (gal)"
+        # obspy turns the header's "Scale Factor N(gal)/D" into calib in m/s² per count;
+        # the file's own unit is the gal
+        return "cm/s2", 100.0 * float(tr.stats.calib), "scale factor from the K-NET header (gal)"
     if fmt == "KINEMETRICS_EVT":
         h = tr.stats.kinemetrics_evt
         full = float(h.get("chan_fullscale", 0) or 0)
