@@ -141,6 +141,8 @@ def allowed_text(meta: dict) -> str:
         return "a non-empty string"
     if kind == "choice":
         return "one of " + ", ".join(f'"{c}"' for c in meta["choices"])
+    if kind == "units":
+        return "one of g, m/s2, cm/s2 (gal), mm/s2, ft/s2, in/s2 (common spellings such as m/s^2 too)"
     if kind == "vector":
         each = _range_text({**meta, "unit": ""}, "")
         each = f", each {each.strip()}" if each.strip() else ""
@@ -237,6 +239,15 @@ def _convert(f: dataclasses.Field, v: Any, path: tuple, ctx: _Context) -> Any:
             hint = _did_you_mean(v, meta["choices"]) if isinstance(v, str) else ""
             raise ctx.bad(path, v, allowed + hint)
         return v
+    if kind == "units":
+        from ..records._units import canonical_units
+        from .._errors import RecordError
+        if not isinstance(v, str):
+            raise ctx.bad(path, v, allowed)
+        try:
+            return canonical_units(v)
+        except RecordError:
+            raise ctx.bad(path, v, allowed) from None
     if kind == "vector":
         if not isinstance(v, (list, tuple)) or len(v) != meta["length"]:
             raise ctx.bad(path, v, allowed)

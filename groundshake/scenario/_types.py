@@ -33,8 +33,8 @@ __all__ = [
     "RECORD_UNITS",
 ]
 
-#: Record units a motion component may name (case as written).
-RECORD_UNITS = ("g", "m/s2", "cm/s2", "gal", "mm/s2", "ft/s2", "in/s2")
+#: Canonical record units (other spellings, such as gal or m/s^2, are accepted and mapped).
+RECORD_UNITS = ("g", "m/s2", "cm/s2", "mm/s2", "ft/s2", "in/s2")
 
 _MISSING = dataclasses.MISSING
 _KEEP_MARK = object()  # "leave as it is" for Scenario.with_motion
@@ -44,8 +44,8 @@ def spec(kind: str, default: Any = _MISSING, *, doc: str, unit: str = "",
          factory: Any = _MISSING, derived: str | None = None, **rules: Any):
     """A dataclass field that also describes its TOML key.
 
-    ``kind`` is one of number, integer, bool, string, choice, vector, numbers,
-    points, path, trace, target, table, array, named; ``rules`` holds range
+    ``kind`` is one of number, integer, bool, string, choice, units, vector,
+    numbers, points, path, trace, target, table, array, named; ``rules`` holds range
     limits (gt, ge, lt, le), ``choices``, ``length``, ``cls`` and ``allowed``
     (text overriding the generated one). No default means the key is required;
     ``derived`` names a default that is computed from other keys.
@@ -70,8 +70,9 @@ class MotionComponent:
     """One ground-motion component: a record file and how to read it."""
 
     file: Path = spec("path", doc="record file, relative to the scenario file")
-    units: str | None = spec("choice", None, choices=RECORD_UNITS,
-                             doc="units of the record; none = as the file says")
+    units: str | None = spec("units", None,
+                             doc="units of the record (stored by its canonical name); "
+                                 "none = as the file says")
     scale: float = spec("number", 1.0, nonzero=True, doc="factor applied to the record")
     dt: float | None = spec("number", None, gt=0.0, unit="s",
                             doc="time step, for one-column text files")
@@ -117,7 +118,7 @@ class ProcessingOptions:
     lowpass_hz: float | None = spec("number", None, gt=0.0, unit="Hz",
                                     doc="low-pass corner; none = no low-pass")
     filter_order: int = spec("integer", 4, ge=1, le=12, doc="Butterworth filter order")
-    taper_percent: float = spec("number", 5.0, ge=0.0, le=50.0, unit="%",
+    taper_percent: float = spec("number", 5.0, ge=0.0, le=25.0, unit="%",
                                 doc="cosine taper at each end, percent of the length")
     pad: bool = spec("bool", True, doc="pad with zeros before filtering (kept in the result)")
 
