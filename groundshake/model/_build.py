@@ -1,0 +1,693 @@
+"""Build the block model from a scenario: mesh, matrices, supports, equipment, sensors.
+
+DOFs. The grid's node DOFs (3 per node, interleaved x, y, z) plus a few master DOFs:
+the rigid base on soil springs (6, at the centre of the base face), one rigid mount per
+equipment item (6, at the centre of its footprint on the top face) and, for equipment
+on a flexible support, its three CG translations. Fixed base DOFs are removed; the
+nodes of the base face (soil, lumped springs) and of each footprint are slaved to their
+master, u = u_m + θ_m × (x − x_m). The reduced DOFs are [free node DOFs, masters].
+All displacements are relative to the ground.
+"""
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass, field
+from typing import Any, Literal
+
+import numpy as np
+import scipy.sparse as sp
+
+from .._errors import GroundshakeWarning, ScenarioError
+from ._assembly import assemble, assemble_stress, element_keys
+from ._elements import brick_matrices, shape_values
+from ._factor import Factor, factorize
+from ._memory import check_memory
+from ._mesh import Box, count_grid, mesh_boxes
+from ._supports import Impedance, distributed_bed, gazetas_rectangle
+
+__all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_model",
+           "rigid_link", "G_STANDARD"]
+
+#: Standard gravity [m/s²].
+G_STANDARD = 9.80665
+
+
+def _get(obj: Any, name: str, default: Any = None) -> Any:
+    if obj is None:
+        return default
+    if isinstance(obj, dict):
+        return obj.get(name, default)
+    return getattr(obj, name, default)
+
+
+def rigid_link(offsets: np.ndarray) -> np.ndarray:
+    """Rows (3p, 6) mapping master [u, θ] to the translations of points at ``offsets``
+    (p, 3) from the master: u = u_m + θ × r."""
+    r = np.atleast_2d(offsets)
+    p = r.shape[0]
+    T = np.zeros((p, 3, 6))
+    T[:, 0, 0] = T[:, 1, 1] = T[:, 2, 2] = 1.0
+    T[:, 0, 4], T[:, 0, 5] = r[:, 2], -r[:, 1]
+    T[:, 1, 3], T[:, 1, 5] = -r[:, 2], r[:, 0]
+    T[:, 2, 3], T[:, 2, 4] = r[:, 1], -r[:, 0]
+    return T.reshape(3 * p, 6)
+
+
+def _resultant_rows(offsets: np.ndarray) -> np.ndarray:
+    """(6, 3p): forces at points ``offsets`` (p, 3) → [Fx, Fy, Fz, Mx, My, Mz] about 0."""
+    return rigid_link(offsets).T
+
+
+@dataclass(frozen=True, eq=False)
+class Point:
+    """A sensor: ``operator`` (3, n) sparse gives its relative displacement [m] from u."""
+
+    name: str
+    position: np.ndarray
+    operator: sp.csr_matrix
+
+
+@dataclass(frozen=True, eq=False)
+class EquipmentModel:
+    """An equipment item as modelled.
+
+    ``operator`` (6, n) sparse: CG translations [m] and rotations [rad] (relative).
+    ``frequency_hz`` (3,) or None (rigid); ``damping`` ratio of its support.
+    """
+
+    name: str
+    mass: float
+    inertia: np.ndarray
+    cg: np.ndarray
+    mount: np.ndarray
+    anchors: np.ndarray
+    dead_load_factor: float
+    capacity: Any
+    fp: Any
+    operator: sp.csr_matrix
+    frequency_hz: np.ndarray | None
+    damping: float
+    footprint: np.ndarray = field(default_factory=lambda: np.zeros(2))
+
+    @property
+    def weight(self) -> float:
+        """Weight [N]."""
+        return self.mass * G_STANDARD
+
+
+@dataclass(frozen=True, eq=False)
+class ReactionOperators:
+    """Base resultants R(t) = K·u + C·u̇ + M·ü + G·a_g the structure exerts on its
+    support, [Fx, Fy, Fz, Mx, My, Mz] [N, N·m] about the centre of the base face.
+    ``K``, ``C``, ``M`` (6, n) dense, ``G`` (6, 3) dense."""
+
+    K: np.ndarray
+    C: np.ndarray
+    M: np.ndarray
+    G: np.ndarray
+
+
+@dataclass(eq=False)
+class BlockModel:
+    """The finite-element model of a block and what stands on it (see docs/INTERNALS.md).
+
+    Matrices are in the reduced DOFs (n,) of relative displacement: ``K`` [N/m],
+    ``M`` [kg] sparse CSR (n, n); ``influence`` (n, 3).
+    """
+
+    nodes: np.ndarray
+    elements: np.ndarray
+    element_centres: np.ndarray
+    element_part: np.ndarray
+    K: sp.csr_matrix
+    M: sp.csr_matrix
+    influence: np.ndarray
+    total_mass: np.ndarray
+    weight: float
+    sensors: list
+    equipment: list
+    reaction: ReactionOperators
+    stress: sp.csr_matrix
+    base: dict
+    damping_ratio: float
+    rayleigh_hz: tuple[float, float] | None
+    support_kind: str
+    element_kind: str
+    mass_kind: str
+    part_names: list
+    materials: dict
+    node_map: sp.csr_matrix
+    impedance: Impedance | None = None
+    solver: str = "auto"
+    cutoff_hz: float | None = None
+    _stiff_parts: list = field(default_factory=list)   # (ratio, K_part (n, n))
+    _dashpots: sp.csr_matrix | None = None             # discrete dashpots (n, n)
+    _radiation: sp.csr_matrix | None = None            # soil radiation part of them
+    _factor: Factor | None = None
+    notes: list = field(default_factory=list)
+    rayleigh_used_hz: tuple[float, float] | None = None
+
+    @property
+    def n_dof(self) -> int:
+        return self.K.shape[0]
+
+    @property
+    def is_classically_damped(self) -> bool:
+        """False when discrete dashpots (soil radiation, equipment supports) are present."""
+        return self._dashpots is None or self._dashpots.nnz == 0
+
+    def factor(self) -> Factor:
+        """The factorization of K, built once and reused (``.solve(B)`` gives K⁻¹B)."""
+        if self._factor is None:
+            self._factor = factorize(self.K, solver=self.solver)
+        return self._factor
+
+    def rayleigh_coefficients(self, frequencies_hz=None) -> tuple[float, float]:
+        """(a, b) of C = a·M + b·K giving the block's ratio at two frequencies [Hz].
+
+        Uses ``frequencies_hz``, else the scenario's ``rayleigh_hz``, else the first
+        mode and max(cutoff_hz, 5·f1) (the choice is kept in ``rayleigh_used_hz``).
+        """
+        f = frequencies_hz if frequencies_hz is not None else self.rayleigh_hz
+        if f is None:
+            from ..dynamics._modes import lowest_modes
+            w, _ = lowest_modes(self.K, self.M, n_modes=1, factor=self.factor())
+            f1 = float(np.sqrt(max(w[0], 0.0)) / (2 * np.pi))
+            f = (f1, max(self.cutoff_hz or 0.0, 5 * f1))
+        self.rayleigh_used_hz = (float(f[0]), float(f[1]))
+        w1, w2 = 2 * np.pi * f[0], 2 * np.pi * f[1]
+        z = self.damping_ratio
+        a = 2 * z * w1 * w2 / (w1 + w2)
+        b = 2 * z / (w1 + w2)
+        return a, b
+
+    def damping_matrix(self, frequencies_hz=None) -> sp.csr_matrix:
+        """Damping (n, n) [N·s/m] for direct integration.
+
+        Rayleigh a·M + b·K_block on the block (and equipment masses/soil springs, which
+        are part of M and K), with the block's ratio at two frequencies (see
+        :meth:`rayleigh_coefficients`), plus the discrete dashpots of equipment
+        supports and of soil radiation.
+        """
+        a, b = self.rayleigh_coefficients(frequencies_hz)
+        Kb = self._block_stiffness()
+        C = a * self.M + b * Kb
+        if self._dashpots is not None:
+            C = C + self._dashpots
+        return sp.csr_matrix(C)
+
+    def _block_stiffness(self):
+        K = self.K
+        for ratio, Kp in self._stiff_parts:
+            if ratio is not None:
+                K = K - Kp
+        return K
+
+    def modal_damping(self, shapes: np.ndarray) -> np.ndarray:
+        """Composite modal damping ratios (m,) for mode shapes (n, m).
+
+        ξ_n = Σ_j ξ_j·φᵀK_jφ / φᵀKφ (strain-energy weights: block and soil springs at the
+        block ratio or its Rayleigh value, each equipment support at its own ratio), plus
+        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term).
+        """
+        phi = np.asarray(shapes, dtype=float)
+        if phi.ndim == 1:
+            phi = phi[:, None]
+        Kphi = self.K @ phi
+        e_tot = np.einsum("im,im->m", phi, Kphi)
+        mm = np.einsum("im,im->m", phi, self.M @ phi)
+        omega = np.sqrt(np.maximum(e_tot, 0.0) / mm)
+        if self.rayleigh_hz is not None:
+            a, b = self.rayleigh_coefficients(self.rayleigh_hz)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                zb = np.where(omega > 0, a / (2 * omega) + b * omega / 2, self.damping_ratio)
+        else:
+            zb = np.full(phi.shape[1], self.damping_ratio)
+        e_rest = e_tot.copy()
+        num = np.zeros(phi.shape[1])
+        for ratio, Kp in self._stiff_parts:
+            if ratio is None:
+                continue
+            e = np.einsum("im,im->m", phi, Kp @ phi)
+            num += ratio * e
+            e_rest -= e
+        with np.errstate(divide="ignore", invalid="ignore"):
+            z = np.where(e_tot > 0, (zb * e_rest + num) / e_tot, zb)
+            if self._radiation is not None and self._radiation.nnz:
+                cr = np.einsum("im,im->m", phi, self._radiation @ phi)
+                z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
+        return z
+
+    def describe(self) -> dict:
+        """Plain dict for summary.json: mesh counts, element, supports, materials."""
+        d = {
+            "element": self.element_kind,
+            "mass": self.mass_kind,
+            "n_nodes": int(self.nodes.shape[0]),
+            "n_elements": int(self.elements.shape[0]),
+            "n_dof": int(self.n_dof),
+            "parts": list(self.part_names),
+            "materials": self.materials,
+            "total_mass": [float(v) for v in self.total_mass],
+            "weight": float(self.weight),
+            "support": {"kind": self.support_kind},
+            "base": {k: (v.tolist() if isinstance(v, np.ndarray) else v)
+                     for k, v in self.base.items()},
+            "damping": {"ratio": self.damping_ratio,
+                        "rayleigh_hz": list(self.rayleigh_hz) if self.rayleigh_hz else None,
+                        "classical": self.is_classically_damped},
+            "equipment": [{"name": e.name, "mass": e.mass, "cg": e.cg.tolist(),
+                           "support": "rigid" if e.frequency_hz is None else "flexible",
+                           "frequency_hz": None if e.frequency_hz is None
+                           else e.frequency_hz.tolist(),
+                           "damping": e.damping} for e in self.equipment],
+            "sensors": [{"name": s.name, "at": s.position.tolist()} for s in self.sensors],
+            "equipment_link": "footprint nodes slaved to a rigid mount (master-slave)",
+            "notes": list(self.notes),
+        }
+        if self.impedance is not None:
+            d["support"].update(self.impedance.to_dict())
+        return d
+
+
+def _materials(scenario):
+    mats = _get(scenario, "materials", {}) or {}
+    names = list(mats.keys())
+    props = []
+    for nm in names:
+        m = mats[nm]
+        props.append((float(_get(m, "youngs_modulus")), float(_get(m, "poisson_ratio")),
+                      float(_get(m, "density"))))
+    return names, props
+
+
+def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None = None,
+                check_memory_first: bool = True) -> BlockModel:
+    """Build the :class:`BlockModel` of a scenario.
+
+    Parameters
+    ----------
+    scenario : a ``groundshake.scenario.Scenario`` (or any object/dict with the same
+        attribute names: ``parts``, ``materials``, ``mesh``, ``support``, ``damping``,
+        ``equipment``, ``sensors``, ``analysis``).
+    solver : factorization for :meth:`BlockModel.factor` (default from
+        ``analysis.solver``).
+
+    Raises
+    ------
+    ScenarioError for geometry that cannot be modelled; ModelTooLargeError (quickly,
+    before assembly) when the estimate exceeds the available memory.
+    """
+    mat_names, mat_props = _materials(scenario)
+    parts = list(_get(scenario, "parts", []) or [])
+    boxes = []
+    for i, p in enumerate(parts):
+        mname = _get(p, "material")
+        if mname not in mat_names:
+            raise ScenarioError(f"parts[{i}].material: given {mname!r}; allowed one of "
+                                f"{mat_names}")
+        boxes.append(Box(name=str(_get(p, "name", f"part{i}")),
+                         origin=tuple(float(v) for v in _get(p, "origin")),
+                         size=tuple(float(v) for v in _get(p, "size")),
+                         material=mat_names.index(mname)))
+    mesh_cfg = _get(scenario, "mesh")
+    h = float(_get(mesh_cfg, "element_size", 0.5))
+    element = _get(mesh_cfg, "element", "hex8-incompatible")
+    mass_kind = _get(mesh_cfg, "mass", "consistent")
+    support = _get(scenario, "support")
+    kind = _get(support, "kind", "fixed")
+    springs = _get(support, "springs", "lumped")
+    dmp = _get(scenario, "damping")
+    ratio = float(_get(dmp, "ratio_percent", 5.0)) / 100.0
+    rayleigh = _get(dmp, "rayleigh_hz", None)
+    analysis = _get(scenario, "analysis")
+    if solver is None:
+        solver = _get(analysis, "solver", "auto") or "auto"
+    equipment_cfg = list(_get(scenario, "equipment", []) or [])
+    sensors_cfg = list(_get(scenario, "sensors", []) or [])
+
+    soft = ([], [], [])
+    for e in equipment_cfg:
+        mx, my = (float(v) for v in _get(e, "mount"))
+        bx, by = (float(v) for v in _get(e, "footprint"))
+        soft[0].extend([mx - bx / 2, mx, mx + bx / 2])
+        soft[1].extend([my - by / 2, my, my + by / 2])
+    for s in sensors_cfg:
+        at = [float(v) for v in _get(s, "at")]
+        for a in range(3):
+            soft[a].append(at[a])
+
+    if check_memory_first:
+        n_nodes_est, _ = count_grid(boxes, h, soft)
+        check_memory(n_nodes_est, h)
+
+    mesh = mesh_boxes(boxes, h, soft)
+    material_of_part = [b.material for b in boxes]
+    key_grid, sizes, kmat = element_keys(mesh, material_of_part)
+    props = np.array(mat_props)[kmat]
+    mats = brick_matrices(sizes, props[:, 0], props[:, 1], props[:, 2], element=element)
+    Kn, Mn = assemble(mesh, key_grid, mats, mass=mass_kind)
+    nn = mesh.n_nodes
+    nodes = mesh.nodes
+    xs, ys, zs = mesh.lines
+    notes: list[str] = []
+
+    # ---- base face
+    zmin = zs[0]
+    base_nodes = np.flatnonzero(np.abs(nodes[:, 2] - zmin) <= 1e-9 * max(1.0, zs[-1] - zmin))
+    bottom = mesh.filled[0]
+    dxs, dys = np.diff(xs), np.diff(ys)
+    area = float((bottom * dys[:, None] * dxs[None, :]).sum())
+    bx0, bx1 = nodes[base_nodes, 0].min(), nodes[base_nodes, 0].max()
+    by0, by1 = nodes[base_nodes, 1].min(), nodes[base_nodes, 1].max()
+    lx, ly = bx1 - bx0, by1 - by0
+    centre = np.array([(bx0 + bx1) / 2, (by0 + by1) / 2, zmin])
+    base = {"area": area, "lx": float(lx), "ly": float(ly), "centre": centre, "z": float(zmin)}
+    if abs(area - lx * ly) > 0.01 * lx * ly:
+        msg = (f"base face is not a rectangle (area {area:.4g} m² vs {lx:g} × {ly:g} m); "
+               "soil springs use the enclosing rectangle")
+        notes.append(msg)
+        if kind == "soil":
+            warnings.warn(msg, GroundshakeWarning, stacklevel=2)
+
+    # ---- masters: list of (name, n dofs); node DOF classification
+    n_node_dof = 3 * nn
+    status = np.zeros(n_node_dof, dtype=np.int8)  # 0 free, 1 fixed, 2 slaved
+    slave_rows: list[np.ndarray] = []   # node DOF index arrays
+    slave_maps: list[tuple[int, np.ndarray]] = []  # (master offset, (3p, 6) matrix)
+    n_extra = 0
+    base_master = None
+    impedance = None
+    base_dofs = (3 * base_nodes[:, None] + np.arange(3)).ravel()
+    k_bed = None
+    if kind == "fixed":
+        status[base_dofs] = 1
+    elif kind == "soil":
+        vs = float(_get(support, "shear_wave_velocity"))
+        nus = float(_get(support, "poisson_ratio"))
+        rhos = float(_get(support, "density"))
+        impedance = gazetas_rectangle(lx, ly, shear_wave_velocity=vs, poisson_ratio=nus,
+                                      density=rhos,
+                                      radiation_damping=bool(_get(support, "radiation_damping", True)))
+        if springs == "distributed":
+            # tributary areas: ∫N_A dA over the bottom faces of the bottom cells
+            w = np.zeros(nn)
+            jj, ii = np.nonzero(bottom)
+            a4 = (dxs[ii] * dys[jj]) / 4
+            for di in (0, 1):
+                for dj in (0, 1):
+                    np.add.at(w, mesh.node_id[0, jj + dj, ii + di], a4)
+            wb = w[base_nodes]
+            k_bed, note = distributed_bed(nodes[base_nodes, :2] - centre[:2], wb,
+                                          impedance.stiffness)
+            c_bed = impedance.damping[:3][None, :] * (wb / wb.sum())[:, None]
+            notes.append(note)
+        else:
+            base_master = n_extra
+            n_extra += 6
+            status[base_dofs] = 2
+            slave_rows.append(base_dofs)
+            slave_maps.append((base_master, rigid_link(nodes[base_nodes] - centre)))
+    else:
+        raise ScenarioError(f"support.kind: given {kind!r}; allowed 'fixed', 'soil'")
+
+    # ---- equipment mounts
+    eq_info = []
+    top_tol = 1e-9 * max(1.0, zs[-1] - zmin)
+    for q, e in enumerate(equipment_cfg):
+        name = str(_get(e, "name", f"equipment{q}"))
+        mx, my = (float(v) for v in _get(e, "mount"))
+        bxf, byf = (float(v) for v in _get(e, "footprint"))
+        x0, x1, y0, y1 = mx - bxf / 2, mx + bxf / 2, my - byf / 2, my + byf / 2
+        ci = np.flatnonzero(((xs[:-1] + xs[1:]) / 2 > x0) & ((xs[:-1] + xs[1:]) / 2 < x1))
+        cj = np.flatnonzero(((ys[:-1] + ys[1:]) / 2 > y0) & ((ys[:-1] + ys[1:]) / 2 < y1))
+        if ci.size == 0 or cj.size == 0:
+            raise ScenarioError(f"equipment[{q}] ({name}): footprint {bxf:g} × {byf:g} m at "
+                                f"mount [{mx:g}, {my:g}] covers no element; allowed a footprint "
+                                "on the block's top face")
+        col = mesh.filled[:, cj[:, None], ci[None, :]]  # (nez, nj, ni)
+        has = col.any(axis=0)
+        topk = np.where(has, col.shape[0] - 1 - np.argmax(col[::-1], axis=0), -1)
+        if not has.all() or np.unique(topk).size != 1:
+            raise ScenarioError(f"equipment[{q}] ({name}): footprint at mount [{mx:g}, {my:g}] "
+                                "does not lie on one flat top face of the block; allowed a "
+                                "footprint within a single top surface")
+        ztop = zs[int(topk.flat[0]) + 1]
+        if int(topk.flat[0]) + 1 < len(zs) - 1 and mesh.filled[int(topk.flat[0]) + 1:,
+                                                             cj[:, None], ci[None, :]].any():
+            raise ScenarioError(f"equipment[{q}] ({name}): footprint is not on a top face")
+        sel = ((np.abs(nodes[:, 2] - ztop) <= top_tol)
+               & (nodes[:, 0] >= x0 - 1e-9) & (nodes[:, 0] <= x1 + 1e-9)
+               & (nodes[:, 1] >= y0 - 1e-9) & (nodes[:, 1] <= y1 + 1e-9))
+        fp_nodes = np.flatnonzero(sel)
+        fp_dofs = (3 * fp_nodes[:, None] + np.arange(3)).ravel()
+        if np.any(status[fp_dofs] != 0):
+            raise ScenarioError(f"equipment[{q}] ({name}): footprint overlaps the base or "
+                                "another equipment footprint; allowed separate footprints "
+                                "on the top face")
+        mount_pt = np.array([mx, my, ztop])
+        mo = n_extra
+        n_extra += 6
+        status[fp_dofs] = 2
+        slave_rows.append(fp_dofs)
+        slave_maps.append((mo, rigid_link(nodes[fp_nodes] - mount_pt)))
+        freq = _get(e, "frequency_hz", None)
+        eo = None
+        if freq is not None:
+            eo = n_extra
+            n_extra += 3
+        eq_info.append((q, name, e, mount_pt, mo, eo, fp_nodes))
+
+    # ---- node map P: node DOFs (3nn) = P · reduced
+    free_dofs = np.flatnonzero(status == 0)
+    nf = free_dofs.size
+    n = nf + n_extra
+    red_of = np.full(n_node_dof, -1, dtype=np.int64)
+    red_of[free_dofs] = np.arange(nf)
+    rows = [free_dofs]
+    cols = [np.arange(nf)]
+    vals = [np.ones(nf)]
+    for dofs, (mo, T) in zip(slave_rows, slave_maps):
+        nz = T != 0
+        r, c = np.nonzero(nz)
+        rows.append(dofs[r])
+        cols.append(nf + mo + c)
+        vals.append(T[nz])
+    P = sp.csr_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))),
+                      shape=(n_node_dof, n))
+
+    # ---- reduce K and M: K_red = Pᵀ K P (+ master terms)
+    s_dofs = np.flatnonzero(status == 2)
+    Ts = P[s_dofs][:, nf:]  # (|s|, n_extra)
+    Kf = Kn[free_dofs]
+    Mf = Mn[free_dofs]
+
+    def reduce(A, Af):
+        Aff = Af[:, free_dofs]
+        if n_extra == 0:
+            return sp.csr_matrix(Aff)
+        Afs = Af[:, s_dofs] @ Ts
+        Ass = Ts.T @ (A[s_dofs][:, s_dofs] @ Ts)
+        return sp.bmat([[Aff, Afs], [Afs.T, Ass]], format="csr")
+
+    K = reduce(Kn, Kf)
+    M = reduce(Mn, Mf)
+    Kx = np.zeros((n_extra, n_extra))
+    Mx = np.zeros((n_extra, n_extra))
+    Cx = np.zeros((n_extra, n_extra))
+    stiff_parts = []
+
+    def extra_mat(D):
+        if n_extra == 0:
+            return sp.csr_matrix((n, n))
+        Z = sp.csr_matrix(D)
+        return sp.bmat([[sp.csr_matrix((nf, nf)), None], [None, Z]], format="csr")
+
+    rad = None
+    dash = None
+    if kind == "soil":
+        if base_master is not None:
+            Ks = np.zeros((n_extra, n_extra))
+            Ks[base_master:base_master + 6, base_master:base_master + 6] = np.diag(impedance.stiffness)
+            Kx += Ks
+            Cr = np.zeros((n_extra, n_extra))
+            Cr[base_master:base_master + 6, base_master:base_master + 6] = np.diag(impedance.damping)
+            Cx += Cr
+            rad = extra_mat(Cr)
+        else:
+            bd = red_of[base_dofs]
+            Ks_sp = sp.csr_matrix((k_bed.ravel(), (bd, bd)), shape=(n, n))
+            K = K + Ks_sp
+            rad = sp.csr_matrix((c_bed.ravel(), (bd, bd)), shape=(n, n))
+            dash = rad
+
+    # ---- equipment masses, springs
+    equipment = []
+    eq_parts = []
+    g_unit = np.zeros(n_extra)
+    for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
+        m = float(_get(e, "mass"))
+        hcg = float(_get(e, "cg_height"))
+        bxf, byf = (float(v) for v in _get(e, "footprint"))
+        inertia = _get(e, "rotary_inertia", None)
+        if inertia is None:
+            hz = 2 * hcg
+            inertia = np.array([m / 12 * (byf ** 2 + hz ** 2), m / 12 * (bxf ** 2 + hz ** 2),
+                                m / 12 * (bxf ** 2 + byf ** 2)])
+        inertia = np.broadcast_to(np.asarray(inertia, float), (3,)).copy()
+        cg = mount_pt + np.array([0.0, 0.0, hcg])
+        Tcg = rigid_link(cg - mount_pt)  # (3, 6)
+        dp = _get(e, "damping_percent", None)
+        zeta = ratio if dp is None else float(dp) / 100.0
+        freq = _get(e, "frequency_hz", None)
+        Mx[mo + 3:mo + 6, mo + 3:mo + 6] += np.diag(inertia)
+        op = np.zeros((6, n))
+        op[3:, nf + mo + 3:nf + mo + 6] = np.eye(3)
+        if freq is None:
+            Mx[mo:mo + 6, mo:mo + 6] += m * Tcg.T @ Tcg
+            op[:3, nf + mo:nf + mo + 6] = Tcg
+            fz = None
+        else:
+            fz = np.broadcast_to(np.asarray(freq, float), (3,)).copy()
+            kk = m * (2 * np.pi * fz) ** 2
+            cc = 2 * zeta * m * (2 * np.pi * fz)
+            Mx[eo:eo + 3, eo:eo + 3] += m * np.eye(3)
+            L = np.zeros((3, n_extra))
+            L[:, eo:eo + 3] = np.eye(3)
+            L[:, mo:mo + 6] -= Tcg
+            Kq = L.T @ np.diag(kk) @ L
+            Cq = L.T @ np.diag(cc) @ L
+            Kx += Kq
+            Cx += Cq
+            eq_parts.append((zeta, extra_mat(Kq)))
+            op[:3, nf + eo:nf + eo + 3] = np.eye(3)
+        equipment.append(EquipmentModel(
+            name=name, mass=m, inertia=inertia, cg=cg, mount=mount_pt,
+            anchors=np.asarray(_get(e, "anchors", []) or [], float).reshape(-1, 2),
+            dead_load_factor=float(_get(e, "dead_load_factor", 1.0)),
+            capacity=_get(e, "capacity", None), fp=_get(e, "fp", None),
+            operator=sp.csr_matrix(op), frequency_hz=fz, damping=zeta,
+            footprint=np.array([bxf, byf])))
+    if n_extra:
+        K = sp.csr_matrix(K + extra_mat(Kx))
+        M = sp.csr_matrix(M + extra_mat(Mx))
+        Cd = extra_mat(Cx)
+        dash = Cd if dash is None else dash + Cd
+    if kind == "soil":
+        if base_master is not None:
+            Ks6 = np.zeros((n_extra, n_extra))
+            Ks6[base_master:base_master + 6, base_master:base_master + 6] = np.diag(impedance.stiffness)
+            stiff_parts.append((None, extra_mat(Ks6)))
+        else:
+            stiff_parts.append((None, Ks_sp))
+    stiff_parts.extend(eq_parts)
+    K.sort_indices()
+    M.sort_indices()
+
+    # ---- influence, total mass, weight
+    iota = np.zeros((n, 3))
+    comp = free_dofs % 3
+    iota[np.arange(nf), comp] = 1.0
+    if base_master is not None:
+        iota[nf + base_master + np.arange(3), np.arange(3)] = 1.0
+    for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
+        iota[nf + mo + np.arange(3), np.arange(3)] = 1.0
+        if eo is not None:
+            iota[nf + eo + np.arange(3), np.arange(3)] = 1.0
+    total_mass = np.einsum("ia,ia->a", iota, M @ iota)
+    block_mass = float(Mn.sum() / 3.0)
+    weight = G_STANDARD * (block_mass + sum(e.mass for e in equipment))
+
+    # ---- sensors
+    sensors = []
+    for si, s in enumerate(sensors_cfg):
+        at = np.array([float(v) for v in _get(s, "at")])
+        nm = str(_get(s, "name", f"sensor{si}"))
+        op = _point_operator(mesh, P, at)
+        if op is None:
+            raise ScenarioError(f"sensors[{si}].at ({nm}): {at.tolist()} is not inside or on "
+                                "the block; allowed a point of the modelled parts")
+        sensors.append(Point(name=nm, position=at, operator=op))
+
+    # ---- reactions
+    if kind == "fixed":
+        Sres = _resultant_rows(nodes[base_nodes] - centre)  # (6, 3nb)
+        KR = -(Sres @ (Kn[base_dofs] @ P).toarray())
+        MR = -(Sres @ (Mn[base_dofs] @ P).toarray())
+        iota_nodes = np.zeros((n_node_dof, 3))
+        iota_nodes[np.arange(n_node_dof), np.arange(n_node_dof) % 3] = 1.0
+        GR = -(Sres @ (Mn[base_dofs] @ iota_nodes))
+        CR = np.zeros_like(KR)
+    elif base_master is not None:
+        KR = np.zeros((6, n))
+        CR = np.zeros((6, n))
+        KR[:, nf + base_master:nf + base_master + 6] = np.diag(impedance.stiffness)
+        CR[:, nf + base_master:nf + base_master + 6] = np.diag(impedance.damping)
+        MR = np.zeros((6, n))
+        GR = np.zeros((6, 3))
+    else:
+        Sres = _resultant_rows(nodes[base_nodes] - centre)
+        bd = red_of[base_dofs]
+        KR = np.zeros((6, n))
+        CR = np.zeros((6, n))
+        KR[:, bd] = Sres * k_bed.ravel()[None, :]
+        CR[:, bd] = Sres * c_bed.ravel()[None, :]
+        MR = np.zeros((6, n))
+        GR = np.zeros((6, 3))
+    reaction = ReactionOperators(K=KR, C=CR, M=MR, G=GR)
+
+    stress = sp.csr_matrix(assemble_stress(mesh, key_grid, mats) @ P)
+    materials = {nm: {"youngs_modulus": p[0], "poisson_ratio": p[1], "density": p[2]}
+                 for nm, p in zip(mat_names, mat_props)}
+    if kind == "soil":
+        notes.extend(impedance.notes)
+    model = BlockModel(
+        nodes=nodes, elements=mesh.elements, element_centres=mesh.element_centres,
+        element_part=mesh.element_part, K=K, M=M, influence=iota, total_mass=total_mass,
+        weight=weight, sensors=sensors, equipment=equipment, reaction=reaction,
+        stress=stress, base=base, damping_ratio=ratio,
+        rayleigh_hz=None if rayleigh is None else (float(rayleigh[0]), float(rayleigh[1])),
+        support_kind=kind, element_kind=element, mass_kind=mass_kind,
+        part_names=[b.name for b in boxes], materials=materials, node_map=P,
+        impedance=impedance, solver=solver,
+        cutoff_hz=_get(analysis, "cutoff_hz", None),
+        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes)
+    model.mesh = mesh  # the grid, for plots and tests
+    return model
+
+
+def _point_operator(mesh, P, at) -> sp.csr_matrix | None:
+    """(3, n) operator interpolating the displacement at point ``at`` (3,) [m]."""
+    xs, ys, zs = mesh.lines
+    idx = []
+    for a, l in zip(at, (xs, ys, zs)):
+        tol = 1e-9 * max(1.0, l[-1] - l[0])
+        if a < l[0] - tol or a > l[-1] + tol:
+            return None
+        i = int(np.clip(np.searchsorted(l, a, side="right") - 1, 0, len(l) - 2))
+        idx.append(i)
+    # a point on a cell face may belong to a neighbour cell that is filled
+    cand = []
+    for di in (0, -1):
+        for dj in (0, -1):
+            for dk in (0, -1):
+                i, j, k = idx[0] + di, idx[1] + dj, idx[2] + dk
+                if min(i, j, k) < 0 or i >= len(xs) - 1 or j >= len(ys) - 1 or k >= len(zs) - 1:
+                    continue
+                lo = np.array([xs[i], ys[j], zs[k]])
+                hi = np.array([xs[i + 1], ys[j + 1], zs[k + 1]])
+                if mesh.filled[k, j, i] and np.all(at >= lo - 1e-9) and np.all(at <= hi + 1e-9):
+                    cand.append((i, j, k, lo, hi))
+    if not cand:
+        return None
+    i, j, k, lo, hi = cand[0]
+    xi = np.clip(2 * (at - lo) / (hi - lo) - 1, -1, 1)
+    N = shape_values(xi[None])[0]  # (8,)
+    from ._elements import NODE_SIGNS
+    off = ((NODE_SIGNS + 1) / 2).astype(int)
+    nid = mesh.node_id[k + off[:, 2], j + off[:, 1], i + off[:, 0]]
+    W = sp.csr_matrix((np.repeat(N, 3), (np.tile(np.arange(3), 8),
+                                         (3 * nid[:, None] + np.arange(3)).ravel())),
+                      shape=(3, P.shape[0]))
+    return sp.csr_matrix(W @ P)
