@@ -152,8 +152,8 @@ def intensity_measures(record: Record) -> dict:
     for key, x in (("pga", a), ("pgv", vel), ("pgd", disp)):
         i = int(np.argmax(np.abs(x)))
         peaks[key] = float(abs(x[i]))
-        peaks[f"{key}_time"] = i * dt - t0
-    t5, t75, t95 = (float(_crossing_time(h, q, dt)) - t0 for q in (0.05, 0.75, 0.95))
+        peaks[f"{key}_time"] = round(i * dt - t0, 9)
+    t5, t75, t95 = (round(float(_crossing_time(h, q, dt)) - t0, 9) for q in (0.05, 0.75, 0.95))
     return {
         **peaks,
         "arias_intensity": float(arias_intensity(a, dt)),

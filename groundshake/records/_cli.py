@@ -1,0 +1,263 @@
+"""Commands ``info`` and ``correct``, and the record options other commands share.
+
+Other stages' commands can reuse :func:`add_reading_options`,
+:func:`add_processing_options`, :func:`settings_from_args` and
+:func:`read_records_from_args` so that every command reads records alike.
+"""
+from __future__ import annotations
+
+import argparse
+import os
+from pathlib import Path
+
+import numpy as np
+
+from .._cautions import SCREENING_NOTE
+from .._cli_common import print_json, table
+from .._errors import InputError
+from ._record import STANDARD_GRAVITY, Record
+from ._units import UNIT_NAMES
+
+__all__ = ["register", "add_reading_options", "add_processing_options", "settings_from_args",
+           "read_records_from_args", "cmd_info", "cmd_correct"]
+
+
+# -- shared options -------------------------------------------------------------------
+
+def add_reading_options(p: argparse.ArgumentParser) -> None:
+    """Add ``--units``, ``--dt`` and ``--resample`` (how files are read)."""
+    g = p.add_argument_group("reading")
+    g.add_argument("--units", metavar="U",
+                   help=f"units of files that do not state them: {UNIT_NAMES}")
+    g.add_argument("--dt", type=float, metavar="S",
+                   help="time step [s] of one-column text files")
+    g.add_argument("--resample", action="store_true",
+                   help="put text files with uneven time steps on a uniform step "
+                        "(linear interpolation at the median step)")
+
+
+def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> None:
+    """Add the correction options (defaults: published practice)."""
+    g = p.add_argument_group("correction (defaults follow Boore & Bommer 2005)")
+    if raw:
+        g.add_argument("--raw", action="store_true",
+                       help="use each record exactly as read (no correction)")
+    g.add_argument("--highpass", type=float, metavar="HZ",
+                   help="low-cut corner [Hz] (default 0.1; 0 for none)")
+    g.add_argument("--lowpass", type=float, metavar="HZ",
+                   help="high-cut corner [Hz] (default none)")
+    g.add_argument("--order", type=int, metavar="N", help="Butterworth order of each pass (default 4)")
+    g.add_argument("--baseline-order", type=int, metavar="K",
+                   help="order of the polynomial fitted to velocity, 0-6 (default 1; 0 for none)")
+    g.add_argument("--taper", type=float, metavar="PCT",
+                   help="cosine taper at each end, percent of the record (default 5)")
+    g.add_argument("--pre-event", type=float, metavar="S",
+                   help="remove the mean of the first S seconds instead of the whole record")
+    g.add_argument("--no-pad", action="store_true", help="no zero pads before the low-cut filter")
+
+
+def settings_from_args(args: argparse.Namespace):
+    """A ProcessingSettings from the options of :func:`add_processing_options`."""
+    from ..processing import ProcessingSettings
+
+    if getattr(args, "raw", False):
+        return ProcessingSettings(enabled=False)
+    kw = {}
+    if getattr(args, "highpass", None) is not None:
+        kw["highpass_hz"] = None if args.highpass == 0 else args.highpass
+    if getattr(args, "lowpass", None) is not None:
+        kw["lowpass_hz"] = None if args.lowpass == 0 else args.lowpass
+    if getattr(args, "order", None) is not None:
+        kw["filter_order"] = args.order
+    if getattr(args, "baseline_order", None) is not None:
+        kw["baseline_order"] = args.baseline_order
+    if getattr(args, "taper", None) is not None:
+        kw["taper_percent"] = args.taper
+    if getattr(args, "pre_event", None) is not None:
+        kw["mean_removal"] = "pre-event"
+        kw["pre_event_s"] = args.pre_event
+    if getattr(args, "no_pad", False):
+        kw["pad"] = False
+    names = {"highpass_hz": "--highpass", "lowpass_hz": "--lowpass", "filter_order": "--order",
+             "baseline_order": "--baseline-order", "taper_percent": "--taper",
+             "pre_event_s": "--pre-event"}
+    try:
+        return ProcessingSettings(**kw)
+    except InputError as e:  # name the option rather than the scenario key
+        msg = str(e)
+        for key, opt in names.items():
+            msg = msg.replace(f"processing.{key}", opt)
+        raise InputError(msg) from e
+
+
+def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
+    """Read every file of ``paths`` with the options of :func:`add_reading_options`."""
+    from ._read import read_record
+
+    out = []
+    for path in paths:
+        out.extend(read_record(path, units=getattr(args, "units", None),
+                               dt=getattr(args, "dt", None),
+                               resample=getattr(args, "resample", False)))
+    return out
+
+
+# -- info -----------------------------------------------------------------------------
+
+_INFO_ROWS = (
+    ("PGA", "pga", "m/s2"), ("PGA", "pga_g", "g"), ("time of PGA", "pga_time", "s"),
+    ("PGV", "pgv", "m/s"), ("time of PGV", "pgv_time", "s"),
+    ("PGD", "pgd", "m"), ("time of PGD", "pgd_time", "s"),
+    ("Arias intensity", "arias_intensity", "m/s"),
+    ("D5-75", "d5_75", "s"), ("D5-95", "d5_95", "s"),
+    ("bracketed (0.05 g)", "bracketed_duration", "s"),
+    ("CAV", "cav", "m/s"), ("standardized CAV", "cav_std", "m/s"),
+    ("mean period", "mean_period", "s"),
+)
+
+
+def cmd_info(args: argparse.Namespace) -> int:
+    from ..processing import SCALAR_MEASURES, correct_record, intensity_measures
+
+    settings = settings_from_args(args)
+    records = read_records_from_args(args.records, args)
+    out = []
+    for raw in records:
+        rec = correct_record(raw, settings)
+        m = intensity_measures(rec)
+        entry = {"name": rec.name, "component": rec.component, "source": rec.source,
+                 "units_read": raw.units, "dt": rec.dt, "n_read": raw.n, "n": rec.n,
+                 "duration_read": raw.duration, "start_time": raw.start_time}
+        entry.update({k: m[k] for k in SCALAR_MEASURES})
+        entry["pga_g"] = m["pga"] / STANDARD_GRAVITY
+        entry["history"] = list(rec.history)
+        out.append(entry)
+    if getattr(args, "json", False):
+        print_json({"processing": {**settings.to_dict(), "description": settings.describe()},
+                    "records": out})
+        return 0
+    header = ["measure", "unit", *[e["name"] for e in out]]
+    rows = [["component", "", *[e["component"] or "-" for e in out]],
+            ["units read", "", *[e["units_read"] for e in out]],
+            ["samples x dt [s]", "", *[f"{e['n_read']} x {e['dt']:g}" for e in out]]]
+    rows += [[label, unit, *[e[key] for e in out]] for label, key, unit in _INFO_ROWS]
+    print(table(rows, header))
+    print(f"processing: {settings.describe()}")
+    print("times from the first sample as read; " + SCREENING_NOTE)
+    return 0
+
+
+# -- correct --------------------------------------------------------------------------
+
+def _same_file(a: Path, b: Path) -> bool:
+    try:
+        return a.exists() and b.exists() and os.path.samefile(a, b)
+    except OSError:
+        return False
+
+
+def cmd_correct(args: argparse.Namespace) -> int:
+    from ..processing import correct_record, integrate
+    from ._write import WRITE_FORMATS
+
+    src, dst = Path(args.record), Path(args.output)
+    if dst.suffix.lower() not in WRITE_FORMATS:
+        raise InputError(f"-o {dst}: unknown output format {dst.suffix or '(none)'!r}; "
+                         f"allowed: {', '.join(WRITE_FORMATS)}")
+    if _same_file(src, dst) or src.resolve() == dst.resolve():
+        raise InputError(f"-o {dst}: is the input file; give another output path "
+                         f"(inputs are never overwritten)")
+    if args.plot is not None:
+        plot = Path(args.plot)
+        if plot.suffix.lower() not in (".png", ".pdf", ".svg"):
+            raise InputError(f"--plot {plot}: give a .png, .pdf or .svg file")
+        if _same_file(src, plot) or plot.resolve() in (src.resolve(), dst.resolve()):
+            raise InputError(f"--plot {plot}: would overwrite the input or the output")
+    settings = settings_from_args(args)
+    raws = read_records_from_args([src], args)
+    corrected = [correct_record(r, settings) for r in raws]
+    from ._write import write_record
+
+    write_record(corrected, dst)
+    if args.plot is not None:
+        _plot_correction(raws, corrected, Path(args.plot), integrate)
+    if getattr(args, "json", False):
+        print_json({"output": str(dst), "plot": args.plot,
+                    "processing": {**settings.to_dict(), "description": settings.describe()},
+                    "records": [{"name": c.name, "component": c.component, "dt": c.dt,
+                                 "n_read": r.n, "n": c.n,
+                                 "pad_before_s": c.metadata.get("pad_before_s", 0.0),
+                                 "pga_read": float(np.max(np.abs(r.acc))),
+                                 "pga": float(np.max(np.abs(c.acc))),
+                                 "history": list(c.history)}
+                                for r, c in zip(raws, corrected)]})
+        return 0
+    print(f"wrote {dst} ({len(corrected)} record{'s' if len(corrected) > 1 else ''}, m/s2)")
+    if args.plot is not None:
+        print(f"wrote {args.plot}")
+    print(f"processing: {settings.describe()}")
+    for c in corrected:
+        print(f"{c.name}:")
+        for step in c.history:
+            print(f"  - {step}")
+    return 0
+
+
+def _plot_correction(raws, corrected, path: Path, integrate) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from .._atomic import atomic_path
+
+    ncol = len(raws)
+    fig, axes = plt.subplots(3, ncol, figsize=(6.5 * ncol, 7.5), sharex="col", squeeze=False)
+    labels = (("acceleration [m/s²]", 0), ("velocity [m/s]", 1), ("displacement [m]", 2))
+    for j, (r, c) in enumerate(zip(raws, corrected)):
+        shift = float(c.metadata.get("pad_before_s", 0.0) or 0.0)
+        rv, rd = integrate(r.acc, r.dt)
+        cv, cd = integrate(c.acc, c.dt)
+        for (label, i), yr, yc in zip(labels, (r.acc, rv, rd), (c.acc, cv, cd)):
+            ax = axes[i, j]
+            ax.plot(r.time, yr, lw=0.7, color="0.55", label="as read")
+            ax.plot(c.time - shift, yc, lw=0.8, color="C0", label="corrected (with pads)")
+            ax.set_ylabel(label)
+            ax.grid(alpha=0.3)
+        axes[0, j].set_title(c.name)
+        axes[0, j].legend(loc="upper right", fontsize=8)
+        axes[2, j].set_xlabel("time from the first sample as read [s]")
+    fig.suptitle("Record correction (screening only)", fontsize=10)
+    fig.tight_layout()
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, dpi=110, format=path.suffix.lstrip(".").lower())
+    plt.close(fig)
+
+
+# -- registration ---------------------------------------------------------------------
+
+def register(subparsers, parents) -> None:
+    """Add ``info`` and ``correct`` to the ``groundshake`` command line."""
+    p = subparsers.add_parser(
+        "info", parents=parents, help="intensity measures of records (PGA, Arias, durations, CAV)",
+        description="Read records, correct them (unless --raw) and print their intensity "
+                    "measures in SI units.")
+    p.add_argument("records", nargs="+", metavar="RECORD", help="record files (any ObsPy format, "
+                   "or delimited text)")
+    add_reading_options(p)
+    add_processing_options(p)
+    p.set_defaults(func=cmd_info)
+
+    p = subparsers.add_parser(
+        "correct", parents=parents, help="correct a record and write it (MiniSEED, SAC or CSV)",
+        description="Correct a record (mean, velocity baseline, taper, zero pads, acausal "
+                    "Butterworth) and write the padded result in m/s²; the format follows "
+                    "the extension of -o.")
+    p.add_argument("record", metavar="RECORD", help="record file")
+    p.add_argument("-o", "--output", required=True, metavar="OUT",
+                   help="output file: .mseed, .sac or .csv")
+    p.add_argument("--plot", metavar="PNG", help="also plot acceleration, velocity and "
+                   "displacement before and after correction")
+    add_reading_options(p)
+    add_processing_options(p, raw=False)
+    p.set_defaults(func=cmd_correct)
