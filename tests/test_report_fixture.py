@@ -1,0 +1,225 @@
+"""An invented run-output folder for the report tests (INVENTED TEST DATA, not a result
+of any analysis): the files of docs/INTERNALS.md "Files in DIR" with plausible shapes
+and units, so the report can be tested without running the pipeline.
+
+Sources of the checks in this file: counting of a structured hexahedral grid
+(n_nodes = (nx+1)(ny+1)(nz+1) for a full box; common practice) and RFC 4180 (CSV).
+"""
+from __future__ import annotations
+
+import csv
+import json
+from pathlib import Path
+
+import numpy as np
+
+HOSTILE_TITLE = "<script>alert(1)</script> pad & \"co\" 'quoted' $x$"
+HOSTILE_EQUIPMENT = "<img src=x onerror=alert(2)>"
+HOSTILE_SENSOR = "corner </section><b>bold</b>"
+HOSTILE_STATION = "<iframe src=\"http://example.invalid\"></iframe>"
+
+
+def _grid_lines():
+    xs = np.linspace(0.0, 6.0, 13)
+    ys = np.linspace(0.0, 4.0, 9)
+    zs = np.array([0.0, 0.3, 0.6, 0.9, 1.2])
+    return xs, ys, zs
+
+
+def _cells():
+    """Element centres: a 6 x 4 x 0.6 m mat and a 2 x 2 x 0.6 m pedestal on it."""
+    xs, ys, zs = _grid_lines()
+    cx, cy, cz = (0.5 * (a[1:] + a[:-1]) for a in (xs, ys, zs))
+    X, Y, Z = np.meshgrid(cx, cy, cz, indexing="ij")
+    mat = Z < 0.6
+    ped = (Z > 0.6) & (X > 2.0) & (X < 4.0) & (Y > 1.0) & (Y < 3.0)
+    keep = mat | ped
+    return np.column_stack([X[keep], Y[keep], Z[keep]])
+
+
+def _nodes(centres):
+    xs, ys, zs = _grid_lines()
+    h = np.array([0.25, 0.25, 0.15])
+    corners = np.concatenate([centres + h * np.array(s) for s in
+                              np.array(np.meshgrid([-1, 1], [-1, 1], [-1, 1])).T.reshape(-1, 3)])
+    return np.unique(np.round(corners, 9), axis=0)
+
+
+def _write_csv(path: Path, header, rows) -> None:
+    with open(path, "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(header)
+        for r in rows:
+            w.writerow(["" if (isinstance(v, float) and not np.isfinite(v)) else
+                        (f"{v:.9g}" if isinstance(v, (float, np.floating)) else v) for v in r])
+
+
+def make_output_folder(path, *, hostile: bool = False, capacity: bool = True,
+                       files: tuple[str, ...] | None = None) -> Path:
+    """Write an invented output folder at ``path`` and return it."""
+    out = Path(path)
+    out.mkdir(parents=True, exist_ok=True)
+    title = HOSTILE_TITLE if hostile else "Invented pad for report tests"
+    eq = HOSTILE_EQUIPMENT if hostile else "transformer"
+    sensor = HOSTILE_SENSOR if hostile else "top corner"
+    station = HOSTILE_STATION if hostile else "DEMO"
+    dt, n = 0.01, 1500
+    t = np.arange(n) * dt
+    env = np.exp(-((t - 5.0) / 2.5) ** 2)
+    ground = np.stack([2.0 * env * np.sin(2 * np.pi * 2.0 * t),
+                       1.5 * env * np.sin(2 * np.pi * 2.7 * t + 0.4),
+                       0.8 * env * np.sin(2 * np.pi * 5.0 * t)])
+    centres = _cells()
+    nodes = _nodes(centres)
+    anchors = [[-1.0, -0.6], [1.0, -0.6], [1.0, 0.6], [-1.0, 0.6]]
+    cap = {"tension": 80e3, "shear": 50e3} if capacity else None
+    scenario = {
+        "title": title,
+        "motion": {c: {"file": f"../records/demo-{c}.mseed", "units": "m/s2", "scale": 1.0,
+                       "dt": None, "trace": None} for c in "xyz"} | {"target": "asce7:sds=1.0,sd1=0.6,tl=8",
+                                                                    "match_target": False},
+        "processing": {"enabled": True, "mean_removal": "whole", "pre_event_s": 0.0,
+                       "baseline_order": 1, "highpass_hz": 0.1, "lowpass_hz": None,
+                       "filter_order": 4, "taper_percent": 5.0, "pad": True},
+        "materials": {"concrete": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0}},
+        "parts": [{"name": "mat", "material": "concrete", "origin": [0.0, 0.0, 0.0],
+                   "size": [6.0, 4.0, 0.6]},
+                  {"name": "pedestal", "material": "concrete", "origin": [2.0, 1.0, 0.6],
+                   "size": [2.0, 2.0, 0.6]}],
+        "mesh": {"element_size": 0.5, "element": "hex8-incompatible", "mass": "consistent"},
+        "support": {"kind": "soil", "shear_wave_velocity": 250.0, "poisson_ratio": 0.33,
+                    "density": 1900.0, "radiation_damping": True, "springs": "lumped"},
+        "damping": {"ratio_percent": 5.0, "rayleigh_hz": None},
+        "equipment": [{"name": eq, "mass": 18000.0, "mount": [3.0, 2.0], "footprint": [2.4, 1.6],
+                       "cg_height": 1.6, "frequency_hz": [9.0, 9.0, 20.0], "damping_percent": 3.0,
+                       "rotary_inertia": None, "anchors": anchors, "dead_load_factor": 1.0,
+                       "capacity": cap,
+                       "fp": {"sds": 1.0, "ap": 1.0, "rp": 2.5, "ip": 1.0, "z_over_h": 0.0}}],
+        "sensors": [{"name": sensor, "at": [6.0, 4.0, 0.6]}],
+        "analysis": {"method": "modal", "cutoff_hz": 50.0, "modes": None, "hht_alpha": 0.0,
+                     "solver": "auto"},
+        "floor_spectra": {"damping_percent": [2.0, 5.0], "broadening_percent": 15.0,
+                          "periods": {"min": 0.02, "max": 5.0, "count": 120}},
+    }
+    tension = [41e3, 95e3, 30e3, 12e3]
+    shear = [20e3, 21e3, 19e3, 22e3]
+    summary = {
+        "title": title,
+        "peaks": {"base_shear": {"x": 3.1e5, "y": 2.4e5}, "base_moment": {"x": 4.0e5, "y": 5.2e5}},
+        "sensors": {sensor: {"peak_absolute_acceleration": {"x": 2.6, "y": 2.0, "z": 1.1},
+                             "peak_relative_displacement": {"x": 1.2e-4, "y": 9e-5, "z": 3e-5}}},
+        "equipment": {eq: {"peak_absolute_acceleration": {"x": 5.1, "y": 4.2, "z": 1.9},
+                           "anchors": [{"peak_tension": a, "peak_shear": b}
+                                       for a, b in zip(tension, shear)]}},
+        "modes": {"count": 6, "cutoff_hz": 50.0},
+        "warnings": ["Only 84 % of the mass in z is in the modes kept; the rest is carried by "
+                     "the missing-mass term.", f"Sensor '{sensor}' sits on an edge."],
+        "cautions": ["This is an invented folder for tests."],
+        "scenario": scenario,
+        "records": [{"name": f"{station}.{c}", "component": c, "source": f"demo-{c}.mseed",
+                     "pga": float(np.max(np.abs(ground[k]))), "pgv": 0.2, "pgd": 0.05,
+                     "arias_intensity": 0.9, "d5_95": 6.1, "cav": 4.4,
+                     "history": ["mean removed (whole record)", "baseline order 1 fitted to velocity",
+                                 "Butterworth high-pass 0.1 Hz, order 4, acausal, padded"],
+                     "metadata": {"station": station, "network": "XX"}}
+                    for k, c in enumerate("xyz")],
+        "model": {"nodes": int(len(nodes)), "elements": int(len(centres)), "dofs": 3 * len(nodes),
+                  "element": "hex8-incompatible",
+                  "springs": {"kx": {"value": 1.1e9, "formula": "Gazetas (1991) Table 1, Kx"},
+                              "kz": {"value": 1.6e9, "formula": "Gazetas (1991) Table 1, Kz"}}},
+        "analysis": {"method": "modal", "solver": "scipy", "modes": 6, "dt": dt},
+        "stresses": {"peak_von_mises": 1.9e6},
+        "base": {"area": 24.0, "lx": 6.0, "ly": 4.0},
+        "floor_spectra": {"points": [eq], "broadening_percent": 15.0},
+        "provenance": {"version": "0.1.0", "command": f"groundshake run pad.toml -o out  # {title}",
+                       "date": "2026-01-01T00:00:00Z",
+                       "inputs": {"pad.toml": "0" * 64, "demo-x.mseed": "1" * 64},
+                       "solver": "scipy", "settings": {"cutoff_hz": 50.0}},
+    }
+    (out / "summary.json").write_text(json.dumps(summary, indent=1), encoding="utf-8")
+    want = set(files) if files is not None else None
+
+    def keep(name):
+        return want is None or name in want
+
+    if keep("histories"):
+        base = np.stack([1e5 * g for g in ground] + [2e5 * ground[1], 2e5 * ground[0],
+                                                    1e4 * ground[2]])
+        cols = [t, *ground, *base, *(1.3 * ground), *(2.1 * ground),
+                *(np.abs(g) * 1e4 for g in ground[[0, 1, 0, 1]]),
+                *(np.abs(g) * 5e3 for g in ground[[1, 0, 1, 0]])]
+        header = (["time [s]", "ground x [m/s2]", "ground y [m/s2]", "ground z [m/s2]",
+                   "base Fx [N]", "base Fy [N]", "base Fz [N]", "base Mx [N m]", "base My [N m]",
+                   "base Mz [N m]"]
+                  + [f"sensor {sensor} abs acc {c} [m/s2]" for c in "xyz"]
+                  + [f"equipment {eq} abs acc {c} [m/s2]" for c in "xyz"]
+                  + [f"anchor {eq} {k} tension [N]" for k in range(1, 5)]
+                  + [f"anchor {eq} {k} shear [N]" for k in range(1, 5)])
+        _write_csv(out / "histories.csv", header, np.column_stack(cols))
+    if keep("records"):
+        header, cols = ["time [s]"], [t]
+        for k, c in enumerate("xyz"):
+            raw = ground[k] + 0.05
+            vel = np.cumsum(raw) * dt
+            for state, a in (("raw", raw), ("corrected", ground[k])):
+                v = np.cumsum(a) * dt
+                header += [f"{c} {state} acc [m/s2]", f"{c} {state} vel [m/s]",
+                           f"{c} {state} disp [m]"]
+                cols += [a, v, np.cumsum(v) * dt]
+            del vel
+        _write_csv(out / "records.csv", header, np.column_stack(cols))
+    periods = np.geomspace(0.02, 5.0, 60)
+    shape = 1.0 + 1.5 * np.exp(-np.log(periods / 0.3) ** 2)
+    if keep("ground_spectra"):
+        header = ["period [s]"] + [f"{c} psa {d}% [m/s2]" for d in (2, 5) for c in "xyz"] \
+                 + ["target psa 5% [m/s2]"]
+        cols = [periods] + [pga * shape * (1.2 if d == 2 else 1.0) for d in (2, 5)
+                            for pga in (2.0, 1.5, 0.8)] + [9.80665 * np.minimum(1.0, 0.6 / periods)]
+        _write_csv(out / "ground_spectra.csv", header, np.column_stack(cols))
+    if keep("floor_spectra"):
+        header, cols = ["period [s]"], [periods]
+        for c in "xyz":
+            for d in (2, 5):
+                amp = 2.0 * shape * np.exp(-np.log(periods / 0.11) ** 2) + shape
+                header += [f"{eq} {c} raw psa {d}% [m/s2]", f"{eq} {c} broadened psa {d}% [m/s2]"]
+                cols += [amp, 1.05 * amp]
+        header += ["envelope x broadened psa 5% [m/s2]"]
+        cols += [cols[-1] * 1.1]
+        _write_csv(out / "floor_spectra.csv", header, np.column_stack(cols))
+    if keep("modes"):
+        f = np.array([7.9, 8.4, 12.5, 15.0, 22.0, 31.0])
+        ratio = np.array([[62, 0, 0], [0, 60, 0], [0, 0, 1], [20, 0, 0], [0, 22, 0], [0, 0, 83.]])
+        rows = [[k + 1, f[k], 1 / f[k], *ratio[k], *ratio[:k + 1].sum(axis=0)] for k in range(6)]
+        _write_csv(out / "modes.csv",
+                   ["mode", "frequency [Hz]", "period [s]"]
+                   + [f"effective mass ratio {c} [%]" for c in "xyz"]
+                   + [f"cumulative mass ratio {c} [%]" for c in "xyz"], rows)
+    if keep("element_peaks"):
+        x, y, z = centres.T
+        vm = 2e5 + 3e5 * x * (1.2 - z) + 1e5 * y
+        _write_csv(out / "element_peaks.csv",
+                   ["x [m]", "y [m]", "z [m]", "von mises [Pa]", "principal tension [Pa]",
+                    "principal compression [Pa]"],
+                   np.column_stack([centres, vm, 0.6 * vm, -0.8 * vm]))
+    if keep("mode_shapes"):
+        x, y, z = nodes.T
+        r = np.column_stack([x - 3.0, y - 2.0])
+        shapes = [np.column_stack([z, 0 * z, 0 * z]), np.column_stack([0 * z, z, 0 * z]),
+                  np.column_stack([-r[:, 1], r[:, 0], 0 * z]),
+                  np.column_stack([0 * z, 0 * z, np.sin(np.pi * x / 6.0)])]
+        header = ["x [m]", "y [m]", "z [m]"] + [f"mode {m} u{c} [m]" for m in range(1, 5)
+                                                for c in "xyz"]
+        _write_csv(out / "mode_shapes.csv", header, np.column_stack([nodes, *shapes]))
+    return out
+
+
+def test_fixture_grid_counts(tmp_path):
+    out = make_output_folder(tmp_path / "o")
+    with open(out / "element_peaks.csv", newline="") as fh:
+        n_el = sum(1 for _ in csv.reader(fh)) - 1
+    with open(out / "mode_shapes.csv", newline="") as fh:
+        n_nodes = sum(1 for _ in csv.reader(fh)) - 1
+    # 12 x 8 x 2 mat cells + 4 x 4 x 2 pedestal cells (structured grid counting)
+    assert n_el == 12 * 8 * 2 + 4 * 4 * 2
+    # mat nodes (13 x 9 x 3) + pedestal nodes above the mat's top (5 x 5 x 2)
+    assert n_nodes == 13 * 9 * 3 + 5 * 5 * 2
