@@ -284,7 +284,7 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
                 bad = next(c for c in cells if not _is_float(c))
                 raise RecordError(f"{where}:{number}: {bad!r} is not a number") from None
             if not _meta_line(s, meta):
-                header = cells
+                header = _merge_brackets(cells)
             continue
         if width is None:
             width = len(values)
@@ -389,6 +389,17 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
                               start_time=meta.get("start", meta.get("start time", "")),
                               metadata=md))
     return records
+
+
+def _merge_brackets(cells: list[str]) -> list[str]:
+    """Re-join a unit like "[g]" or "(cm/s2)" split off its column name by whitespace."""
+    out: list[str] = []
+    for c in cells:
+        if out and c[:1] in "[(":
+            out[-1] = f"{out[-1]} {c}"
+        else:
+            out.append(c)
+    return out
 
 
 def _is_float(text: str) -> bool:
