@@ -204,7 +204,9 @@ class _Builder:
         if acc:
             v, name, d = max(acc, key=lambda t: t[0])
             items.append((f"equipment peak acc. ({name}, {d})", f"{num(v)} m/s²"))
-        worst = self.worst_dc()
+        worst = _as_float(_get(self.s, "worst_dc", "value"))
+        if worst is None:
+            worst = self.worst_dc()
         if worst is not None:
             items.append(("largest demand / entered capacity", num(worst, 3)))
         freq = self.first_frequency()
@@ -258,7 +260,7 @@ class _Builder:
         if not recs:
             return '<p class="none">summary.json lists no records.</p>'
         skip = {"name", "history", "metadata", "component", "source", "file", "units", "measures",
-                "raw_measures", "processing"}
+                "raw_measures", "processing", "direction"}
         cols: list[str] = []
         rows_measures = []
         for r in recs:
@@ -267,9 +269,9 @@ class _Builder:
                       and not isinstance(v, bool)})
             rows_measures.append(m)
             cols += [k for k in m if k not in cols]
-        head = ["record", "component", "file"] + [
+        head = ["direction", "record", "component", "file"] + [
             f"{k} [{unit_of_key(k)}]" if unit_of_key(k) else k for k in cols]
-        rows = [[r.get("name"), r.get("component", ""), r.get("source", r.get("file", ""))]
+        rows = [[r.get("direction", ""), r.get("name"), r.get("component", ""), r.get("source", r.get("file", ""))]
                 + [m.get(k) for k in cols] for r, m in zip(recs, rows_measures)]
         html_ = ['<div class="scroll">', table(rows, head), "</div>",
                  "<h3>Processing history</h3>"]
