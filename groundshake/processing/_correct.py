@@ -125,7 +125,8 @@ def correct_record(record: Record, settings: ProcessingSettings | None = None) -
     for key in ("highpass_hz", "lowpass_hz"):
         value = getattr(s, key)
         if value is not None and value >= 0.95 * nyquist:
-            raise InputError(f"{record.name}: processing.{key} = {value:g} Hz must be below "
+            raise InputError(f"{record.source or record.name}: processing.{key} = {value:g} Hz "
+                             f"must be below "
                              f"0.95 x the Nyquist frequency {nyquist:g} Hz of this record "
                              f"(dt = {dt:g} s)")
     rec = record
@@ -135,7 +136,8 @@ def correct_record(record: Record, settings: ProcessingSettings | None = None) -
     if s.mean_removal == "pre-event":
         m = int(math.floor(s.pre_event_s / dt)) + 1
         if m < 2 or m > acc.size:
-            raise InputError(f"{record.name}: processing.pre_event_s = {s.pre_event_s:g} s gives "
+            raise InputError(f"{record.source or record.name}: processing.pre_event_s = "
+                             f"{s.pre_event_s:g} s gives "
                              f"{m} samples; need 2 to {acc.size}")
         mean = float(np.mean(acc[:m]))
         acc = acc - mean

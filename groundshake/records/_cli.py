@@ -78,16 +78,30 @@ def settings_from_args(args: argparse.Namespace):
         kw["pre_event_s"] = args.pre_event
     if getattr(args, "no_pad", False):
         kw["pad"] = False
-    names = {"highpass_hz": "--highpass", "lowpass_hz": "--lowpass", "filter_order": "--order",
-             "baseline_order": "--baseline-order", "taper_percent": "--taper",
-             "pre_event_s": "--pre-event"}
     try:
         return ProcessingSettings(**kw)
     except InputError as e:  # name the option rather than the scenario key
-        msg = str(e)
-        for key, opt in names.items():
-            msg = msg.replace(f"processing.{key}", opt)
-        raise InputError(msg) from e
+        raise InputError(_option_names(str(e))) from e
+
+
+_OPTION_OF_KEY = {"highpass_hz": "--highpass", "lowpass_hz": "--lowpass",
+                  "filter_order": "--order", "baseline_order": "--baseline-order",
+                  "taper_percent": "--taper", "pre_event_s": "--pre-event"}
+
+
+def _option_names(msg: str) -> str:
+    for key, opt in _OPTION_OF_KEY.items():
+        msg = msg.replace(f"processing.{key}", opt)
+    return msg
+
+
+def _correct_all(records, settings):
+    from ..processing import correct_record
+
+    try:
+        return [correct_record(r, settings) for r in records]
+    except InputError as e:
+        raise InputError(_option_names(str(e))) from e
 
 
 def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
@@ -117,13 +131,12 @@ _INFO_ROWS = (
 
 
 def cmd_info(args: argparse.Namespace) -> int:
-    from ..processing import SCALAR_MEASURES, correct_record, intensity_measures
+    from ..processing import SCALAR_MEASURES, intensity_measures
 
     settings = settings_from_args(args)
     records = read_records_from_args(args.records, args)
     out = []
-    for raw in records:
-        rec = correct_record(raw, settings)
+    for raw, rec in zip(records, _correct_all(records, settings)):
         m = intensity_measures(rec)
         entry = {"name": rec.name, "component": rec.component, "source": rec.source,
                  "units_read": raw.units, "dt": rec.dt, "n_read": raw.n, "n": rec.n,
@@ -157,7 +170,7 @@ def _same_file(a: Path, b: Path) -> bool:
 
 
 def cmd_correct(args: argparse.Namespace) -> int:
-    from ..processing import correct_record, integrate
+    from ..processing import integrate
     from ._write import WRITE_FORMATS
 
     src, dst = Path(args.record), Path(args.output)
@@ -175,7 +188,7 @@ def cmd_correct(args: argparse.Namespace) -> int:
             raise InputError(f"--plot {plot}: would overwrite the input or the output")
     settings = settings_from_args(args)
     raws = read_records_from_args([src], args)
-    corrected = [correct_record(r, settings) for r in raws]
+    corrected = _correct_all(raws, settings)
     from ._write import write_record
 
     write_record(corrected, dst)

@@ -104,10 +104,11 @@ def _try_obspy(path: Path):
     except TypeError as e:
         if "Unknown format" in str(e):
             return None
-        raise RecordError(f"{path}: ObsPy recognised the format but could not read it ({e})") from e
+        raise RecordError(f"{path}: not a record groundshake can read: ObsPy took it for one "
+                          f"of its formats but failed ({e})") from e
     except Exception as e:  # a reader that claimed the file and then failed
-        raise RecordError(f"{path}: ObsPy recognised the format but could not read it "
-                          f"({type(e).__name__}: {e})") from e
+        raise RecordError(f"{path}: not a record groundshake can read: ObsPy took it for one "
+                          f"of its formats but failed ({type(e).__name__}: {e})") from e
 
 
 def _plain(value: Any) -> Any:
