@@ -223,3 +223,34 @@ def test_fixture_grid_counts(tmp_path):
     assert n_el == 12 * 8 * 2 + 4 * 4 * 2
     # mat nodes (13 x 9 x 3) + pedestal nodes above the mat's top (5 x 5 x 2)
     assert n_nodes == 13 * 9 * 3 + 5 * 5 * 2
+
+
+_DEMO_CACHE: dict[str, object] = {}
+
+
+def demo_run():
+    """Run ``groundshake demo`` once per test process (shared by the demo and browser
+    tests); returns (exit status, stdout, demo folder)."""
+    if "run" not in _DEMO_CACHE:
+        import contextlib
+        import io
+        import tempfile
+
+        from groundshake.cli import main
+
+        folder = Path(tempfile.mkdtemp(prefix="groundshake-demo-test-")) / "demo"
+        buf = io.StringIO()
+        with contextlib.redirect_stdout(buf):
+            status = main(["demo", "-o", str(folder), "--quiet"])
+        _DEMO_CACHE["run"] = (status, buf.getvalue(), folder)
+    return _DEMO_CACHE["run"]
+
+
+def pipeline_available() -> bool:
+    """True when the run pipeline (results stage) can be imported."""
+    try:
+        from groundshake.results import analyse, write_outputs  # noqa: F401
+        from groundshake.spectra import response_spectrum  # noqa: F401
+    except ImportError:
+        return False
+    return True

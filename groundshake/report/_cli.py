@@ -1,0 +1,68 @@
+"""``groundshake demo [-o DIR] [--force]`` and ``groundshake report DIR``."""
+from __future__ import annotations
+
+from pathlib import Path
+
+from .._cautions import SCREENING_NOTE
+from .._cli_common import print_json
+from .._errors import InputError
+
+__all__ = ["register"]
+
+
+def register(subparsers, parents) -> None:
+    p = subparsers.add_parser(
+        "demo", parents=parents,
+        help="run the bundled example (an invented site) on the bundled demo records",
+        description="Copy the bundled example scenario (an invented transformer pad) and "
+                    "the synthetic demo records into DIR, run it, and write the report to "
+                    "DIR/results/report.html. Screening only.")
+    p.add_argument("-o", "--output", metavar="DIR", default="groundshake-demo",
+                   help="demo folder to create (default: ./groundshake-demo)")
+    p.add_argument("--force", action="store_true", help="replace the demo in DIR if it exists")
+    p.set_defaults(func=_demo)
+
+    r = subparsers.add_parser(
+        "report", parents=parents,
+        help="(re)write report.html of an existing output folder",
+        description="Rebuild DIR/report.html from the files a run wrote in DIR "
+                    "(summary.json and the CSV tables).")
+    r.add_argument("folder", metavar="DIR", help="output folder of `groundshake run`")
+    r.add_argument("--force", action="store_true", help="replace an existing report.html")
+    r.set_defaults(func=_report)
+
+
+def _demo(args) -> int:
+    from ._demo import run_demo
+
+    quiet = bool(getattr(args, "quiet", False))
+    run = run_demo(args.output, force=bool(args.force), progress=not quiet)
+    s = run.summary
+    if getattr(args, "json", False):
+        print_json({"folder": str(run.folder), "scenario": str(run.scenario),
+                    "results": str(run.results), "report": str(run.report),
+                    "warnings": s.get("warnings", []), "worst_dc": s.get("worst_dc")})
+        return 0
+    try:
+        from ..results._cli import _terminal_summary
+        print(_terminal_summary(s, run.results))
+    except Exception:  # the run's own table is a nicety here; the paths below are the point
+        print(f"{s.get('title', 'demo')}: warnings: {len(s.get('warnings', []))}")
+        print(SCREENING_NOTE)
+    print(f"report: {run.report}")
+    return 0
+
+
+def _report(args) -> int:
+    from ._report import write_report
+
+    quiet = bool(getattr(args, "quiet", False))
+    if (Path(args.folder) / "report.html").exists() and not args.force:
+        raise InputError(f"{Path(args.folder) / 'report.html'}: already exists; use --force to "
+                         "replace it")
+    path = write_report(Path(args.folder), progress=not quiet)
+    if getattr(args, "json", False):
+        print_json({"report": str(path)})
+    else:
+        print(f"report: {path}")
+    return 0
