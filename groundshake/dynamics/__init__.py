@@ -1,7 +1,15 @@
 """Dynamics of the block model: natural modes and participation.
 
-Public names: :func:`compute_modes`, :class:`Modes`, :func:`lowest_modes`.
+Public names: :func:`compute_modes`, :class:`Modes`, :func:`lowest_modes`;
+motion and response: :class:`Motion`, :func:`build_motion`, :func:`motion_from_arrays`,
+:func:`modal_response`, :func:`residual_vectors`, :func:`direct_response`.
 """
 from ._modes import Modes, compute_modes, lowest_modes
+from ._direct import DirectResponse, direct_response, newmark_parameters, substeps_for
+from ._modal import ModalResponse, modal_response, pruned_peak, residual_vectors
+from ._motion import Motion, build_motion, motion_from_arrays
 
-__all__ = ["Modes", "compute_modes", "lowest_modes"]
+__all__ = ["Modes", "compute_modes", "lowest_modes",
+           "Motion", "build_motion", "motion_from_arrays",
+           "ModalResponse", "modal_response", "residual_vectors", "pruned_peak",
+           "DirectResponse", "direct_response", "newmark_parameters", "substeps_for"]

@@ -1,0 +1,207 @@
+"""The files of a run's output folder (see docs/INTERNALS.md), written atomically."""
+from __future__ import annotations
+
+import csv
+import io
+import os
+from pathlib import Path
+from typing import Iterable, Sequence
+
+import numpy as np
+import scipy.sparse as sp
+
+from .._atomic import atomic_directory
+from .._cli_common import json_dumps
+from ..dynamics._motion import DIRECTIONS
+
+__all__ = ["write_outputs", "OUTPUT_FILES"]
+
+OUTPUT_FILES = ("summary.json", "histories.csv", "records.csv", "ground_spectra.csv",
+                "floor_spectra.csv", "modes.csv", "element_peaks.csv", "mode_shapes.csv")
+
+
+def _csv_text(header: Sequence[str], columns: Iterable[np.ndarray | Sequence]) -> str:
+    cols = [np.asarray(c) for c in columns]
+    n = max((c.shape[0] for c in cols), default=0)
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(header)
+    for i in range(n):
+        w.writerow([(f"{float(c[i]):.10g}" if np.issubdtype(c.dtype, np.floating) else str(c[i]))
+                    if i < c.shape[0] else "" for c in cols])
+    return buf.getvalue()
+
+
+def _write(folder: Path, name: str, text: str) -> None:
+    with open(folder / name, "w", encoding="utf-8", newline="") as fh:
+        fh.write(text)
+
+
+def _damp_label(r: float) -> str:
+    return f"{100 * r:g}%"
+
+
+def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = False,
+                  n_shapes: int = 6, report: bool = True) -> Path:
+    """Write a run's files into ``out_dir`` (a new folder, moved into place when complete).
+
+    Parameters
+    ----------
+    results : RunResults
+        From :func:`groundshake.analyse`.
+    out_dir : path
+        The folder to create; an existing one is replaced only with ``overwrite``.
+    n_shapes : int
+        Mode shapes written to mode_shapes.csv.
+    report : bool
+        Also write report.html with ``groundshake.report.write_report`` when that
+        stage is installed (inside the same atomic folder).
+
+    Returns
+    -------
+    Path
+        ``out_dir``.
+
+    Raises
+    ------
+    FileExistsError
+        ``out_dir`` exists and ``overwrite`` is false.
+    """
+    out_dir = Path(out_dir)
+    if out_dir.exists() and not overwrite:
+        raise FileExistsError(17, "already exists (use --force to replace it)", str(out_dir))
+    with atomic_directory(out_dir, overwrite=overwrite) as tmp:
+        _write(tmp, "summary.json", json_dumps(results.summary) + "\n")
+        h = results.histories
+        _write(tmp, "histories.csv", _csv_text(list(h), list(h.values())))
+        _write(tmp, "records.csv", _records_csv(results.motion))
+        _write(tmp, "ground_spectra.csv", _ground_csv(results))
+        _write(tmp, "floor_spectra.csv", _floor_csv(results))
+        _write(tmp, "modes.csv", _modes_csv(results.modes))
+        _write(tmp, "element_peaks.csv", _elements_csv(results))
+        _write(tmp, "mode_shapes.csv", _shapes_csv(results, n_shapes))
+        if report:
+            try:
+                from ..report import write_report
+            except ImportError:
+                write_report = None
+            if write_report is not None:
+                write_report(tmp)
+    return out_dir
+
+
+def _records_csv(motion) -> str:
+    from ..processing import integrate
+
+    header, cols = [], []
+    n_max = 0
+    for d in DIRECTIONS:
+        for kind, recs in (("raw", motion.raw), ("corrected", motion.corrected)):
+            rec = recs.get(d) if recs else None
+            if rec is None:
+                continue
+            vel, disp = integrate(np.asarray(rec.acc), rec.dt)
+            n_max = max(n_max, rec.n)
+            header += [f"{d} {kind} time [s]", f"{d} {kind} acc [m/s2]",
+                       f"{d} {kind} vel [m/s]", f"{d} {kind} disp [m]"]
+            cols += [rec.time, np.asarray(rec.acc), np.asarray(vel), np.asarray(disp)]
+    if not cols:                                    # motion given as arrays
+        vel, disp = integrate(np.asarray(motion.acc), motion.dt)
+        header = ["time [s]"]
+        cols = [motion.time]
+        for j, d in enumerate(DIRECTIONS):
+            header += [f"{d} corrected acc [m/s2]", f"{d} corrected vel [m/s]",
+                       f"{d} corrected disp [m]"]
+            cols += [motion.acc[j], vel[j], disp[j]]
+        return _csv_text(header, cols)
+    # the abscissa first: the time of the longest series
+    longest = int(np.argmax([c.shape[0] for c in cols[0::4]]))
+    header = ["time [s]"] + header
+    cols = [cols[4 * longest]] + cols
+    return _csv_text(header, cols)
+
+
+def _ground_csv(results) -> str:
+    g = results.ground_spectra
+    header, cols = ["period [s]"], [g["periods"]]
+    for j, d in enumerate(DIRECTIONS):
+        if d not in results.motion.components:
+            continue
+        for i, z in enumerate(g["damping"]):
+            header.append(f"ground {d} psa {_damp_label(z)} [m/s2]")
+            cols.append(g["psa"][j, i])
+    if results.target_psa is not None:
+        header.append("target psa [m/s2]")
+        cols.append(results.target_psa)
+    return _csv_text(header, cols)
+
+
+def _floor_csv(results) -> str:
+    f = results.floor
+    g = results.ground_spectra
+    header, cols = ["period [s]"], [f["periods"]]
+    names = f.get("points", [])
+    for p, nm in enumerate(names):
+        for j, d in enumerate(DIRECTIONS):
+            for i, z in enumerate(f["damping"]):
+                header += [f"{nm} {d} psa {_damp_label(z)} raw [m/s2]",
+                           f"{nm} {d} psa {_damp_label(z)} broadened [m/s2]"]
+                cols += [f["psa"][p, j, i], f["psa_broadened"][p, j, i]]
+    if names:
+        for j, d in enumerate(DIRECTIONS):
+            for i, z in enumerate(f["damping"]):
+                header += [f"envelope {d} psa {_damp_label(z)} raw [m/s2]",
+                           f"envelope {d} psa {_damp_label(z)} broadened [m/s2]"]
+                cols += [f["envelope_psa"][j, i], f["envelope_psa_broadened"][j, i]]
+    for j, d in enumerate(DIRECTIONS):
+        if d not in results.motion.components:
+            continue
+        for i, z in enumerate(g["damping"]):
+            header.append(f"ground {d} psa {_damp_label(z)} [m/s2]")
+            cols.append(g["psa"][j, i])
+    return _csv_text(header, cols)
+
+
+def _modes_csv(modes) -> str:
+    m = int(np.asarray(modes.omega).size)
+    header = ["mode", "frequency [Hz]", "period [s]", "damping [ratio]"]
+    cols = [np.arange(1, m + 1), np.asarray(modes.frequency, float), np.asarray(modes.period, float),
+            np.asarray(modes.damping, float)]
+    emr = np.asarray(modes.effective_mass_ratio, float).reshape(m, 3)
+    cum = np.asarray(modes.cumulative_ratio, float).reshape(m, 3)
+    for j, d in enumerate(DIRECTIONS):
+        header.append(f"effective mass ratio {d} [ratio]")
+        cols.append(emr[:, j])
+    for j, d in enumerate(DIRECTIONS):
+        header.append(f"cumulative mass ratio {d} [ratio]")
+        cols.append(cum[:, j])
+    return _csv_text(header, cols)
+
+
+def _elements_csv(results) -> str:
+    c = np.asarray(results.model.element_centres, float)
+    header = ["x [m]", "y [m]", "z [m]"]
+    cols = [c[:, 0], c[:, 1], c[:, 2]]
+    s = results.stress
+    if s is not None:
+        dt = results.motion.dt
+        header += ["von mises [Pa]", "principal tension [Pa]", "principal compression [Pa]",
+                   "time of von mises peak [s]", "part"]
+        cols += [s.von_mises, s.tension, s.compression, s.von_mises_step * dt,
+                 np.asarray(results.model.element_part)]
+    return _csv_text(header, cols)
+
+
+def _shapes_csv(results, n_shapes: int) -> str:
+    model, modes = results.model, results.modes
+    nodes = np.asarray(model.nodes, float)
+    header = ["x [m]", "y [m]", "z [m]"]
+    cols = [nodes[:, 0], nodes[:, 1], nodes[:, 2]]
+    m = min(n_shapes, int(np.asarray(modes.omega).size))
+    if m:
+        U = np.asarray(sp.csr_matrix(model.node_map) @ np.asarray(modes.shapes)[:, :m])
+        for k in range(m):
+            for j, comp in enumerate(("ux", "uy", "uz")):
+                header.append(f"mode {k + 1} {comp} [m]")
+                cols.append(U[j::3, k])
+    return _csv_text(header, cols)

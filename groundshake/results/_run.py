@@ -1,0 +1,650 @@
+"""One scenario through the whole pipeline: motion → model → modes → response → results."""
+from __future__ import annotations
+
+import dataclasses
+import datetime as _dt
+import hashlib
+import math
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Literal
+
+import numpy as np
+import scipy.sparse as sp
+
+from .._cautions import CAUTIONS
+from .._errors import GroundshakeWarning, InputError
+from .._progress import Progress
+from ..dynamics._direct import direct_response, substeps_for
+from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
+from ..dynamics._motion import DIRECTIONS, Motion, build_motion
+from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+from ._floor import floor_spectra
+from ._stress import StressPeaks, modal_stress_peaks
+
+__all__ = ["RunResults", "analyse", "respond"]
+
+RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
+
+
+@dataclass
+class RunResults:
+    """Everything a run produced.
+
+    Attributes
+    ----------
+    summary : dict
+        The summary (as written to summary.json), SI units.
+    motion : Motion
+    model : BlockModel
+    modes : Modes
+    time : ndarray (n_t,) [s]
+    histories : dict str -> ndarray (n_t,)
+        Named time histories (column name with unit → values).
+    ground_spectra : dict
+        ``periods``, ``damping``, ``psa`` (3, n_d, n_p) of the ground motion.
+    floor : dict
+        Output of :func:`floor_spectra` plus ``points`` (names).
+    stress : StressPeaks
+    """
+
+    summary: dict
+    motion: Motion
+    model: Any
+    modes: Any
+    time: np.ndarray
+    histories: dict
+    ground_spectra: dict
+    floor: dict
+    stress: StressPeaks | None
+    target_psa: np.ndarray | None = None
+    inputs: dict = field(default_factory=dict)
+
+
+# --------------------------------------------------------------------------- helpers
+def _dense(a) -> np.ndarray:
+    return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
+
+
+def _peak(x: np.ndarray, dt: float) -> dict:
+    """Peak |x| of a history (n_t,) with its time [s] and signed value."""
+    if x.size == 0:
+        return {"value": 0.0, "time": 0.0, "signed": 0.0}
+    i = int(np.argmax(np.abs(x)))
+    return {"value": float(abs(x[i])), "time": float(i * dt), "signed": float(x[i])}
+
+
+def _sha256(path: Path) -> str | None:
+    try:
+        h = hashlib.sha256()
+        with open(path, "rb") as fh:
+            for chunk in iter(lambda: fh.read(1 << 20), b""):
+                h.update(chunk)
+        return h.hexdigest()
+    except OSError:
+        return None
+
+
+def _mount_operator(model, position) -> sp.csr_matrix:
+    """(3, n) relative displacement of the block node nearest to ``position`` (3,)."""
+    i = int(np.argmin(np.sum((np.asarray(model.nodes) - np.asarray(position)) ** 2, axis=1)))
+    return sp.csr_matrix(model.node_map[3 * i:3 * i + 3])
+
+
+@dataclass
+class _Response:
+    """Histories of the requested rows, whichever method produced them."""
+
+    method: str
+    disp: np.ndarray          # (k, n_t) relative
+    vel: np.ndarray
+    acc: np.ndarray
+    node_peak: dict           # direction -> {value, node, time}
+    stress: StressPeaks | None
+    assumptions: list
+    info: dict
+
+
+def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
+            method: Literal["modal", "direct"] = "modal", cutoff_hz: float | None = None,
+            hht_alpha: float = 0.0, missing_mass: bool = True, stresses: bool = True,
+            progress: bool = False) -> _Response:
+    """Response of the model to the motion, for the rows of ``output`` (k, n).
+
+    Also gives the peak relative node displacement per direction anywhere in the
+    block and the per-element stress peaks, without ever holding the whole
+    displacement history.
+    """
+    dt = motion.dt
+    ag = np.asarray(motion.acc, dtype=float)
+    n_t = ag.shape[1]
+    n_nodes = model.nodes.shape[0]
+    n_el = model.elements.shape[0]
+    node_map = sp.csr_matrix(model.node_map)
+    S = sp.csr_matrix(model.stress)
+    info: dict = {}
+    if method == "modal":
+        shapes = np.asarray(modes.shapes)
+        gam = np.asarray(modes.participation)
+        residual = None
+        if missing_mass:
+            residual = residual_vectors(model.M, model.influence, shapes, gam,
+                                        model.factor().solve)
+        r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt, residual=residual)
+        u, v, a = r.recover(output)
+        Z = r.coordinates
+        node_peak = {}
+        A = r.coefficients(node_map)
+        for j, d in enumerate(DIRECTIONS):
+            row, val, col = pruned_peak(A[j::3], Z)
+            node_peak[d] = {"value": val, "node": int(row), "time": float(col * dt)}
+        peaks = None
+        if stresses and n_el:
+            with Progress("stress peaks", total=n_el) if progress else _NullBar() as bar:
+                peaks = modal_stress_peaks(r.coefficients(S), Z, n_el, progress=bar)
+        info.update(n_modes=int(shapes.shape[1]), missing_mass=residual is not None)
+        return _Response("modal", u, v, a, node_peak, peaks, r.assumptions, info)
+    if method != "direct":
+        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+    n_sub = substeps_for(dt, cutoff_hz)
+    peaks = StressPeaks.empty(n_el) if (stresses and n_el) else None
+
+    def on_block(ub, steps):
+        sig = (S @ ub).reshape(n_el, 6, -1).transpose(1, 0, 2)
+        peaks.update(slice(None), sig, steps)
+
+    C = model.damping_matrix()
+    res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
+                          hht_alpha=hht_alpha, substeps=n_sub,
+                          on_block=on_block if peaks is not None else None,
+                          peak_operator=node_map, solver=getattr(model, "solver", "auto"),
+                          progress=progress)
+    node_peak = {}
+    for j, d in enumerate(DIRECTIONS):
+        vals = res.dof_peak[j::3]
+        i = int(np.argmax(vals)) if vals.size else -1
+        node_peak[d] = {"value": float(vals[i]) if i >= 0 else 0.0, "node": i,
+                        "time": float(res.dof_peak_step[j::3][i] * dt) if i >= 0 else 0.0}
+    info.update(substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
+                solver=res.solver, rayleigh_hz=getattr(model, "rayleigh_used_hz", None))
+    assumptions = list(res.assumptions)
+    if n_sub > 1:
+        assumptions.append(f"The record step {dt:g} s was subdivided into {n_sub} steps so that "
+                           f"the step is at most 1/10 of the period at {cutoff_hz:g} Hz.")
+    assumptions.append("Block damping: Rayleigh matrix a·M + b·K at "
+                       f"{getattr(model, 'rayleigh_used_hz', None)} Hz plus the discrete "
+                       "dashpots of soil radiation and equipment supports.")
+    return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
+
+
+class _NullBar:
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        return None
+
+    def advance(self, n: int = 1) -> None:
+        pass
+
+
+def _get(obj, key, default=None):
+    if obj is None:
+        return default
+    if isinstance(obj, dict):
+        return obj.get(key, default)
+    return getattr(obj, key, default)
+
+
+# --------------------------------------------------------------------------- the run
+def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct"] | None = None,
+            motion: Motion | None = None, model=None, modes=None,
+            stresses: bool = True) -> RunResults:
+    """Run a scenario: motion, model, modes, response and every result.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        From :func:`groundshake.load_scenario` (needs a ``[motion]`` section
+        unless ``motion`` is given).
+    progress : bool
+        Progress bars on stderr (only drawn on a terminal).
+    method : {"modal", "direct"}, optional
+        Overrides ``analysis.method``.
+    motion, model, modes : optional
+        Precomputed pieces (e.g. a suite reuses the model and modes).
+    stresses : bool
+        Compute element stress peaks.
+
+    Returns
+    -------
+    RunResults
+        ``summary`` holds the keys of docs/INTERNALS.md; SI units.
+
+    Notes
+    -----
+    Relative to the moving base the load is p(t) = −M ι a_g(t); absolute
+    acceleration = relative + ground. Each method's assumptions are listed in
+    ``summary["analysis"]["assumptions"]``.
+    """
+    collected: list[str] = []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", GroundshakeWarning)
+        out = _analyse(scenario, progress=progress, method=method, motion=motion, model=model,
+                       modes=modes, stresses=stresses, collected=collected)
+    for w in caught:
+        if issubclass(w.category, GroundshakeWarning):
+            msg = str(w.message)
+            if msg not in collected:
+                collected.append(msg)
+        else:
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    out.summary["warnings"] = list(collected)
+    for msg in collected:
+        warnings.warn(msg, GroundshakeWarning, stacklevel=2)
+    return out
+
+
+def _analyse(scenario, *, progress, method, motion, model, modes, stresses, collected) -> RunResults:
+    from ..dynamics import compute_modes
+    from ..model import build_model
+    from ..spectra import response_spectrum
+
+    analysis = _get(scenario, "analysis")
+    method = method or _get(analysis, "method", "modal") or "modal"
+    if method not in ("modal", "direct"):
+        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+    cutoff = _get(analysis, "cutoff_hz", 50.0)
+    n_modes_req = _get(analysis, "modes", None)
+    hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
+    if motion is None:
+        if _get(scenario, "motion") is None:
+            raise InputError(f"{_get(scenario, 'source', 'scenario')}: [motion]: missing; "
+                             "allowed x, y, z = { file = ... } (at least one)")
+        motion = build_motion(scenario)
+    collected.extend(motion.notes)
+    if model is None:
+        model = build_model(scenario)
+    if modes is None:
+        with Progress("modes", total=None) if progress else _NullBar():
+            modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
+                                  n_modes=n_modes_req,
+                                  excited=tuple(d in motion.components for d in DIRECTIONS),
+                                  warn=False)
+    dt = motion.dt
+    ag = np.asarray(motion.acc, dtype=float)
+    n_t = ag.shape[1]
+    time = np.arange(n_t) * dt
+    iota = np.asarray(model.influence, dtype=float)
+    n = model.n_dof
+
+    # ---- the rows to recover
+    blocks, names = [], []
+    for s in model.sensors:
+        blocks.append(sp.csr_matrix(s.operator)); names.append(("sensor", s.name, 3))
+    for e in model.equipment:
+        blocks.append(sp.csr_matrix(e.operator)); names.append(("equipment", e.name, 6))
+    for e in model.equipment:
+        blocks.append(_mount_operator(model, e.mount)); names.append(("mount", e.name, 3))
+    R = model.reaction
+    blocks += [sp.csr_matrix(R.K), sp.csr_matrix(R.C), sp.csr_matrix(R.M)]
+    output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n))
+    resp = respond(model, modes, motion, output, method=method, cutoff_hz=cutoff,
+                   hht_alpha=hht_alpha, stresses=stresses, progress=progress)
+    # split rows back
+    rows: dict[tuple[str, str], slice] = {}
+    k = 0
+    for kind, nm, size in names:
+        rows[(kind, nm)] = slice(k, k + size)
+        k += size
+    nK = slice(k, k + 6); nC = slice(k + 6, k + 12); nM = slice(k + 12, k + 18)
+    base = (resp.disp[nK] + resp.vel[nC] + resp.acc[nM] + np.asarray(R.G) @ ag)   # (6, n_t)
+    ground_of = lambda sl: _dense(output[sl] @ iota) @ ag                        # noqa: E731
+
+    hist: dict[str, np.ndarray] = {"time [s]": time}
+    for j, d in enumerate(DIRECTIONS):
+        hist[f"ground {d} acc [m/s2]"] = ag[j]
+    for j, c in enumerate(RESULTANTS):
+        hist[f"base {c} [{'N' if c.startswith('F') else 'N*m'}]"] = base[j]
+
+    summary: dict[str, Any] = {"title": _get(scenario, "title", "scenario"),
+                               "cautions": list(CAUTIONS), "warnings": []}
+    peak_times: list[tuple[str, float]] = []
+
+    # ---- sensors
+    sensors_out: dict[str, Any] = {}
+    point_acc, point_names = [], []
+    for s in model.sensors:
+        sl = rows[("sensor", s.name)]
+        rel, absacc = resp.disp[sl], resp.acc[sl] + ground_of(sl)
+        d_ = {"position": [float(v) for v in s.position],
+              "peak_absolute_acceleration": {}, "peak_relative_displacement": {},
+              "time_of_peak_absolute_acceleration": {}, "time_of_peak_relative_displacement": {}}
+        for j, dn in enumerate(DIRECTIONS):
+            pa, pd = _peak(absacc[j], dt), _peak(rel[j], dt)
+            d_["peak_absolute_acceleration"][dn] = pa["value"]
+            d_["time_of_peak_absolute_acceleration"][dn] = pa["time"]
+            d_["peak_relative_displacement"][dn] = pd["value"]
+            d_["time_of_peak_relative_displacement"][dn] = pd["time"]
+            hist[f"{s.name} abs acc {dn} [m/s2]"] = absacc[j]
+            hist[f"{s.name} rel disp {dn} [m]"] = rel[j]
+            if dn in motion.components:
+                peak_times.append((f"sensor {s.name} acceleration {dn}", pa["time"]))
+        sensors_out[s.name] = d_
+        point_acc.append(absacc); point_names.append(s.name)
+    summary_sensors = sensors_out
+
+    # ---- equipment and anchorage
+    equip_out: dict[str, Any] = {}
+    worst_dc = None
+    for e in model.equipment:
+        sl = rows[("equipment", e.name)]
+        rel = resp.disp[sl]
+        absacc = resp.acc[sl] + ground_of(sl)                                     # (6, n_t)
+        d_ = {"mass": float(e.mass), "cg": [float(v) for v in e.cg],
+              "support": "rigid" if e.frequency_hz is None else "flexible",
+              "frequency_hz": None if e.frequency_hz is None else [float(v) for v in e.frequency_hz],
+              "damping": float(e.damping),
+              "peak_absolute_acceleration": {}, "peak_relative_displacement": {},
+              "time_of_peak_absolute_acceleration": {},
+              "peak_angular_acceleration": {}}
+        for j, dn in enumerate(DIRECTIONS):
+            pa = _peak(absacc[j], dt)
+            d_["peak_absolute_acceleration"][dn] = pa["value"]
+            d_["time_of_peak_absolute_acceleration"][dn] = pa["time"]
+            d_["peak_relative_displacement"][dn] = _peak(rel[j], dt)["value"]
+            d_["peak_angular_acceleration"][dn] = _peak(absacc[3 + j], dt)["value"]
+            hist[f"{e.name} abs acc {dn} [m/s2]"] = absacc[j]
+            hist[f"{e.name} rel disp {dn} [m]"] = rel[j]
+            if dn in motion.components:
+                peak_times.append((f"equipment {e.name} acceleration {dn}", pa["time"]))
+        anchors = np.asarray(e.anchors, dtype=float).reshape(-1, 2)
+        d_["anchors"] = []
+        if anchors.shape[0]:
+            bf = bolt_forces(absacc, anchors, mass=e.mass, inertia=e.inertia,
+                             cg_height=float(e.cg[2] - e.mount[2]),
+                             dead_load_factor=float(e.dead_load_factor))
+            cap = e.capacity
+            for i, (x, y) in enumerate(anchors):
+                t, v = bf.tension[i], bf.shear[i]
+                it, iv = int(np.argmax(t)), int(np.argmax(v))
+                b = {"position": [float(x), float(y)],
+                     "peak_tension": float(max(0.0, t[it])), "time_of_peak_tension": float(it * dt),
+                     "peak_shear": float(v[iv]), "time_of_peak_shear": float(iv * dt),
+                     "min_axial": float(t.min())}
+                if cap is not None:
+                    b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
+                    b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
+                    dc = max(b["dc_tension"], b["dc_shear"])
+                    if worst_dc is None or dc > worst_dc[0]:
+                        worst_dc = (dc, e.name, i + 1)
+                d_["anchors"].append(b)
+                hist[f"{e.name} bolt {i + 1} tension [N]"] = t
+                hist[f"{e.name} bolt {i + 1} shear [N]"] = v
+                peak_times.append((f"{e.name} bolt {i + 1} tension", float(it * dt)))
+            d_["anchorage_method"] = ("rigid base plate, elastic bolt group (common practice); "
+                                      f"weight × dead_load_factor {float(e.dead_load_factor):g} "
+                                      "resists uplift; vertical motion included; "
+                                      f"{SCREENING_WORDING}")
+            if cap is not None:
+                d_["capacity"] = {"tension": float(_get(cap, "tension")),
+                                  "shear": float(_get(cap, "shear")),
+                                  "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
+        if e.fp is not None and anchors.shape[0]:
+            fp = e.fp
+            d_["fp"] = fp_comparison(weight=e.mass * 9.80665, sds=float(_get(fp, "sds")),
+                                     ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
+                                     ip=float(_get(fp, "ip", 1.0)),
+                                     z_over_h=float(_get(fp, "z_over_h", 0.0)),
+                                     anchors=anchors, mass=e.mass,
+                                     cg_height=float(e.cg[2] - e.mount[2]),
+                                     dead_load_factor=float(e.dead_load_factor))
+            d_["fp"]["time_history_peak_tension"] = max([b["peak_tension"] for b in d_["anchors"]] or [0])
+            d_["fp"]["time_history_peak_shear"] = max([b["peak_shear"] for b in d_["anchors"]] or [0])
+        equip_out[e.name] = d_
+        msl = rows[("mount", e.name)]
+        point_acc.append(resp.acc[msl] + ground_of(msl))
+        point_names.append(f"{e.name} mount")
+
+    # ---- base reactions and contact
+    base_out: dict[str, Any] = {"about": [float(v) for v in np.asarray(model.base.get("centre", np.zeros(3)))],
+                                "sign": "resultants the structure exerts on its support",
+                                "peaks": {}}
+    for j, c in enumerate(RESULTANTS):
+        base_out["peaks"][c] = _peak(base[j], dt)
+    for j, c in enumerate(("Fx", "Fy")):
+        if DIRECTIONS[j] in motion.components:
+            peak_times.append((f"base shear {DIRECTIONS[j]}", base_out["peaks"][c]["time"]))
+    if model.support_kind == "soil":
+        A = float(model.base.get("area", 0.0)) or 1.0
+        lx, ly = float(model.base.get("lx", 1.0)), float(model.base.get("ly", 1.0))
+        Ix, Iy = lx * ly ** 3 / 12.0, ly * lx ** 3 / 12.0
+        W = float(model.weight)
+        mean = (W - base[2]) / A
+        swing = np.abs(base[3]) * (ly / 2) / Ix + np.abs(base[4]) * (lx / 2) / Iy
+        pmax, pmin = mean + swing, mean - swing
+        hist["contact pressure max [Pa]"] = pmax
+        hist["contact pressure min [Pa]"] = pmin
+        i_min = int(np.argmin(pmin))
+        uplift = bool(pmin[i_min] < 0)
+        base_out["contact"] = {"static_pressure": W / A, "peak_pressure": float(pmax.max()),
+                               "time_of_peak_pressure": float(np.argmax(pmax) * dt),
+                               "min_pressure": float(pmin[i_min]),
+                               "time_of_min_pressure": float(i_min * dt),
+                               "uplift": uplift,
+                               "method": "rigid base, linear pressure from the weight of block "
+                                         "and equipment and the base resultants Fz, Mx, My"}
+        if uplift:
+            collected.append(f"Possible uplift / loss of contact: the linear contact pressure falls "
+                             f"to {pmin[i_min]:.3g} Pa at t = {i_min * dt:.3f} s; the linear model "
+                             "(bonded soil springs) no longer holds there.")
+
+    peaks: dict[str, Any] = {
+        "base_shear": {"x": base_out["peaks"]["Fx"]["value"], "y": base_out["peaks"]["Fy"]["value"]},
+        "base_axial": base_out["peaks"]["Fz"]["value"],
+        "overturning_moment": {"x": base_out["peaks"]["Mx"]["value"],
+                               "y": base_out["peaks"]["My"]["value"]},
+        "torsion": base_out["peaks"]["Mz"]["value"],
+        "relative_displacement": {},
+    }
+    for d in DIRECTIONS:
+        npk = resp.node_peak[d]
+        entry = {"value": npk["value"], "time": npk["time"]}
+        if npk["node"] >= 0:
+            entry["at"] = [float(v) for v in model.nodes[npk["node"]]]
+        peaks["relative_displacement"][d] = entry
+    stress_out = {}
+    if resp.stress is not None:
+        stress_out = resp.stress.governing(dt, np.asarray(model.element_centres))
+        stress_out["points"] = "element centres"
+        stress_out["units"] = "Pa"
+        peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
+        peaks["principal_tension"] = stress_out.get("principal_tension", {}).get("value")
+        peaks["principal_compression"] = stress_out.get("principal_compression", {}).get("value")
+
+    # ---- spectra
+    fs = _get(scenario, "floor_spectra")
+    pr = _get(fs, "periods")
+    periods = np.geomspace(float(_get(pr, "min", 0.02)), float(_get(pr, "max", 5.0)),
+                           int(_get(pr, "count", 120)))
+    damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
+    frac = float(_get(fs, "broadening_percent", 15.0)) / 100.0
+    with Progress("spectra", total=None) if progress else _NullBar():
+        gsp = response_spectrum(ag, dt, periods, damp)
+        ground_spectra = {"periods": np.asarray(gsp.periods), "damping": damp,
+                          "psa": np.asarray(gsp.psa), "sa": np.asarray(gsp.sa)}
+        if point_acc:
+            floor = floor_spectra(np.stack(point_acc), dt, periods, damp, fraction=frac)
+        else:
+            floor = {"periods": periods, "damping": damp}
+    floor["points"] = point_names
+    floor_out = {"damping_percent": [float(v) for v in damp * 100],
+                 "broadening_percent": frac * 100,
+                 "broadening": "envelope of the spectrum shifted ±broadening in period "
+                               "(a peak's full value held over 0.85 f .. 1.15 f for 15 %; "
+                               "ASCE 4, USNRC RG 1.122)",
+                 "quantity": "pseudo-spectral acceleration PSA [m/s2] of the absolute acceleration",
+                 "points": {}}
+    for p, nm in enumerate(point_names):
+        floor_out["points"][nm] = {
+            d: {f"{dp:g}%": {"peak_psa": float(floor["psa"][p, j, i].max()),
+                             "period_of_peak": float(periods[int(np.argmax(floor["psa"][p, j, i]))]),
+                             "zpa": float(np.max(np.abs(point_acc[p][j])))}
+                for i, dp in enumerate(damp * 100)}
+            for j, d in enumerate(DIRECTIONS)}
+    target_psa = None
+    target_spec = _get(_get(scenario, "motion"), "target")
+    if target_spec:
+        try:
+            from ..spectra import parse_target
+            tgt = parse_target(target_spec, base_dir=_get(scenario, "base_dir"))
+            target_psa = np.asarray(tgt.psa(periods), dtype=float)
+        except ImportError:  # pragma: no cover - stage not installed
+            target_psa = None
+
+    # ---- warnings
+    _auto_warnings(collected, scenario=scenario, model=model, modes=modes, motion=motion,
+                   method=method, cutoff=cutoff, peak_times=peak_times,
+                   n_modes=int(np.asarray(modes.omega).size))
+
+    # ---- summary
+    cum = np.asarray(modes.cumulative_ratio) if np.asarray(modes.omega).size else np.zeros((1, 3))
+    retained = {d: float(cum[-1, j]) for j, d in enumerate(DIRECTIONS)} \
+        if np.asarray(modes.omega).size else {d: 0.0 for d in DIRECTIONS}
+    analysis_out = {"method": method, "assumptions": resp.assumptions,
+                    "cutoff_hz": cutoff, "n_modes": int(np.asarray(modes.omega).size),
+                    "retained_mass_ratio": retained, "dt": dt, "n_steps": n_t,
+                    "duration": float((n_t - 1) * dt), **resp.info,
+                    "effective_force": "p(t) = -M iota a_g(t), relative to the moving base; "
+                                       "absolute = relative + ground"}
+    summary.update({
+        "analysis": analysis_out,
+        "peaks": peaks,
+        "sensors": summary_sensors,
+        "equipment": equip_out,
+        "worst_dc": None if worst_dc is None else
+        {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
+         "note": SCREENING_WORDING},
+        "stresses": stress_out,
+        "base": base_out,
+        "floor_spectra": floor_out,
+        "modes": _modes_dict(modes, model),
+        "model": model.describe(),
+        "records": _records_summary(motion),
+        "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
+    })
+    inputs = {}
+    src = _get(scenario, "source", None)
+    if src and Path(str(src)).is_file():
+        inputs[str(src)] = _sha256(Path(str(src)))
+    for d, rec in motion.raw.items():
+        if getattr(rec, "source", ""):
+            inputs[str(rec.source)] = _sha256(Path(rec.source))
+    from .. import __version__
+    summary["provenance"] = {
+        "version": __version__,
+        "date": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
+        "inputs": inputs,
+        "solver": {"method": method, **{k: v for k, v in resp.info.items()
+                                         if k in ("solver", "substeps", "hht_alpha")},
+                   "factor": getattr(model, "solver", "auto")},
+        "settings": {"cutoff_hz": cutoff, "modes": n_modes_req, "hht_alpha": hht_alpha},
+    }
+    return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
+                      histories=hist, ground_spectra=ground_spectra, floor=floor,
+                      stress=resp.stress, target_psa=target_psa, inputs=inputs)
+
+
+def _modes_dict(modes, model) -> dict:
+    if hasattr(modes, "to_dict"):
+        d = modes.to_dict()
+        if isinstance(d, dict):
+            d.setdefault("total_mass", [float(v) for v in model.total_mass])
+            return d
+        return {"total_mass": [float(v) for v in model.total_mass], "modes": d}
+    out = []
+    for i in range(np.asarray(modes.omega).size):
+        out.append({"frequency": float(modes.frequency[i]), "period": float(modes.period[i]),
+                    "effective_mass_ratio": {d: float(modes.effective_mass_ratio[i, j])
+                                             for j, d in enumerate(DIRECTIONS)}})
+    return {"total_mass": [float(v) for v in model.total_mass], "modes": out}
+
+
+def _records_summary(motion: Motion) -> list:
+    out = []
+    try:
+        from ..processing import intensity_measures
+    except ImportError:  # pragma: no cover
+        intensity_measures = None
+    for d in motion.components:
+        rec = motion.corrected.get(d)
+        if rec is None:
+            out.append({"direction": d})
+            continue
+        entry = {"direction": d, "name": rec.name, "component": rec.component,
+                 "source": rec.source, "units": rec.units, "dt": rec.dt, "n": rec.n,
+                 "history": list(rec.history)}
+        if intensity_measures is not None:
+            try:
+                entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
+                                     if np.ndim(v) == 0}     # scalars; curves stay in the CSVs
+            except Exception as exc:  # noqa: BLE001 - measures are informative only
+                entry["measures_error"] = str(exc)
+        out.append(entry)
+    return out
+
+
+def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff, peak_times,
+                   n_modes) -> None:
+    """Append the automatic warnings of a run to ``collected``."""
+    dt, dur = motion.dt, motion.duration
+    freq = np.asarray(modes.frequency) if n_modes else np.zeros(0)
+    if n_modes:
+        T1 = 1.0 / float(freq[0])
+        if dur < 10 * T1:
+            collected.append(f"The record ({dur:.3g} s) is shorter than 10 periods of the lowest "
+                             f"mode (T1 = {T1:.3g} s): its response may not develop.")
+        f_hi = float(freq[-1])
+        if dt > 1.0 / (10.0 * f_hi):
+            what = ("the modal kernel is exact for a piecewise-linear record, but the record "
+                    "cannot carry motion at that frequency") if method == "modal" else \
+                   "the step was subdivided, but the record cannot carry motion at that frequency"
+            collected.append(f"The time step dt = {dt:g} s is coarser than 1/10 of the period of "
+                             f"the highest retained mode ({f_hi:.3g} Hz); {what}.")
+        cum = np.asarray(modes.cumulative_ratio)[-1]
+        low = [f"{d} {100 * cum[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
+               if d in motion.components and cum[j] < 0.9]
+        if low:
+            collected.append("Retained modal mass below 90 % (" + ", ".join(low) + "); "
+                             + ("the missing-mass correction carries the rest statically."
+                                if method == "modal" else "the direct solution uses all DOFs."))
+        f_use = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+    else:
+        f_use = float(cutoff or 0.0)
+        collected.append("No mode below the cutoff: the block responds quasi-statically "
+                         "(missing mass only)." if method == "modal" else
+                         "No mode below the cutoff.")
+    # elements per shear wavelength at the highest frequency retained
+    try:
+        mats = _get(scenario, "materials", {}) or {}
+        vs = min(math.sqrt(float(_get(m, "youngs_modulus")) /
+                           (2 * (1 + float(_get(m, "poisson_ratio")))) / float(_get(m, "density")))
+                 for m in mats.values())
+        mesh = getattr(model, "mesh", None)
+        if mesh is not None and hasattr(mesh, "element_sizes"):
+            h = float(np.max(np.asarray(mesh.element_sizes())))
+        else:
+            h = float(_get(_get(scenario, "mesh"), "element_size"))
+        if f_use > 0 and h > vs / (10.0 * f_use):
+            collected.append(f"Elements up to {h:.3g} m are larger than 1/10 of the shear "
+                             f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m): fewer than about "
+                             "10 elements per wavelength; refine the mesh or lower the cutoff.")
+    except (TypeError, ValueError, AttributeError):
+        pass
+    tail = max(5 * dt, 0.02 * dur)
+    late = [nm for nm, t in peak_times if t >= dur - tail]
+    if late:
+        collected.append("A peak occurs at the end of the record (" + ", ".join(late[:4])
+                         + (", ..." if len(late) > 4 else "")
+                         + "): the record may be too short or cut off.")
