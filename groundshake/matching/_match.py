@@ -1,0 +1,514 @@
+"""Spectrum-compatible motions by the time-domain corrective-wavelet method.
+
+The record is changed by a sum of short wavelets, one for each oscillator (period,
+damping) of the band, placed at the time of that oscillator's peak response, so the
+record's phasing and build-up of energy stay as they were (Lilhanand & Tseng 1988;
+Abrahamson 1992). The wavelet amplitudes b solve C b = ΔR, where C_ij is the
+response of oscillator i at its peak time to wavelet j, and ΔR the misfit of the
+peaks; as the peak times move when the motion changes, this is repeated until the
+misfit is within the tolerance. The wavelet is the improved tapered cosine of Al Atik
+& Abrahamson (2010), which adds almost no velocity or displacement drift.
+"""
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass, field
+from typing import Any, Callable, Sequence, Union
+
+import numpy as np
+
+from .._errors import GroundshakeWarning, InputError
+from ..records._record import Record
+from ._acceptance import AcceptanceCriteria, acceptance_checks
+from ._measures import integrate_motion
+from ._wavelets import HALF_WIDTH_GAMMAS, WaveletResponses, add_wavelets, wavelet_parameters
+
+__all__ = ["MatchResult", "match_spectrum", "match_spectrum_report", "match_record_to_target",
+           "default_band", "pad_seconds"]
+
+TargetLike = Union[str, np.ndarray, Sequence[Any], Callable[[np.ndarray], np.ndarray], Any]
+
+#: Default period band [s] when neither ``band`` nor ``periods`` is given.
+DEFAULT_BAND = (0.05, 4.0)
+#: Periods per decade of the default grid over the band.
+PERIODS_PER_DECADE = 30
+
+
+@dataclass(frozen=True, eq=False)
+class MatchResult:
+    """A matched record with its convergence and acceptance report.
+
+    Attributes
+    ----------
+    record : Record
+        The adjusted motion (padded with ``pad_s`` seconds of zeros each side before
+        matching, so the wavelets fit whole).
+    original : Record
+        The record as given.
+    periods : ndarray, shape (n_periods,)
+        Periods of the band [s].
+    damping : ndarray, shape (n_damping,)
+        Damping ratios matched at once.
+    target_psa, psa_before, psa_after : ndarray, shape (n_damping, n_periods)
+        Target, original and final pseudo-spectral acceleration [m/s²].
+    iterations : list of dict
+        Per iteration: ``iteration``, ``max_misfit``, ``mean_misfit`` (|PSA/target - 1|
+        over the band), ``relaxation``, ``condition`` (of the scaled response matrix).
+    converged : bool
+        Whether max misfit ≤ ``tolerance``.
+    status : str
+        ``"converged"``, ``"not converged"`` (iteration limit) or ``"stalled"`` (no
+        step improved the misfit).
+    tolerance : float
+        Target max misfit (ratio).
+    scale_factor : float
+        Linear scale applied before matching (1.0 if none).
+    pad_s : float
+        Zero pad added before and after the record [s].
+    baseline_corrected : bool
+        Whether the last baseline correction was needed and applied.
+    acceptance : dict
+        See :func:`groundshake.matching.acceptance_checks`.
+    warnings : list of str
+        The warnings issued (also raised as :class:`GroundshakeWarning`).
+    target_label : str
+        Description of the target.
+    """
+
+    record: Record
+    original: Record
+    periods: np.ndarray
+    damping: np.ndarray
+    target_psa: np.ndarray
+    psa_before: np.ndarray
+    psa_after: np.ndarray
+    iterations: list
+    converged: bool
+    status: str
+    tolerance: float
+    scale_factor: float
+    pad_s: float
+    baseline_corrected: bool
+    acceptance: dict
+    warnings: list = field(default_factory=list)
+    target_label: str = ""
+
+    @property
+    def max_misfit(self) -> float:
+        """Final max |PSA/target - 1| over the band."""
+        return float(np.max(np.abs(self.psa_after / self.target_psa - 1.0)))
+
+    def to_dict(self) -> dict:
+        """Plain dict (SI units, damping as ratios) for JSON output."""
+        return {
+            "name": self.record.name,
+            "status": self.status,
+            "converged": self.converged,
+            "tolerance": self.tolerance,
+            "max_misfit": self.max_misfit,
+            "iterations": self.iterations,
+            "target": self.target_label,
+            "periods": self.periods,
+            "damping": self.damping,
+            "target_psa": self.target_psa,
+            "psa_before": self.psa_before,
+            "psa_after": self.psa_after,
+            "scale_factor": self.scale_factor,
+            "pad_s": self.pad_s,
+            "baseline_corrected": self.baseline_corrected,
+            "acceptance": self.acceptance,
+            "history": list(self.record.history),
+            "warnings": self.warnings,
+            "method": "time-domain corrective wavelets (Lilhanand & Tseng 1988; Abrahamson "
+                      "1992) with the tapered-cosine wavelet of Al Atik & Abrahamson (2010)",
+        }
+
+
+def default_band(dt: float) -> tuple[float, float]:
+    """The default band [s]: 0.05-4 s, its short end raised to 10·dt if the record is
+    coarser (at least ten samples per period: Phillips et al. 2012)."""
+    return (max(DEFAULT_BAND[0], 10.0 * dt), DEFAULT_BAND[1])
+
+
+def pad_seconds(longest_period: float, damping: float = 0.05) -> float:
+    """Zero pad [s] added to each end so the longest wavelet fits whole."""
+    omega = np.array([2.0 * np.pi / longest_period])
+    _, shift, gamma = wavelet_parameters(omega, np.array([damping]))
+    return float(HALF_WIDTH_GAMMAS * gamma[0] + shift[0])
+
+
+# -- inputs -----------------------------------------------------------------------------
+def _periods_and_band(periods, band, dt: float) -> tuple[np.ndarray, tuple[float, float]]:
+    if band is not None:
+        try:
+            lo, hi = (float(b) for b in band)
+        except (TypeError, ValueError):
+            raise InputError(f"band: {band!r}; allowed: two periods [s], shortest first") from None
+        if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
+            raise InputError(f"band: {band!r}; allowed: two periods 0 < T1 < T2 [s]")
+    if periods is None:
+        lo, hi = (lo, hi) if band is not None else default_band(dt)
+        count = max(int(math.ceil(PERIODS_PER_DECADE * math.log10(hi / lo))) + 1, 8)
+        periods = np.geomspace(lo, hi, count)
+    else:
+        periods = np.unique(np.asarray(periods, dtype=float).ravel())
+        if periods.size == 0 or not np.all(np.isfinite(periods)) or periods[0] <= 0:
+            raise InputError(f"periods: {periods!r}; allowed: finite periods > 0 [s]")
+        if band is None:
+            lo, hi = float(periods[0]), float(periods[-1])
+        else:
+            periods = periods[(periods >= lo * (1 - 1e-12)) & (periods <= hi * (1 + 1e-12))]
+            if periods.size == 0:
+                raise InputError(f"periods: none fall in the band {lo:g}-{hi:g} s")
+    if periods[0] <= 2.0 * dt:
+        raise InputError(f"band: shortest period {periods[0]:g} s is at or below the Nyquist "
+                         f"period 2·dt = {2 * dt:g} s of the record; allowed: > {2 * dt:g} s")
+    return periods, (lo, hi)
+
+
+def _damping_array(damping) -> np.ndarray:
+    d = np.atleast_1d(np.asarray(damping, dtype=float)).ravel()
+    if d.size == 0 or not np.all(np.isfinite(d)) or np.any(d <= 0) or np.any(d >= 1):
+        raise InputError(f"damping: {damping!r}; allowed: ratios 0 < ξ < 1 (e.g. 0.05)")
+    if np.unique(d).size != d.size:
+        raise InputError(f"damping: {damping!r}; give each damping ratio once")
+    return d
+
+
+def _one_target(t, periods: np.ndarray, ratio: float, warn: list) -> tuple[np.ndarray, str]:
+    if isinstance(t, str):
+        from ..spectra import parse_target
+        t = parse_target(t)
+    if hasattr(t, "psa"):
+        values = np.asarray(t.psa(periods), dtype=float)
+        tdamp = getattr(t, "damping", None)
+        if tdamp is not None and abs(float(tdamp) - ratio) > 1e-9:
+            warn.append(f"target {getattr(t, 'label', '')!s} is for {100 * float(tdamp):g} % "
+                        f"damping but is matched at {100 * ratio:g} %")
+        return values, str(getattr(t, "label", "target"))
+    if callable(t):
+        return np.asarray(t(periods), dtype=float), getattr(t, "__name__", "target")
+    values = np.asarray(t, dtype=float)
+    return values, "target values"
+
+
+def _target_matrix(target: TargetLike, periods: np.ndarray, damping: np.ndarray,
+                   warn: list) -> tuple[np.ndarray, str]:
+    n_d, n_p = damping.size, periods.size
+    if isinstance(target, np.ndarray) or (isinstance(target, (list, tuple))
+                                          and target and np.isscalar(target[0])):
+        values = np.asarray(target, dtype=float)
+        if values.shape == (n_p,) and n_d == 1:
+            values = values[None, :]
+        if values.shape != (n_d, n_p):
+            raise InputError(f"target: array of shape {values.shape}; allowed: (n_damping, "
+                             f"n_periods) = ({n_d}, {n_p}) PSA values [m/s²]")
+        label = "target values"
+    elif isinstance(target, (list, tuple)):
+        if len(target) != n_d:
+            raise InputError(f"target: {len(target)} targets for {n_d} damping values; "
+                             "allowed: one target per damping value")
+        rows = [_one_target(t, periods, float(d), warn) for t, d in zip(target, damping)]
+        values = np.vstack([r[0] for r in rows])
+        label = "; ".join(r[1] for r in rows)
+    else:
+        if n_d != 1:
+            raise InputError(f"target: one target for {n_d} damping values; allowed: one "
+                             "target per damping value (a list), or an array (n_damping, n_periods)")
+        v, label = _one_target(target, periods, float(damping[0]), warn)
+        values = v.reshape(1, -1)
+    if values.shape != (n_d, n_p) or not np.all(np.isfinite(values)) or np.any(values <= 0):
+        raise InputError(f"target ({label}): PSA must be finite and > 0 at every period of "
+                         f"the band {periods[0]:g}-{periods[-1]:g} s")
+    return values, label
+
+
+# -- the iteration ----------------------------------------------------------------------
+def _peaks(acc: np.ndarray, dt: float, omega: np.ndarray, zeta: np.ndarray):
+    """PSA = ω²|x|max [m/s²], sample of the peak, sign of x there; each (n_osc,)."""
+    from ..spectra import oscillator_history  # the one shared oscillator kernel
+
+    disp, _, _ = oscillator_history(acc, dt, omega, zeta)
+    idx = np.argmax(np.abs(disp), axis=1)
+    peak = disp[np.arange(disp.shape[0]), idx]
+    return omega**2 * np.abs(peak), idx, np.where(peak >= 0, 1.0, -1.0)
+
+
+def _solve(S: np.ndarray, r: np.ndarray, rcond: float) -> tuple[np.ndarray, float]:
+    """Damped least-squares solution of S b = r (SVD; Tikhonov at rcond·σmax)."""
+    U, s, Vt = np.linalg.svd(S)
+    cond = float(s[0] / s[-1]) if s[-1] > 0 else math.inf
+    lam = rcond * s[0]
+    filt = s / (s * s + lam * lam)
+    return Vt.T @ (filt * (U.T @ r)), cond
+
+
+def _baseline_fix(acc: np.ndarray, dt: float) -> np.ndarray:
+    """Acceleration correction that brings final velocity and displacement to zero.
+
+    Two smooth shapes (a Hann window w(t) and w(t)·(t - t_mid)), zero at both ends, are
+    combined so that their integrals cancel the final velocity and displacement
+    exactly (integrated as piecewise-linear, like the record).
+    """
+    n = acc.size
+    t = np.arange(n) * dt
+    w = np.hanning(n)
+    basis = np.vstack([w, w * (t - t[n // 2]) / max(t[-1], dt)])
+    vb, db = integrate_motion(basis, dt)
+    v, d = integrate_motion(acc, dt)
+    A = np.array([[vb[0, -1], vb[1, -1]], [db[0, -1], db[1, -1]]])
+    c = np.linalg.solve(A, -np.array([v[-1], d[-1]]))
+    return c @ basis
+
+
+def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, periods=None, *,
+                          band: tuple[float, float] | None = None, tolerance: float = 0.05,
+                          max_iterations: int = 40, relaxation: float = 1.0,
+                          prescale: bool = True, pad: bool = True, rcond: float = 1e-2,
+                          criteria: AcceptanceCriteria | None = None) -> MatchResult:
+    """Adjust ``record`` until its spectrum matches ``target``; return the full report.
+
+    Parameters
+    ----------
+    record : Record
+        A corrected acceleration record [m/s²].
+    target : str, TargetSpectrum, array or sequence
+        A target spec string (``"asce7:sds=1.0,sd1=0.6"``, see
+        :func:`groundshake.spectra.parse_target`), an object with ``.psa(periods)`` in
+        m/s², a callable of the periods, an array of PSA [m/s²] shaped (n_periods,) or
+        (n_damping, n_periods), or a list of any of these, one per damping value.
+    damping : float or sequence of float
+        Damping ratio(s) matched at once (0.05 = 5 %).
+    periods : array_like, optional
+        Periods [s] at which the spectrum is matched; default: 30 per decade over
+        ``band``.
+    band : (float, float), optional
+        Shortest and longest period [s]; default the span of ``periods``, or
+        0.05-4 s (short end at least 10·dt).
+    tolerance : float
+        Converged when max |PSA/target - 1| ≤ tolerance over the band (0.05 = 5 %).
+    max_iterations : int
+        Most iterations (each: one response matrix, one solve, one update).
+    relaxation : float
+        Fraction (0, 1] of the computed wavelet amplitudes applied at first; it is
+        halved when a step does not reduce the misfit and grows back after a good step.
+    prescale : bool
+        Scale the record first so the mean log ratio to the target is zero (common
+        practice before matching).
+    pad : bool
+        Add zeros before and after so the longest wavelet fits whole.
+    rcond : float
+        Tikhonov damping of the solve, relative to the largest singular value; it keeps
+        nearly dependent oscillators (close periods, several damping values at one
+        period) from producing large opposing wavelets.
+    criteria : AcceptanceCriteria, optional
+        Limits of the acceptance checks (defaults documented there).
+
+    Returns
+    -------
+    MatchResult
+
+    Warns
+    -----
+    GroundshakeWarning
+        When the match does not converge, when the final baseline correction was
+        needed, and when an acceptance check fails.
+
+    References
+    ----------
+    Lilhanand, K. & Tseng, W.S. (1988), Proc. 9th WCEE, vol. II, 819-824.
+    Abrahamson, N.A. (1992), "Non-stationary spectral matching", Seismol. Res. Lett. 63(1).
+    Al Atik, L. & Abrahamson, N. (2010), "An improved method for nonstationary spectral
+    matching", Earthquake Spectra 26(3), 601-617.
+    """
+    if not isinstance(record, Record):
+        raise InputError(f"record: {type(record).__name__}; allowed: a groundshake Record")
+    if not (math.isfinite(tolerance) and tolerance > 0):
+        raise InputError(f"tolerance: {tolerance!r}; allowed: a ratio > 0 (0.05 = 5 %)")
+    if int(max_iterations) < 0:
+        raise InputError(f"max_iterations: {max_iterations!r}; allowed: an integer >= 0")
+    if not (0 < relaxation <= 1):
+        raise InputError(f"relaxation: {relaxation!r}; allowed: 0 < relaxation <= 1")
+    if np.max(np.abs(record.acc), initial=0.0) == 0:
+        raise InputError(f"{record.name}: the record is all zeros; nothing to match")
+    dt = record.dt
+    warn: list[str] = []
+    damping_arr = _damping_array(damping)
+    periods_arr, (lo, hi) = _periods_and_band(periods, band, dt)
+    if periods_arr[0] < 10.0 * dt:
+        warn.append(f"shortest period {periods_arr[0]:g} s has fewer than 10 samples per "
+                    f"period (dt = {dt:g} s); short-period match is coarse (Phillips et al. 2012)")
+    target_psa, label = _target_matrix(target, periods_arr, damping_arr, warn)
+    n_d, n_p = target_psa.shape
+    omega = np.tile(2.0 * np.pi / periods_arr, n_d)
+    zeta = np.repeat(damping_arr, n_p)
+    Q = target_psa.ravel()
+
+    steps = []
+    pad_s = 0.0
+    acc0 = record.acc
+    if pad:
+        pad_s = pad_seconds(float(periods_arr[-1]), float(damping_arr.min()))
+        n_pad = int(math.ceil(pad_s / dt))
+        pad_s = n_pad * dt
+        acc0 = np.concatenate([np.zeros(n_pad), acc0, np.zeros(n_pad)])
+        steps.append(f"padded with {pad_s:.3f} s of zeros at each end for matching")
+    acc_before = acc0.copy()
+    v_in, d_in = integrate_motion(acc0, dt)
+    if (abs(v_in[-1]) > 0.05 * np.max(np.abs(v_in))
+            or abs(d_in[-1]) > 0.2 * np.max(np.abs(d_in))):
+        warn.append(f"{record.name}: the input ends with velocity {v_in[-1]:.3g} m/s and "
+                    f"displacement {d_in[-1]:.3g} m; correct the record (baseline, low-cut "
+                    "filter) before matching")
+    R0, idx, sgn = _peaks(acc0, dt, omega, zeta)
+    psa_before = R0.reshape(n_d, n_p)
+    scale = 1.0
+    if prescale:
+        scale = float(np.exp(np.mean(np.log(Q / R0))))
+        steps.append(f"scaled by {scale:.6g} (mean log ratio to the target over the band = 0)")
+    acc = acc0 * scale
+    R = R0 * scale
+
+    def misfit(Rv):
+        m = np.abs(Rv / Q - 1.0)
+        return float(m.max()), float(m.mean())
+
+    mx, mn = misfit(R)
+    iterations = [{"iteration": 0, "max_misfit": mx, "mean_misfit": mn,
+                   "regularisation": None, "condition": None}]
+    relax = float(relaxation)
+    lam = float(rcond)
+    responses = None
+    status = "converged" if mx <= tolerance else "not converged"
+    for it in range(1, int(max_iterations) + 1):
+        if mx <= tolerance:
+            break
+        if responses is None:
+            responses = WaveletResponses(dt, omega, zeta)
+        C = responses.matrix(idx)
+        S = C * (omega**2 / Q)[:, None] * Q[None, :]
+        r = sgn * (1.0 - R / Q)
+        U, sv, Vt = np.linalg.svd(S)
+        cond = float(sv[0] / sv[-1]) if sv[-1] > 0 else math.inf
+        Ur = U.T @ r
+        accepted = False
+        for _ in range(6):  # Levenberg-Marquardt: stiffer steps until one improves
+            lam_abs = lam * sv[0]
+            b = Vt.T @ (sv / (sv * sv + lam_abs * lam_abs) * Ur)
+            trial = acc + relax * add_wavelets(acc.size, dt, omega, zeta, idx, b * Q)
+            Rt, idx_t, sgn_t = _peaks(trial, dt, omega, zeta)
+            mxt, mnt = misfit(Rt)
+            if mxt < mx or (mnt < 0.99 * mn and mxt <= 1.05 * mx):
+                accepted = True
+                break
+            lam *= 4.0
+        if not accepted:
+            status = "stalled"
+            iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
+                               "regularisation": lam, "condition": cond})
+            break
+        acc, R, idx, sgn, mx, mn = trial, Rt, idx_t, sgn_t, mxt, mnt
+        iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
+                           "regularisation": lam, "condition": cond})
+        lam = max(lam / 4.0, 1e-4)
+    converged = mx <= tolerance
+    if converged:
+        status = "converged"
+    elif status != "stalled":
+        status = "not converged"
+    n_iter = iterations[-1]["iteration"]
+    steps.append(f"matched to {label} at {', '.join(f'{100 * d:g}' for d in damping_arr)} % "
+                 f"damping over {periods_arr[0]:g}-{periods_arr[-1]:g} s by corrective wavelets "
+                 f"(Al Atik & Abrahamson 2010): {status} after {n_iter} iterations, "
+                 f"max misfit {100 * mx:.2f} %")
+
+    crit = criteria or AcceptanceCriteria()
+    vel, disp = integrate_motion(acc, dt)
+    pgv = float(np.max(np.abs(vel)))
+    pgd = float(np.max(np.abs(disp)))
+    baseline = (abs(vel[-1]) > crit.max_final_velocity_ratio * pgv
+                or abs(disp[-1]) > crit.max_final_displacement_ratio * pgd)
+    if baseline:
+        acc = acc + _baseline_fix(acc, dt)
+        R, _, _ = _peaks(acc, dt, omega, zeta)
+        mx, mn = misfit(R)
+        iterations.append({"iteration": "baseline", "max_misfit": mx, "mean_misfit": mn,
+                           "regularisation": None, "condition": None})
+        steps.append(f"final velocity {vel[-1]:.3g} m/s and displacement {disp[-1]:.3g} m "
+                     f"brought to zero by a smooth baseline correction; max misfit now "
+                     f"{100 * mx:.2f} %")
+        warn.append(f"{record.name}: matched motion needed a last baseline correction "
+                    f"(final velocity {vel[-1]:.3g} m/s, displacement {disp[-1]:.3g} m)")
+        converged = mx <= tolerance
+        if not converged and status == "converged":
+            status = "not converged"
+
+    psa_after = R.reshape(n_d, n_p)
+    acceptance = acceptance_checks(psa=psa_after, target_psa=target_psa,
+                                   acc_before=acc_before, acc_after=acc, dt=dt, criteria=crit)
+    if not converged:
+        warn.append(f"{record.name}: spectral match {status}: max misfit {100 * mx:.1f} % > "
+                    f"tolerance {100 * tolerance:g} % after {n_iter} iterations; the target "
+                    "may be unreachable from this record (check the target and the band)")
+    failed = [k for k, ok in acceptance["checks"].items() if not ok]
+    if failed:
+        warn.append(f"{record.name}: acceptance check(s) not met: {', '.join(failed)}")
+    for w in warn:
+        warnings.warn(w, GroundshakeWarning, stacklevel=3)
+
+    out = record
+    for s in steps:
+        out = out.replace(step=s)
+    out = out.replace(acc=acc)
+    return MatchResult(record=out, original=record, periods=periods_arr, damping=damping_arr,
+                       target_psa=target_psa, psa_before=psa_before, psa_after=psa_after,
+                       iterations=iterations, converged=converged, status=status,
+                       tolerance=float(tolerance), scale_factor=scale, pad_s=pad_s,
+                       baseline_corrected=bool(baseline), acceptance=acceptance,
+                       warnings=warn, target_label=label)
+
+
+def match_spectrum(record: Record, target: TargetLike, damping=0.05, periods=None,
+                   **options) -> Record:
+    """Adjust ``record`` until its spectrum matches ``target``; return the new Record.
+
+    Same parameters as :func:`match_spectrum_report` (``band``, ``tolerance``,
+    ``max_iterations``, ``relaxation``, ``prescale``, ``pad``, ``rcond``, ``criteria``
+    keyword-only); the convergence and acceptance report is dropped, except that a
+    failed match still warns (:class:`GroundshakeWarning`) and is written in the
+    record's ``history``.
+    """
+    return match_spectrum_report(record, target, damping, periods, **options).record
+
+
+def match_record_to_target(record: Record, spec: str, *, damping: float = 0.05,
+                           periods=None, band: tuple[float, float] | None = None,
+                           base_dir=None, **options) -> tuple[Record, dict]:
+    """Scenario hook: match one component to the target named in ``[motion] target``.
+
+    Parameters
+    ----------
+    record : Record
+        The corrected component [m/s²].
+    spec : str
+        Target spec string (see :func:`groundshake.spectra.parse_target`); a CSV path is
+        resolved against ``base_dir`` (the scenario's folder).
+    damping : float
+        Damping ratio of the match (0.05).
+    periods, band, **options
+        As :func:`match_spectrum_report`.
+
+    Returns
+    -------
+    (Record, dict)
+        The matched record and the report (``MatchResult.to_dict()`` plus ``cautions``).
+    """
+    from .._cautions import CAUTIONS
+    from ..spectra import parse_target
+
+    target = parse_target(spec, base_dir=base_dir)
+    result = match_spectrum_report(record, target, damping, periods, band=band, **options)
+    report = result.to_dict()
+    report["cautions"] = list(CAUTIONS)
+    return result.record, report
