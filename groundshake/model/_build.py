@@ -147,6 +147,7 @@ class BlockModel:
     _factor: Factor | None = None
     notes: list = field(default_factory=list)
     rayleigh_used_hz: tuple[float, float] | None = None
+    mesh: Any = None  # the GridMesh, for plots
 
     @property
     def n_dof(self) -> int:
@@ -459,6 +460,21 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             n_extra += 3
         eq_info.append((q, name, e, mount_pt, mo, eo, fp_nodes))
 
+    if kind == "fixed" and mass_kind == "consistent":
+        # The consistent mass couples the first layer of nodes with the fixed base nodes;
+        # those couplings are lumped onto the diagonals (row sums), so that M·ι on the
+        # free DOFs is exactly the load of the ground acceleration and ιᵀMι the mass
+        # it drives (total mass is kept).
+        fx = sp.diags((status == 1).astype(float))
+        fr = sp.diags((status != 1).astype(float))
+        Dc = fx @ Mn @ fr
+        Dc = Dc + Dc.T
+        Mn = sp.csr_matrix(Mn - Dc + sp.diags(np.asarray(Dc.sum(axis=1)).ravel()))
+        Mn.eliminate_zeros()
+        Mn.sort_indices()
+        notes.append("consistent mass; its coupling to the fixed base nodes is lumped "
+                     "onto the diagonal so that M·ι is the exact ground load")
+
     # ---- node map P: node DOFs (3nn) = P · reduced
     free_dofs = np.flatnonzero(status == 0)
     nf = free_dofs.size
@@ -618,7 +634,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         iota_nodes = np.zeros((n_node_dof, 3))
         iota_nodes[np.arange(n_node_dof), np.arange(n_node_dof) % 3] = 1.0
         GR = -(Sres @ (Mn[base_dofs] @ iota_nodes))
-        CR = np.zeros_like(KR)
+        CR = np.zeros_like(KR)  # damping forces at the fixed base are not included
     elif base_master is not None:
         KR = np.zeros((6, n))
         CR = np.zeros((6, n))
@@ -652,8 +668,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         part_names=[b.name for b in boxes], materials=materials, node_map=P,
         impedance=impedance, solver=solver,
         cutoff_hz=_get(analysis, "cutoff_hz", None),
-        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes)
-    model.mesh = mesh  # the grid, for plots and tests
+        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh)
     return model
 
 

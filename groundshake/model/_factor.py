@@ -30,11 +30,42 @@ def pardiso_available() -> bool:
 _LIB = None
 
 
+class _Lib:
+    """The MKL ``pardiso`` entry point (found the way pypardiso finds it, but without
+    the slow ``find_library`` shell-out when the wheel's library sits in ``sys.prefix``)."""
+
+    def __init__(self):
+        import glob
+        import os
+        import sys
+        path = os.environ.get("PYPARDISO_MKL_RT")
+        cands = [path] if path else []
+        for root in (sys.prefix, getattr(sys, "base_prefix", sys.prefix)):
+            cands += sorted(glob.glob(os.path.join(root, "lib", "libmkl_rt.so*")), key=len)
+        lib = None
+        for c in cands:
+            try:
+                lib = ctypes.CDLL(c)
+                break
+            except OSError:
+                continue
+        if lib is None:
+            from pypardiso.pardiso_wrapper import PyPardisoSolver  # slower search
+            lib = PyPardisoSolver().libmkl
+        self._mkl_pardiso = f = lib.pardiso
+        self._pt_type = ((ctypes.c_int64, np.int64) if ctypes.sizeof(ctypes.c_void_p) == 8
+                         else (ctypes.c_int32, np.int32))
+        i32 = ctypes.POINTER(ctypes.c_int32)
+        f.argtypes = [ctypes.POINTER(self._pt_type[0]), i32, i32, i32, i32, i32,
+                      ctypes.c_void_p, i32, i32, i32, i32, i32, i32,
+                      ctypes.c_void_p, ctypes.c_void_p, i32]
+        f.restype = None
+
+
 def _solver_lib():
     global _LIB
     if _LIB is None:
-        from pypardiso.pardiso_wrapper import PyPardisoSolver
-        _LIB = PyPardisoSolver()
+        _LIB = _Lib()
     return _LIB
 
 

@@ -139,32 +139,46 @@ def distributed_bed(xy: np.ndarray, area: np.ndarray, totals: np.ndarray):
 
     Notes
     -----
-    Vertical springs per unit area a + b·x² + c·y² are solved so that Σkz = Kz,
-    Σkz·y² = Krx, Σkz·x² = Kry; horizontal springs per unit area (p + t·r²), (q + t·r²)
-    so that Σkx = Kx, Σky = Ky and Σ(kx·y² + ky·x²) = Kt. If that would make any
-    spring negative, the bed is uniform (totals of translation kept) and a note says so.
+    Vertical springs per unit area a + b·gx + c·gy + d·gx·gy, gx = |x/xm|^p,
+    gy = |y/ym|^p, with non-negative a..d (scipy nnls) so that Σkz = Kz, Σkz·y² = Krx,
+    Σkz·x² = Kry; horizontal springs per unit area (p₀ + t·(r/rm)^p), (q₀ + t·(r/rm)^p)
+    so that Σkx = Kx, Σky = Ky and Σ(kx·y² + ky·x²) = Kt. The lowest power p that
+    matches is used (the contact pressure under a rigid base on a half-space grows
+    towards its edges); if none does, the bed is uniform (totals of translation kept)
+    and the note says so.
     """
     x, y = xy[:, 0], xy[:, 1]
     w = area
     Kx, Ky, Kz, Krx, Kry, Kt = totals
-    A = np.array([[w.sum(), (w * x * x).sum(), (w * y * y).sum()],
-                  [(w * y * y).sum(), (w * x * x * y * y).sum(), (w * y ** 4).sum()],
-                  [(w * x * x).sum(), (w * x ** 4).sum(), (w * x * x * y * y).sum()]])
-    note = "distributed bed matching Kx, Ky, Kz, Krx, Kry, Kt"
-    try:
-        a, b, c = np.linalg.solve(A, [Kz, Krx, Kry])
-        kz = w * (a + b * x * x + c * y * y)
-        r2 = x * x + y * y
-        H = np.array([[w.sum(), 0.0, (w * r2).sum()],
-                      [0.0, w.sum(), (w * r2).sum()],
-                      [(w * y * y).sum(), (w * x * x).sum(), (w * r2 * r2).sum()]])
-        p, q, t = np.linalg.solve(H, [Kx, Ky, Kt])
-        kx = w * (p + t * r2)
-        ky = w * (q + t * r2)
-        ok = (kz >= 0).all() and (kx >= 0).all() and (ky >= 0).all()
-    except np.linalg.LinAlgError:
-        ok = False
-    if not ok:
+    xm = max(np.abs(x).max(), 1e-12)
+    ym = max(np.abs(y).max(), 1e-12)
+    r2 = x * x + y * y
+    rm = max(r2.max(), 1e-24)
+    from scipy.optimize import nnls
+    for p in (2, 4, 6, 8, 12, 16, 24, 32, 48, 64, 96, 128):
+        gx, gy, gr = np.abs(x / xm) ** p, np.abs(y / ym) ** p, (r2 / rm) ** (p / 2)
+        basis = np.column_stack([np.ones_like(x), gx, gy, gx * gy]) * w[:, None]  # (n, 4)
+        A = np.vstack([basis.sum(0), (basis * (y * y)[:, None]).sum(0),
+                       (basis * (x * x)[:, None]).sum(0)])
+        rhs = np.array([Kz, Krx, Kry])
+        sc = 1.0 / rhs
+        cz, _ = nnls(A * sc[:, None], rhs * sc)
+        bx = np.column_stack([w, np.zeros_like(w), w * gr])
+        by = np.column_stack([np.zeros_like(w), w, w * gr])
+        H = np.vstack([bx.sum(0), by.sum(0),
+                       (bx * (y * y)[:, None]).sum(0) + (by * (x * x)[:, None]).sum(0)])
+        rh = np.array([Kx, Ky, Kt])
+        sh = 1.0 / rh
+        ch, _ = nnls(H * sh[:, None], rh * sh)
+        if (np.abs(A @ cz / rhs - 1).max() < 1e-9 and np.abs(H @ ch / rh - 1).max() < 1e-9):
+            kz = basis @ cz
+            kx = bx @ ch
+            ky = by @ ch
+            note = ("distributed bed matching Kx, Ky, Kz, Krx, Kry, Kt (non-negative springs "
+                    f"per unit area from 1, |x|^{p}, |y|^{p}, |xy|^{p}, r^{p} terms: stiffer "
+                    "towards the edges and corners)")
+            break
+    else:
         at = w / w.sum()
         kx, ky, kz = Kx * at, Ky * at, Kz * at
         note = ("distributed bed uniform (a matching bed would need negative springs): "
