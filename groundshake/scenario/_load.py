@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+import functools
+import json
 import math
 import os
 import re
@@ -50,7 +52,7 @@ def format_path(path: tuple) -> str:
         if isinstance(k, int):
             out += f"[{k}]"
         else:
-            text = k if _BARE_KEY.match(k) else '"' + k.replace("\\", "\\\\").replace('"', '\\"') + '"'
+            text = k if _BARE_KEY.match(k) else json.dumps(k)  # quoted, control chars escaped
             out += ("." if out else "") + text
     return out or "(top level)"
 
@@ -59,7 +61,8 @@ def _show(value: Any, limit: int = 80) -> str:
     if isinstance(value, bool):
         text = "true" if value else "false"
     elif isinstance(value, dict):
-        text = "a table {" + ", ".join(map(str, list(value)[:8])) + ("…" if len(value) > 8 else "") + "}"
+        text = "a table {" + ", ".join(format_path((str(k),)) for k in list(value)[:8]) + (
+            "…" if len(value) > 8 else "") + "}"
     elif isinstance(value, Path):
         text = repr(str(value))
     else:
@@ -128,8 +131,20 @@ def _range_text(meta: dict, noun: str = "a number") -> str:
     return text
 
 
+_ALLOWED_CACHE: dict[int, tuple[Any, str]] = {}
+
+
 def allowed_text(meta: dict) -> str:
     """What a key accepts, in words (used in messages and the README table)."""
+    hit = _ALLOWED_CACHE.get(id(meta))
+    if hit is not None and hit[0] is meta:
+        return hit[1]
+    text = _allowed_text(meta)
+    _ALLOWED_CACHE[id(meta)] = (meta, text)
+    return text
+
+
+def _allowed_text(meta: dict) -> str:
     kind = meta["kind"]
     if kind == "number":
         return _range_text(meta)
@@ -172,8 +187,9 @@ def allowed_text(meta: dict) -> str:
     raise AssertionError(kind)  # pragma: no cover - schema error, not user input
 
 
-def _schema_fields(cls) -> list[dataclasses.Field]:
-    return [f for f in dataclasses.fields(cls) if not f.metadata.get("internal")]
+@functools.lru_cache(maxsize=None)
+def _schema_fields(cls) -> tuple[dataclasses.Field, ...]:
+    return tuple(f for f in dataclasses.fields(cls) if not f.metadata.get("internal"))
 
 
 def _is_number(v: Any) -> bool:
@@ -531,14 +547,14 @@ def parse_scenario_text(text: str, *, source: str = "<string>",
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
-        raise _syntax_error(source, str(e)) from None
+        raise _syntax_error(source, str(e), len(text.splitlines())) from None
     except (ValueError, RecursionError) as e:  # e.g. NUL characters, absurd nesting
         raise ScenarioError(f"{source}: TOML syntax error: {_show(str(e), 120)}") from None
     ctx = _Context(source, text, base)
     return _build(data, ctx)
 
 
-def _syntax_error(source: str, message: str) -> ScenarioError:
+def _syntax_error(source: str, message: str, last_line: int) -> ScenarioError:
     m = re.search(r"\s*\(at line (\d+), column (\d+)\)\s*$", message)
     if m:
         text = message[: m.start()]
@@ -547,8 +563,9 @@ def _syntax_error(source: str, message: str) -> ScenarioError:
     else:
         m = re.search(r"\s*\(at end of document\)\s*$", message)
         text = message[: m.start()] if m else message
-        e = ScenarioError(f"{source}: TOML syntax error at the end of the document: {text}")
-        e.line = None
+        e = ScenarioError(f"{source}:{last_line}: TOML syntax error at the end of the "
+                          f"document: {text}")
+        e.line = last_line
     e.file, e.key = source, None
     return e
 
