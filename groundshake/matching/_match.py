@@ -455,7 +455,7 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
     if failed:
         warn.append(f"{record.name}: acceptance check(s) not met: {', '.join(failed)}")
     for w in warn:
-        warnings.warn(w, GroundshakeWarning, stacklevel=3)
+        warnings.warn(w, GroundshakeWarning, stacklevel=2)
 
     out = record
     for s in steps:
