@@ -55,8 +55,11 @@ class Modes:
         return self.omega.size
 
     def dominant_direction(self) -> list[str]:
-        """Per mode, the direction (x, y, z) with the largest effective mass ratio."""
-        return [_DIRS[i] for i in np.argmax(self.effective_mass_ratio, axis=1)]
+        """Per mode, the direction (x, y, z) with the largest effective mass ratio, or
+        ``"none"`` when no direction holds 0.1 % of the mass (torsion, local modes)."""
+        r = self.effective_mass_ratio
+        return [_DIRS[i] if r[j, i] >= 1e-3 else "none"
+                for j, i in enumerate(np.argmax(r, axis=1))]
 
     def to_dict(self) -> dict:
         dom = self.dominant_direction()
@@ -254,6 +257,14 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
         for msg in msgs:
             warnings.warn(msg, GroundshakeWarning, stacklevel=2)
     damping = model.modal_damping(phi)
+    from ..model._build import MODAL_DAMPING_CAP
+    capped = np.flatnonzero(damping >= MODAL_DAMPING_CAP - 1e-12)
+    if capped.size:
+        msgs.append(f"modal damping of mode(s) {', '.join(str(i + 1) for i in capped[:10])} "
+                    f"limited to {100 * MODAL_DAMPING_CAP:.0f} % (radiation damping would "
+                    "give more; ASCE 4 practice, from memory)")
+        if warn:
+            warnings.warn(msgs[-1], GroundshakeWarning, stacklevel=2)
     return Modes(omega=omega, frequency=freq, period=period, shapes=phi,
                  participation=gamma, effective_mass=meff, effective_mass_ratio=ratio,
                  cumulative_ratio=cum, damping=damping, total_mass=total, warnings=msgs,

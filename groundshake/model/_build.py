@@ -31,6 +31,8 @@ __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_
 
 #: Standard gravity [m/s²].
 G_STANDARD = 9.80665
+#: Upper limit of composite modal damping ratios (ASCE 4 practice, from memory: 20 %).
+MODAL_DAMPING_CAP = 0.20
 
 
 def _get(obj: Any, name: str, default: Any = None) -> Any:
@@ -210,7 +212,8 @@ class BlockModel:
 
         ξ_n = Σ_j ξ_j·φᵀK_jφ / φᵀKφ (strain-energy weights: block and soil springs at the
         block ratio or its Rayleigh value, each equipment support at its own ratio), plus
-        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term).
+        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term),
+        limited to :data:`MODAL_DAMPING_CAP` (20 %, ASCE 4 practice, from memory).
         """
         phi = np.asarray(shapes, dtype=float)
         if phi.ndim == 1:
@@ -238,7 +241,7 @@ class BlockModel:
             if self._radiation is not None and self._radiation.nnz:
                 cr = np.einsum("im,im->m", phi, self._radiation @ phi)
                 z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
-        return z
+        return np.minimum(z, MODAL_DAMPING_CAP)
 
     def describe(self) -> dict:
         """Plain dict for summary.json: mesh counts, element, supports, materials."""

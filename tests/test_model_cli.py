@@ -1,0 +1,88 @@
+"""The ``modes`` command: JSON contract, table, figures, error status.
+
+Sources: period = 1/f and cumulative effective-mass ratios (definitions, Chopra,
+Dynamics of Structures §13.2); exit status 2 for bad input (common practice for Unix
+tools); PNG signature (PNG specification, ISO/IEC 15948).
+"""
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+
+from groundshake.cli import main
+
+EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "transformer-pad.toml"
+
+SMALL = """
+title = "small pad (invented)"
+[materials.c]
+youngs_modulus = 30e9
+poisson_ratio = 0.2
+density = 2400
+[[parts]]
+name = "pad"
+material = "c"
+origin = [0.0, 0.0, 0.0]
+size = [3.0, 2.0, 1.0]
+[mesh]
+element_size = 0.5
+[[equipment]]
+name = "box"
+mass = 1000.0
+mount = [1.5, 1.0]
+footprint = [1.0, 1.0]
+cg_height = 0.5
+anchors = [[-0.4, -0.4], [0.4, 0.4]]
+[[sensors]]
+name = "corner"
+at = [3.0, 2.0, 1.0]
+[analysis]
+modes = 5
+"""
+
+
+def test_modes_json_contract(tmp_path, capsys):
+    sc = tmp_path / "small.toml"
+    sc.write_text(SMALL)
+    assert main(["modes", str(sc), "--json", "--plot", str(tmp_path / "fig"),
+                 "--plot-modes", "1"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert set(doc["total_mass"]) == {"x", "y", "z"}
+    modes = doc["modes"]
+    assert len(modes) == 5
+    f = np.array([m["frequency"] for m in modes])
+    T = np.array([m["period"] for m in modes])
+    assert np.all(np.diff(f) >= 0) and np.all(f > 0)
+    # period = 1/f (definition), to round-off
+    np.testing.assert_allclose(T, 1 / f, rtol=1e-12)
+    cum = np.cumsum([m["effective_mass_ratio"]["x"] for m in modes])
+    # cumulative share is the running sum of the ratios and never exceeds 1 (Chopra §13.2)
+    np.testing.assert_allclose(cum, [m["cumulative_ratio"]["x"] for m in modes], rtol=1e-12)
+    assert cum[-1] <= 1 + 1e-9
+    assert doc["cautions"] and isinstance(doc["warnings"], list)
+    figs = sorted((tmp_path / "fig").glob("*.png"))
+    assert [p.name for p in figs] == ["mode-1.png", "model.png"]
+    for p in figs:
+        # PNG signature (ISO/IEC 15948)
+        assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_modes_table_on_the_example(capsys):
+    assert main(["modes", str(EXAMPLE), "--modes", "4"]) == 0
+    out = capsys.readouterr().out
+    assert "f [Hz]" in out and "screening" in out.lower()
+
+
+def test_modes_bad_input_exit_2(tmp_path, capsys):
+    sc = tmp_path / "bad.toml"
+    sc.write_text(SMALL.replace("element_size = 0.5", "element_size = -1"))
+    # bad input: status 2 and one line on stderr, no traceback (common practice)
+    assert main(["modes", str(sc)]) == 2
+    err = capsys.readouterr().err
+    assert "element_size" in err and "Traceback" not in err
+    good = tmp_path / "small.toml"
+    good.write_text(SMALL)
+    assert main(["modes", str(good), "--modes", "0"]) == 2
+    assert "--modes" in capsys.readouterr().err
