@@ -80,3 +80,7 @@ def schema_markdown() -> str:
         cells = [f"`{key}`", default, allowed, doc]
         out.append("| " + " | ".join(c.replace("|", "\\|") for c in cells) + " |")
     return "\n".join(out) + "\n"
+
+
+if __name__ == "__main__":  # python -m groundshake.scenario._schema > table.md
+    print(schema_markdown(), end="")
