@@ -166,3 +166,60 @@ def test_real_example_loads_when_records_exist():
         warnings.simplefilter("error")
         s = load_scenario(EXAMPLE)
     assert s.motion.z.file == (REPO / "records" / "demo-up.mseed").resolve()  # DESIGN example
+
+
+def test_processing_settings_are_built_from_the_scenario(site):
+    pytest.importorskip("groundshake.processing")
+    s = load_scenario(site)
+    ps = s.processing_settings()
+    # Same field names and values (INTERNALS.md: names = the scenario's [processing] keys).
+    assert ps.highpass_hz == 0.1 and ps.filter_order == 4 and ps.baseline_order == 1
+    assert ps.taper_percent == s.processing.taper_percent
+
+
+def test_scenario_pickles(site):
+    import pickle
+    s = load_scenario(site)
+    # A local process pool sends the scenario by pickle (standard library behaviour).
+    t = pickle.loads(pickle.dumps(s))
+    assert t == s and t.notes == s.notes and t.base_dir == s.base_dir
+
+
+def test_order_of_tables_does_not_matter(site):
+    import tomllib
+    text = site.read_text()
+    data = tomllib.loads(text)
+    # TOML 1.0: a document is an unordered collection of tables; so is our schema.
+    reordered = dict(reversed(list(data.items())))
+    a = Scenario.from_dict(data, base_dir=site.parent)
+    b = Scenario.from_dict(reordered, base_dir=site.parent)
+    assert a == b
+
+
+def test_to_dict_has_exactly_the_schema_keys(site):
+    from groundshake.scenario._schema import schema_rows
+    d = load_scenario(site).to_dict()
+    flat = set()
+
+    def walk(v, prefix):
+        if isinstance(v, dict):
+            for k, x in v.items():
+                if prefix == "materials.":
+                    walk(x, "materials.NAME.")
+                elif prefix == "motion." and k in "xyz":
+                    walk(x, "motion.{x,y,z}.")
+                else:
+                    flat.add(prefix + k)
+                    walk(x, prefix + k + ".")
+        elif isinstance(v, list) and v and isinstance(v[0], dict):
+            for x in v:
+                walk(x, prefix[:-1] + "[].")
+
+    walk(d, "")
+    schema = {r[0] for r in schema_rows()}
+    # Every echoed key is a schema key (INTERNALS.md: to_dict gives every key with its default).
+    assert flat - {"motion.x", "motion.y", "motion.z", "materials.concrete"} <= schema
+    leaves = {r[0] for r in schema_rows() if r[2] != "a table" and not r[2].startswith("an array of tables")
+              and r[2] != "one table per name"}
+    present = {k for k in leaves if not k.startswith("equipment[].fp")}  # fp not in the example
+    assert present <= flat, present - flat

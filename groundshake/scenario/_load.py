@@ -548,7 +548,10 @@ def parse_scenario_text(text: str, *, source: str = "<string>",
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as e:
         raise _syntax_error(source, str(e), len(text.splitlines())) from None
-    except (ValueError, RecursionError) as e:  # e.g. NUL characters, absurd nesting
+    except RecursionError:
+        raise ScenarioError(f"{source}: given arrays or tables nested too deeply for the TOML "
+                            f"parser; allowed the scenario schema (at most a few levels)") from None
+    except ValueError as e:  # pragma: no cover - tomllib raises TOMLDecodeError for bad text
         raise ScenarioError(f"{source}: TOML syntax error: {_show(str(e), 120)}") from None
     ctx = _Context(source, text, base)
     return _build(data, ctx)
