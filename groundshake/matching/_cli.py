@@ -1,0 +1,235 @@
+"""Command ``match``: adjust a record to a target spectrum and write it."""
+from __future__ import annotations
+
+import argparse
+import sys
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+from .._cautions import CAUTIONS, SCREENING_NOTE
+from .._cli_common import float_list, print_json, table
+from .._errors import GroundshakeWarning, InputError
+
+__all__ = ["register", "cmd_match"]
+
+
+def _check_outputs(src: Path, out: Path | None, plot: Path | None) -> None:
+    from ..records._write import WRITE_FORMATS
+
+    if out is not None:
+        if out.suffix.lower() not in WRITE_FORMATS:
+            raise InputError(f"-o {out}: unknown output format {out.suffix or '(none)'!r}; "
+                             f"allowed: {', '.join(WRITE_FORMATS)}")
+        if out.resolve() == src.resolve():
+            raise InputError(f"-o {out}: is the input file; give another output path "
+                             "(inputs are never overwritten)")
+    if plot is not None:
+        if plot.suffix.lower() not in (".png", ".pdf", ".svg"):
+            raise InputError(f"--plot {plot}: give a .png, .pdf or .svg file")
+        if plot.resolve() == src.resolve() or (out is not None and plot.resolve() == out.resolve()):
+            raise InputError(f"--plot {plot}: would overwrite the input or the output")
+
+
+def cmd_match(args: argparse.Namespace) -> int:
+    from ..records._cli import _correct_all, read_records_from_args, settings_from_args
+    from ..spectra import parse_target
+    from ._acceptance import AcceptanceCriteria
+    from ._match import match_spectrum_report
+
+    src = Path(args.record)
+    out = Path(args.output) if args.output else None
+    plot = Path(args.plot) if args.plot else None
+    _check_outputs(src, out, plot)
+    damping = [d / 100.0 for d in float_list(args.damping, name="--damping", positive=True)]
+    if any(d >= 1 for d in damping):
+        raise InputError(f"--damping {args.damping}: percent of critical, allowed 0 < value < 100")
+    band = None
+    if args.band is not None:
+        band = float_list(args.band, name="--band", positive=True)
+        if len(band) != 2 or band[0] >= band[1]:
+            raise InputError(f"--band {args.band}: allowed two periods T1,T2 in s with T1 < T2")
+    periods = None
+    if args.periods is not None:
+        periods = float_list(args.periods, name="--periods", positive=True)
+    specs = args.target
+    if len(specs) not in (1, len(damping)):
+        raise InputError(f"--target given {len(specs)} times for {len(damping)} damping values; "
+                         "allowed: once, or once per damping value (same order)")
+    base = Path.cwd()
+    targets = [parse_target(s, base_dir=base) for s in specs]
+    target = targets[0] if len(damping) == 1 else (targets if len(targets) > 1 else None)
+    if target is None:
+        raise InputError(f"--target: one target for {len(damping)} damping values; give "
+                         "--target once per damping value")
+    if not (args.tolerance > 0):
+        raise InputError(f"--tolerance {args.tolerance:g}: allowed a percent > 0")
+    if args.max_iterations < 0:
+        raise InputError(f"--max-iterations {args.max_iterations}: allowed an integer >= 0")
+    criteria = AcceptanceCriteria(max_shortfall=args.max_shortfall / 100.0,
+                                  max_excess=args.max_excess / 100.0)
+
+    raws = read_records_from_args([src], args)
+    records = _correct_all(raws, settings_from_args(args))
+    results = []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", GroundshakeWarning)
+        for rec in records:
+            results.append(match_spectrum_report(
+                rec, target, damping, periods, band=band, tolerance=args.tolerance / 100.0,
+                max_iterations=args.max_iterations, criteria=criteria))
+    messages = [str(w.message) for w in caught if issubclass(w.category, GroundshakeWarning)]
+    for m in messages:
+        sys.stderr.write(f"groundshake: warning: {m}\n")
+
+    if out is not None:
+        from ..records import write_record
+        write_record([r.record for r in results], out)
+    if plot is not None:
+        _plot(results, plot)
+
+    failed = [r for r in results if not r.converged]
+    if getattr(args, "json", False):
+        print_json({"output": str(out) if out else None, "plot": str(plot) if plot else None,
+                    "records": [r.to_dict() for r in results], "cautions": list(CAUTIONS)})
+    else:
+        _print_text(results, out, plot)
+    if failed:
+        names = ", ".join(f"{r.record.name} ({r.status}, max misfit {100 * r.max_misfit:.1f} %)"
+                          for r in failed)
+        sys.stderr.write(f"groundshake: match did not converge for {names}; "
+                         + ("the output was written, and its history says so\n" if out
+                            else "nothing was written\n"))
+        return 1
+    return 0
+
+
+def _print_text(results, out, plot) -> None:
+    for r in results:
+        print(f"{r.record.name}: {r.status} (target {r.target_label}, damping "
+              f"{', '.join(f'{100 * d:g}' for d in r.damping)} %, band {r.periods[0]:g}-"
+              f"{r.periods[-1]:g} s, {r.periods.size} periods)")
+        rows = [[str(it["iteration"]), 100 * it["max_misfit"], 100 * it["mean_misfit"]]
+                for it in r.iterations]
+        print(table(rows, ["iteration", "max misfit %", "mean misfit %"]))
+        a = r.acceptance
+        print(f"largest shortfall {100 * a['largest_shortfall']:.1f} %, largest excess "
+              f"{100 * a['largest_excess']:.1f} %, {a['points_below']} of {a['points_total']} "
+              f"points below target (longest run {a['longest_run_below']}), max |ΔHusid| "
+              f"{a['husid_max_change']:.3f}; checks "
+              + ", ".join(f"{k} {'met' if v else 'NOT met'}" for k, v in a["checks"].items()))
+        b, f = a["measures"]["before"], a["measures"]["after"]
+        rows = [[label, b[k], f[k], unit] for label, k, unit in (
+            ("PGA", "pga", "m/s2"), ("PGV", "pgv", "m/s"), ("PGD", "pgd", "m"),
+            ("Arias intensity", "arias_intensity", "m/s"), ("D5-95", "d5_95", "s"),
+            ("final velocity", "final_velocity", "m/s"),
+            ("final displacement", "final_displacement", "m"))]
+        print(table(rows, ["measure", "before", "after", "unit"]))
+    if out is not None:
+        print(f"wrote {out} (m/s2)")
+    if plot is not None:
+        print(f"wrote {plot}")
+    print(SCREENING_NOTE)
+
+
+def _minor_label(value, _pos) -> str:
+    """Label the 2s and 5s of each decade on log axes."""
+    if value <= 0:
+        return ""
+    lead = value / 10 ** np.floor(np.log10(value) + 1e-9)
+    return f"{value:g}" if round(lead) in (2, 5) and abs(lead - round(lead)) < 1e-6 else ""
+
+
+def _plot(results, path: Path) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    import matplotlib.ticker
+
+    from .._atomic import atomic_path
+    from ._measures import integrate_motion
+
+    n = len(results)
+    fig = plt.figure(figsize=(12, 6.5 * n))
+    grid = fig.add_gridspec(3 * n, 2, width_ratios=(1, 1.3))
+    for k, r in enumerate(results):
+        ax = fig.add_subplot(grid[3 * k:3 * k + 3, 0])
+        for i, z in enumerate(r.damping):
+            c = f"C{i}"
+            ax.loglog(r.periods, r.target_psa[i], color="k", lw=1.4 if i == 0 else 0.9,
+                      ls="-" if i == 0 else "--", label=f"target {100 * z:g} %")
+            ax.loglog(r.periods, r.psa_before[i] * r.scale_factor, color=c, lw=0.8, ls=":",
+                      label=f"before (scaled ×{r.scale_factor:.3g}) {100 * z:g} %")
+            ax.loglog(r.periods, r.psa_after[i], color=c, lw=1.2, label=f"after {100 * z:g} %")
+        ax.set_xlabel("period [s]")
+        ax.set_ylabel("PSA [m/s²]")
+        ax.set_title(f"{r.record.name}: {r.status}, max misfit {100 * r.max_misfit:.1f} %",
+                     fontsize=9)
+        ax.grid(alpha=0.3, which="both")
+        for axis in (ax.xaxis, ax.yaxis):
+            axis.set_major_formatter(matplotlib.ticker.FormatStrFormatter("%g"))
+            axis.set_minor_formatter(matplotlib.ticker.FuncFormatter(_minor_label))
+        ax.legend(fontsize=7)
+        dt = r.record.dt
+        pad = int(round(r.pad_s / dt))
+        before = np.concatenate([np.zeros(pad), r.original.acc, np.zeros(pad)])
+        before = np.pad(before, (0, max(0, r.record.n - before.size)))[:r.record.n]
+        before = before * r.scale_factor
+        t = r.record.time - r.pad_s
+        vb, db = integrate_motion(before, dt)
+        va, da = integrate_motion(r.record.acc, dt)
+        for row, (label, yb, ya) in enumerate((("acceleration [m/s²]", before, r.record.acc),
+                                               ("velocity [m/s]", vb, va),
+                                               ("displacement [m]", db, da))):
+            ax = fig.add_subplot(grid[3 * k + row, 1])
+            ax.plot(t, ya, lw=0.7, color="C0", label="after")
+            ax.plot(t, yb, lw=0.5, color="0.35", alpha=0.8,
+                    label=f"before, scaled ×{r.scale_factor:.3g}")
+            ax.set_ylabel(label, fontsize=8)
+            ax.grid(alpha=0.3)
+            if row == 0:
+                ax.legend(fontsize=7, loc="upper right")
+            if row == 2:
+                ax.set_xlabel("time from the first sample of the (corrected) record [s]")
+    fig.suptitle("Spectral matching (screening only)", fontsize=10)
+    fig.tight_layout()
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, dpi=100, format=path.suffix.lstrip(".").lower())
+    plt.close(fig)
+
+
+def register(subparsers, parents) -> None:
+    """Add ``match`` to the ``groundshake`` command line."""
+    from ..records._cli import add_processing_options, add_reading_options
+
+    p = subparsers.add_parser(
+        "match", parents=parents, help="adjust a record to a target spectrum (corrective wavelets)",
+        description="Correct a record (unless --raw), then adjust it with corrective wavelets "
+                    "(Al Atik & Abrahamson 2010) until its spectrum matches the target over the "
+                    "band. Exit status 1 if the match does not converge.")
+    p.add_argument("record", metavar="RECORD", help="record file (every trace is matched)")
+    p.add_argument("--target", required=True, action="append", metavar="SPEC",
+                   help="target spectrum: asce7:sds=..,sd1=..[,tl=..], en1998:type=..,ground=..,"
+                        "ag=..[,damping=..], or a CSV of period [s], PSA [g]; once per damping")
+    p.add_argument("--damping", default="5", metavar="PCT",
+                   help="damping in percent, comma-separated to match several at once (default 5)")
+    p.add_argument("--band", metavar="T1,T2", help="period band [s] (default 0.05,4; short end "
+                   "at least 10·dt)")
+    p.add_argument("--periods", metavar="T,...", help="periods [s] to match (default 30 per "
+                   "decade over the band)")
+    p.add_argument("--tolerance", type=float, default=5.0, metavar="PCT",
+                   help="converged when max |PSA/target - 1| ≤ this, percent (default 5)")
+    p.add_argument("--max-iterations", type=int, default=40, metavar="N",
+                   help="most iterations (default 40)")
+    p.add_argument("--max-shortfall", type=float, default=10.0, metavar="PCT",
+                   help="acceptance: largest shortfall below the target, percent (default 10)")
+    p.add_argument("--max-excess", type=float, default=30.0, metavar="PCT",
+                   help="acceptance: largest excess above the target, percent (default 30)")
+    p.add_argument("-o", "--output", metavar="OUT", help="write the matched record: .mseed, "
+                   ".sac or .csv (m/s2)")
+    p.add_argument("--plot", metavar="PNG", help="plot spectra and acc/vel/disp before and after")
+    add_reading_options(p)
+    add_processing_options(p)
+    p.set_defaults(func=cmd_match)
