@@ -223,3 +223,14 @@ def test_to_dict_has_exactly_the_schema_keys(site):
               and r[2] != "one table per name"}
     present = {k for k in leaves if not k.startswith("equipment[].fp")}  # fp not in the example
     assert present <= flat, present - flat
+
+
+def test_symlink_leaving_the_folder_is_noted(site, tmp_path):
+    outside = tmp_path / "elsewhere.mseed"
+    outside.write_bytes(b"")
+    link = site.parent / "local.mseed"
+    link.symlink_to(outside)
+    text = site.read_text().replace("../records/demo-h1.mseed", "local.mseed")
+    s = parse_scenario_text(text, source=str(site), base_dir=site.parent)
+    # Issue 8: a path that looks local but resolves elsewhere must be shown, too.
+    assert any("motion.x.file" in n and str(outside.resolve()) in n for n in s.notes)

@@ -337,3 +337,15 @@ def test_from_dict_errors_name_the_key_without_a_line():
         Scenario.from_dict(d)
     # No text, so no line: "<dict>: key: given ...; allowed ..." (scenario contract).
     assert re.match(r"<dict>: materials\.concrete\.poisson_ratio: given 0\.7; allowed ", str(info.value))
+
+
+def test_hostile_names_keep_the_message_on_one_line(tmp_path):
+    # Names may hold any TOML string (TOML 1.0 escapes); the message stays one line.
+    text = BASE.replace('name = "mat"', 'name = "m\\nat"').replace(
+        "origin = [1.0, 1.0, 1.0]", "origin = [1.0, 1.0, 0.5]")
+    e = _error(text, tmp_path)
+    assert "overlapping parts[0] ('m\\nat')" in str(e) and "\n" not in str(e)
+    text = BASE.replace("[materials.concrete]", '[materials."con\\ncrete"]').replace(
+        "poisson_ratio = 0.2", "poisson_ratio = 0.6")
+    e = _error(text, tmp_path)
+    assert 'materials."con\\ncrete".poisson_ratio' in str(e) and "\n" not in str(e)

@@ -88,7 +88,7 @@ def check_geometry(values: dict, ctx) -> None:
     for i, a in enumerate(parts):
         for j in range(i):
             if _relation(a, parts[j], tol) == "overlap":
-                raise ctx.error(("parts", i), f"a box overlapping parts[{j}] ('{parts[j].name}')",
+                raise ctx.error(("parts", i), f"a box overlapping parts[{j}] ({parts[j].name!r})",
                                 "parts that touch face to face without overlapping")
     # every part must be joined to the first through faces
     joined = {0}
@@ -101,7 +101,7 @@ def check_geometry(values: dict, ctx) -> None:
                 frontier.append(j)
     for j in range(len(parts)):
         if j not in joined:
-            raise ctx.error(("parts", j), f"a box that does not touch parts[0] ('{parts[0].name}') "
+            raise ctx.error(("parts", j), f"a box that does not touch parts[0] ({parts[0].name!r}) "
                             "or any part joined to it face to face",
                             "parts that touch face to face (no gaps, no edge or corner contact)")
     mesh = values["mesh"]
