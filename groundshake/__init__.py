@@ -25,6 +25,8 @@ _LAZY = {
     "resample": "groundshake.processing",
     "Spectrum": "groundshake.spectra",
     "response_spectrum": "groundshake.spectra",
+    "oscillator_peaks": "groundshake.spectra",
+    "oscillator_history": "groundshake.spectra",
     "load_scenario": "groundshake.scenario",
     "Scenario": "groundshake.scenario",
     "ScenarioError": "groundshake._errors",

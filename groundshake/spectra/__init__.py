@@ -1,0 +1,10 @@
+"""Response spectra and the damped-oscillator kernel behind them.
+
+The kernel (:func:`oscillator_peaks`, :func:`oscillator_history`) is exact for
+piecewise-linear excitation and serves the ground spectra, the modal time histories
+and the floor spectra alike. SI units: acc [m/s²], dt [s], omega [rad/s], periods [s];
+damping as a ratio.
+"""
+from ._kernel import OscillatorPeaks, kernel_engine, oscillator_history, oscillator_peaks
+
+__all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_engine"]
