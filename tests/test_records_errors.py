@@ -60,6 +60,10 @@ CASES = {
     "uneven steps": (("t,a [g]\n" + "\n".join(_rows(20)) + "\n0.2015,1.0\n" +
                       "\n".join(f"{0.2015 + 0.01 * k!r},0.5" for k in range(1, 20)) + "\n").encode(),
                      [], [":22:", "1 %", "--resample"]),
+    "ragged rows": (("time,acc [g]\n" + "\n".join(_rows(20)) + "\n0.2,1.0,3.0\n").encode(), [],
+                    [":22:", "3 values"]),
+    "empty cell": (("time,acc [g]\n" + "\n".join(_rows(20)) + "\n0.2,,1.0\n").encode(), [],
+                   [":22:", "''"]),
     "garbage bytes": (bytes(range(256)) * 8, [], ["not a record"]),
     "no units": (("t,a\n" + "\n".join(_rows(20)) + "\n").encode(), [], ["does not state its units",
                                                                           "--units"]),

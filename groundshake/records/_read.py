@@ -6,6 +6,7 @@ Kinemetrics EVT, GSE2, ...), then delimited text. Files named ``*.csv`` or
 """
 from __future__ import annotations
 
+import io
 import math
 import re
 import warnings
@@ -262,15 +263,13 @@ def _meta_line(text: str, meta: dict[str, str]) -> bool:
     return True
 
 
-def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
-               resample: bool) -> list[Record]:
-    where = str(path)
+def _parse_table(text: str, where: str):
+    """(meta, header, table (rows, width), line numbers (rows,)) of a delimited text file."""
     meta: dict[str, str] = {}
     header: list[str] | None = None
-    rows: list[list[float]] = []
-    line_numbers: list[int] = []
-    width = None
-    for number, line in enumerate(text.splitlines(), start=1):
+    all_lines = text.splitlines()
+    first = None
+    for number, line in enumerate(all_lines, start=1):
         s = line.strip()
         if not s:
             continue
@@ -278,26 +277,71 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
             _meta_line(s.lstrip(_COMMENT_CHARS), meta)
             continue
         cells = _split(s)
+        if all(_is_float(c) for c in cells) and cells:
+            first = number
+            break
+        if not _meta_line(s, meta):
+            header = _merge_brackets(cells)
+    if first is None:
+        raise RecordError(f"{where}: no rows of numbers (empty, or only a header)")
+    stripped = [ln.strip() for ln in all_lines[first - 1:]]
+    keep = [i for i, s in enumerate(stripped) if s and s[0] not in _COMMENT_CHARS]
+    if len(keep) < len(stripped):  # comments among the data rows still carry metadata
+        for s in stripped:
+            if s and s[0] in _COMMENT_CHARS:
+                _meta_line(s.lstrip(_COMMENT_CHARS), meta)
+    data = stripped if len(keep) == len(stripped) else [stripped[i] for i in keep]
+    numbers = [first + i for i in keep]
+    table = _fast_table(data)
+    if table is None:
+        table = _slow_table(data, numbers, where)
+    return meta, header, table, np.array(numbers)
+
+
+def _fast_table(data: list[str]) -> np.ndarray | None:
+    """All rows converted at once in C; None if anything is irregular (then go slowly)."""
+    first = data[0]
+    joined = "\n".join(data)
+    if ";" in first:
+        if "." not in first:
+            joined = joined.replace(",", ".")
+        joined = joined.replace(";", " ")
+    else:
+        joined = joined.replace(",", " ")
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            table = np.loadtxt(io.StringIO(joined), dtype=float, ndmin=2, comments=None)
+    except ValueError:  # irregular rows or a bad cell: the slow path names the line
+        return None
+    return table if table.shape[0] == len(data) else None
+
+
+def _slow_table(data: list[str], numbers: list[int], where: str) -> np.ndarray:
+    """Row by row, to name the line and cell at fault."""
+    rows: list[list[float]] = []
+    width = None
+    for number, s in zip(numbers, data):
+        cells = _split(s)
         try:
             values = [float(c) for c in cells]
         except ValueError:
-            if rows:
-                bad = next(c for c in cells if not _is_float(c))
-                raise RecordError(f"{where}:{number}: {bad!r} is not a number") from None
-            if not _meta_line(s, meta):
-                header = _merge_brackets(cells)
-            continue
+            bad = next(c for c in cells if not _is_float(c))
+            raise RecordError(f"{where}:{number}: {bad!r} is not a number") from None
         if width is None:
             width = len(values)
         elif len(values) != width:
             raise RecordError(f"{where}:{number}: {len(values)} values; the first data row "
                               f"had {width}")
         rows.append(values)
-        line_numbers.append(number)
-    if not rows:
-        raise RecordError(f"{where}: no rows of numbers (empty, or only a header)")
-    table = np.array(rows, dtype=float)
-    lines = np.array(line_numbers)
+    return np.array(rows, dtype=float)
+
+
+def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
+               resample: bool) -> list[Record]:
+    where = str(path)
+    meta, header, table, lines = _parse_table(text, where)
+    width = table.shape[1]
     bad = np.argwhere(~np.isfinite(table))
     if bad.size:
         r, c = bad[0]
