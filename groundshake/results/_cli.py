@@ -24,6 +24,8 @@ def register(subparsers, parents) -> None:
     p.add_argument("--force", action="store_true", help="replace DIR if it exists")
     p.add_argument("--method", choices=("modal", "direct"), default=None,
                    help="override [analysis] method")
+    p.add_argument("--no-report", action="store_true",
+                   help="write summary.json and the CSV tables only (no report.html)")
     p.set_defaults(func=_run)
 
 
@@ -46,7 +48,7 @@ def _run(args) -> int:
     results = analyse(scenario, progress=not quiet, method=args.method)
     results.summary["provenance"]["command"] = " ".join(["groundshake", *sys.argv[1:]]) \
         if sys.argv and sys.argv[0].endswith("groundshake") else f"groundshake run {args.scenario}"
-    write_outputs(results, out, overwrite=bool(args.force))
+    write_outputs(results, out, overwrite=bool(args.force), report=not args.no_report)
     s = results.summary
     if getattr(args, "json", False):
         print_json(s)

@@ -1,0 +1,155 @@
+"""`groundshake run`: the files it writes, their keys, and its refusals; motion assembly.
+
+Sources: the output contract of docs/INTERNALS.md and the DESIGN.md summary keys (the
+project's own published interface, checked as a contract); the engineering cautions of
+common practice (screening, not design); Fourier resampling preserves a band-limited
+sine (Nyquist-Shannon; scipy.signal.resample as reference); facts of the trade for the
+warnings (at least ~10 samples per period, Phillips et al. 2012). Records are invented.
+"""
+from __future__ import annotations
+
+import csv
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from groundshake._cautions import CAUTIONS
+from groundshake.cli import main
+from groundshake.records import Record, write_record
+from groundshake.results import OUTPUT_FILES
+
+SCENARIO = """
+title = "outputs test (invented)"
+[motion]
+x = {{ file = "{rx}" }}
+y = {{ file = "{ry}" }}
+[processing]
+highpass_hz = 0.5
+[materials.concrete]
+youngs_modulus = 30e9
+poisson_ratio = 0.2
+density = 2400
+[[parts]]
+name = "pad"
+material = "concrete"
+origin = [0.0, 0.0, 0.0]
+size = [2.0, 2.0, 0.6]
+[mesh]
+element_size = 0.5
+[support]
+kind = "soil"
+shear_wave_velocity = 200.0
+poisson_ratio = 0.3
+density = 1900.0
+[[equipment]]
+name = "box"
+mass = 1500.0
+mount = [1.0, 1.0]
+footprint = [1.0, 1.0]
+cg_height = 0.6
+anchors = [[-0.4, -0.4], [0.4, -0.4], [0.4, 0.4], [-0.4, 0.4]]
+capacity = {{ tension = 20e3, shear = 10e3 }}
+fp = {{ sds = 1.0, ap = 1.0, rp = 2.5, ip = 1.0, z_over_h = 0.0 }}
+[[sensors]]
+name = "edge"
+at = [2.0, 1.0, 0.6]
+[floor_spectra]
+damping_percent = [5]
+periods = {{ min = 0.05, max = 2.0, count = 15 }}
+"""
+
+
+def write_case(folder: Path, *, n_y: int = 500, dt_y: float = 0.01) -> Path:
+    t = np.arange(600) * 0.01
+    ax = 1.5 * np.sin(2 * np.pi * 2.0 * t) * np.sin(np.pi * t / t[-1]) ** 2
+    ty = np.arange(n_y) * dt_y
+    ay = 1.0 * np.sin(2 * np.pi * 3.0 * ty) * np.sin(np.pi * ty / ty[-1]) ** 2
+    write_record([Record(acc=ax, dt=0.01, name="rx", component="x")], folder / "rx.csv")
+    write_record([Record(acc=ay, dt=dt_y, name="ry", component="y")], folder / "ry.csv")
+    p = folder / "case.toml"
+    p.write_text(SCENARIO.format(rx="rx.csv", ry="ry.csv"), encoding="utf-8")
+    return p
+
+
+@pytest.fixture(scope="module")
+def run_dir(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("case")
+    scen = write_case(folder)
+    out = folder / "out"
+    assert main(["run", str(scen), "-o", str(out), "--quiet", "--no-report"]) == 0
+    return scen, out
+
+
+def test_run_writes_every_file_with_the_contract_keys(run_dir):
+    _, out = run_dir
+    for name in OUTPUT_FILES:                     # docs/INTERNALS.md: files in DIR
+        assert (out / name).is_file(), name
+    s = json.loads((out / "summary.json").read_text())
+    # DESIGN.md contract keys
+    assert set(s["peaks"]["base_shear"]) >= {"x", "y"}
+    for d in "xyz":
+        assert s["sensors"]["edge"]["peak_absolute_acceleration"][d] >= 0
+        assert s["sensors"]["edge"]["peak_relative_displacement"][d] >= 0
+        assert s["equipment"]["box"]["peak_absolute_acceleration"][d] >= 0
+    a = s["equipment"]["box"]["anchors"]
+    assert len(a) == 4 and all({"peak_tension", "peak_shear", "dc_tension", "dc_shear"} <= set(b) for b in a)
+    assert s["cautions"] == list(CAUTIONS)                      # common practice: cautions carried
+    assert isinstance(s["warnings"], list) and s["modes"]["modes"]
+    for key in ("scenario", "records", "model", "analysis", "stresses", "base", "floor_spectra",
+                "provenance"):
+        assert key in s, key
+    assert s["scenario"]["analysis"]["method"] == "modal"        # defaults echoed
+    assert "not a code capacity check" in s["equipment"]["box"]["fp"]["note"]
+    assert any(str(Path(run_dir[0]).resolve()) in k or k.endswith("case.toml")
+               for k in s["provenance"]["inputs"])
+    # the 3-s y record is shorter than the 6-s x record: zero-padded, and the run says so
+    assert any("zero-padded" in w for w in s["warnings"])
+
+
+def test_csv_headers_carry_si_units(run_dir):
+    _, out = run_dir
+    with open(out / "histories.csv", newline="") as fh:
+        head = next(csv.reader(fh))
+    assert head[0] == "time [s]"                                  # INTERNALS.md: abscissa first
+    assert "base Fx [N]" in head and "box bolt 1 tension [N]" in head
+    with open(out / "element_peaks.csv", newline="") as fh:
+        head = next(csv.reader(fh))
+    assert head[:6] == ["x [m]", "y [m]", "z [m]", "von mises [Pa]", "principal tension [Pa]",
+                        "principal compression [Pa]"]
+    with open(out / "floor_spectra.csv", newline="") as fh:
+        rows = list(csv.reader(fh))
+    assert rows[0][0] == "period [s]" and len(rows) == 1 + 15
+    assert any("broadened" in h for h in rows[0]) and any("envelope" in h for h in rows[0])
+
+
+def test_refuses_existing_folder_and_the_scenario_folder(run_dir, capsys):
+    scen, out = run_dir
+    before = (out / "summary.json").read_bytes()
+    assert main(["run", str(scen), "-o", str(out), "--quiet", "--no-report"]) == 2        # CLI contract: status 2
+    assert "already exists" in capsys.readouterr().err
+    assert (out / "summary.json").read_bytes() == before                   # left as it was
+    assert main(["run", str(scen), "-o", str(scen.parent), "--quiet", "--no-report"]) == 2
+    assert "scenario" in capsys.readouterr().err
+
+
+def test_json_output_and_direct_method(tmp_path, capsys):
+    scen = write_case(tmp_path)
+    assert main(["run", str(scen), "-o", str(tmp_path / "o"), "--method", "direct", "--json",
+                 "--quiet", "--no-report"]) == 0
+    s = json.loads(capsys.readouterr().out)
+    assert s["analysis"]["method"] == "direct"
+    assert any("Newmark" in a for a in s["analysis"]["assumptions"])      # states its scheme
+
+
+def test_components_resampled_to_the_finest_step(tmp_path):
+    from groundshake.dynamics import build_motion
+    from groundshake.scenario import load_scenario
+    scen = load_scenario(write_case(tmp_path, n_y=300, dt_y=0.02))
+    m = build_motion(scen)
+    assert m.dt == pytest.approx(0.01)                    # the finest of 0.01 and 0.02
+    assert m.acc.shape == (3, m.n) and not np.any(m.acc[2])   # z absent: zeros
+    assert any("resampled" in n for n in m.notes)
+    # Fourier resampling keeps a well-sampled 3 Hz sine's peak (Nyquist-Shannon), 2 %
+    assert np.max(np.abs(m.acc[1])) == pytest.approx(np.max(np.abs(m.corrected["y"].acc)), rel=0.02)
