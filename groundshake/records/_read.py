@@ -302,16 +302,18 @@ def _fast_table(data: list[str]) -> np.ndarray | None:
     """All rows converted at once in C; None if anything is irregular (then go slowly)."""
     first = data[0]
     joined = "\n".join(data)
+    delimiter = None
     if ";" in first:
         if "." not in first:
             joined = joined.replace(",", ".")
-        joined = joined.replace(";", " ")
-    else:
-        joined = joined.replace(",", " ")
+        delimiter = ";"
+    elif "," in first:
+        delimiter = ","
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            table = np.loadtxt(io.StringIO(joined), dtype=float, ndmin=2, comments=None)
+            table = np.loadtxt(io.StringIO(joined), dtype=float, ndmin=2, comments=None,
+                               delimiter=delimiter)
     except ValueError:  # irregular rows or a bad cell: the slow path names the line
         return None
     return table if table.shape[0] == len(data) else None
