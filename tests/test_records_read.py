@@ -233,3 +233,31 @@ def test_lazy_top_level_names():
     assert groundshake.read_record is read_record
     assert callable(groundshake.correct_record) and callable(groundshake.intensity_measures)
     assert callable(groundshake.write_record)
+
+
+def test_obspy_ascii_header_units(tmp_path):
+    from obspy import Stream, Trace
+
+    tr = Trace(np.arange(20, dtype=float), header={"sampling_rate": 50.0})
+    tr.stats.ascii = {"unit": "cm/s2"}
+    Stream([tr]).write(str(tmp_path / "a.slist"), format="SLIST")  # ObsPy's own writer
+    (rec,) = read_record(tmp_path / "a.slist")
+    assert rec.units == "cm/s2" and rec.dt == 0.02
+    np.testing.assert_allclose(rec.acc, np.arange(20) * 0.01, rtol=1e-12)  # 1 gal = 0.01 m/s²
+
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None)
+@given(st.lists(st.floats(min_value=-1e6, max_value=1e6, allow_nan=False, allow_infinity=False,
+                          allow_subnormal=False), min_size=16, max_size=60),
+       st.sampled_from([0.001, 0.005, 0.01, 0.02, 1 / 3]))
+def test_csv_round_trip_any_values(tmp_path_factory, values, dt):
+    path = tmp_path_factory.mktemp("rt") / "r.csv"
+    rec = Record(acc=np.array(values), dt=dt)
+    write_record(rec, path)
+    (back,) = read_record(path)
+    # Python's float repr is the shortest string that reads back to the same double
+    np.testing.assert_array_equal(back.acc, rec.acc)
+    assert back.dt == pytest.approx(dt, rel=1e-12)

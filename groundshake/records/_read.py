@@ -144,6 +144,14 @@ def _file_units_and_scale(tr) -> tuple[str | None, float, str]:
             # counts -> volts (full scale over 2^(bits-1)) -> g (sensitivity in V/g)
             return "g", full / 2.0 ** (bits - 1) / sens, "full scale and sensitivity from the EVT header"
         return None, 1.0, ""
+    if fmt in ("SLIST", "TSPAIR"):  # ObsPy's ASCII formats carry a unit in their header
+        unit = str(getattr(tr.stats.get("ascii", {}), "get", lambda k, d=None: d)("unit", "")
+                   or "").strip()
+        if unit:
+            try:
+                return canonical_units(unit), 1.0, f"{fmt} header"
+            except RecordError:
+                pass
     if fmt == "SAC":
         kuser0 = str(getattr(tr.stats.sac, "kuser0", "") or "").strip()
         if kuser0:
