@@ -53,8 +53,10 @@ class MatchResult:
     target_psa, psa_before, psa_after : ndarray, shape (n_damping, n_periods)
         Target, original and final pseudo-spectral acceleration [m/s²].
     iterations : list of dict
-        Per iteration: ``iteration``, ``max_misfit``, ``mean_misfit`` (|PSA/target - 1|
-        over the band), ``relaxation``, ``condition`` (of the scaled response matrix).
+        Per iteration: ``iteration`` (0 = before any change; ``"baseline"`` after the
+        last baseline correction, if any), ``max_misfit``, ``mean_misfit``
+        (|PSA/target - 1| over the band) and ``regularisation`` (the Levenberg-Marquardt
+        factor λ of the step taken).
     converged : bool
         Whether max misfit ≤ ``tolerance``.
     status : str
@@ -235,13 +237,17 @@ def _peaks(acc: np.ndarray, dt: float, omega: np.ndarray, zeta: np.ndarray):
     return omega**2 * np.abs(peak), idx, np.where(peak >= 0, 1.0, -1.0)
 
 
-def _solve(S: np.ndarray, r: np.ndarray, rcond: float) -> tuple[np.ndarray, float]:
-    """Damped least-squares solution of S b = r (SVD; Tikhonov at rcond·σmax)."""
-    U, s, Vt = np.linalg.svd(S)
-    cond = float(s[0] / s[-1]) if s[-1] > 0 else math.inf
-    lam = rcond * s[0]
-    filt = s / (s * s + lam * lam)
-    return Vt.T @ (filt * (U.T @ r)), cond
+def _largest_eigenvalue(A: np.ndarray, iterations: int = 30) -> float:
+    """Largest eigenvalue of a symmetric positive semi-definite matrix (power iteration)."""
+    v = np.ones(A.shape[0]) / np.sqrt(A.shape[0])
+    lam = 0.0
+    for _ in range(iterations):
+        w = A @ v
+        lam = float(np.linalg.norm(w))
+        if lam == 0.0:
+            return 1.0
+        v = w / lam
+    return lam
 
 
 def _baseline_fix(acc: np.ndarray, dt: float) -> np.ndarray:
@@ -291,17 +297,18 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
     max_iterations : int
         Most iterations (each: one response matrix, one solve, one update).
     relaxation : float
-        Fraction (0, 1] of the computed wavelet amplitudes applied at first; it is
-        halved when a step does not reduce the misfit and grows back after a good step.
+        Fraction (0, 1] of the computed wavelet amplitudes applied at each step.
     prescale : bool
         Scale the record first so the mean log ratio to the target is zero (common
         practice before matching).
     pad : bool
         Add zeros before and after so the longest wavelet fits whole.
     rcond : float
-        Tikhonov damping of the solve, relative to the largest singular value; it keeps
-        nearly dependent oscillators (close periods, several damping values at one
-        period) from producing large opposing wavelets.
+        First Levenberg-Marquardt factor λ (relative to the largest singular value of the
+        scaled response matrix): each step solves (SᵀS + λ²σ²I) b = Sᵀr. λ is multiplied
+        by 4 while a step fails to reduce the misfit and divided by 4 after a good one
+        (floor 1e-4); this keeps nearly dependent oscillators (close periods, several
+        damping values at one period) from producing large opposing wavelets.
     criteria : AcceptanceCriteria, optional
         Limits of the acceptance checks (defaults documented there).
 
@@ -376,7 +383,7 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
 
     mx, mn = misfit(R)
     iterations = [{"iteration": 0, "max_misfit": mx, "mean_misfit": mn,
-                   "regularisation": None, "condition": None}]
+                   "regularisation": None}]
     relax = float(relaxation)
     lam = float(rcond)
     responses = None
@@ -389,14 +396,16 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
         C = responses.matrix(idx)
         S = C * (omega**2 / Q)[:, None] * Q[None, :]
         r = sgn * (1.0 - R / Q)
-        U, sv, Vt = np.linalg.svd(S)
-        cond = float(sv[0] / sv[-1]) if sv[-1] > 0 else math.inf
-        Ur = U.T @ r
+        # Levenberg-Marquardt normal equations (SᵀS + λ²σ²I) b = Sᵀr, σ ≈ largest singular
+        # value of S by power iteration (LU solves stay fast where threaded SVD is not).
+        StS = S.T @ S
+        Str = S.T @ r
+        sigma2 = _largest_eigenvalue(StS)
         accepted = False
-        for _ in range(6):  # Levenberg-Marquardt: stiffer steps until one improves
-            lam_abs = lam * sv[0]
-            b = Vt.T @ (sv / (sv * sv + lam_abs * lam_abs) * Ur)
-            trial = acc + relax * add_wavelets(acc.size, dt, omega, zeta, idx, b * Q)
+        for _ in range(6):  # stiffer steps until one improves
+            b = np.linalg.solve(StS + (lam * lam * sigma2) * np.eye(StS.shape[0]), Str)
+            trial = acc + relax * add_wavelets(acc.size, dt, omega, zeta, idx, b * Q,
+                                               ragged=responses.ragged)
             Rt, idx_t, sgn_t = _peaks(trial, dt, omega, zeta)
             mxt, mnt = misfit(Rt)
             if mxt < mx or (mnt < 0.99 * mn and mxt <= 1.05 * mx):
@@ -406,11 +415,11 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
         if not accepted:
             status = "stalled"
             iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
-                               "regularisation": lam, "condition": cond})
+                               "regularisation": lam})
             break
         acc, R, idx, sgn, mx, mn = trial, Rt, idx_t, sgn_t, mxt, mnt
         iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
-                           "regularisation": lam, "condition": cond})
+                           "regularisation": lam})
         lam = max(lam / 4.0, 1e-4)
     converged = mx <= tolerance
     if converged:
@@ -434,7 +443,7 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
         R, _, _ = _peaks(acc, dt, omega, zeta)
         mx, mn = misfit(R)
         iterations.append({"iteration": "baseline", "max_misfit": mx, "mean_misfit": mn,
-                           "regularisation": None, "condition": None})
+                           "regularisation": None})
         steps.append(f"final velocity {vel[-1]:.3g} m/s and displacement {disp[-1]:.3g} m "
                      f"brought to zero by a smooth baseline correction; max misfit now "
                      f"{100 * mx:.2f} %")

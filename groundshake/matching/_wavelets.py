@@ -72,12 +72,13 @@ def wavelet_shapes(omega, damping, dt: float) -> list[np.ndarray]:
 
 
 def add_wavelets(n_t: int, dt: float, omega, damping, anchors: np.ndarray,
-                 amplitudes: np.ndarray) -> np.ndarray:
+                 amplitudes: np.ndarray, *, ragged=None) -> np.ndarray:
     """Σ_j b_j f_j(t) on the record's grid, shape (n_t,) [m/s²].
 
     ``anchors`` (n_osc,) are sample indices t_j/dt; parts outside the record are cut.
+    ``ragged`` may pass the sampled wavelets of :attr:`WaveletResponses.ragged`.
     """
-    values, owner, offset = _ragged(omega, damping, dt)
+    values, owner, offset = _ragged(omega, damping, dt) if ragged is None else ragged
     index = np.asarray(anchors, dtype=np.int64)[owner] + offset
     keep = (index >= 0) & (index < n_t)
     weights = values[keep] * np.asarray(amplitudes, dtype=float)[owner[keep]]
@@ -129,7 +130,7 @@ class WaveletResponses:
         _, shift, gamma = wavelet_parameters(self.omega, self.zeta)
         self.before, after = _window_samples(shift, gamma, self.dt)
         self.length = self.before + after + 1
-        self._ragged = _ragged(self.omega, self.zeta, self.dt)
+        self.ragged = _ragged(self.omega, self.zeta, self.dt)
         order = np.argsort(self.length)
         self.blocks = []
         start = 0
@@ -148,7 +149,7 @@ class WaveletResponses:
         from ..spectra import oscillator_history  # the one shared oscillator kernel
 
         n = self.omega.size
-        values, owner, offset = self._ragged
+        values, owner, offset = self.ragged
         lengths = self.length[block] + 1  # window samples + the trailing zero
         first = np.concatenate([[0], np.cumsum(lengths)])  # leading zero of each
         exc = np.zeros(int(first[-1]) + 1)
