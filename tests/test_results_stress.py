@@ -35,13 +35,15 @@ def test_principal_and_von_mises_match_eigvalsh():
     assert von_mises(s)[1] == pytest.approx(2e6, rel=1e-12)       # uniaxial: σ_vm = σ
 
 
-def test_chunked_modal_peaks_equal_brute_force():
+@pytest.mark.parametrize("engine", ["numba", "numpy"])
+def test_chunked_modal_peaks_equal_brute_force(engine):
     rng = np.random.default_rng(2)
     n_el, r, n_t = 37, 5, 300
     A = rng.normal(size=(6 * n_el, r)) * 1e5
     t = np.arange(n_t) * 0.01
     Z = np.vstack([np.sin((k + 1) * 3.1 * t + k) for k in range(r)])
-    peaks = modal_stress_peaks(A, Z, n_el, max_values=6 * 4 * n_t)   # chunks of 4 elements
+    peaks = modal_stress_peaks(A, Z, n_el, max_values=6 * 4 * n_t,   # chunks of 4 elements
+                               engine=engine)
     sig = (A @ Z).reshape(n_el, 6, n_t).transpose(1, 0, 2)           # brute force with numpy
     ev = np.linalg.eigvalsh(tensors(sig))                            # (n_el, n_t, 3)
     np.testing.assert_allclose(peaks.tension, ev[..., 2].max(axis=1), rtol=1e-9)
@@ -55,14 +57,16 @@ def test_chunked_modal_peaks_equal_brute_force():
     assert gov["von_mises"]["time"] == pytest.approx(0.01 * np.unravel_index(vm.argmax(), vm.shape)[1])
 
 
-def test_time_blocks_fold_like_one_pass():
+@pytest.mark.parametrize("engine", ["numba", "numpy"])
+def test_time_blocks_fold_like_one_pass(engine):
     rng = np.random.default_rng(3)
     sig = rng.normal(size=(6, 10, 90))
+    el_major = np.ascontiguousarray(sig.transpose(1, 0, 2))
     one = StressPeaks.empty(10)
-    one.update(slice(None), sig, np.arange(90))
+    one.update(0, el_major, np.arange(90), engine=engine)
     blocks = StressPeaks.empty(10)
     for s in range(0, 90, 16):                                       # direct-style time blocks
-        blocks.update(slice(None), sig[:, :, s:s + 16], np.arange(s, min(s + 16, 90)))
+        blocks.update(0, el_major[:, :, s:s + 16], np.arange(s, min(s + 16, 90)), engine=engine)
     ev = np.linalg.eigvalsh(tensors(sig))                            # numpy reference
     np.testing.assert_allclose(blocks.tension, ev[..., 2].max(axis=1), rtol=1e-9)
     np.testing.assert_allclose(blocks.von_mises, one.von_mises, rtol=0)

@@ -232,7 +232,7 @@ def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
                 p = -Miota @ g
                 rhs = (1.0 + alpha) * p - alpha * p_prev + M @ (c2 * v + c3 * a) - K @ u
                 if has_c:
-                    rhs -= (1.0 + alpha) * (C @ (c4 * v + c5 * a)) - alpha * (C @ v)
+                    rhs -= C @ ((1.0 + alpha) * (c4 * v + c5 * a) - alpha * v)
                 du = factor.solve(rhs)
                 a_new = c0 * du - c2 * v - c3 * a
                 v = c1 * du + c4 * v + c5 * a

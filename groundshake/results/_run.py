@@ -5,6 +5,7 @@ import dataclasses
 import datetime as _dt
 import hashlib
 import math
+import time as _time
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -131,6 +132,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         if missing_mass:
             residual = residual_vectors(model.M, model.influence, shapes, gam,
                                         model.factor().solve)
+        t0 = _time.perf_counter()
         r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt, residual=residual)
         u, v, a = r.recover(output)
         Z = r.coordinates
@@ -139,11 +141,13 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         for j, d in enumerate(DIRECTIONS):
             row, val, col = pruned_peak(A[j::3], Z)
             node_peak[d] = {"value": val, "node": int(row), "time": float(col * dt)}
+        t1 = _time.perf_counter()
         peaks = None
         if stresses and n_el:
             with Progress("stress peaks", total=n_el) if progress else _NullBar() as bar:
                 peaks = modal_stress_peaks(r.coefficients(S), Z, n_el, progress=bar)
-        info.update(n_modes=int(shapes.shape[1]), missing_mass=residual is not None)
+        info.update(n_modes=int(shapes.shape[1]), missing_mass=residual is not None,
+                    timings={"time_history": t1 - t0, "stress_peaks": _time.perf_counter() - t1})
         return _Response("modal", u, v, a, node_peak, peaks, r.assumptions, info)
     if method != "direct":
         raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
@@ -151,10 +155,10 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     peaks = StressPeaks.empty(n_el) if (stresses and n_el) else None
 
     def on_block(ub, steps):
-        sig = (S @ ub).reshape(n_el, 6, -1).transpose(1, 0, 2)
-        peaks.update(slice(None), sig, steps)
+        peaks.update(0, (S @ ub).reshape(n_el, 6, -1), steps)
 
     C = model.damping_matrix()
+    t0 = _time.perf_counter()
     res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
                           hht_alpha=hht_alpha, substeps=n_sub,
                           on_block=on_block if peaks is not None else None,
@@ -166,7 +170,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         i = int(np.argmax(vals)) if vals.size else -1
         node_peak[d] = {"value": float(vals[i]) if i >= 0 else 0.0, "node": i,
                         "time": float(res.dof_peak_step[j::3][i] * dt) if i >= 0 else 0.0}
-    info.update(substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
+    info.update(timings={"time_history": _time.perf_counter() - t0},
+                substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
                 solver=res.solver, rayleigh_hz=getattr(model, "rayleigh_used_hz", None))
     assumptions = list(res.assumptions)
     if n_sub > 1:
@@ -251,6 +256,14 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     from ..model import build_model
     from ..spectra import response_spectrum
 
+    timings: dict[str, float] = {}
+    clock = [_time.perf_counter()]
+
+    def _tick() -> float:
+        now = _time.perf_counter()
+        dt_, clock[0] = now - clock[0], now
+        return dt_
+
     analysis = _get(scenario, "analysis")
     method = method or _get(analysis, "method", "modal") or "modal"
     if method not in ("modal", "direct"):
@@ -263,15 +276,18 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
             raise InputError(f"{_get(scenario, 'source', 'scenario')}: [motion]: missing; "
                              "allowed x, y, z = { file = ... } (at least one)")
         motion = build_motion(scenario)
+    timings["motion"] = _tick()
     collected.extend(motion.notes)
     if model is None:
         model = build_model(scenario)
+    timings["model"] = _tick()
     if modes is None:
         with Progress("modes", total=None) if progress else _NullBar():
             modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
                                   n_modes=n_modes_req,
                                   excited=tuple(d in motion.components for d in DIRECTIONS),
                                   warn=False)
+    timings["modes"] = _tick()
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
@@ -290,8 +306,11 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     R = model.reaction
     blocks += [sp.csr_matrix(R.K), sp.csr_matrix(R.C), sp.csr_matrix(R.M)]
     output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n))
+    _tick()
     resp = respond(model, modes, motion, output, method=method, cutoff_hz=cutoff,
                    hht_alpha=hht_alpha, stresses=stresses, progress=progress)
+    timings["response"] = _tick()
+    timings.update(resp.info.pop("timings", {}))
     # split rows back
     rows: dict[tuple[str, str], slice] = {}
     k = 0
@@ -479,6 +498,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         else:
             floor = {"periods": periods, "damping": damp}
     floor["points"] = point_names
+    timings["spectra"] = _tick()
     floor_out = {"damping_percent": [float(v) for v in damp * 100],
                  "broadening_percent": frac * 100,
                  "broadening": "envelope of the spectrum shifted ±broadening in period "
@@ -550,6 +570,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                          if k in ("solver", "substeps", "hht_alpha")},
                    "factor": getattr(model, "solver", "auto")},
         "settings": {"cutoff_hz": cutoff, "modes": n_modes_req, "hht_alpha": hht_alpha},
+        "timings_s": timings,
     }
     return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
                       histories=hist, ground_spectra=ground_spectra, floor=floor,

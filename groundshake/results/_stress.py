@@ -8,10 +8,25 @@ largest principal stress (tension positive) and the most negative one
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Literal
 
 import numpy as np
 
 __all__ = ["StressPeaks", "principal_stresses", "von_mises", "modal_stress_peaks"]
+
+
+_JIT = []
+
+
+def _jit():
+    """The compiled fold module, or None where numba is missing."""
+    if not _JIT:
+        try:
+            from . import _stress_jit
+            _JIT.append(_stress_jit)
+        except ImportError:  # pragma: no cover - numba is a dependency
+            _JIT.append(None)
+    return _JIT[0]
 
 
 def _invariants(s: np.ndarray):
@@ -68,14 +83,25 @@ class StressPeaks:
         i = lambda: np.zeros(n_el, dtype=np.int64)    # noqa: E731
         return cls(z(0.0), i(), z(-np.inf), i(), z(np.inf), i())
 
-    def update(self, elements: np.ndarray | slice, sig: np.ndarray, steps: np.ndarray) -> None:
-        """Fold in stresses ``sig`` (6, c, b) of ``elements`` at record ``steps`` (b,).
+    def update(self, start: int, sig: np.ndarray, steps: np.ndarray, *,
+               engine: Literal["auto", "numba", "numpy"] = "auto") -> None:
+        """Fold in stresses ``sig`` (c, 6, b) of elements start..start+c at record ``steps`` (b,).
 
         Principal stresses are evaluated exactly only where the bounds
         p + √(J₂/3) ≤ σ₁ ≤ p + 2√(J₂/3) (and the mirror for σ₃) say they can
-        still beat the block's best, which saves most of the trigonometry.
+        still beat the best so far, which saves most of the trigonometry. The
+        compiled engine (numba) does it in one pass; the numpy engine is the
+        reference.
         """
-        steps = np.asarray(steps)
+        steps = np.ascontiguousarray(steps, dtype=np.int64)
+        c = sig.shape[0]
+        if engine != "numpy" and _jit() is not None:
+            _jit().fold_block(np.ascontiguousarray(sig, dtype=float), steps, int(start),
+                              self.von_mises, self.von_mises_step, self.tension,
+                              self.tension_step, self.compression, self.compression_step)
+            return
+        elements = slice(int(start), int(start) + c)
+        sig = np.asarray(sig, dtype=float).transpose(1, 0, 2)          # (6, c, b)
         p, *_, j2 = _invariants(sig)
         r = np.sqrt(j2 / 3.0)
         vm = 3.0 * r                                        # √(3 J₂)
@@ -123,7 +149,8 @@ class StressPeaks:
 
 
 def modal_stress_peaks(coefficients: np.ndarray, coordinates: np.ndarray, n_el: int, *,
-                       max_values: int = 3_000_000, progress=None) -> StressPeaks:
+                       max_values: int = 600_000, progress=None,
+                       engine: Literal["auto", "numba", "numpy"] = "auto") -> StressPeaks:
     """Per-element stress peaks from stress modes, in chunks of elements.
 
     Parameters
@@ -135,7 +162,10 @@ def modal_stress_peaks(coefficients: np.ndarray, coordinates: np.ndarray, n_el: 
         Generalised coordinate histories.
     n_el : int
     max_values : int
-        Stress values held at once (memory bound, 8 bytes each).
+        Stress values held at once (memory bound, 8 bytes each; the default
+        keeps a chunk in cache).
+    engine : {"auto", "numba", "numpy"}
+        Fold engine (see :meth:`StressPeaks.update`).
     progress : Progress, optional
         Advanced by the number of elements done.
     """
@@ -144,11 +174,13 @@ def modal_stress_peaks(coefficients: np.ndarray, coordinates: np.ndarray, n_el: 
     chunk = max(1, max_values // (6 * max(n_t, 1)))
     steps = np.arange(n_t)
     A = coefficients.reshape(n_el, 6, -1)
+    Zc = np.ascontiguousarray(coordinates, dtype=float)
+    buf = np.empty((6 * chunk, n_t))
     for start in range(0, n_el, chunk):
         stop = min(n_el, start + chunk)
-        sig = A[start:stop].reshape(-1, A.shape[2]) @ coordinates
-        sig = sig.reshape(stop - start, 6, n_t).transpose(1, 0, 2)
-        peaks.update(slice(start, stop), sig, steps)
+        out = buf[:6 * (stop - start)]
+        np.matmul(A[start:stop].reshape(-1, A.shape[2]), Zc, out=out)
+        peaks.update(start, out.reshape(stop - start, 6, n_t), steps, engine=engine)
         if progress is not None:
             progress.advance(stop - start)
     return peaks
