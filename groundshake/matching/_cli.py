@@ -78,7 +78,7 @@ def cmd_match(args: argparse.Namespace) -> int:
         for rec in records:
             results.append(match_spectrum_report(
                 rec, target, damping, periods, band=band, tolerance=args.tolerance / 100.0,
-                max_iterations=args.max_iterations, criteria=criteria))
+                max_iterations=args.max_iterations, criteria=criteria, progress=True))
     messages = [str(w.message) for w in caught if issubclass(w.category, GroundshakeWarning)]
     for m in messages:
         sys.stderr.write(f"groundshake: warning: {m}\n")

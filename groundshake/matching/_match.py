@@ -11,6 +11,7 @@ misfit is within the tolerance. The wavelet is the improved tapered cosine of Al
 """
 from __future__ import annotations
 
+import contextlib
 import math
 import warnings
 from dataclasses import dataclass, field
@@ -19,6 +20,7 @@ from typing import Any, Callable, Sequence, Union
 import numpy as np
 
 from .._errors import GroundshakeWarning, InputError
+from .._progress import Progress
 from ..records._record import Record
 from ._acceptance import AcceptanceCriteria, acceptance_checks
 from ._measures import integrate_motion
@@ -237,6 +239,34 @@ def _peaks(acc: np.ndarray, dt: float, omega: np.ndarray, zeta: np.ndarray):
     return omega**2 * np.abs(peak), idx, np.where(peak >= 0, 1.0, -1.0)
 
 
+def _iterate(acc, R, idx, sgn, mx, mn, lam, responses, dt, omega, zeta, Q, relax, misfit):
+    """One corrective step: response matrix at the current peak times, a
+    Levenberg-Marquardt solve for the wavelet amplitudes, and a trial that must lower the
+    misfit (λ is raised ×4 until one does, at most 6 tries)."""
+    if responses is None:
+        responses = WaveletResponses(dt, omega, zeta)
+    C = responses.matrix(idx)
+    S = C * (omega**2 / Q)[:, None] * Q[None, :]   # rows: relative misfit; columns: b_j/Q_j
+    r = sgn * (1.0 - R / Q)
+    # Normal equations (SᵀS + λ²σ²I) b = Sᵀr, σ ≈ largest singular value of S by power
+    # iteration (LU solves stay fast where threaded SVD is not).
+    StS = S.T @ S
+    Str = S.T @ r
+    sigma2 = _largest_eigenvalue(StS)
+    eye = np.eye(StS.shape[0])
+    for _ in range(6):
+        b = np.linalg.solve(StS + (lam * lam * sigma2) * eye, Str)
+        trial = acc + relax * add_wavelets(acc.size, dt, omega, zeta, idx, b * Q,
+                                           ragged=responses.ragged)
+        Rt, idx_t, sgn_t = _peaks(trial, dt, omega, zeta)
+        mxt, mnt = misfit(Rt)
+        if mxt < mx or (mnt < 0.99 * mn and mxt <= 1.05 * mx):
+            return {"accepted": True, "acc": trial, "R": Rt, "idx": idx_t, "sgn": sgn_t,
+                    "mx": mxt, "mn": mnt, "lam": lam, "responses": responses}
+        lam *= 4.0
+    return {"accepted": False, "lam": lam, "responses": responses}
+
+
 def _largest_eigenvalue(A: np.ndarray, iterations: int = 30) -> float:
     """Largest eigenvalue of a symmetric positive semi-definite matrix (power iteration)."""
     v = np.ones(A.shape[0]) / np.sqrt(A.shape[0])
@@ -272,7 +302,8 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
                           band: tuple[float, float] | None = None, tolerance: float = 0.05,
                           max_iterations: int = 40, relaxation: float = 1.0,
                           prescale: bool = True, pad: bool = True, rcond: float = 1e-2,
-                          criteria: AcceptanceCriteria | None = None) -> MatchResult:
+                          criteria: AcceptanceCriteria | None = None,
+                          progress: bool = False) -> MatchResult:
     """Adjust ``record`` until its spectrum matches ``target``; return the full report.
 
     Parameters
@@ -311,6 +342,8 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
         damping values at one period) from producing large opposing wavelets.
     criteria : AcceptanceCriteria, optional
         Limits of the acceptance checks (defaults documented there).
+    progress : bool
+        Show a progress bar of the iterations on stderr (when it is a terminal).
 
     Returns
     -------
@@ -388,39 +421,27 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
     lam = float(rcond)
     responses = None
     status = "converged" if mx <= tolerance else "not converged"
-    for it in range(1, int(max_iterations) + 1):
-        if mx <= tolerance:
-            break
-        if responses is None:
-            responses = WaveletResponses(dt, omega, zeta)
-        C = responses.matrix(idx)
-        S = C * (omega**2 / Q)[:, None] * Q[None, :]
-        r = sgn * (1.0 - R / Q)
-        # Levenberg-Marquardt normal equations (SᵀS + λ²σ²I) b = Sᵀr, σ ≈ largest singular
-        # value of S by power iteration (LU solves stay fast where threaded SVD is not).
-        StS = S.T @ S
-        Str = S.T @ r
-        sigma2 = _largest_eigenvalue(StS)
-        accepted = False
-        for _ in range(6):  # stiffer steps until one improves
-            b = np.linalg.solve(StS + (lam * lam * sigma2) * np.eye(StS.shape[0]), Str)
-            trial = acc + relax * add_wavelets(acc.size, dt, omega, zeta, idx, b * Q,
-                                               ragged=responses.ragged)
-            Rt, idx_t, sgn_t = _peaks(trial, dt, omega, zeta)
-            mxt, mnt = misfit(Rt)
-            if mxt < mx or (mnt < 0.99 * mn and mxt <= 1.05 * mx):
-                accepted = True
+    bar = Progress("matching", total=int(max_iterations)) if progress else contextlib.nullcontext()
+    with bar:
+        for it in range(1, int(max_iterations) + 1):
+            if mx <= tolerance:
                 break
-            lam *= 4.0
-        if not accepted:
-            status = "stalled"
+            state = _iterate(acc, R, idx, sgn, mx, mn, lam, responses, dt, omega, zeta, Q,
+                             relax, misfit)
+            if responses is None:
+                responses = state["responses"]
+            lam = state["lam"]
+            if not state["accepted"]:
+                status = "stalled"
+                iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
+                                   "regularisation": lam})
+                break
+            acc, R, idx, sgn, mx, mn = (state[k] for k in ("acc", "R", "idx", "sgn", "mx", "mn"))
             iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
                                "regularisation": lam})
-            break
-        acc, R, idx, sgn, mx, mn = trial, Rt, idx_t, sgn_t, mxt, mnt
-        iterations.append({"iteration": it, "max_misfit": mx, "mean_misfit": mn,
-                           "regularisation": lam})
-        lam = max(lam / 4.0, 1e-4)
+            lam = max(lam / 4.0, 1e-4)
+            if progress:
+                bar.advance()
     converged = mx <= tolerance
     if converged:
         status = "converged"
@@ -491,7 +512,7 @@ def match_spectrum(record: Record, target: TargetLike, damping=0.05, periods=Non
     return match_spectrum_report(record, target, damping, periods, **options).record
 
 
-def match_record_to_target(record: Record, spec: str, *, damping: float = 0.05,
+def match_record_to_target(record: Record, spec: str, *, damping: float | None = None,
                            periods=None, band: tuple[float, float] | None = None,
                            base_dir=None, **options) -> tuple[Record, dict]:
     """Scenario hook: match one component to the target named in ``[motion] target``.
@@ -503,8 +524,9 @@ def match_record_to_target(record: Record, spec: str, *, damping: float = 0.05,
     spec : str
         Target spec string (see :func:`groundshake.spectra.parse_target`); a CSV path is
         resolved against ``base_dir`` (the scenario's folder).
-    damping : float
-        Damping ratio of the match (0.05).
+    damping : float, optional
+        Damping ratio of the match; default: the damping the target is for
+        (``TargetSpectrum.damping``), else 0.05.
     periods, band, **options
         As :func:`match_spectrum_report`.
 
@@ -517,6 +539,8 @@ def match_record_to_target(record: Record, spec: str, *, damping: float = 0.05,
     from ..spectra import parse_target
 
     target = parse_target(spec, base_dir=base_dir)
+    if damping is None:
+        damping = float(getattr(target, "damping", None) or 0.05)
     result = match_spectrum_report(record, target, damping, periods, band=band, **options)
     report = result.to_dict()
     report["cautions"] = list(CAUTIONS)
