@@ -54,7 +54,7 @@ def test_example_values_as_written(site):
     # Paths are resolved against the scenario file's folder (DESIGN contract).
     assert s.motion.x.file == (site.parent.parent / "records" / "demo-h1.mseed").resolve()
     assert s.motion.x.file.is_absolute()
-    assert s.motion.x.units == "m/s2" and s.motion.y.units is None
+    assert s.motion.x.units == s.motion.z.units == "m/s2"
 
 
 def test_defaults_are_filled_in(site):
