@@ -117,8 +117,9 @@ def test_response_matrix_matches_scipy_reference():
         acc = add_wavelets(n_t, dt, omega, zeta, anchors, amp)
         for i in range(4):
             ref = scipy_disp(acc, dt, periods[i], zeta[i])[anchors[i]]
-            # scipy cont2discrete foh reference, 1e-8 of the column's largest term.
-            assert C[i, j] == pytest.approx(ref, abs=1e-8 * np.max(np.abs(C[:, j])) + 1e-14)
+            # scipy cont2discrete foh reference, 1e-9 of the column's largest term
+            # (measured 3e-12).
+            assert C[i, j] == pytest.approx(ref, abs=1e-9 * np.max(np.abs(C[:, j])) + 1e-15)
 
 
 # -- matching ---------------------------------------------------------------------------
@@ -131,9 +132,10 @@ def test_record_already_on_target_is_unchanged(knet):
     n_pad = int(round(res.pad_s / knet.dt))
     core = res.record.acc[n_pad:n_pad + knet.n]
     # Unchanged apart from the pads: the only change allowed is the pre-scale, which is
-    # 1 to within the kernel-vs-scipy agreement (1e-6, scipy foh reference).
-    assert res.scale_factor == pytest.approx(1.0, abs=1e-6)
-    np.testing.assert_allclose(core, knet.acc, rtol=0, atol=1e-6 * np.max(np.abs(knet.acc)))
+    # 1 to within the kernel-vs-scipy agreement (1e-9 asked, scipy foh reference;
+    # measured 3e-13).
+    assert res.scale_factor == pytest.approx(1.0, abs=1e-9)
+    np.testing.assert_allclose(core, knet.acc, rtol=0, atol=1e-9 * np.max(np.abs(knet.acc)))
     assert np.all(res.record.acc[:n_pad] == 0) and np.all(res.record.acc[n_pad + knet.n:] == 0)
 
 
@@ -172,12 +174,12 @@ def test_two_damping_values_at_once(knet):
     target = np.vstack([en1998_psa(periods, damping_percent=2), en1998_psa(periods)])
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", GroundshakeWarning)
-        res = match_spectrum_report(knet, target, damping, periods, tolerance=0.08)
+        res = match_spectrum_report(knet, target, damping, periods, tolerance=0.05)
     assert res.psa_after.shape == (2, periods.size)
     assert res.converged, res.iterations[-1]
     for k, z in enumerate(damping):  # scipy foh reference at each damping
         psa = scipy_psa(res.record.acc, res.record.dt, periods, z)
-        assert np.max(np.abs(psa / target[k] - 1)) <= 0.081
+        assert np.max(np.abs(psa / target[k] - 1)) <= 0.051
 
 
 def test_impossible_target_is_reported(knet):
@@ -249,3 +251,25 @@ def test_husid_of_a_sine_is_linear():
     h = husid(np.sin(2 * np.pi * t), dt)
     for k in (1000, 2500, 5000, 7500):
         assert h[k] == pytest.approx(t[k] / 10.0, abs=1e-6)
+
+
+def test_drifting_input_gets_a_recorded_baseline_correction():
+    obspy = pytest.importorskip("obspy")
+    from groundshake.processing import integrate
+    from groundshake.records import read_record
+    path = os.path.join(os.path.dirname(obspy.__file__), "io", "nied", "tests", "data",
+                        "test.knet")
+    rec = read_record(path)[0]
+    rec = rec.replace(acc=rec.acc[:3000] - np.mean(rec.acc[:3000]))  # mean removed only
+    periods = np.geomspace(0.2, 1.5, 8)
+    with pytest.warns(GroundshakeWarning, match="correct the record"):
+        res = match_spectrum_report(rec, asce7_psa(periods), 0.05, periods, tolerance=0.1)
+    # Common practice: a motion must end at rest; the drift is corrected and recorded.
+    assert res.baseline_corrected
+    assert any("baseline correction" in h for h in res.record.history)
+    assert res.iterations[-1]["iteration"] == "baseline"
+    vel, disp = integrate(res.record.acc, res.record.dt)
+    # The correction solves a 2×2 system for zero final velocity and displacement under
+    # exact piecewise-linear integration (closed form): round-off, 1e-9 of the peaks.
+    assert abs(vel[-1]) <= 1e-9 * np.max(np.abs(vel))
+    assert abs(disp[-1]) <= 1e-9 * np.max(np.abs(disp))
