@@ -27,6 +27,8 @@ _LAZY = {
     "response_spectrum": "groundshake.spectra",
     "oscillator_peaks": "groundshake.spectra",
     "oscillator_history": "groundshake.spectra",
+    "match_spectrum": "groundshake.matching",
+    "match_spectrum_report": "groundshake.matching",
     "load_scenario": "groundshake.scenario",
     "Scenario": "groundshake.scenario",
     "ScenarioError": "groundshake._errors",
