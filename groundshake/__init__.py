@@ -30,6 +30,7 @@ _LAZY = {
     "match_spectrum": "groundshake.matching",
     "match_spectrum_report": "groundshake.matching",
     "load_scenario": "groundshake.scenario",
+    "analyse": "groundshake.results",
     "Scenario": "groundshake.scenario",
     "ScenarioError": "groundshake._errors",
     "CAUTIONS": "groundshake._cautions",
