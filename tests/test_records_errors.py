@@ -46,6 +46,7 @@ CASES = {
     "empty": (b"", [], ["empty"]),
     "blank": (b"\n  \n\n", [], ["empty"]),
     "header only": (b"time [s],acc [g]\n# nothing else\n", [], ["only a header"]),
+    "unknown text format": (b'{"acc": [1, 2, 3]}\n', [], ["format neither ObsPy"]),
     "non-numeric": (("time,acc [g]\n" + "\n".join(_rows(20)) + "\n0.2,abc\n").encode(), [],
                     [":22:", "'abc'"]),
     "nan": (("time,acc [g]\n" + "\n".join(_rows(20)) + "\n0.2,nan\n").encode(), [],

@@ -291,7 +291,8 @@ def _parse_table(text: str, where: str):
         if not _meta_line(s, meta):
             header = _merge_brackets(cells)
     if first is None:
-        raise RecordError(f"{where}: no rows of numbers (empty, or only a header)")
+        raise RecordError(f"{where}: no rows of numbers: empty, only a header, or a format "
+                          f"neither ObsPy nor the delimited-text reader knows")
     stripped = [ln.strip() for ln in all_lines[first - 1:]]
     keep = [i for i, s in enumerate(stripped) if s and s[0] not in _COMMENT_CHARS]
     if len(keep) < len(stripped):  # comments among the data rows still carry metadata
