@@ -21,7 +21,8 @@ file is a set of its own applied to that component, whatever its name.
 
 Manifest (CSV with a header row): ``set`` (or ``name``), ``x``, ``y``, ``z``
 (file paths, relative to the manifest; blank where absent), and optionally
-``scale`` (all components), ``scale_x``, ``scale_y``, ``scale_z``, ``units``.
+``scale`` (all components), ``scale_x``, ``scale_y``, ``scale_z``, ``units``, ``dt``
+(time step [s] of one-column text files).
 """
 from __future__ import annotations
 
@@ -62,22 +63,25 @@ class RecordSet:
         Component → scale factor (default 1.0).
     units : str or None
         Units of every file of the set (None: from the file, or the suite's ``--units``).
+    dt : float or None
+        Time step [s] for one-column text files (None: from the file).
     """
 
     name: str
     files: Mapping[str, str]
     scale: Mapping[str, float] = field(default_factory=dict)
     units: str | None = None
+    dt: float | None = None
 
     def to_dict(self) -> dict:
         return {"name": self.name, "files": dict(self.files),
                 "scale": {c: float(self.scale.get(c, 1.0)) for c in self.files},
-                "units": self.units}
+                "units": self.units, "dt": self.dt}
 
     @classmethod
     def from_dict(cls, d: Mapping) -> "RecordSet":
         return cls(name=str(d["name"]), files=dict(d["files"]), scale=dict(d.get("scale", {})),
-                   units=d.get("units"))
+                   units=d.get("units"), dt=d.get("dt"))
 
 
 def _component_of(path: Path) -> tuple[str, str] | None:
@@ -107,7 +111,7 @@ def _candidate_files(spec: str) -> list[Path]:
 
 
 def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", "z"),
-                         units: str | None = None) -> list[RecordSet]:
+                         units: str | None = None, dt: float | None = None) -> list[RecordSet]:
     """Record sets from a folder, a glob pattern or a manifest CSV.
 
     Parameters
@@ -119,6 +123,8 @@ def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", 
         file is a set of its own applied to it.
     units : str, optional
         Units for every file that does not state its own.
+    dt : float, optional
+        Time step [s] for one-column text files.
 
     Raises
     ------
@@ -128,11 +134,11 @@ def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", 
     """
     p = Path(spec)
     if p.is_file() and p.suffix.lower() == ".csv" and _looks_like_manifest(p):
-        return _read_manifest(p, units=units)
+        return _read_manifest(p, units=units, dt=dt)
     files = _candidate_files(spec)
     if len(components) == 1:
         comp = components[0]
-        sets = [RecordSet(name=f.stem, files={comp: str(f)}, units=units) for f in files]
+        sets = [RecordSet(name=f.stem, files={comp: str(f)}, units=units, dt=dt) for f in files]
         _check_unique([s.name for s in sets], spec)
         return sets
     groups: dict[str, dict[str, str]] = {}
@@ -147,7 +153,7 @@ def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", 
         if comp in group:
             raise InputError(f"{f}: set {stem!r} already has a {comp} component ({group[comp]})")
         group[comp] = str(f)
-    return [RecordSet(name=stem, files=dict(sorted(g.items())), units=units)
+    return [RecordSet(name=stem, files=dict(sorted(g.items())), units=units, dt=dt)
             for stem, g in sorted(groups.items())]
 
 
@@ -169,13 +175,24 @@ def _check_unique(names: list[str], where: str) -> None:
         seen.add(n)
 
 
-def _read_manifest(path: Path, *, units: str | None) -> list[RecordSet]:
+def _positive(text: str, what: str, where: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise InputError(f"{where}: {what} {text!r} is not a number") from None
+    if not math.isfinite(value) or value <= 0:
+        raise InputError(f"{where}: {what} {text!r} must be a finite number > 0")
+    return value
+
+
+def _read_manifest(path: Path, *, units: str | None, dt: float | None) -> list[RecordSet]:
     base = path.parent
     sets: list[RecordSet] = []
     with open(path, newline="", encoding="utf-8") as fh:
         reader = csv.DictReader(fh)
         fields = [f.strip().lower() for f in (reader.fieldnames or [])]
-        allowed = {"set", "name", "x", "y", "z", "scale", "scale_x", "scale_y", "scale_z", "units"}
+        allowed = {"set", "name", "x", "y", "z", "scale", "scale_x", "scale_y", "scale_z",
+                   "units", "dt"}
         unknown = [f for f in fields if f not in allowed]
         if unknown:
             raise InputError(f"{path}:1: unknown manifest column(s) {unknown}; allowed "
@@ -198,8 +215,9 @@ def _read_manifest(path: Path, *, units: str | None) -> list[RecordSet]:
                 if not math.isfinite(value) or value == 0:
                     raise InputError(f"{path}:{lineno}: scale {text!r} must be finite and non-zero")
                 scale[c] = value
+            row_dt = _positive(row["dt"], "dt", f"{path}:{lineno}") if row.get("dt") else dt
             sets.append(RecordSet(name=name, files=files, scale=scale,
-                                  units=row.get("units") or units))
+                                  units=row.get("units") or units, dt=row_dt))
     if not sets:
         raise InputError(f"{path}: manifest has no rows")
     _check_unique([s.name for s in sets], str(path))

@@ -70,6 +70,8 @@ def run_tasks(fn: TaskFn, shared: Mapping[str, Any], items: Sequence[Mapping[str
     retries : int
         Dask retries of a task whose worker was lost.
     """
+    # keys starting with "_" are a worker's own caches: never sent
+    shared = {k: v for k, v in shared.items() if not str(k).startswith("_")}
     if scheduler is not None:
         yield from _run_dask(fn, shared, items, scheduler, retries)
         return

@@ -1,0 +1,91 @@
+"""``groundshake suite SCENARIO --records DIR|GLOB|MANIFEST.csv -o DIR``."""
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+from .._cli_common import print_json, table
+from .._errors import InputError
+from .._progress import Progress
+
+__all__ = ["register"]
+
+
+def register(subparsers, parents) -> None:
+    p = subparsers.add_parser(
+        "suite", parents=parents,
+        help="run many record sets through one scenario's model; statistics of every peak",
+        description="Run a suite of records through the model of SCENARIO (its [motion] is "
+                    "replaced by each record set). The model and its modes are built once. "
+                    "Writes DIR/suite.json, DIR/records/NAME.json as each finishes, spectra "
+                    "statistics (CSV, PNG) and DIR/suite.html. Exit status 1 if any record "
+                    "failed. Screening only.")
+    p.add_argument("scenario", metavar="SCENARIO", help="scenario file (TOML)")
+    p.add_argument("--records", required=True, metavar="DIR|GLOB|MANIFEST.csv",
+                   help="a folder, a glob pattern (quote it) or a manifest CSV")
+    p.add_argument("--units", default=None, help="units of records that do not state them "
+                   "(g, m/s2, cm/s2, mm/s2, ft/s2, in/s2)")
+    p.add_argument("--dt", type=float, default=None, metavar="S",
+                   help="time step [s] of one-column text records")
+    grp = p.add_mutually_exclusive_group()
+    grp.add_argument("--workers", type=int, default=None, metavar="N",
+                     help="local worker processes (default: the CPU count)")
+    grp.add_argument("--scheduler", default=None, metavar="ADDRESS",
+                     help="dask.distributed scheduler address, e.g. tcp://10.0.0.5:8786")
+    p.add_argument("--method", choices=("modal", "direct"), default=None,
+                   help="override [analysis] method")
+    p.add_argument("--target", default=None, metavar="SPEC",
+                   help="target spectrum drawn with the ground-spectra band")
+    p.add_argument("--resume", action="store_true",
+                   help="keep finished records in DIR and run only the rest")
+    p.add_argument("--force", action="store_true", help="write into an existing DIR")
+    p.add_argument("-o", "--output", required=True, metavar="DIR", help="output folder")
+    p.set_defaults(func=_suite)
+
+
+def _suite(args) -> int:
+    from ..scenario import load_scenario
+    from ._discover import discover_record_sets
+    from ._output import write_suite_outputs
+    from ._run import run_suite
+
+    out = Path(args.output)
+    scen_path = Path(args.scenario)
+    if out.exists() and not out.is_dir():
+        raise InputError(f"-o {args.output}: exists and is not a folder")
+    if out.exists() and any(out.iterdir()) and not (args.resume or args.force):
+        raise InputError(f"-o {args.output}: already holds results; use --resume to finish "
+                         "them or --force to write over them")
+    if out.resolve() == scen_path.resolve().parent:
+        raise InputError(f"-o {args.output}: the scenario's own folder; give a new folder")
+    if args.workers is not None and args.workers < 1:
+        raise InputError(f"--workers {args.workers}: must be >= 1")
+    scenario = load_scenario(scen_path)
+    comps = tuple(scenario.motion.components()) if scenario.motion is not None else ("x", "y", "z")
+    if args.dt is not None and not args.dt > 0:
+        raise InputError(f"--dt {args.dt}: must be > 0")
+    sets = discover_record_sets(args.records, components=comps, units=args.units, dt=args.dt)
+    quiet = bool(getattr(args, "quiet", False))
+    bar = Progress("records", total=len(sets)) if not quiet else None
+    if bar is not None:
+        bar.enabled = bar.enabled and not quiet
+        bar.__enter__()
+    try:
+        result = run_suite(scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
+                           resume=args.resume, method=args.method,
+                           on_result=(lambda r: bar.advance()) if bar is not None else None)
+    finally:
+        if bar is not None:
+            bar.__exit__(None, None, None)
+    write_suite_outputs(result, scenario, target=args.target)
+    doc_path = out / "suite.json"
+    if getattr(args, "json", False):
+        import json
+        print_json(json.loads(doc_path.read_text(encoding="utf-8")))
+    else:
+        rows = [(r["record"], r["status"], r.get("error", "")) for r in result.records]
+        print(table(rows, ["record set", "status", "error"]))
+        print(f"\n{len(result.records) - result.n_failed} ok, {result.n_failed} failed; "
+              f"wrote {doc_path} and {out / 'suite.html'}")
+        print("For screening only — not a design or a code check.")
+    return 1 if result.n_failed else 0

@@ -1,0 +1,298 @@
+"""A suite: many record sets through one model, built once.
+
+``prepare_suite`` builds the model and its modes once; ``run_record_set`` is the
+task each worker runs for one record set (it rebuilds nothing that does not
+depend on the record); ``run_suite`` drives the engine, writes each finished
+record's result as it completes, and the statistics at the end.
+"""
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Callable, Mapping, Sequence
+
+import numpy as np
+
+from .._atomic import atomic_write_text
+from .._cautions import CAUTIONS
+from .._cli_common import json_dumps
+from .._errors import GroundshakeError, GroundshakeWarning, InputError
+from ._discover import RecordSet
+from ._engine import run_tasks
+from ._plain import from_plain, to_plain
+from ._stats import peak_statistics
+
+__all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks"]
+
+DIRECTIONS = ("x", "y", "z")
+
+
+def prepare_suite(scenario, *, method: str | None = None) -> dict:
+    """Build the model and modes once; return the data every task shares.
+
+    The result holds the scenario as plain data (``scenario.to_dict()``), the
+    assembled model and its modes (numpy and scipy.sparse arrays inside our own
+    data classes), and the method; nothing that depends on a record.
+    """
+    from ..dynamics import compute_modes
+    from ..model import build_model
+
+    model = build_model(scenario)
+    analysis = scenario.analysis
+    cutoff = analysis.cutoff_hz
+    n_req = analysis.modes
+    comps = tuple(scenario.motion.components()) if scenario.motion is not None else DIRECTIONS
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GroundshakeWarning)
+        modes = compute_modes(model, cutoff_hz=None if n_req else cutoff, n_modes=n_req,
+                              excited=tuple(d in comps for d in DIRECTIONS), warn=False)
+    return {"scenario": scenario.to_dict(), "source": str(scenario.source),
+            "base_dir": str(scenario.base_dir), "model": to_plain(model),
+            "modes": to_plain(modes), "method": method}
+
+
+def _objects(shared: dict[str, Any]) -> tuple[Any, Any, Any]:
+    """Scenario, model and modes rebuilt from the shared plain data, once per worker."""
+    cache = shared.get("_objects")
+    if cache is None:
+        from ..scenario import Scenario
+
+        scenario = Scenario.from_dict(shared["scenario"], source=shared["source"],
+                                      base_dir=Path(shared["base_dir"]))
+        cache = (scenario, from_plain(shared["model"]), from_plain(shared["modes"]))
+        shared["_objects"] = cache      # this worker's copy only
+    return cache
+
+
+def scalar_peaks(summary: Mapping[str, Any]) -> dict:
+    """The scalar peaks of a run's summary that a suite summarises.
+
+    ``peaks`` as it is, and from ``sensors``, ``equipment``, ``stresses`` and
+    ``base`` every entry whose key starts with ``peak`` (anchors included).
+    """
+    def keep(tree):
+        if isinstance(tree, Mapping):
+            out = {}
+            for k, v in tree.items():
+                if str(k).startswith("peak") and not str(k).startswith("peak_time"):
+                    out[k] = v
+                elif isinstance(v, (Mapping, list)):
+                    sub = keep(v)
+                    if sub:
+                        out[k] = sub
+            return out
+        if isinstance(tree, list):
+            subs = [keep(v) for v in tree]
+            return subs if any(subs) else []
+        return {}
+
+    out: dict[str, Any] = {"peaks": summary.get("peaks", {})}
+    for section in ("sensors", "equipment", "base"):
+        sub = keep(summary.get(section, {}) or {})
+        if sub:
+            out[section] = sub
+    return out
+
+
+def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
+    """Run one record set through the shared model; return plain data.
+
+    Never raises for a bad record: the result then has ``status = "failed"`` and
+    the one-line ``error``.
+    """
+    from ..results import analyse
+
+    rs = RecordSet.from_dict(item)
+    started = _dt.datetime.now(_dt.timezone.utc)
+    try:
+        scenario, model, modes = _objects(shared)
+        comps = {}
+        for c, f in rs.files.items():
+            comp = {"file": f, "scale": float(rs.scale.get(c, 1.0))}
+            if rs.units:
+                comp["units"] = rs.units
+            if rs.dt:
+                comp["dt"] = float(rs.dt)
+            comps[c] = comp
+        scenario = scenario.with_motion(**comps)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", GroundshakeWarning)
+            res = analyse(scenario, progress=False, method=shared.get("method"),
+                          model=model, modes=modes)
+    except (GroundshakeError, OSError, ValueError) as e:
+        return {"record": rs.name, "status": "failed", "files": dict(rs.files),
+                "error": str(e).strip().splitlines()[0] if str(e).strip() else type(e).__name__}
+    s = res.summary
+    floor = res.floor
+    out = {
+        "record": rs.name, "status": "ok", "files": dict(rs.files),
+        "scale": {c: float(rs.scale.get(c, 1.0)) for c in rs.files},
+        "peaks": scalar_peaks(s),
+        "warnings": list(s.get("warnings", [])),
+        "records": s.get("records", []),
+        "spectra": {
+            "periods": np.asarray(floor["periods"], dtype=float).tolist(),
+            "damping": np.asarray(floor["damping"], dtype=float).tolist(),
+            "points": list(floor.get("points", [])),
+            "ground_psa": np.asarray(res.ground_spectra["psa"], dtype=float).tolist(),
+            "floor_psa": np.asarray(floor.get("psa", np.zeros((0,))), dtype=float).tolist(),
+            "floor_psa_broadened": np.asarray(floor.get("psa_broadened", np.zeros((0,))),
+                                              dtype=float).tolist(),
+        },
+        "elapsed_s": (_dt.datetime.now(_dt.timezone.utc) - started).total_seconds(),
+    }
+    return out
+
+
+@dataclass
+class SuiteResult:
+    """What a suite produced (also written to ``DIR/suite.json``)."""
+
+    records: list[dict]
+    statistics: dict
+    spectra_statistics: dict = field(default_factory=dict)
+    out_dir: Path | None = None
+
+    @property
+    def n_failed(self) -> int:
+        return sum(1 for r in self.records if r.get("status") != "ok")
+
+
+def _safe_name(name: str) -> str:
+    keep = "".join(ch if ch.isalnum() or ch in "-_." else "_" for ch in name)
+    return keep.strip(".") or "record"
+
+
+def _record_file(out_dir: Path, name: str) -> Path:
+    return out_dir / "records" / f"{_safe_name(name)}.json"
+
+
+def _load_done(out_dir: Path, sets: Sequence[RecordSet]) -> dict[str, dict]:
+    """Results already written for these very sets (same files and scales)."""
+    done = {}
+    for rs in sets:
+        p = _record_file(out_dir, rs.name)
+        if not p.is_file():
+            continue
+        try:
+            r = json.loads(p.read_text(encoding="utf-8"))
+        except (OSError, ValueError):
+            continue
+        same = (r.get("status") == "ok" and r.get("files") == dict(rs.files)
+                and r.get("scale") == {c: float(rs.scale.get(c, 1.0)) for c in rs.files})
+        if same:
+            done[rs.name] = r
+    return done
+
+
+def spectra_statistics(results: Sequence[Mapping]) -> dict:
+    """Log-normal statistics of ground and floor spectra over the ok records.
+
+    Returns ``periods``, ``damping``, ``points`` and, for ``ground_psa`` (3, n_d,
+    n_p), ``floor_psa`` and ``floor_psa_broadened`` (n_points, 3, n_d, n_p), a dict
+    of ``median`` (geometric mean), ``p16``, ``p84`` (exp(μ ∓ σ) of ln PSA),
+    ``mean``, ``min`` and ``max`` arrays, each of the quantity's shape [m/s²].
+    """
+    from ..spectra import spectrum_statistics
+
+    ok = [r for r in results if r.get("status") == "ok" and r.get("spectra")]
+    if not ok:
+        return {}
+    first = ok[0]["spectra"]
+    out: dict[str, Any] = {"periods": first["periods"], "damping": first["damping"],
+                           "points": first["points"], "count": len(ok)}
+    for key in ("ground_psa", "floor_psa", "floor_psa_broadened"):
+        arrays = [np.asarray(r["spectra"][key], dtype=float) for r in ok]
+        if not arrays or arrays[0].size == 0 or any(a.shape != arrays[0].shape for a in arrays):
+            continue
+        st = spectrum_statistics(np.stack(arrays), axis=0)
+        out[key] = {k: np.asarray(v) for k, v in st.items()}
+    return out
+
+
+def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
+              workers: int | None = 1, scheduler: Any = None, resume: bool = False,
+              method: str | None = None, shared: Mapping[str, Any] | None = None,
+              on_result: Callable[[dict], None] | None = None) -> SuiteResult:
+    """Run every record set through the scenario's model; write as results complete.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        Gives the model; its ``[motion]`` is replaced by each set's files.
+    sets : sequence of RecordSet
+    out_dir : path
+        Folder for ``suite.json``, ``records/NAME.json`` and the statistics.
+    workers, scheduler
+        See :func:`groundshake.suite.run_tasks`.
+    resume : bool
+        Skip sets whose result in ``out_dir/records`` is ok for the same files.
+    method : {"modal", "direct"}, optional
+        Overrides ``[analysis] method``.
+    shared : mapping, optional
+        Output of :func:`prepare_suite`, when already built.
+    on_result : callable, optional
+        Called with each result as it arrives (progress).
+    """
+    out_dir = Path(out_dir)
+    (out_dir / "records").mkdir(parents=True, exist_ok=True)
+    names = [rs.name for rs in sets]
+    if len(set(names)) != len(names):
+        raise InputError("record sets: names must be unique")
+    done = _load_done(out_dir, sets) if resume else {}
+    todo = [rs for rs in sets if rs.name not in done]
+    results: dict[str, dict] = dict(done)
+    if todo:
+        if shared is None:
+            shared = prepare_suite(scenario, method=method)
+        for r in run_tasks(run_record_set, shared, [rs.to_dict() for rs in todo],
+                           workers=workers, scheduler=scheduler):
+            name = r.get("record") or "record"
+            results[name] = r
+            atomic_write_text(_record_file(out_dir, name), json_dumps(r))
+            if on_result is not None:
+                on_result(r)
+            _write_suite_json(out_dir, scenario, sets, results, complete=False)
+    ordered = [results[n] for n in names if n in results]
+    stats = peak_statistics([r["peaks"] for r in ordered if r.get("status") == "ok"])
+    spec = spectra_statistics(ordered)
+    result = SuiteResult(records=ordered, statistics=stats, spectra_statistics=spec,
+                         out_dir=out_dir)
+    _write_suite_json(out_dir, scenario, sets, results, complete=True, stats=stats,
+                      resumed=sorted(done), method=method, workers=workers,
+                      scheduler=None if scheduler is None else str(scheduler))
+    return result
+
+
+def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
+                      stats: dict | None = None, **extra) -> None:
+    from .. import __version__
+
+    records = []
+    for rs in sets:
+        r = results.get(rs.name)
+        if r is None:
+            records.append({"record": rs.name, "status": "pending", "files": dict(rs.files)})
+            continue
+        entry = {k: v for k, v in r.items() if k not in ("spectra", "elapsed_s")}
+        records.append(entry)
+    n_failed = sum(1 for r in records if r["status"] == "failed")
+    doc = {
+        "title": getattr(scenario, "title", "suite"),
+        "complete": complete,
+        "counts": {"sets": len(sets), "ok": sum(1 for r in records if r["status"] == "ok"),
+                   "failed": n_failed},
+        "records": records,
+        "statistics": stats or {},
+        "statistics_note": "over the records with status ok: sample mean, std, median, "
+                           "16th/84th percentiles, min, max; log-normal median and "
+                           "16th/84th (exp(mu -/+ beta)) where every value is positive",
+        "warnings": sorted({w for r in records for w in r.get("warnings", [])}),
+        "cautions": list(CAUTIONS),
+        "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
+        "provenance": {"version": __version__, **{k: v for k, v in extra.items()}},
+    }
+    atomic_write_text(out_dir / "suite.json", json_dumps(doc))
