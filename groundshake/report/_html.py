@@ -38,8 +38,14 @@ def num(value: Any, digits: int = 4) -> str:
     if f == 0:
         return "0"
     if 1e-3 <= abs(f) < 1e6:
-        return f"{f:.{digits}g}"
+        decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(f)))))
+        text = f"{round(f, decimals):.{decimals}f}"
+        if "." in text:
+            text = text.rstrip("0").rstrip(".")
+        return text
     mant, exp = f"{f:.{digits - 1}e}".split("e")
+    if "." in mant:
+        mant = mant.rstrip("0").rstrip(".")
     return f"{mant}×10<sup>{int(exp)}</sup>"
 
 

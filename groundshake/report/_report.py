@@ -679,17 +679,25 @@ class _Builder:
         out = []
 
         def strips(cols: list[int]):
-            return [(h.label(i), h.column(i), h.unit(i)) for i in cols]
+            """Columns that differ only in a direction or a number share one strip."""
+            groups: dict[tuple[str, str], list[tuple[str, np.ndarray]]] = {}
+            for i in cols:
+                words = label_words(h.header[i])
+                tag = [w for w in words if w in ("x", "y", "z") or w.isdigit()]
+                key = " ".join(w for w in words if w not in tag) or h.label(i)
+                groups.setdefault((key, h.unit(i)), []).append((" ".join(tag), h.column(i)))
+            return [(key, curves, unit) for (key, unit), curves in groups.items()]
 
         def add(cols: list[int], title: str, caption: str, fid: str = "") -> None:
             cols = [c for c in cols if c not in used]
             if not cols:
                 return
             used.update(cols)
-            shown = cols[:_MAX_STRIPS]
-            extra = (f" ({len(cols) - len(shown)} more columns in histories.csv.)"
-                     if len(cols) > len(shown) else "")
-            out.append(self._fig(lambda: F.strip_figure(time, strips(shown), title=title),
+            groups = strips(cols)
+            shown = groups[:_MAX_STRIPS]
+            extra = (f" ({len(groups) - len(shown)} more groups of columns in histories.csv.)"
+                     if len(groups) > len(shown) else "")
+            out.append(self._fig(lambda: F.strip_figure(time, shown, title=title),
                                  caption + extra, fid=fid))
 
         ground = h.find("ground")
