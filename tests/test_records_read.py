@@ -257,7 +257,22 @@ def test_csv_round_trip_any_values(tmp_path_factory, values, dt):
     path = tmp_path_factory.mktemp("rt") / "r.csv"
     rec = Record(acc=np.array(values), dt=dt)
     write_record(rec, path)
-    (back,) = read_record(path)
+    import warnings
+
+    with warnings.catch_warnings():  # huge values warn about units; not the point here
+        warnings.simplefilter("ignore", groundshake.GroundshakeWarning)
+        (back,) = read_record(path)
     # Python's float repr is the shortest string that reads back to the same double
     np.testing.assert_array_equal(back.acc, rec.acc)
     assert back.dt == pytest.approx(dt, rel=1e-12)
+
+
+def test_implausible_peak_warns_about_units(tmp_path):
+    from groundshake import GroundshakeWarning
+
+    p = tmp_path / "counts.csv"
+    p.write_text("\n".join(f"{i * 0.01!r},{3000.0 * (-1) ** i}" for i in range(40)))
+    # the largest recorded ground accelerations are a few g (from memory: about 3-4 g);
+    # 3000 "g" means wrong units or raw counts
+    with pytest.warns(GroundshakeWarning, match="check the units"):
+        read_record(p, units="g")

@@ -15,7 +15,7 @@ from typing import Any
 
 import numpy as np
 
-from .._errors import RecordError
+from .._errors import GroundshakeWarning, RecordError
 from ._record import Record
 from ._units import UNIT_NAMES, UNITS, canonical_units
 
@@ -85,12 +85,29 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         if not (math.isfinite(dt) and dt > 0):
             raise RecordError(f"{where}: dt={dt!r} must be a finite number > 0")
 
+    records = None
     if path.suffix.lower() not in _TEXT_ONLY_SUFFIXES:
         stream = _try_obspy(path)
         if stream is not None:
-            return _records_from_stream(stream, path, user_units, dt)
-    text = _decode_text(raw, where)
-    return _read_text(text, path, user_units, dt, resample)
+            records = _records_from_stream(stream, path, user_units, dt)
+    if records is None:
+        records = _read_text(_decode_text(raw, where), path, user_units, dt, resample)
+    for rec in records:
+        _warn_if_implausible(rec)
+    return records
+
+
+#: Peak ground acceleration above which the units are probably wrong [m/s²] (5 g).
+PLAUSIBLE_PEAK = 5 * 9.80665
+
+
+def _warn_if_implausible(rec: Record) -> None:
+    peak = float(np.max(np.abs(rec.acc - np.mean(rec.acc))))
+    if peak > PLAUSIBLE_PEAK:
+        warnings.warn(f"{rec.source}: {rec.name}: peak {peak:.4g} m/s2 ({peak / 9.80665:.3g} g) "
+                      f"is beyond any recorded ground motion; check the units (read as "
+                      f"{rec.units}) or whether the file holds raw counts",
+                      GroundshakeWarning, stacklevel=3)
 
 
 # -- ObsPy formats -----------------------------------------------------------------
