@@ -6,9 +6,10 @@ and the floor spectra alike. SI units: acc [m/s²], dt [s], omega [rad/s], perio
 damping as a ratio.
 """
 from ._kernel import OscillatorPeaks, kernel_engine, oscillator_history, oscillator_peaks
+from ._rotd import ANGLES, RotD, rotated_peak, rotd
 from ._spectrum import (SAMPLES_PER_PERIOD, Spectrum, default_periods, fourier_upsample,
                         response_spectrum)
 
 __all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_engine",
            "Spectrum", "response_spectrum", "default_periods", "fourier_upsample",
-           "SAMPLES_PER_PERIOD"]
+           "SAMPLES_PER_PERIOD", "RotD", "rotd", "rotated_peak", "ANGLES"]

@@ -12,7 +12,7 @@ import numpy as np
 from numba import njit, prange
 
 __all__ = ["peaks_serial", "peaks_parallel", "history_serial", "history_parallel",
-           "rotd_serial", "rotd_parallel"]
+           "rotd_serial", "rotd_parallel", "rotated_peaks"]
 
 # Oscillators per block: a compile-time constant, so that the whole state of a block
 # sits in one small array at fixed offsets; LLVM then keeps it in registers and
@@ -191,3 +191,187 @@ def history_parallel(acc, src, coef, block, hd, hv, ha):
     nblk = (n_osc + block - 1) // block
     for b in prange(nblk):
         _history_block(acc, src, coef, b * block, min(n_osc, (b + 1) * block), hd, hv, ha)
+
+
+_NBUCKET = 32   # length classes of the rotated-peak search
+_ARC_MARGIN = 0.01   # degrees added to each side of an arc (covers the atan2 error)
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _fast_atan2_deg(y, x):
+    """atan2 in degrees, error below 1e-4 degrees (octant reduction + odd polynomial)."""
+    ax = abs(x); ay = abs(y)
+    if ax == 0.0 and ay == 0.0:
+        return 0.0
+    swap = ay > ax
+    t = ax / ay if swap else ay / ax          # t in [0, 1]
+    # atan(t) on [0, 1]: reduce around tan(π/8) for accuracy
+    k = t > 0.41421356237309503
+    t2 = (t - 1.0) / (t + 1.0) if k else t    # atan(t) = π/4 + atan((t-1)/(t+1))
+    z = t2 * t2
+    p = t2 * (1.0 + z * (-0.3333333333333333 + z * (0.2 + z * (-0.14285714285714285
+              + z * (0.1111111111111111 + z * (-0.09090909090909091 + z * 0.07692307692307693))))))
+    a = p + 0.7853981633974483 if k else p
+    if swap:
+        a = 1.5707963267948966 - a
+    if x < 0.0:
+        a = 3.141592653589793 - a
+    if y < 0.0:
+        a = -a
+    return a * 57.29577951308232
+
+
+@njit(cache=True, nogil=True, fastmath={"contract"})
+def _project_range(a, b, cs, sn, out, k0, k1):
+    for k in range(k0, k1):
+        out[k] = max(out[k], abs(a * cs[k] + b * sn[k]))
+
+
+@njit(cache=True, nogil=True, fastmath={"contract"})
+def _project_arc(a, b, cs, sn, out, lo, hi):
+    """Project (a, b) on the integer angles in [lo, hi] degrees (any real lo ≤ hi)."""
+    na = cs.size
+    if hi - lo >= na - 1:
+        _project_range(a, b, cs, sn, out, 0, na)
+        return
+    k0 = int(np.ceil(lo))
+    k1 = int(np.floor(hi)) + 1
+    if k1 <= k0:
+        return
+    k0 %= na
+    k1 = k0 + (k1 - int(np.ceil(lo)))
+    if k1 <= na:
+        _project_range(a, b, cs, sn, out, k0, k1)
+    else:
+        _project_range(a, b, cs, sn, out, k0, na)
+        _project_range(a, b, cs, sn, out, 0, k1 - na)
+
+
+@njit(cache=True, nogil=True)
+def rotated_peaks(u1, u2, cs, sn, out):
+    """out[k] = max_i |u1[i]·cos k° + u2[i]·sin k°| for k = 0..len(cs)-1 (1° steps), exactly.
+
+    Two exact prunings. (1) For any angle the maximum over samples is a local maximum
+    in time of |projection|, so an interior sample can hold it only at the angles
+    whose direction e satisfies e·(u_i - u_{i-1}) ≥ 0 ≥ e·(u_{i+1} - u_i) (or the
+    reverse): an arc as wide as the curve's turn at that sample. (2) Samples are
+    visited longest first (a counting sort into length classes); one no longer than
+    the smallest running peak L cannot raise any, and the search stops at the first
+    length class entirely below L.
+    """
+    n = u1.size
+    na = cs.size
+    for k in range(na):
+        out[k] = 0.0
+    if n == 0:
+        return
+    r2 = np.empty(n)
+    rmax2 = 0.0
+    for i in range(n):
+        r2[i] = u1[i] * u1[i] + u2[i] * u2[i]
+        if r2[i] > rmax2:
+            rmax2 = r2[i]
+    if rmax2 == 0.0:
+        return
+    count = np.zeros(_NBUCKET + 1, np.int64)
+    cls = np.empty(n, np.int64)
+    for i in range(n):
+        c = int((1.0 - r2[i] / rmax2) * _NBUCKET)
+        c = min(max(c, 0), _NBUCKET - 1)
+        cls[i] = c
+        count[c + 1] += 1
+    for c in range(_NBUCKET):
+        count[c + 1] += count[c]
+    order = np.empty(n, np.int64)
+    fill = count[:_NBUCKET].copy()
+    for i in range(n):
+        order[fill[cls[i]]] = i
+        fill[cls[i]] += 1
+    for c in range(_NBUCKET):
+        low = out[0]
+        for k in range(1, na):
+            if out[k] < low:
+                low = out[k]
+        low2 = low * low
+        if rmax2 * (1.0 - c / _NBUCKET) <= low2:
+            break
+        for m in range(count[c], count[c + 1]):
+            i = order[m]
+            if r2[i] <= low2:
+                continue
+            a = u1[i]; b = u2[i]
+            if i == 0 or i == n - 1:
+                _project_range(a, b, cs, sn, out, 0, na)
+                continue
+            d1x = a - u1[i - 1]; d1y = b - u2[i - 1]
+            d2x = u1[i + 1] - a; d2y = u2[i + 1] - b
+            if (d1x == 0.0 and d1y == 0.0) or (d2x == 0.0 and d2y == 0.0):
+                _project_range(a, b, cs, sn, out, 0, na)
+                continue
+            al1 = _fast_atan2_deg(d1y, d1x)
+            beta = _fast_atan2_deg(d2y, d2x) - al1
+            if beta > 180.0:
+                beta -= 360.0
+            elif beta <= -180.0:
+                beta += 360.0
+            if beta >= 0.0:
+                lo = al1 - 90.0
+                hi = lo + beta
+            else:
+                hi = al1 + 90.0
+                lo = hi + beta
+            _project_arc(a, b, cs, sn, out, lo - _ARC_MARGIN + 360.0, hi + _ARC_MARGIN + 360.0)
+
+
+@njit(cache=True, nogil=True, fastmath={"contract"})
+def _history_tm(row, S, H):
+    """Displacement histories of NB oscillators, time-major H (n_t, NB), packed S."""
+    for j in range(NB):
+        H[0, j] = 0.0
+        S[_RX * NB + j] = 0.0
+        S[_RV * NB + j] = 0.0
+    for i in range(row.size - 1):
+        f0 = row[i]
+        f1 = row[i + 1]
+        for j in range(NB):
+            xo = S[_RX * NB + j]
+            vo = S[_RV * NB + j]
+            xn = S[j] * xo + S[NB + j] * vo + S[4 * NB + j] * f0 + S[5 * NB + j] * f1
+            S[_RV * NB + j] = S[2 * NB + j] * xo + S[3 * NB + j] * vo + S[6 * NB + j] * f0 \
+                + S[7 * NB + j] * f1
+            S[_RX * NB + j] = xn
+            H[i + 1, j] = xn
+
+
+@njit(cache=True, nogil=True)
+def _rotd_block(acc1, acc2, coef, k0, k1, cs, sn, out):
+    n = acc1.size
+    S = np.zeros(_NROW * NB)
+    for r in range(8):
+        for j in range(k1 - k0):
+            S[r * NB + j] = coef[r, k0 + j]
+    H1 = np.empty((n, NB))
+    H2 = np.empty((n, NB))
+    _history_tm(acc1, S, H1)
+    _history_tm(acc2, S, H2)
+    u1 = np.empty(n)
+    u2 = np.empty(n)
+    for j in range(k1 - k0):
+        for i in range(n):
+            u1[i] = H1[i, j]
+            u2[i] = H2[i, j]
+        rotated_peaks(u1, u2, cs, sn, out[k0 + j])
+
+
+@njit(cache=True, nogil=True)
+def rotd_serial(acc1, acc2, coef, cs, sn, out):
+    n_osc = coef.shape[1]
+    for b in range((n_osc + NB - 1) // NB):
+        _rotd_block(acc1, acc2, coef, b * NB, min(n_osc, (b + 1) * NB), cs, sn, out)
+
+
+@njit(cache=True, nogil=True, parallel=True)
+def rotd_parallel(acc1, acc2, coef, cs, sn, out):
+    n_osc = coef.shape[1]
+    for b in prange((n_osc + NB - 1) // NB):
+        _rotd_block(acc1, acc2, coef, b * NB, min(n_osc, (b + 1) * NB), cs, sn, out)

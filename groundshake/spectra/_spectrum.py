@@ -13,7 +13,7 @@ from .._errors import GroundshakeWarning, InputError
 from ._kernel import Engine, oscillator_peaks
 
 __all__ = ["Spectrum", "response_spectrum", "default_periods", "fourier_upsample",
-           "check_periods", "check_damping", "SAMPLES_PER_PERIOD"]
+           "check_periods", "check_damping", "interpolation_groups", "SAMPLES_PER_PERIOD"]
 
 #: Fewest samples per oscillator period before the record is Fourier-interpolated
 #: (Phillips, Kottke, Hashash & Rathje 2012).
@@ -150,6 +150,23 @@ def fourier_upsample(acc: np.ndarray, factor: int) -> np.ndarray:
     return y + trend0 + slope * sf
 
 
+def interpolation_groups(flat: np.ndarray, dt: float, periods: np.ndarray,
+                         interpolate: bool):
+    """Split periods into those the record resolves and those needing interpolation.
+
+    Yields ``(selection (n_periods,) bool, records (n_rec, n), step)``: the periods
+    at or above 10·dt with the records as given, and, if any are shorter (and
+    ``interpolate``), those with the records Fourier-interpolated by the integer
+    factor that gives them ten samples per period (Phillips et al. 2012).
+    """
+    short = periods < SAMPLES_PER_PERIOD * dt if interpolate else np.zeros(periods.size, bool)
+    if (~short).any():
+        yield ~short, flat, dt
+    if short.any():
+        m = int(math.ceil(SAMPLES_PER_PERIOD * dt / periods[short].min() - 1e-9))
+        yield short, fourier_upsample(flat, m), dt / m
+
+
 def response_spectrum(acc: np.ndarray, dt: float, periods=None, damping=0.05, *,
                       interpolate: bool = True, engine: Engine = "auto",
                       name: str = "") -> Spectrum:
@@ -225,14 +242,9 @@ def response_spectrum(acc: np.ndarray, dt: float, periods=None, damping=0.05, *,
                       "after the record ends", GroundshakeWarning, stacklevel=2)
     n_d, n_p = z.size, p.size
     out = {k: np.zeros((n_rec, n_d, n_p)) for k in ("sd", "sv", "sa", "sd_time", "sa_time")}
-    short = p < SAMPLES_PER_PERIOD * dt if interpolate else np.zeros(n_p, bool)
-    groups = [(~short, flat, dt)]
-    if short.any():
-        m = int(math.ceil(SAMPLES_PER_PERIOD * dt / p[short].min() - 1e-9))
-        groups.append((short, fourier_upsample(flat, m), dt / m))
-    for sel, rec, step in groups:
-        if not sel.any():
-            continue
+    short = None
+    for sel, rec, step in interpolation_groups(flat, dt, p, interpolate):
+        short = sel if step < dt else short
         ps = p[sel]
         # oscillators ordered record-major so that each kernel block shares one record
         omega = np.broadcast_to(2 * np.pi / ps, (n_rec, n_d, ps.size)).ravel()
@@ -255,4 +267,4 @@ def response_spectrum(acc: np.ndarray, dt: float, periods=None, damping=0.05, *,
     return Spectrum(periods=p, damping=z, sd=res["sd"], sv=res["sv"], sa=res["sa"],
                     psv=res["sd"] * omega, psa=res["sd"] * omega ** 2, pga=pga,
                     sd_time=res["sd_time"], sa_time=res["sa_time"],
-                    interpolated=bool(short.any()), name=name)
+                    interpolated=short is not None, name=name)
