@@ -167,7 +167,7 @@ def correct_record(record: Record, settings: ProcessingSettings | None = None) -
         changes = {}
         if s.highpass_hz is not None:
             if 1.0 / s.highpass_hz > record.duration:
-                warnings.warn(f"{record.name}: high-pass corner {s.highpass_hz:g} Hz is below "
+                warnings.warn(f"{record.source or record.name}: high-pass corner {s.highpass_hz:g} Hz is below "
                               f"1/duration = {1 / max(record.duration, dt):.3g} Hz; the filter "
                               f"has little record to act on", GroundshakeWarning, stacklevel=2)
             if s.pad:

@@ -7,14 +7,16 @@ Other stages' commands can reuse :func:`add_reading_options`,
 from __future__ import annotations
 
 import argparse
+import contextlib
 import os
+import warnings
 from pathlib import Path
 
 import numpy as np
 
 from .._cautions import SCREENING_NOTE
 from .._cli_common import print_json, table
-from .._errors import InputError
+from .._errors import GroundshakeWarning, InputError
 from ._record import STANDARD_GRAVITY, Record
 from ._units import UNIT_NAMES
 
@@ -130,7 +132,33 @@ _INFO_ROWS = (
 )
 
 
+@contextlib.contextmanager
+def _collect_warnings():
+    """Collect GroundshakeWarnings (for the JSON) and show each once on stderr afterwards."""
+    found: list[str] = []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", GroundshakeWarning)
+        try:
+            yield found
+        finally:
+            pass
+    for w in caught:
+        if issubclass(w.category, GroundshakeWarning):
+            found.append(str(w.message))
+        warnings.showwarning(w.message, w.category, w.filename, w.lineno)
+
+
 def cmd_info(args: argparse.Namespace) -> int:
+    with _collect_warnings() as found:
+        doc = _info(args)
+    if getattr(args, "json", False):
+        print_json({**doc, "warnings": found, "note": SCREENING_NOTE})
+    else:
+        _print_info(doc)
+    return 0
+
+
+def _info(args: argparse.Namespace) -> dict:
     from ..processing import SCALAR_MEASURES, intensity_measures
 
     settings = settings_from_args(args)
@@ -145,19 +173,20 @@ def cmd_info(args: argparse.Namespace) -> int:
         entry["pga_g"] = m["pga"] / STANDARD_GRAVITY
         entry["history"] = list(rec.history)
         out.append(entry)
-    if getattr(args, "json", False):
-        print_json({"processing": {**settings.to_dict(), "description": settings.describe()},
-                    "records": out})
-        return 0
+    return {"processing": {**settings.to_dict(), "description": settings.describe()},
+            "records": out}
+
+
+def _print_info(doc: dict) -> None:
+    out = doc["records"]
     header = ["measure", "unit", *[e["name"] for e in out]]
     rows = [["component", "", *[e["component"] or "-" for e in out]],
             ["units read", "", *[e["units_read"] for e in out]],
             ["samples x dt [s]", "", *[f"{e['n_read']} x {e['dt']:g}" for e in out]]]
     rows += [[label, unit, *[e[key] for e in out]] for label, key, unit in _INFO_ROWS]
     print(table(rows, header))
-    print(f"processing: {settings.describe()}")
+    print(f"processing: {doc['processing']['description']}")
     print("times from the first sample as read; " + SCREENING_NOTE)
-    return 0
 
 
 # -- correct --------------------------------------------------------------------------
@@ -187,15 +216,17 @@ def cmd_correct(args: argparse.Namespace) -> int:
         if _same_file(src, plot) or plot.resolve() in (src.resolve(), dst.resolve()):
             raise InputError(f"--plot {plot}: would overwrite the input or the output")
     settings = settings_from_args(args)
-    raws = read_records_from_args([src], args)
-    corrected = _correct_all(raws, settings)
     from ._write import write_record
 
-    write_record(corrected, dst)
-    if args.plot is not None:
-        _plot_correction(raws, corrected, Path(args.plot), integrate)
+    with _collect_warnings() as found:
+        raws = read_records_from_args([src], args)
+        corrected = _correct_all(raws, settings)
+        write_record(corrected, dst)
+        if args.plot is not None:
+            _plot_correction(raws, corrected, Path(args.plot), integrate)
     if getattr(args, "json", False):
-        print_json({"output": str(dst), "plot": args.plot,
+        print_json({"output": str(dst), "plot": args.plot, "warnings": found,
+                    "note": SCREENING_NOTE,
                     "processing": {**settings.to_dict(), "description": settings.describe()},
                     "records": [{"name": c.name, "component": c.component, "dt": c.dt,
                                  "n_read": r.n, "n": c.n,
