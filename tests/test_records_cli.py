@@ -145,3 +145,17 @@ def test_generator_command(tmp_path, capsys):
     # invented records say so: the folder's README states it (checked on the shipped one)
     text = (REPO / "records" / "README.md").read_text().lower()
     assert "synthetic" in text and "invented" in text
+
+
+def test_info_json_carries_warnings_and_note(tmp_path, capsys):
+    p = tmp_path / "short.txt"
+    p.write_text("# units: g\n# dt: 0.01\n" +
+                 "\n".join(repr(float(v)) for v in 0.01 * np.sin(np.arange(100) / 3.0)))
+    assert main(["info", str(p), "--json"]) == 0
+    captured = capsys.readouterr()
+    doc = json.loads(captured.out)
+    # a 1-s record cannot carry a 10-s (0.1 Hz) filter period (common practice:
+    # the low-cut period must be well inside the record) -> an automatic warning
+    assert any("high-pass corner" in w for w in doc["warnings"])
+    assert "warning" in captured.err
+    assert "screening" in doc["note"].lower()
