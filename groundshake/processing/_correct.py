@@ -116,6 +116,18 @@ def correct_record(record: Record, settings: ProcessingSettings | None = None) -
     ------
     InputError
         A corner at or above the Nyquist frequency, or a pre-event part too short.
+
+    Warns
+    -----
+    GroundshakeWarning
+        A low-cut period (1/highpass_hz) longer than the record.
+
+    Examples
+    --------
+    >>> rec = read_record("records/demo-h1.csv")[0]                            # doctest: +SKIP
+    >>> out = correct_record(rec, ProcessingSettings(highpass_hz=0.15))        # doctest: +SKIP
+    >>> out.n > rec.n, out.history[-1]                                         # doctest: +SKIP
+    (True, 'acausal Butterworth high-pass 0.15 Hz, order 4 each way (scipy sosfiltfilt)')
     """
     s = DEFAULT_PROCESSING if settings is None else settings
     if not s.enabled:

@@ -66,6 +66,17 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         value; fewer than 16 samples; time that repeats, runs backwards or is
         uneven; missing, unknown or conflicting units. The message names the
         file and, for text, the line.
+
+    Warns
+    -----
+    GroundshakeWarning
+        A peak beyond 5 g (wrong units or raw counts, most likely).
+
+    Examples
+    --------
+    >>> recs = read_record("records/demo-h1.mseed", units="m/s2")   # doctest: +SKIP
+    >>> recs[0].dt, recs[0].acc.shape                                # doctest: +SKIP
+    (0.005, (8001,))
     """
     path = Path(path)
     where = str(path)
