@@ -57,7 +57,7 @@ def test_match_writes_record_json_and_plot(knet_path, tmp_path, capsys):
 
 
 def test_match_text_output_names_status(knet_path, capsys):
-    rc = main(["match", knet_path, "--target", "asce7:sds=1.0,sd1=0.6", "--periods", PERIODS,
+    rc = main(["match", knet_path, "--target", "asce7:sds=1.0,sd1=0.6,tl=8", "--periods", PERIODS,
                "--quiet"])
     out = capsys.readouterr().out
     assert rc == 0
@@ -67,7 +67,7 @@ def test_match_text_output_names_status(knet_path, capsys):
 def test_unreachable_match_exits_1(knet_path, capsys):
     # One iteration cannot bring a record scaled once to a 5 % match of this target
     # (the first iteration's misfit is tens of percent; see the text output above).
-    rc = main(["match", knet_path, "--target", "asce7:sds=1.0,sd1=0.6", "--periods", PERIODS,
+    rc = main(["match", knet_path, "--target", "asce7:sds=1.0,sd1=0.6,tl=8", "--periods", PERIODS,
                "--max-iterations", "0", "--quiet"])
     err = capsys.readouterr().err
     assert rc == 1  # CLI contract: 1 when a result failed
@@ -82,7 +82,21 @@ def test_unreachable_match_exits_1(knet_path, capsys):
 ])
 def test_bad_options_exit_2_with_one_line(knet_path, tmp_path, capsys, argv, word):
     argv = [a if a != "out.xyz" else str(tmp_path / a) for a in argv]
-    rc = main(["match", knet_path, "--target", "asce7:sds=1.0,sd1=0.6", *argv])
+    rc = main(["match", knet_path, "--target", "asce7:sds=1.0,sd1=0.6,tl=8", *argv])
     err = capsys.readouterr().err
     assert rc == 2  # CLI contract: bad input
     assert word in err and len(err.strip().splitlines()) == 1 and "Traceback" not in err
+
+
+def test_scenario_hook_matches_with_the_targets_damping(knet_path):
+    from groundshake.matching import match_record_to_target
+    from groundshake.processing import correct_record
+    from groundshake.records import read_record
+    rec = correct_record(read_record(knet_path)[0])
+    periods = np.array([float(p) for p in PERIODS.split(",")])
+    out, report = match_record_to_target(rec, "asce7:sds=1.0,sd1=0.6,tl=8", periods=periods)
+    assert report["converged"] and report["damping"][0] == pytest.approx(0.05)  # ASCE 7: 5 %
+    assert report["cautions"]  # the screening cautions travel with the report
+    psa = scipy_psa(out.acc, out.dt, periods, 0.05)
+    # scipy foh reference vs the ASCE 7-16 §11.4.6 shape, within the 5 % tolerance.
+    assert np.max(np.abs(psa / asce7_psa(periods) - 1)) <= 0.051

@@ -53,6 +53,10 @@ def cmd_match(args: argparse.Namespace) -> int:
     periods = None
     if args.periods is not None:
         periods = float_list(args.periods, name="--periods", positive=True)
+    if not (args.tolerance > 0):
+        raise InputError(f"--tolerance {args.tolerance:g}: allowed a percent > 0")
+    if args.max_iterations < 0:
+        raise InputError(f"--max-iterations {args.max_iterations}: allowed an integer >= 0")
     specs = args.target
     if len(specs) not in (1, len(damping)):
         raise InputError(f"--target given {len(specs)} times for {len(damping)} damping values; "
@@ -63,10 +67,6 @@ def cmd_match(args: argparse.Namespace) -> int:
     if target is None:
         raise InputError(f"--target: one target for {len(damping)} damping values; give "
                          "--target once per damping value")
-    if not (args.tolerance > 0):
-        raise InputError(f"--tolerance {args.tolerance:g}: allowed a percent > 0")
-    if args.max_iterations < 0:
-        raise InputError(f"--max-iterations {args.max_iterations}: allowed an integer >= 0")
     criteria = AcceptanceCriteria(max_shortfall=args.max_shortfall / 100.0,
                                   max_excess=args.max_excess / 100.0)
 
