@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import contextlib
 import math
+import numbers
 import warnings
 from dataclasses import dataclass, field
 from typing import Any, Callable, Sequence, Union
@@ -200,8 +201,8 @@ def _one_target(t, periods: np.ndarray, ratio: float, warn: list) -> tuple[np.nd
 def _target_matrix(target: TargetLike, periods: np.ndarray, damping: np.ndarray,
                    warn: list) -> tuple[np.ndarray, str]:
     n_d, n_p = damping.size, periods.size
-    if isinstance(target, np.ndarray) or (isinstance(target, (list, tuple))
-                                          and target and np.isscalar(target[0])):
+    if isinstance(target, np.ndarray) or (isinstance(target, (list, tuple)) and target
+                                          and isinstance(target[0], (numbers.Real, list, tuple))):
         values = np.asarray(target, dtype=float)
         if values.shape == (n_p,) and n_d == 1:
             values = values[None, :]
