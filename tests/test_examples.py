@@ -101,11 +101,11 @@ def test_rigid_block_on_fixed_base_moves_with_the_ground(tmp_root):
     # the example's own numbers: a 3 x 3 x 1 m block at 2400 kg/m3 and a 2500 kg cabinet
     mass = 3.0 * 3.0 * 1.0 * 2400.0 + 2500.0
     # Chopra ch. 6: a rigid system's base shear is m·a_g (block modes start above 200 Hz,
-    # the record's energy is below 25 Hz: dynamic amplification well under 5 %)
-    assert s["peaks"]["base_shear"]["x"] == pytest.approx(mass * pga, rel=0.05)
+    # the record's energy is below about 25 Hz: (f/fn)² < 1 %, so 1 % tolerance)
+    assert s["peaks"]["base_shear"]["x"] == pytest.approx(mass * pga, rel=0.01)
     # rigid equipment on the rigid block feels the ground acceleration
     cab = s["equipment"]["cabinet"]["peak_absolute_acceleration"]["x"]
-    assert cab == pytest.approx(pga, rel=0.05)
+    assert cab == pytest.approx(pga, rel=0.01)
 
 
 def test_broadened_floor_spectra_envelope_the_raw_ones(tmp_root):

@@ -91,23 +91,27 @@ def strip_figure(time: np.ndarray, strips: Sequence[tuple[str, Sequence[tuple[st
     n = max(1, len(strips))
     fig = _figure(9.0, 0.8 + 0.95 * n)
     axes = fig.subplots(n, 1, sharex=True, squeeze=False)[:, 0]
-    _margins(fig, top=0.4 if title else 0.15, hspace=0.12)
+    _margins(fig, left=1.0, top=0.4 if title else 0.15, hspace=0.12)
     t_all = np.asarray(time, float)
     for k, (ax, (label, curves, unit)) in enumerate(zip(axes, strips)):
         best = None
+        # a tension's peak is its largest positive value (compression is not tension)
+        signed = "tension" in str(label).lower()
         for c, (name, y) in enumerate(curves):
             t, v = _finite(t_all, np.asarray(y, float))
             colour = PALETTE[1 + (c if len(curves) > 1 else k) % (len(PALETTE) - 1)]
             ax.plot(t, v, color=colour, linewidth=0.7,
                     label=mpl_text(name) if len(curves) > 1 and name else None)
             if v.size:
-                i = int(np.argmax(np.abs(v)))
-                if best is None or abs(v[i]) > abs(best[1]):
-                    best = (t[i], v[i], name)
+                i = int(np.argmax(v if signed else np.abs(v)))
+                score = v[i] if signed else abs(v[i])
+                if best is None or score > best[3]:
+                    best = (t[i], v[i], name, score)
         if best is not None:
             ax.plot([best[0]], [best[1]], "o", color=PALETTE[0], markersize=3)
             which = f" ({mpl_text(best[2])})" if len(curves) > 1 and best[2] else ""
-            ax.text(0.995, 0.92, f"peak {abs(best[1]):.4g} {mpl_text(unit)}{which} at "
+            word = "largest" if signed else "peak"
+            ax.text(0.995, 0.92, f"{word} {best[3]:.4g} {mpl_text(unit)}{which} at "
                     f"{best[0]:.3g} s", transform=ax.transAxes, ha="right", va="top",
                     fontsize=7.5, color=PALETTE[0])
         ax.text(0.005, 0.92, mpl_text(label), transform=ax.transAxes, ha="left", va="top",
@@ -118,10 +122,39 @@ def strip_figure(time: np.ndarray, strips: Sequence[tuple[str, Sequence[tuple[st
         if len(curves) > 1:
             ax.legend(fontsize=6.5, frameon=False, loc="lower right", ncol=min(len(curves), 8),
                       handlelength=1.2, columnspacing=0.8)
+    span = _active_span(t_all, [y for _, curves, _ in strips for _, y in curves])
+    if span is not None:
+        axes[-1].set_xlim(*span)
     axes[-1].set_xlabel("time [s]", fontsize=8)
     if title:
         fig.suptitle(mpl_text(title), fontsize=10, color=PALETTE[0])
     return fig
+
+
+def _active_span(time: np.ndarray, series: Sequence[np.ndarray], *, level: float = 0.01
+                 ) -> tuple[float, float] | None:
+    """The time span where any series exceeds ``level`` of its own peak change from its
+    first value, widened by 5 % of the record; None when that is most of the record."""
+    t = np.asarray(time, float)
+    if t.size < 10 or not np.all(np.isfinite(t[[0, -1]])):
+        return None
+    active = np.zeros(t.size, bool)
+    for y in series:
+        y = np.asarray(y, float)
+        if y.shape != t.shape:
+            continue
+        d = np.abs(np.nan_to_num(y - (y[0] if np.isfinite(y[0]) else 0.0)))
+        top = d.max() if d.size else 0.0
+        if top > 0:
+            active |= d > level * top
+    if not active.any():
+        return None
+    i, j = np.flatnonzero(active)[[0, -1]]
+    pad = 0.05 * (t[-1] - t[0])
+    lo, hi = max(t[0], t[i] - pad), min(t[-1], t[j] + pad)
+    if hi - lo > 0.8 * (t[-1] - t[0]):
+        return None
+    return float(lo), float(hi)
 
 
 def record_figure(rows: Sequence[tuple[str, str, tuple[np.ndarray, np.ndarray] | None,
@@ -477,8 +510,8 @@ def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von
     norm = Normalize(vmin=0.0, vmax=top if top > 0 else 1.0)
     cells = grid.cell_values(v)
     colours = STRESS_MAP(norm(np.nan_to_num(cells)))
-    fig = _figure(9.0, 4.6)
-    fig.subplots_adjust(left=0.0, right=0.9, top=0.95, bottom=0.02, wspace=0.02)
+    fig = _figure(10.0, 4.6)
+    fig.subplots_adjust(left=0.0, right=0.85, top=0.95, bottom=0.02, wspace=0.15)
     lo = np.array([grid.xs[0], grid.ys[0], grid.zs[0]])
     hi = np.array([grid.xs[-1], grid.ys[-1], grid.zs[-1]])
     axes = []
@@ -491,7 +524,7 @@ def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von
         ax.set_title(name, fontsize=8.5, color=PALETTE[0])
         axes.append(ax)
     sm = ScalarMappable(norm=norm, cmap=STRESS_MAP)
-    cax = fig.add_axes([0.91, 0.15, 0.018, 0.7])
+    cax = fig.add_axes([0.925, 0.15, 0.014, 0.7])
     cb = fig.colorbar(sm, cax=cax)
     cb.set_label(f"{mpl_text(label)} [MPa]", fontsize=8)
     cb.ax.tick_params(labelsize=7)

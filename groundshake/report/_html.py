@@ -50,8 +50,12 @@ def num(value: Any, digits: int = 4) -> str:
 
 
 _UNIT_RULES = (
-    (re.compile(r"ratio|_dc|dc_|percent|factor|count|index|^n_|number"), ""),
-    (re.compile(r"time|period|duration|d5_|^t$|_s$"), "s"),
+    (re.compile(r"^k_?[xyz]$|^k_?(h|v|horizontal|vertical)$"), "N/m"),
+    (re.compile(r"^k_?r[xyz]$|^k_?(t|rocking|torsion)$"), "N·m/rad"),
+    (re.compile(r"^c_?[xyz]$"), "N·s/m"),
+    (re.compile(r"^c_?r[xyz]$"), "N·m·s/rad"),
+    (re.compile(r"ratio|_over_|_dc|dc_|percent|factor|count|index|^n_|number"), ""),
+    (re.compile(r"(^|_)time$|^time_of|_time_|period|duration|d5_|^t$|^dt$|_s$"), "s"),
     (re.compile(r"frequency|_hz$|cutoff"), "Hz"),
     (re.compile(r"acceleration|pga|psa|^sa$|zpa|abs_acc"), "m/s²"),
     (re.compile(r"velocity|pgv|cav"), "m/s"),
