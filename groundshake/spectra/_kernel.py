@@ -100,10 +100,10 @@ def _prepare(acc, dt, omega, damping, source):
             raise InputError(f"damping shape {xi.shape} does not match omega shape {omega.shape}")
     if not np.all(np.isfinite(omega) & (omega > 0)):
         bad = omega[~(np.isfinite(omega) & (omega > 0))][0]
-        raise InputError(f"omega must be finite and > 0 rad/s, got {bad!r}")
+        raise InputError(f"omega must be finite and > 0 rad/s, got {bad:g}")
     if not np.all(np.isfinite(xi) & (xi >= 0) & (xi < 1)):
         bad = xi[~(np.isfinite(xi) & (xi >= 0) & (xi < 1))][0]
-        raise InputError(f"damping ratio {bad!r} is outside [0, 1)")
+        raise InputError(f"damping ratio {bad:g} is outside [0, 1)")
     a = np.asarray(acc, dtype=float)
     n_osc = omega.size
     if source is not None:

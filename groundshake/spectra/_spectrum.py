@@ -42,7 +42,7 @@ def check_periods(periods, *, name: str = "periods") -> np.ndarray:
         raise InputError(f"{name}: give a 1-D list of at least one period, got shape {p.shape}")
     bad = ~(np.isfinite(p) & (p > 0))
     if bad.any():
-        raise InputError(f"{name}: {p[bad][0]!r} s is not allowed; periods must be finite "
+        raise InputError(f"{name}: {p[bad][0]:g} s is not allowed; periods must be finite "
                          "and > 0 s (PGA is reported separately as the zero-period value)")
     return p
 
@@ -57,7 +57,7 @@ def check_damping(damping, *, name: str = "damping") -> np.ndarray:
         raise InputError(f"{name}: give a 1-D list of at least one ratio, got shape {z.shape}")
     bad = ~(np.isfinite(z) & (z >= 0) & (z < 1))
     if bad.any():
-        raise InputError(f"{name}: ratio {z[bad][0]!r} is outside [0, 1) "
+        raise InputError(f"{name}: ratio {z[bad][0]:g} is outside [0, 1) "
                          "(the Python API takes ratios: 0.05 for 5 %)")
     return z
 
