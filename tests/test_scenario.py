@@ -132,6 +132,7 @@ def test_paths_outside_the_folder_are_noted(site):
     s = load_scenario(site)
     # Issue 8: paths leaving the scenario's folder must be shown; ../records does.
     assert len(s.notes) == 3 and all("outside the scenario's folder" in n for n in s.notes)
+    assert s.to_dict()["notes"] == list(s.notes)  # echoed with the scenario into outputs
     inside = site.parent / "rec.mseed"
     inside.write_bytes(b"")
     t = parse_scenario_text(site.read_text().replace("../records/demo-h1.mseed", "rec.mseed"),
@@ -218,7 +219,7 @@ def test_to_dict_has_exactly_the_schema_keys(site):
     walk(d, "")
     schema = {r[0] for r in schema_rows()}
     # Every echoed key is a schema key (INTERNALS.md: to_dict gives every key with its default).
-    assert flat - {"motion.x", "motion.y", "motion.z", "materials.concrete"} <= schema
+    assert flat - {"motion.x", "motion.y", "motion.z", "materials.concrete", "notes"} <= schema
     leaves = {r[0] for r in schema_rows() if r[2] != "a table" and not r[2].startswith("an array of tables")
               and r[2] != "one table per name"}
     present = {k for k in leaves if not k.startswith("equipment[].fp")}  # fp not in the example

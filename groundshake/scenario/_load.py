@@ -617,9 +617,14 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
 
 def scenario_from_dict(data: Any, *, source: str = "<dict>",
                        base_dir: str | os.PathLike | None = None) -> Scenario:
-    """Validate a scenario given as nested dicts (as ``tomllib`` or ``to_dict`` give)."""
+    """Validate a scenario given as nested dicts (as ``tomllib`` or ``to_dict`` give).
+
+    A top-level ``"notes"`` entry (added by ``to_dict``) is ignored.
+    """
     base = Path(base_dir) if base_dir is not None else Path.cwd()
     ctx = _Context(source, None, base)
+    if isinstance(data, dict) and "notes" in data:
+        data = {k: v for k, v in data.items() if k != "notes"}
     try:
         return _build(data, ctx)
     except RecursionError:
@@ -640,8 +645,15 @@ def _plain(value: Any) -> Any:
 
 
 def scenario_to_dict(scenario: Scenario) -> dict:
-    """Every key of the scenario with its value or default; JSON-able (paths as strings)."""
-    return _plain(scenario)
+    """Every key of the scenario with its value or default; JSON-able (paths as strings).
+
+    ``"notes"`` (a list of str: paths leaving the scenario's folder, doubtful input)
+    is added last so that any output echoing the scenario shows them; it is not a
+    schema key and :func:`scenario_from_dict` drops it (notes are recomputed on load).
+    """
+    out = _plain(scenario)
+    out["notes"] = list(scenario.notes)
+    return out
 
 
 def replace_motion(scenario: Scenario, components: dict, target, match_target) -> Scenario:

@@ -346,8 +346,9 @@ class Scenario:
     def to_dict(self) -> dict:
         """Every key with its value or default (JSON-able; paths as absolute strings).
 
-        The result goes back through :meth:`from_dict` to an equal scenario; it holds
-        no ``source``/``notes`` (show :attr:`notes` beside it in a summary).
+        The result goes back through :meth:`from_dict` to an equal scenario. It also
+        carries ``"notes"`` (list of str, see :attr:`notes`), so any output that echoes
+        the scenario shows them; ``from_dict`` ignores that entry.
         """
         from ._load import scenario_to_dict
         return scenario_to_dict(self)
