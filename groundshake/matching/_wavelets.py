@@ -12,24 +12,25 @@ velocity or displacement drift.
 
 The response matrix C_ij (response of oscillator i at its peak time t_i to the unit
 wavelet j placed at t_j) depends only on the lag t_i - t_j, so each wavelet is run
-once, on its own short window, through the shared oscillator kernel
-(:func:`groundshake.spectra.oscillator_history`, one excitation per oscillator); the
-response after the window is the exact free vibration of the damped oscillator.
+once through the shared oscillator kernel (:func:`groundshake.spectra.oscillator_history`;
+see :class:`WaveletResponses`) and looked up by lag at each iteration; past its
+window the response is the exact free vibration of the damped oscillator.
 """
 from __future__ import annotations
 
 import numpy as np
 
 __all__ = ["wavelet_parameters", "wavelet_shapes", "add_wavelets", "response_matrix",
-           "WaveletResponses",
-           "HALF_WIDTH_GAMMAS"]
+           "WaveletResponses", "HALF_WIDTH_GAMMAS"]
 
 #: The wavelet is cut at this many γ either side of its centre (exp(-9) ≈ 1.2e-4).
 HALF_WIDTH_GAMMAS = 3.0
 
 
-def wavelet_parameters(omega: np.ndarray, damping: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Damped frequency ω' [rad/s], time shift Δt [s] and width γ [s], each (n_osc,)."""
+def wavelet_parameters(omega: np.ndarray, damping: np.ndarray
+                       ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Damped frequency ω' [rad/s], time shift Δt [s] and width γ [s], each (n_osc,),
+    for oscillators ``omega`` [rad/s] (n_osc,) with damping ratios ``damping`` (n_osc,)."""
     omega = np.asarray(omega, dtype=float)
     beta = np.asarray(damping, dtype=float)
     root = np.sqrt(1.0 - beta**2)
@@ -39,7 +40,8 @@ def wavelet_parameters(omega: np.ndarray, damping: np.ndarray) -> tuple[np.ndarr
     return omega_d, shift, gamma
 
 
-def _window_samples(shift: np.ndarray, gamma: np.ndarray, dt: float) -> tuple[np.ndarray, np.ndarray]:
+def _window_samples(shift: np.ndarray, gamma: np.ndarray, dt: float
+                    ) -> tuple[np.ndarray, np.ndarray]:
     """Samples before (a) and after (w) the anchor time t_j that the cut wavelet spans."""
     before = np.ceil((shift + HALF_WIDTH_GAMMAS * gamma) / dt).astype(np.int64)
     after = np.maximum(np.ceil((HALF_WIDTH_GAMMAS * gamma - shift) / dt), 0).astype(np.int64)
