@@ -55,34 +55,28 @@ def substeps_for(dt: float, highest_hz: float | None, *, per_period: int = 10) -
 
 
 class _Factor:
-    """A factorized sparse matrix with ``solve(b)``; PARDISO for large, SuperLU otherwise."""
+    """A factorized SPD sparse matrix with ``solve(b)``.
+
+    The model's factorization (PARDISO where it loads, else SuperLU) when that
+    stage is installed; scipy's SuperLU otherwise.
+    """
 
     def __init__(self, A: sp.spmatrix, *, solver: str = "auto"):
         A = sp.csr_matrix(A)
-        self.name = "scipy"
-        use_pardiso = solver == "pardiso" or (solver == "auto" and A.shape[0] > 20000)
-        if use_pardiso:
-            try:
-                import pypardiso  # noqa: F401
-                from pypardiso import PyPardisoSolver
-            except Exception:  # pragma: no cover - platform without MKL
-                use_pardiso = False
-        if use_pardiso:
-            s = PyPardisoSolver(mtype=11)
-            s.set_iparm(8, 0)             # no iterative refinement (each solve costs half)
-            s.factorize(A)
-            s.set_phase(33)
-            self._pardiso = s
-            self._A = A
-            self.name = "pardiso"
-        else:
-            self._lu = spla.splu(sp.csc_matrix(A))
+        try:
+            from ..model._factor import factorize, pardiso_available
+        except ImportError:  # pragma: no cover - model stage absent
+            factorize = None
+        if factorize is not None:
+            self._f = factorize(A, solver=solver)
+            self.name = "pardiso" if (solver == "pardiso" or
+                                      (solver == "auto" and pardiso_available())) else "scipy"
+        else:  # pragma: no cover
+            self._f = spla.splu(sp.csc_matrix(A))
+            self.name = "scipy"
 
     def solve(self, b: np.ndarray) -> np.ndarray:
-        if self.name == "pardiso":
-            x = self._pardiso._call_pardiso(self._A, np.ascontiguousarray(b, dtype=float))
-            return np.asarray(x).reshape(b.shape)
-        return self._lu.solve(b)
+        return np.asarray(self._f.solve(b)).reshape(b.shape)
 
 
 @dataclass

@@ -31,6 +31,8 @@ class Motion:
         Records as used (corrected, resampled, padded), by component.
     notes : list of str
         What was done to bring the components together (also issued as warnings).
+    matching : dict str -> dict
+        Spectral-matching reports by component, when ``match_target`` was asked for.
     """
 
     acc: np.ndarray
@@ -39,6 +41,7 @@ class Motion:
     raw: Mapping[str, Any] = field(default_factory=dict)
     corrected: Mapping[str, Any] = field(default_factory=dict)
     notes: tuple[str, ...] = ()
+    matching: Mapping[str, Any] = field(default_factory=dict)
 
     @property
     def n(self) -> int:
@@ -58,7 +61,8 @@ class Motion:
     def scaled(self, factor: float) -> "Motion":
         """The same motion times ``factor`` (for linearity checks)."""
         return Motion(acc=self.acc * factor, dt=self.dt, components=self.components,
-                      raw=self.raw, corrected=self.corrected, notes=self.notes)
+                      raw=self.raw, corrected=self.corrected, notes=self.notes,
+                      matching=self.matching)
 
 
 def motion_from_arrays(acc: Mapping[str, np.ndarray] | np.ndarray, dt: float) -> Motion:
@@ -125,7 +129,8 @@ def build_motion(scenario: Any) -> Motion:
 
     Each component is read (``file``, ``units``, ``dt``, ``trace``), scaled by
     ``scale``, corrected with the scenario's processing settings (or used as
-    read when ``enabled = false``), resampled to the finest time step among the
+    read when ``enabled = false``), matched to ``target`` when ``match_target``
+    (horizontal components only), resampled to the finest time step among the
     components and zero-padded at the end to the longest one. Each adjustment
     is noted in :attr:`Motion.notes`.
 
@@ -163,6 +168,16 @@ def build_motion(scenario: Any) -> Motion:
     if not used:
         raise InputError("motion: no component given; allowed keys x, y, z (at least one)")
     notes: list[str] = []
+    matching: dict[str, Any] = {}
+    target = _get(motion, "target")
+    if bool(_get(motion, "match_target", False)) and target:
+        from ..matching import match_record_to_target
+        for d in ("x", "y"):
+            if d in used:
+                used[d], matching[d] = match_record_to_target(
+                    used[d], str(target), base_dir=_get(scenario, "base_dir"))
+        if "z" in used:
+            notes.append("motion.z: not matched (the target is a horizontal spectrum); used as corrected")
     dts = {d: r.dt for d, r in used.items()}
     dt = min(dts.values())
     if max(dts.values()) - dt > 1e-9 * dt:
@@ -180,4 +195,4 @@ def build_motion(scenario: Any) -> Motion:
         acc[DIRECTIONS.index(d), :r.n] = r.acc
     acc.setflags(write=False)
     return Motion(acc=acc, dt=float(dt), components=tuple(d for d in DIRECTIONS if d in used),
-                  raw=raw, corrected=used, notes=tuple(notes))
+                  raw=raw, corrected=used, notes=tuple(notes), matching=matching)

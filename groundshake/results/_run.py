@@ -552,6 +552,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         "modes": _modes_dict(modes, model),
         "model": model.describe(),
         "records": _records_summary(motion),
+        "motion": {"components": list(motion.components), "dt": dt, "n_steps": n_t,
+                   "notes": list(motion.notes), "matching": dict(motion.matching)},
         "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
     })
     inputs = {}
@@ -653,8 +655,11 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                            (2 * (1 + float(_get(m, "poisson_ratio")))) / float(_get(m, "density")))
                  for m in mats.values())
         mesh = getattr(model, "mesh", None)
-        if mesh is not None and hasattr(mesh, "element_sizes"):
-            h = float(np.max(np.asarray(mesh.element_sizes())))
+        sizes = getattr(mesh, "element_sizes", None)
+        if callable(sizes):
+            sizes = sizes()
+        if sizes is not None and np.size(sizes):
+            h = float(np.max(np.asarray(sizes)))
         else:
             h = float(_get(_get(scenario, "mesh"), "element_size"))
         if f_use > 0 and h > vs / (10.0 * f_use):

@@ -171,16 +171,21 @@ def modal_stress_peaks(coefficients: np.ndarray, coordinates: np.ndarray, n_el: 
     """
     n_t = coordinates.shape[1]
     peaks = StressPeaks.empty(n_el)
-    chunk = max(1, max_values // (6 * max(n_t, 1)))
+    # blocks of elements × steps small enough to stay in cache, large enough for BLAS
+    chunk = int(min(n_el, 256)) if n_el else 1
+    block = max(16, max_values // (6 * chunk))
     steps = np.arange(n_t)
     A = coefficients.reshape(n_el, 6, -1)
     Zc = np.ascontiguousarray(coordinates, dtype=float)
-    buf = np.empty((6 * chunk, n_t))
+    buf = np.empty((6 * chunk, min(block, max(n_t, 1))))
     for start in range(0, n_el, chunk):
         stop = min(n_el, start + chunk)
-        out = buf[:6 * (stop - start)]
-        np.matmul(A[start:stop].reshape(-1, A.shape[2]), Zc, out=out)
-        peaks.update(start, out.reshape(stop - start, 6, n_t), steps, engine=engine)
+        Ac = np.ascontiguousarray(A[start:stop].reshape(-1, A.shape[2]))
+        for t0 in range(0, n_t, block):
+            t1 = min(n_t, t0 + block)
+            out = buf[:6 * (stop - start), :t1 - t0]
+            np.matmul(Ac, Zc[:, t0:t1], out=out)
+            peaks.update(start, out.reshape(stop - start, 6, t1 - t0), steps[t0:t1], engine=engine)
         if progress is not None:
             progress.advance(stop - start)
     return peaks

@@ -1,0 +1,94 @@
+"""Automatic warnings of a run.
+
+Sources (rules of thumb of the trade): elements no larger than about 1/10 of the
+shear wavelength (Kuhlemeyer & Lysmer 1973, "1/8 to 1/10 of the wavelength", from
+memory); at least ~10 samples per period of the highest frequency of interest
+(Phillips et al. 2012, REFERENCES.md §3); 90 % of the mass in the retained modes
+(ASCE 7-16 §12.9.1.1, REFERENCES.md §6); a linear soil-spring model needs the base to
+stay in compression (common practice). Records are invented test signals.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from groundshake._errors import GroundshakeWarning
+from groundshake.dynamics import motion_from_arrays
+from groundshake.results import analyse
+from groundshake.scenario import Scenario
+
+
+def soft_soil_block(**analysis) -> Scenario:
+    return Scenario.from_dict({
+        "title": "warnings test (invented)",
+        "materials": {"soft": {"youngs_modulus": 2.0e8, "poisson_ratio": 0.25, "density": 2000.0}},
+        "parts": [{"name": "b", "material": "soft", "origin": [0, 0, 0], "size": [2.0, 2.0, 2.0]}],
+        "mesh": {"element_size": 0.5, "element": "hex8-incompatible"},
+        "support": {"kind": "soil", "shear_wave_velocity": 60.0, "poisson_ratio": 0.3,
+                    "density": 1800.0},
+        "sensors": [{"name": "top", "at": [1.0, 1.0, 2.0]}],
+        "analysis": {"cutoff_hz": 60.0, **analysis},
+        "floor_spectra": {"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0, "count": 8}},
+    })
+
+
+@pytest.fixture(scope="module")
+def warned():
+    dt = 0.01
+    t = np.arange(60) * dt                          # 0.6 s: short, ending on its peak
+    ax = 25.0 * (t / t[-1]) ** 2                    # ramps up to the last sample
+    with pytest.warns(GroundshakeWarning):
+        res = analyse(soft_soil_block(modes=1), motion=motion_from_arrays({"x": ax}, dt),
+                      progress=False)
+    return res
+
+
+def test_short_record_and_end_peak(warned):
+    w = " | ".join(warned.summary["warnings"])
+    T1 = warned.summary["modes"]["modes"][0]["period"]
+    assert 0.6 < 10 * T1                             # precondition of the rule below
+    assert "shorter than 10 periods of the lowest mode" in w
+    assert "peak occurs at the end of the record" in w
+
+
+def test_coarse_elements_and_coarse_step():
+    dt = 0.01
+    t = np.arange(300) * dt
+    ax = 2.0 * np.sin(2 * np.pi * 2.0 * t) * np.sin(np.pi * t / t[-1]) ** 2
+    with pytest.warns(GroundshakeWarning):
+        res = analyse(soft_soil_block(), motion=motion_from_arrays({"x": ax}, dt), progress=False)
+    w = " | ".join(res.summary["warnings"])
+    vs = math.sqrt(2.0e8 / (2 * 1.25) / 2000.0)     # block shear-wave velocity, 200 m/s
+    f_hi = res.summary["modes"]["modes"][-1]["frequency"]
+    assert 0.5 > vs / (10 * f_hi)                    # precondition: 0.5-m elements too coarse
+    assert "10 elements per wavelength" in w         # ~10 elements per wavelength (rule of thumb)
+    assert dt > 1 / (10 * f_hi)                      # precondition: under 10 samples a period
+    assert "coarser than 1/10 of the period" in w    # Phillips et al. 2012
+
+
+def test_low_retained_mass_and_uplift(warned):
+    w = " | ".join(warned.summary["warnings"])
+    assert warned.summary["analysis"]["retained_mass_ratio"]["x"] < 0.9   # one mode kept
+    assert "Retained modal mass below 90 %" in w                           # ASCE 7-16 §12.9.1.1
+    c = warned.summary["base"]["contact"]
+    # 25 m/s² sideways on a 2 m cube: overturning far beyond the weight's kern (common practice)
+    assert c["uplift"] and c["min_pressure"] < 0
+    assert "uplift" in w.lower()
+
+
+def test_quiet_run_has_no_spurious_warnings():
+    dt = 0.005
+    t = np.arange(2000) * dt
+    ax = 0.5 * np.sin(2 * np.pi * 1.0 * t) * np.sin(np.pi * t / t[-1]) ** 2
+    scen = Scenario.from_dict({
+        "materials": {"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0}},
+        "parts": [{"name": "b", "material": "c", "origin": [0, 0, 0], "size": [2.0, 2.0, 1.0]}],
+        "mesh": {"element_size": 0.25}, "support": {"kind": "fixed"},
+        "analysis": {"cutoff_hz": 600.0}})
+    res = analyse(scen, motion=motion_from_arrays({"x": ax}, dt), progress=False)
+    w = " | ".join(res.summary["warnings"])
+    # a stiff block, a gentle 10-s motion and a fine mesh: none of the rules apply
+    assert "uplift" not in w.lower() and "end of the record" not in w
+    assert "elements per wavelength" not in w
