@@ -288,6 +288,13 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   excited=tuple(d in motion.components for d in DIRECTIONS),
                                   warn=False)
     timings["modes"] = _tick()
+    # the modes' own notes, except the mass one (ours below also names the correction)
+    collected.extend(m for m in getattr(modes, "warnings", []) or []
+                     if not str(m).startswith("modes capture"))
+    if method == "modal" and not getattr(model, "is_classically_damped", True):
+        collected.append("Non-classical damping (soil radiation and/or equipment dashpots) is "
+                         "represented by modal damping ratios (coupling terms neglected, ratios "
+                         "capped); run with --method direct to check.")
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
