@@ -24,6 +24,8 @@ title = "suite test block (invented)"
 [motion]
 x = {{ file = "{rec}/a-x.csv", units = "m/s2", dt = 0.01 }}
 y = {{ file = "{rec}/a-y.csv", units = "m/s2", dt = 0.01 }}
+[processing]
+enabled = false
 [materials.c]
 youngs_modulus = 30e9
 poisson_ratio = 0.2

@@ -67,31 +67,42 @@ def _objects(shared: dict[str, Any]) -> tuple[Any, Any, Any]:
     return cache
 
 
-def scalar_peaks(summary: Mapping[str, Any]) -> dict:
-    """The scalar peaks of a run's summary that a suite summarises.
+_NOT_PEAKS = {"time", "at", "signed", "position", "node", "element", "step", "where"}
 
-    ``peaks`` as it is, and from ``sensors``, ``equipment``, ``stresses`` and
-    ``base`` every entry whose key starts with ``peak`` (anchors included).
+
+def scalar_peaks(summary: Mapping[str, Any]) -> dict:
+    """The peak values of a run's summary that a suite summarises.
+
+    ``peaks`` (without the times and places of the peaks), and from ``sensors``
+    and ``equipment`` every entry whose key starts with ``peak`` (anchors included).
     """
-    def keep(tree):
+    def values_only(tree):
+        if isinstance(tree, Mapping):
+            return {k: values_only(v) for k, v in tree.items()
+                    if k not in _NOT_PEAKS and not str(k).startswith("time")}
+        if isinstance(tree, list):
+            return [values_only(v) for v in tree]
+        return tree
+
+    def peaks_of(tree):
         if isinstance(tree, Mapping):
             out = {}
             for k, v in tree.items():
-                if str(k).startswith("peak") and not str(k).startswith("peak_time"):
-                    out[k] = v
+                if str(k).startswith("peak"):
+                    out[k] = values_only(v)
                 elif isinstance(v, (Mapping, list)):
-                    sub = keep(v)
+                    sub = peaks_of(v)
                     if sub:
                         out[k] = sub
             return out
         if isinstance(tree, list):
-            subs = [keep(v) for v in tree]
+            subs = [peaks_of(v) for v in tree]
             return subs if any(subs) else []
         return {}
 
-    out: dict[str, Any] = {"peaks": summary.get("peaks", {})}
-    for section in ("sensors", "equipment", "base"):
-        sub = keep(summary.get(section, {}) or {})
+    out: dict[str, Any] = {"peaks": values_only(summary.get("peaks", {}))}
+    for section in ("sensors", "equipment"):
+        sub = peaks_of(summary.get(section, {}) or {})
         if sub:
             out[section] = sub
     return out
@@ -208,7 +219,9 @@ def spectra_statistics(results: Sequence[Mapping]) -> dict:
         arrays = [np.asarray(r["spectra"][key], dtype=float) for r in ok]
         if not arrays or arrays[0].size == 0 or any(a.shape != arrays[0].shape for a in arrays):
             continue
-        st = spectrum_statistics(np.stack(arrays), axis=0)
+        with warnings.catch_warnings():   # absent components are zero: no log-normal there
+            warnings.simplefilter("ignore", GroundshakeWarning)
+            st = spectrum_statistics(np.stack(arrays), axis=0)
         out[key] = {k: np.asarray(v) for k, v in st.items()}
     return out
 
