@@ -631,12 +631,13 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
 
     # ---- reactions
     if kind == "fixed":
-        Sres = _resultant_rows(nodes[base_nodes] - centre)  # (6, 3nb)
-        KR = -(Sres @ (Kn[base_dofs] @ P).toarray())
-        MR = -(Sres @ (Mn[base_dofs] @ P).toarray())
-        iota_nodes = np.zeros((n_node_dof, 3))
-        iota_nodes[np.arange(n_node_dof), np.arange(n_node_dof) % 3] = 1.0
-        GR = -(Sres @ (Mn[base_dofs] @ iota_nodes))
+        Sres = sp.csr_matrix(_resultant_rows(nodes[base_nodes] - centre))  # (6, 3nb)
+        KR = -(Sres @ (Kn[base_dofs] @ P)).toarray()
+        MR = -(Sres @ (Mn[base_dofs] @ P)).toarray()
+        iota_nodes = sp.csr_matrix((np.ones(n_node_dof), (np.arange(n_node_dof),
+                                                          np.arange(n_node_dof) % 3)),
+                                   shape=(n_node_dof, 3))
+        GR = -(Sres @ (Mn[base_dofs] @ iota_nodes)).toarray()
         CR = np.zeros_like(KR)  # damping forces at the fixed base are not included
     elif base_master is not None:
         KR = np.zeros((6, n))

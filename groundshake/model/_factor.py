@@ -38,6 +38,9 @@ class _Lib:
         import glob
         import os
         import sys
+        # MKL's OpenMP threads spin for 200 ms after each call by default, which starves
+        # numpy's own BLAS threads between the many solves of an eigen-solution.
+        os.environ.setdefault("KMP_BLOCKTIME", "0")
         path = os.environ.get("PYPARDISO_MKL_RT")
         cands = [path] if path else []
         for root in (sys.prefix, getattr(sys, "base_prefix", sys.prefix)):
