@@ -36,6 +36,10 @@ TargetLike = Union[str, np.ndarray, Sequence[Any], Callable[[np.ndarray], np.nda
 DEFAULT_BAND = (0.05, 4.0)
 #: Periods per decade of the default grid over the band.
 PERIODS_PER_DECADE = 30
+#: A step is kept if it lowers the max misfit, or lowers the mean misfit by 1 % while
+#: raising the max by at most 5 % (so the solution can leave a local tie of peaks).
+_MEAN_GAIN = 0.99
+_MAX_SLACK = 1.05
 
 
 @dataclass(frozen=True, eq=False)
@@ -267,7 +271,7 @@ def _iterate(acc, R, idx, sgn, mx, mn, lam, responses, dt, omega, zeta, Q, relax
         trial = acc + relax * add_wavelets(acc.size, dt, omega, zeta, idx, b * Q,
                                            ragged=responses.ragged)
         mxt, mnt = misfit(_psa(trial, dt, omega, zeta))  # peaks only: cheap trial
-        if mxt < mx or (mnt < 0.99 * mn and mxt <= 1.05 * mx):
+        if mxt < mx or (mnt < _MEAN_GAIN * mn and mxt <= _MAX_SLACK * mx):
             Rt, idx_t, sgn_t = _peaks(trial, dt, omega, zeta)  # peak times and signs
             mxt, mnt = misfit(Rt)
             return {"accepted": True, "acc": trial, "R": Rt, "idx": idx_t, "sgn": sgn_t,
