@@ -11,7 +11,6 @@ memory: ground-motion models give roughly 0.15-0.35 g).
 from __future__ import annotations
 
 import json
-import math
 from pathlib import Path
 
 import numpy as np

@@ -10,7 +10,6 @@ independent reader (obspy.read).
 """
 from __future__ import annotations
 
-import os
 from pathlib import Path
 
 import numpy as np
@@ -20,7 +19,6 @@ import groundshake
 from groundshake.records import STANDARD_GRAVITY, Record, read_record, write_record
 from groundshake.records import canonical_units, UNITS
 
-OBSPY_DATA = None
 
 
 def _obspy_file(*parts) -> Path:
