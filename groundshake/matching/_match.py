@@ -14,6 +14,7 @@ from __future__ import annotations
 import contextlib
 import math
 import numbers
+import os
 import warnings
 from dataclasses import dataclass, field
 from typing import Any, Callable, Sequence, Union
@@ -311,7 +312,9 @@ def _baseline_fix(acc: np.ndarray, dt: float) -> np.ndarray:
     return c @ basis
 
 
-def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, periods=None, *,
+def match_spectrum_report(record: Record, target: TargetLike,
+                          damping: float | Sequence[float] = 0.05,
+                          periods: np.ndarray | Sequence[float] | None = None, *,
                           band: tuple[float, float] | None = None, tolerance: float = 0.05,
                           max_iterations: int = 40, relaxation: float = 1.0,
                           prescale: bool = True, pad: bool = True, rcond: float = 1e-2,
@@ -367,6 +370,15 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
     GroundshakeWarning
         When the match does not converge, when the final baseline correction was
         needed, and when an acceptance check fails.
+
+    Examples
+    --------
+    >>> from groundshake import read_record, correct_record  # doctest: +SKIP
+    >>> rec = correct_record(read_record("records/demo-h1.mseed", units="m/s2")[0])  # doctest: +SKIP
+    >>> res = match_spectrum_report(rec, "asce7:sds=1.0,sd1=0.6,tl=8", 0.05, None,
+    ...                             band=(0.05, 4.0))  # doctest: +SKIP
+    >>> res.status, res.iterations[-1]["max_misfit"] <= 0.05  # doctest: +SKIP
+    ('converged', True)
 
     References
     ----------
@@ -512,8 +524,9 @@ def match_spectrum_report(record: Record, target: TargetLike, damping=0.05, peri
                        warnings=warn, target_label=label)
 
 
-def match_spectrum(record: Record, target: TargetLike, damping=0.05, periods=None,
-                   **options) -> Record:
+def match_spectrum(record: Record, target: TargetLike,
+                   damping: float | Sequence[float] = 0.05,
+                   periods: np.ndarray | Sequence[float] | None = None, **options) -> Record:
     """Adjust ``record`` until its spectrum matches ``target``; return the new Record.
 
     Same parameters as :func:`match_spectrum_report` (``band``, ``tolerance``,
@@ -526,8 +539,10 @@ def match_spectrum(record: Record, target: TargetLike, damping=0.05, periods=Non
 
 
 def match_record_to_target(record: Record, spec: str, *, damping: float | None = None,
-                           periods=None, band: tuple[float, float] | None = None,
-                           base_dir=None, **options) -> tuple[Record, dict]:
+                           periods: np.ndarray | Sequence[float] | None = None,
+                           band: tuple[float, float] | None = None,
+                           base_dir: str | os.PathLike | None = None,
+                           **options) -> tuple[Record, dict]:
     """Scenario hook: match one component to the target named in ``[motion] target``.
 
     Parameters
