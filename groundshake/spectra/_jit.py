@@ -2,17 +2,19 @@
 
 Layout: oscillators are processed in blocks small enough that their state stays in
 the L1 cache; within a block the time loop is outermost and the oscillator loop
-innermost and branch-free, so it vectorizes. Blocks run in parallel (``prange``).
+innermost and branch-free, so it vectorizes. Every entry point works on a range of
+blocks and releases the GIL, so the caller runs ranges on threads (cheaper to compile
+and start than numba's ``parallel=True``).
 Coefficients come from :func:`._coefficients.step_coefficients` (rows a11 a12 a21 a22
 b11 b12 b21 b22 cv cx).
 """
 from __future__ import annotations
 
 import numpy as np
-from numba import njit, prange
+from numba import njit
 
-__all__ = ["peaks_serial", "peaks_parallel", "history_serial", "history_parallel",
-           "rotd_serial", "rotd_parallel", "rotated_peaks"]
+__all__ = ["peaks_shared_range", "peaks_mixed_range", "history_range", "rotd_range",
+           "rotated_peaks", "NB"]
 
 # Oscillators per block: a compile-time constant, so that the whole state of a block
 # sits in one small array at fixed offsets; LLVM then keeps it in registers and
@@ -71,45 +73,41 @@ def _chunk_gathered(G, S, n):
 
 
 @njit(cache=True, nogil=True)
-def _peaks_block(acc, src, coef, k0, k1, pk, ix):
-    n_steps = acc.shape[1] - 1
-    nb = k1 - k0
+def _load_block(coef, k0, k1):
     S = np.zeros(_NROW * NB)
     for r in range(10):
-        for j in range(nb):
+        for j in range(k1 - k0):
             S[r * NB + j] = coef[r, k0 + j]
-    shared = True
-    for j in range(nb):
-        if src[k0 + j] != src[k0]:
-            shared = False
-    G = np.zeros((CH + 1) * NB)
-    row = acc[src[k0]]
-    for c0 in range(0, n_steps, CH):
-        c1 = min(n_steps, c0 + CH)
+    return S
+
+
+@njit(cache=True, nogil=True)
+def _start_chunk(S):
+    for j in range(NB):
+        S[_RX0 * NB + j] = S[_RX * NB + j]
+        S[_RV0 * NB + j] = S[_RV * NB + j]
+        S[_RCM * NB + j] = 0.0
+        S[(_RCM + 1) * NB + j] = 0.0
+        S[(_RCM + 2) * NB + j] = 0.0
+
+
+@njit(cache=True, nogil=True)
+def _end_chunk(S, c0):
+    for q in range(3):
         for j in range(NB):
-            S[_RX0 * NB + j] = S[_RX * NB + j]
-            S[_RV0 * NB + j] = S[_RV * NB + j]
-            S[_RCM * NB + j] = 0.0
-            S[(_RCM + 1) * NB + j] = 0.0
-            S[(_RCM + 2) * NB + j] = 0.0
-        if shared:
-            _chunk_shared(row, S, c0, c1)
-        else:
-            for j in range(nb):
-                r = acc[src[k0 + j]]
-                for i in range(c0, c1 + 1):
-                    G[(i - c0) * NB + j] = r[i]
-            _chunk_gathered(G, S, c1 - c0)
-        for q in range(3):
-            for j in range(NB):
-                m = S[(_RCM + q) * NB + j]
-                if m > S[(_RGM + q) * NB + j]:
-                    S[(_RGM + q) * NB + j] = m
-                    S[(_RGC + q) * NB + j] = c0
-                    S[(_RSX + q) * NB + j] = S[_RX0 * NB + j]
-                    S[(_RSV + q) * NB + j] = S[_RV0 * NB + j]
-    # Time of each peak: re-run the one chunk that holds it, from its saved state.
-    for j in range(nb):
+            m = S[(_RCM + q) * NB + j]
+            if m > S[(_RGM + q) * NB + j]:
+                S[(_RGM + q) * NB + j] = m
+                S[(_RGC + q) * NB + j] = c0
+                S[(_RSX + q) * NB + j] = S[_RX0 * NB + j]
+                S[(_RSV + q) * NB + j] = S[_RV0 * NB + j]
+
+
+@njit(cache=True, nogil=True)
+def _finish_block(acc, src, coef, k0, k1, S, pk, ix):
+    """Store the peaks; find each one's time by re-running the chunk that holds it."""
+    n_steps = acc.shape[1] - 1
+    for j in range(k1 - k0):
         k = k0 + j
         r = acc[src[k]]
         a11 = coef[0, k]; a12 = coef[1, k]; a21 = coef[2, k]; a22 = coef[3, k]
@@ -143,19 +141,53 @@ def _peaks_block(acc, src, coef, k0, k1, pk, ix):
 
 
 @njit(cache=True, nogil=True)
-def peaks_serial(acc, src, coef, pk, ix):
-    n_osc = coef.shape[1]
-    nblk = (n_osc + NB - 1) // NB
-    for b in range(nblk):
-        _peaks_block(acc, src, coef, b * NB, min(n_osc, (b + 1) * NB), pk, ix)
+def _block_is_shared(src, k0, k1):
+    for k in range(k0, k1):
+        if src[k] != src[k0]:
+            return False
+    return True
 
 
-@njit(cache=True, nogil=True, parallel=True)
-def peaks_parallel(acc, src, coef, pk, ix):
+@njit(cache=True, nogil=True)
+def peaks_shared_range(acc, src, coef, b0, b1, pk, ix):
+    """Peaks for oscillator blocks b0..b1-1, each block driven by one row of acc."""
     n_osc = coef.shape[1]
-    nblk = (n_osc + NB - 1) // NB
-    for b in prange(nblk):
-        _peaks_block(acc, src, coef, b * NB, min(n_osc, (b + 1) * NB), pk, ix)
+    n_steps = acc.shape[1] - 1
+    for b in range(b0, b1):
+        k0 = b * NB
+        k1 = min(n_osc, k0 + NB)
+        S = _load_block(coef, k0, k1)
+        row = acc[src[k0]]
+        for c0 in range(0, n_steps, CH):
+            _start_chunk(S)
+            _chunk_shared(row, S, c0, min(n_steps, c0 + CH))
+            _end_chunk(S, c0)
+        _finish_block(acc, src, coef, k0, k1, S, pk, ix)
+
+
+@njit(cache=True, nogil=True)
+def peaks_mixed_range(acc, src, coef, b0, b1, pk, ix):
+    """Peaks for oscillator blocks b0..b1-1 whose oscillators may have their own rows."""
+    n_osc = coef.shape[1]
+    n_steps = acc.shape[1] - 1
+    G = np.zeros((CH + 1) * NB)
+    for b in range(b0, b1):
+        k0 = b * NB
+        k1 = min(n_osc, k0 + NB)
+        if _block_is_shared(src, k0, k1):
+            peaks_shared_range(acc, src, coef, b, b + 1, pk, ix)
+            continue
+        S = _load_block(coef, k0, k1)
+        for c0 in range(0, n_steps, CH):
+            c1 = min(n_steps, c0 + CH)
+            _start_chunk(S)
+            for j in range(k1 - k0):
+                r = acc[src[k0 + j]]
+                for i in range(c0, c1 + 1):
+                    G[(i - c0) * NB + j] = r[i]
+            _chunk_gathered(G, S, c1 - c0)
+            _end_chunk(S, c0)
+        _finish_block(acc, src, coef, k0, k1, S, pk, ix)
 
 
 @njit(cache=True, nogil=True, fastmath={"contract"})
@@ -178,19 +210,10 @@ def _history_block(acc, src, coef, k0, k1, hd, hv, ha):
 
 
 @njit(cache=True, nogil=True)
-def history_serial(acc, src, coef, block, hd, hv, ha):
+def history_range(acc, src, coef, b0, b1, hd, hv, ha):
+    """Histories of oscillators b0·NB .. b1·NB-1 (one oscillator at a time)."""
     n_osc = coef.shape[1]
-    nblk = (n_osc + block - 1) // block
-    for b in range(nblk):
-        _history_block(acc, src, coef, b * block, min(n_osc, (b + 1) * block), hd, hv, ha)
-
-
-@njit(cache=True, nogil=True, parallel=True)
-def history_parallel(acc, src, coef, block, hd, hv, ha):
-    n_osc = coef.shape[1]
-    nblk = (n_osc + block - 1) // block
-    for b in prange(nblk):
-        _history_block(acc, src, coef, b * block, min(n_osc, (b + 1) * block), hd, hv, ha)
+    _history_block(acc, src, coef, b0 * NB, min(n_osc, b1 * NB), hd, hv, ha)
 
 
 _NBUCKET = 32   # length classes of the rotated-peak search
@@ -364,14 +387,8 @@ def _rotd_block(acc1, acc2, coef, k0, k1, cs, sn, out):
 
 
 @njit(cache=True, nogil=True)
-def rotd_serial(acc1, acc2, coef, cs, sn, out):
+def rotd_range(acc1, acc2, coef, cs, sn, b0, b1, out):
+    """Rotated displacement peaks of oscillator blocks b0..b1-1."""
     n_osc = coef.shape[1]
-    for b in range((n_osc + NB - 1) // NB):
-        _rotd_block(acc1, acc2, coef, b * NB, min(n_osc, (b + 1) * NB), cs, sn, out)
-
-
-@njit(cache=True, nogil=True, parallel=True)
-def rotd_parallel(acc1, acc2, coef, cs, sn, out):
-    n_osc = coef.shape[1]
-    for b in prange((n_osc + NB - 1) // NB):
+    for b in range(b0, b1):
         _rotd_block(acc1, acc2, coef, b * NB, min(n_osc, (b + 1) * NB), cs, sn, out)

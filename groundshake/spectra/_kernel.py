@@ -15,7 +15,8 @@ import numpy as np
 from .._errors import InputError
 from ._coefficients import step_coefficients
 
-__all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_engine"]
+__all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_engine",
+           "kernel_threads"]
 
 Engine = Literal["auto", "numba", "numpy"]
 
@@ -61,6 +62,51 @@ def _jit():
             return None
         _jit_module = module
     return _jit_module
+
+
+def kernel_threads() -> int:
+    """Threads the compiled kernel may use: the CPUs this process may run on, capped by
+    the environment variable ``GROUNDSHAKE_THREADS`` (set it to 1 when records are
+    already spread over worker processes)."""
+    try:
+        n = len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):
+        n = os.cpu_count() or 1
+    cap = os.environ.get("GROUNDSHAKE_THREADS", "").strip()
+    if cap:
+        try:
+            n = min(n, max(1, int(cap)))
+        except ValueError:
+            raise InputError(f"GROUNDSHAKE_THREADS={cap!r}; give a whole number >= 1") from None
+    return max(1, n)
+
+
+def run_blocks(fn, n_osc: int, work: float, threads: bool | None, *args) -> None:
+    """Call ``fn(*before, b0, b1, *after)`` over ranges of oscillator blocks.
+
+    ``args`` is ``(before, after)``. The ranges run on threads (the compiled loops
+    release the GIL) when ``threads`` is true, or when it is None and ``work``
+    (oscillator-steps) is large enough to pay for them.
+    """
+    from ._jit import NB
+
+    before, after = args
+    n_blocks = (n_osc + NB - 1) // NB
+    n_thr = kernel_threads() if threads is None or threads else 1
+    if threads is None and work < _PARALLEL_MIN_WORK:
+        n_thr = 1
+    n_thr = min(n_thr, n_blocks)
+    if n_thr <= 1:
+        fn(*before, 0, n_blocks, *after)
+        return
+    from concurrent.futures import ThreadPoolExecutor
+
+    edges = np.linspace(0, n_blocks, n_thr + 1).round().astype(int)
+    with ThreadPoolExecutor(max_workers=n_thr) as pool:
+        futures = [pool.submit(fn, *before, int(b0), int(b1), *after)
+                   for b0, b1 in zip(edges[:-1], edges[1:]) if b1 > b0]
+        for f in futures:
+            f.result()
 
 
 def kernel_engine(engine: Engine = "auto") -> Literal["numba", "numpy"]:
@@ -159,7 +205,8 @@ def oscillator_peaks(acc: np.ndarray, dt: float, omega: np.ndarray, damping: np.
     engine : {"auto", "numba", "numpy"}
         Compiled loops or the numpy time loop (see :func:`kernel_engine`).
     threads : bool, optional
-        Run oscillator blocks on numba's threads; default: when the work is large.
+        Run oscillator blocks on threads (:func:`kernel_threads` of them); default:
+        when the work is large.
 
     Returns
     -------
@@ -198,10 +245,8 @@ def oscillator_peaks(acc: np.ndarray, dt: float, omega: np.ndarray, damping: np.
     if n_osc and n_t > 1:
         if kernel_engine(engine) == "numba":
             jit = _jit()
-            par = (n_osc * n_t >= _PARALLEL_MIN_WORK and n_osc > 8) if threads is None \
-                else bool(threads)
-            fn = jit.peaks_parallel if par else jit.peaks_serial
-            fn(a, src, coef, pk, ix)
+            fn = jit.peaks_shared_range if a.shape[0] == 1 else jit.peaks_mixed_range
+            run_blocks(fn, n_osc, float(n_osc) * n_t, threads, (a, src, coef), (pk, ix))
         else:
             _numpy_peaks(a, src, coef, pk, ix)
     t = ix * dt
@@ -236,11 +281,8 @@ def oscillator_history(acc: np.ndarray, dt: float, omega: np.ndarray, damping: n
     hd = np.zeros((n_osc, n_t)); hv = np.zeros((n_osc, n_t)); ha = np.zeros((n_osc, n_t))
     if n_osc and n_t > 1:
         if kernel_engine(engine) == "numba":
-            jit = _jit()
-            par = (n_osc * n_t >= _PARALLEL_MIN_WORK and n_osc > 1) if threads is None \
-                else bool(threads)
-            fn = jit.history_parallel if par else jit.history_serial
-            fn(a, src, coef, 8, hd, hv, ha)
+            run_blocks(_jit().history_range, n_osc, float(n_osc) * n_t, threads,
+                       (a, src, coef), (hd, hv, ha))
         else:
             _numpy_history(a, src, coef, hd, hv, ha)
     return hd, hv, ha

@@ -8,7 +8,7 @@ import numpy as np
 
 from .._errors import InputError
 from ._coefficients import step_coefficients
-from ._kernel import Engine, _jit, kernel_engine, oscillator_history
+from ._kernel import Engine, _jit, kernel_engine, oscillator_history, run_blocks
 from ._spectrum import check_damping, check_periods, default_periods, interpolation_groups
 
 __all__ = ["RotD", "rotd", "rotated_peak"]
@@ -178,8 +178,8 @@ def rotd(acc1: np.ndarray, acc2: np.ndarray, dt: float, periods=None, damping=0.
             jit = _jit()
             coef = step_coefficients(omega, xi, step)
             r1 = np.ascontiguousarray(rec[0]); r2 = np.ascontiguousarray(rec[1])
-            big = omega.size * r1.size >= 1e6 and omega.size > 16
-            (jit.rotd_parallel if big else jit.rotd_serial)(r1, r2, coef, _COS, _SIN, out)
+            run_blocks(jit.rotd_range, omega.size, 4.0 * omega.size * r1.size, None,
+                       (r1, r2, coef, _COS, _SIN), (out,))
         else:
             block = max(1, int(4e6 // max(rec.shape[1], 1)))
             for k0 in range(0, omega.size, block):

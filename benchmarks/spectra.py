@@ -1,0 +1,153 @@
+"""Speed of the oscillator kernel, response spectra and RotD100.
+
+Prints ns per oscillator-step for 300 periods x 5 damping values on 12,000 samples
+(1.8e7 oscillator-steps), against a per-oscillator scipy reference
+(cont2discrete(method="foh") + dlsim) timed on a subset in the same run, the numpy
+engine, the first call in a fresh process (JIT included), and the cost of RotD100
+over 180 angles relative to one spectrum. Also the largest relative difference from
+the scipy reference on the subset.
+
+The excitation is invented (seeded filtered noise under an envelope). Timings are
+best-of-N wall times; CPU times are shown too, since a shared machine inflates wall
+time. Run: python benchmarks/spectra.py [--quick]
+"""
+from __future__ import annotations
+
+import argparse
+import os
+import subprocess
+import sys
+import tempfile
+import textwrap
+import time
+
+import numpy as np
+from scipy import signal
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+sys.path.insert(0, os.path.dirname(HERE))
+
+from groundshake.spectra import (kernel_engine, oscillator_peaks, response_spectrum,  # noqa: E402
+                                 rotd)
+
+N_T, DT = 12_000, 0.005
+PERIODS = np.geomspace(0.05, 10.0, 300)
+DAMPING = np.array([0.0, 0.02, 0.05, 0.10, 0.20])
+
+
+def record(seed=0, n=N_T):
+    """Invented test excitation [m/s²]: filtered seeded noise under a smooth envelope."""
+    rng = np.random.default_rng(seed)
+    t = np.arange(n) * DT
+    env = np.sin(np.pi * t / t[-1]) ** 2
+    b, a = signal.butter(4, [0.2, 15.0], btype="band", fs=1 / DT)
+    return env * signal.lfilter(b, a, rng.standard_normal(n))
+
+
+def best(fn, repeat):
+    walls, cpus = [], []
+    for _ in range(repeat):
+        w, c = time.perf_counter(), time.process_time()
+        fn()
+        walls.append(time.perf_counter() - w)
+        cpus.append(time.process_time() - c)
+    return min(walls), min(cpus)
+
+
+def scipy_reference(acc, omega, xi):
+    """Peaks of one oscillator by scipy's first-order hold (x, v, absolute acceleration)."""
+    a = np.array([[0.0, 1.0], [-omega ** 2, -2 * xi * omega]])
+    c = np.array([[1.0, 0.0], [0.0, 1.0], [-omega ** 2, -2 * xi * omega]])
+    sysd = signal.cont2discrete((a, np.array([[0.0], [-1.0]]), c, np.zeros((3, 1))), DT,
+                                method="foh")
+    _, y, _ = signal.dlsim(sysd, acc, x0=-sysd[3][:2, 0] * acc[0])
+    return np.abs(y).max(axis=0)
+
+
+FIRST_CALL = textwrap.dedent("""
+    import time, sys
+    t0 = time.perf_counter(); c0 = time.process_time()
+    sys.path.insert(0, {root!r})
+    import numpy as np
+    from groundshake.spectra import response_spectrum
+    acc = np.sin(np.arange(12000) * 0.005 * 6.0)
+    response_spectrum(acc, 0.005, np.geomspace(0.05, 10, 300), [0, .02, .05, .1, .2])
+    print(time.perf_counter() - t0, time.process_time() - c0)
+""")
+
+
+def first_call(cold: bool):
+    env = dict(os.environ)
+    tmp = None
+    if cold:
+        tmp = tempfile.mkdtemp(prefix="gs-numba-cache-")
+        env["NUMBA_CACHE_DIR"] = tmp           # empty cache: everything is compiled
+    code = FIRST_CALL.format(root=os.path.dirname(HERE))
+    out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True,
+                         check=True).stdout.split()
+    return float(out[0]), float(out[1])
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--quick", action="store_true", help="fewer repeats")
+    opts = ap.parse_args(argv)
+    rep = 3 if opts.quick else 7
+    print(f"engine: {kernel_engine()}; cores: {os.cpu_count()}; load average now: "
+          f"{', '.join(f'{x:.1f}' for x in os.getloadavg())} (a shared machine inflates wall times)")
+    acc = record()
+    omega = np.tile(2 * np.pi / PERIODS, DAMPING.size)
+    xi = np.repeat(DAMPING, PERIODS.size)
+    n_steps = omega.size * (N_T - 1)
+    oscillator_peaks(acc[:200], DT, omega, xi)                      # load compiled code
+    rows = []
+    for label, kw in (("numba, threads", dict(threads=True)),
+                      ("numba, one thread", dict(threads=False))):
+        w, c = best(lambda: oscillator_peaks(acc, DT, omega, xi, **kw), rep)
+        rows.append((label, w, c))
+    w_spec, c_spec = best(lambda: response_spectrum(acc, DT, PERIODS, DAMPING,
+                                                    interpolate=False), rep)
+    # numpy engine on a fifth of the samples (its cost is linear in steps)
+    short = acc[: N_T // 5]
+    w_np, c_np = best(lambda: oscillator_peaks(short, DT, omega, xi, engine="numpy"), 2)
+    np_ns = w_np / (omega.size * (short.size - 1)) * 1e9
+    # scipy per-oscillator reference on a subset
+    sub = np.linspace(0, omega.size - 1, 6).astype(int)
+    t0 = time.perf_counter()
+    ref = np.array([scipy_reference(acc, omega[k], xi[k]) for k in sub])
+    scipy_ns = (time.perf_counter() - t0) / (sub.size * (N_T - 1)) * 1e9
+    got = oscillator_peaks(acc, DT, omega[sub], xi[sub])
+    err = np.max(np.abs(np.stack([got.disp, got.vel, got.abs_acc], axis=1) / ref - 1))
+
+    print(f"\n{PERIODS.size} periods x {DAMPING.size} damping x {N_T} samples = "
+          f"{n_steps:.3g} oscillator-steps")
+    print(f"{'kernel':<28}{'wall ms':>10}{'ns/osc-step':>14}{'CPU ms':>10}{'vs scipy':>12}")
+    for label, w, c in rows:
+        ns = w / n_steps * 1e9
+        print(f"{label:<28}{1e3 * w:>10.1f}{ns:>14.3f}{1e3 * c:>10.1f}{scipy_ns / ns:>11.0f}x")
+    print(f"{'response_spectrum (total)':<28}{1e3 * w_spec:>10.1f}"
+          f"{w_spec / n_steps * 1e9:>14.3f}{1e3 * c_spec:>10.1f}")
+    print(f"{'numpy engine':<28}{'':>10}{np_ns:>14.2f}{'':>10}{scipy_ns / np_ns:>11.0f}x")
+    print(f"{'scipy foh + dlsim':<28}{'':>10}{scipy_ns:>14.0f}{'':>10}{1:>11.0f}x")
+    print(f"largest relative difference from the scipy reference "
+          f"({sub.size} oscillators, x/v/abs acc peaks): {err:.2e}")
+
+    a2 = record(seed=1)
+    rotd(acc[:200], a2[:200], DT, PERIODS[:4], DAMPING[:2], (100,))   # load compiled code
+    w_rot, c_rot = best(lambda: rotd(acc, a2, DT, PERIODS, DAMPING, (100,),
+                                     interpolate=False), max(2, rep // 2))
+    w_one, c_one = best(lambda: response_spectrum(acc, DT, PERIODS, DAMPING,
+                                                  interpolate=False), rep)
+    print(f"\nRotD100 over 180 angles: {1e3 * w_rot:.1f} ms wall ({1e3 * c_rot:.1f} ms CPU); "
+          f"one spectrum {1e3 * w_one:.1f} ms ({1e3 * c_one:.1f} ms CPU); "
+          f"ratio {w_rot / w_one:.1f}x wall, {c_rot / max(c_one, 1e-9):.1f}x CPU")
+
+    for cold in (False, True):
+        w, c = first_call(cold)
+        what = "empty numba cache (JIT compile)" if cold else "numba cache filled"
+        print(f"first call in a fresh process, {what}: {w:.2f} s wall, {c:.2f} s CPU "
+              f"(imports included)")
+
+
+if __name__ == "__main__":
+    main()
