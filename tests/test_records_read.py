@@ -274,3 +274,19 @@ def test_implausible_peak_warns_about_units(tmp_path):
     # 3000 "g" means wrong units or raw counts
     with pytest.warns(GroundshakeWarning, match="check the units"):
         read_record(p, units="g")
+
+
+def test_csv_keeps_the_pad_length_of_a_corrected_record(tmp_path):
+    from groundshake.processing import correct_record, intensity_measures
+
+    t = np.arange(3000) * 0.01
+    rec = Record(acc=np.exp(-((t - 12) / 2) ** 2) * np.sin(2 * np.pi * 2 * t), dt=0.01)
+    out = correct_record(rec)
+    write_record(out, tmp_path / "c.csv")
+    (back,) = read_record(tmp_path / "c.csv")
+    assert back.metadata["pad_before_s"] == out.metadata["pad_before_s"]
+    # the peak time is counted from the first sample as read, before and after the file
+    assert intensity_measures(back)["pga_time"] == intensity_measures(out)["pga_time"]
+    # and it falls on the burst's crest near 12 s (closed form of the input: 1/(4·2 Hz)
+    # steps of the 2 Hz sine around the centre), within a quarter period
+    assert abs(intensity_measures(back)["pga_time"] - 12.0) <= 0.125

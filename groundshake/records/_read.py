@@ -465,6 +465,8 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
             md["column_name"] = col_name
         if t0:
             md["first_time_s"] = t0
+        if "pad before s" in meta:  # written with a corrected, padded record
+            md["pad_before_s"] = _header_float(meta, ("pad before s",), where)
         for key in ("station", "event", "title"):
             if key in meta:
                 md[key] = meta[key]

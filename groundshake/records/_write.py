@@ -29,7 +29,8 @@ def write_record(records: Record | Iterable[Record], path) -> Path:
         ``.mseed`` (MiniSEED, 64-bit floats), ``.sac`` (SAC, 32-bit floats as the
         format stores them; units in header ``kuser0``) or ``.csv`` (header
         comments ``# units: m/s2``, ``# dt: ...``; columns ``time [s]``,
-        ``NAME [m/s2]``). Written atomically.
+        ``NAME [m/s2]``; ``# pad_before_s: ...`` for a corrected, padded record).
+        Written atomically.
 
     Returns
     -------
@@ -109,6 +110,9 @@ def _csv_text(recs: list[Record], path: Path) -> str:
         lines.append("# components: " + ",".join(r.component for r in recs))
     if recs[0].start_time:
         lines.append(f"# start: {recs[0].start_time}")
+    pad = recs[0].metadata.get("pad_before_s")
+    if pad:
+        lines.append(f"# pad_before_s: {float(pad)!r}")
     lines.append(",".join(["time [s]", *[f"{nm} [m/s2]" for nm in names]]))
     time = np.round(np.arange(n) * dt, 12)
     cols = [time] + [r.acc for r in recs]
