@@ -70,28 +70,37 @@ def assemble(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMatrices, *,
     nz, ny, nx = mesh.node_id.shape
     nez, ney, nex = key_grid.shape
     nk = mats.stiffness.shape[0]
-    kg = np.where(key_grid >= 0, key_grid, nk)
-    Kx = np.concatenate([mats.stiffness, np.zeros((1, 24, 24))])
-    mx = np.concatenate([mats.mass, np.zeros((1, 8, 8))])
     filled = mesh.filled
-    S = np.zeros((nz, ny, nx, 3, 27, 3))
-    Sm = np.zeros((nz, ny, nx, 27))
-    C = np.zeros((nz, ny, nx, 27), dtype=np.int8)
-    fill8 = filled.astype(np.int8)
+    uniform = nk == 1 and bool(filled.all())
+    kg = np.where(key_grid >= 0, key_grid, nk)
+    # node blocks with the key last: Kt[A, i, B, j, key], mt[A, B, key]
+    Kt = np.concatenate([mats.stiffness, np.zeros((1, 24, 24))]).reshape(nk + 1, 8, 3, 8, 3)
+    Kt = np.ascontiguousarray(np.moveaxis(Kt, 0, -1))
+    mt = np.ascontiguousarray(np.moveaxis(np.concatenate([mats.mass, np.zeros((1, 8, 8))]), 0, -1))
+    # stencils with the grid axes last, so that each block add runs along contiguous x
+    S = np.zeros((27, 3, 3, nz, ny, nx))
+    Sm = np.zeros((27, nz, ny, nx))
+    C = np.zeros((27, nz, ny, nx), dtype=bool)
     for A in range(8):
         ai, aj, ak = _OFF[A]
         sl = (slice(ak, ak + nez), slice(aj, aj + ney), slice(ai, ai + nex))
         for B in range(8):
             d = _OFF[B] - _OFF[A] + 1
             o = d[0] + 3 * d[1] + 9 * d[2]
-            blk = Kx[:, 3 * A:3 * A + 3, 3 * B:3 * B + 3][kg]  # (nez, ney, nex, 3, 3)
-            S[sl + (slice(None), o, slice(None))] += blk
-            Sm[sl + (o,)] += mx[:, A, B][kg]
-            C[sl + (o,)] |= fill8
+            if uniform:  # one element matrix everywhere: add a constant block
+                S[(o, slice(None), slice(None)) + sl] += Kt[A, :, B, :, 0][:, :, None, None, None]
+                Sm[(o,) + sl] += mt[A, B, 0]
+            else:
+                S[(o, slice(None), slice(None)) + sl] += Kt[A, :, B, :][:, :, kg]
+                Sm[(o,) + sl] += mt[A, B][kg]
+            C[(o,) + sl] |= filled
+    S = S.transpose(3, 4, 5, 1, 0, 2)  # (nz, ny, nx, i, o, j), a view
+    Sm = np.moveaxis(Sm, 0, -1)
+    C = np.moveaxis(C, 0, -1)
     g = np.flatnonzero(mesh.node_id.ravel() >= 0)
     nid = mesh.node_id.ravel()
     n = g.size
-    mask = C.reshape(-1, 27)[g] > 0  # (n, 27)
+    mask = C.reshape(-1, 27)[g]  # (n, 27)
     nb_lin = np.clip(g[:, None] + _lin_offsets((nz, ny, nx))[None], 0, nid.size - 1)
     nbr = nid[nb_lin]  # valid where mask
     del C
@@ -99,7 +108,7 @@ def assemble(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMatrices, *,
     ar3 = np.arange(3)
     # stiffness
     m4 = np.broadcast_to(mask[:, None, :, None], (n, 3, 27, 3))
-    data = S.reshape(-1, 3, 27, 3)[g][m4]
+    data = S.reshape(-1, 3, 27, 3)[g][m4]  # reshape copies into node order
     del S
     cols = (3 * nbr[:, None, :, None] + ar3[None, None, None, :]).astype(np.int32)
     indices = np.broadcast_to(cols, (n, 3, 27, 3))[m4]
