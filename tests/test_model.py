@@ -159,6 +159,7 @@ def test_effective_masses_sum_to_total_mass_and_warning():
     for sup in ({"kind": "fixed"}, dict(SOIL)):
         model = build_model(scenario(**{**_as_dict(s), "support": sup}))
         md = compute_modes(model, n_modes=model.n_dof, warn=False)
+        assert md.n_modes == model.n_dof
         # Chopra §13.2: Σ effective modal masses over all modes = total mass (ιᵀMι)
         np.testing.assert_allclose(md.effective_mass.sum(axis=0), model.total_mass, rtol=1e-9)
     with pytest.warns(GroundshakeWarning, match="ASCE 7-16"):

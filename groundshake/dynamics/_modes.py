@@ -115,8 +115,8 @@ def lowest_modes(K, M, *, n_modes: int, factor=None, shift: float = 0.0,
         A = K if shift == 0.0 else (K - shift * M)
         factor = _factor_of(sp.csr_matrix(A), solver)
     if n <= max(3 * k, 200):  # small: dense is exact and quick
-        lam, phi = sla.eigh(K.toarray(), M.toarray())
-        lam, phi = lam[:k], phi[:, :k]
+        lam, phi = sla.eigh((K - shift * M).toarray() if shift else K.toarray(), M.toarray())
+        lam, phi = lam[:k] + shift, phi[:, :k]
     elif method == "block" and (out := _block_krylov(K, M, k, factor, shift, tol)) is not None:
         lam, phi = out
     else:
@@ -231,7 +231,7 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     if n_modes is not None:
         if int(n_modes) < 1:
             raise InputError(f"analysis.modes: given {n_modes}; allowed >= 1")
-        k = min(int(n_modes), n - 1)
+        k = min(int(n_modes), n if n <= 200 else n - 1)  # all modes only by dense eigh
         lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method)
     else:
         fc = cutoff_hz if cutoff_hz is not None else (model.cutoff_hz or 50.0)
