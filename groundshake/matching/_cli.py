@@ -67,8 +67,16 @@ def cmd_match(args: argparse.Namespace) -> int:
     if target is None:
         raise InputError(f"--target: one target for {len(damping)} damping values; give "
                          "--target once per damping value")
+    if args.max_adjacent_below < 0:
+        raise InputError(f"--max-adjacent-below {args.max_adjacent_below}: allowed an integer >= 0")
+    for opt, value in (("--max-shortfall", args.max_shortfall), ("--max-excess", args.max_excess),
+                       ("--max-husid-change", args.max_husid_change)):
+        if not (np.isfinite(value) and value >= 0):
+            raise InputError(f"{opt} {value:g}: allowed a number >= 0")
     criteria = AcceptanceCriteria(max_shortfall=args.max_shortfall / 100.0,
-                                  max_excess=args.max_excess / 100.0)
+                                  max_excess=args.max_excess / 100.0,
+                                  max_adjacent_below=args.max_adjacent_below,
+                                  max_husid_change=args.max_husid_change)
 
     raws = read_records_from_args([src], args)
     records = _correct_all(raws, settings_from_args(args))
@@ -203,7 +211,9 @@ def _plot(results, path: Path) -> None:
 def register(subparsers, parents) -> None:
     """Add ``match`` to the ``groundshake`` command line."""
     from ..records._cli import add_processing_options, add_reading_options
+    from ._acceptance import AcceptanceCriteria
 
+    d = AcceptanceCriteria()  # one place for the defaults and their sources
     p = subparsers.add_parser(
         "match", parents=parents, help="adjust a record to a target spectrum (corrective wavelets)",
         description="Correct a record (unless --raw), then adjust it with corrective wavelets "
@@ -223,10 +233,18 @@ def register(subparsers, parents) -> None:
                    help="converged when max |PSA/target - 1| ≤ this, percent (default 5)")
     p.add_argument("--max-iterations", type=int, default=40, metavar="N",
                    help="most iterations (default 40)")
-    p.add_argument("--max-shortfall", type=float, default=10.0, metavar="PCT",
-                   help="acceptance: largest shortfall below the target, percent (default 10)")
-    p.add_argument("--max-excess", type=float, default=30.0, metavar="PCT",
-                   help="acceptance: largest excess above the target, percent (default 30)")
+    p.add_argument("--max-shortfall", type=float, default=100 * d.max_shortfall, metavar="PCT",
+                   help="acceptance: largest shortfall below the target, percent (default "
+                        f"{100 * d.max_shortfall:g}, USNRC SRP 3.7.1)")
+    p.add_argument("--max-excess", type=float, default=100 * d.max_excess, metavar="PCT",
+                   help="acceptance: largest excess above the target, percent (default "
+                        f"{100 * d.max_excess:g}, USNRC SRP 3.7.1)")
+    p.add_argument("--max-adjacent-below", type=int, default=d.max_adjacent_below, metavar="N",
+                   help="acceptance: most adjacent periods below the target (default "
+                        f"{d.max_adjacent_below}, USNRC SRP 3.7.1)")
+    p.add_argument("--max-husid-change", type=float, default=d.max_husid_change, metavar="X",
+                   help="acceptance: largest change of the normalised Husid curve, 0-1 "
+                        f"(default {d.max_husid_change:g}, our choice)")
     p.add_argument("-o", "--output", metavar="OUT", help="write the matched record: .mseed, "
                    ".sac or .csv (m/s2)")
     p.add_argument("--plot", metavar="PNG", help="plot spectra and acc/vel/disp before and after")
