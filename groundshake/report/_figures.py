@@ -542,7 +542,8 @@ def mode_shapes_figure(grid: VoxelGrid, node_index: np.ndarray,
         Grid index of each node (:meth:`VoxelGrid.node_index`).
     shapes : sequence of (title, displacement (n_nodes, 3))
         Each shape is scaled so its largest displacement is 12 % of the block's size;
-        colour shows |u| relative to its largest value.
+        shade runs from the smallest to the largest |u| on the block; the dashed box is
+        the undeformed block.
     """
     n = max(1, len(shapes))
     cols = min(columns, n)
@@ -560,12 +561,27 @@ def mode_shapes_figure(grid: VoxelGrid, node_index: np.ndarray,
         U = np.zeros(X0.shape + (3,))
         U[i, j, k] = u
         corners = (X0 + s * U[..., 0], Y0 + s * U[..., 1], Z0 + s * U[..., 2])
-        mag = np.linalg.norm(U, axis=-1) / (umax if umax > 0 else 1.0)
+        mag = np.linalg.norm(U, axis=-1)
         cellmag = 0.125 * sum(mag[a:a + mag.shape[0] - 1, b:b + mag.shape[1] - 1,
                                   c:c + mag.shape[2] - 1]
                               for a in (0, 1) for b in (0, 1) for c in (0, 1))
-        colours = SHAPE_MAP(np.clip(cellmag, 0, 1))
+        inside = cellmag[grid.filled]
+        lo_m, hi_m = (float(inside.min()), float(inside.max())) if inside.size else (0.0, 1.0)
+        shade = (cellmag - lo_m) / (hi_m - lo_m) if hi_m > lo_m else np.full(cellmag.shape, 0.6)
+        colours = SHAPE_MAP(np.clip(0.15 + 0.85 * shade, 0, 1))
         _bricks(ax, grid, colours, corners, edges=grid.filled.sum() <= 1500)
+        # the undeformed block's bounding box, for scale
+        bx = (grid.xs[[0, -1]], grid.ys[[0, -1]], grid.zs[[0, -1]])
+        for a in range(3):
+            b_, c_ = [d for d in range(3) if d != a]
+            for vb in bx[b_]:
+                for vc in bx[c_]:
+                    line = np.zeros((2, 3))
+                    line[:, a] = bx[a]
+                    line[:, b_] = vb
+                    line[:, c_] = vc
+                    ax.plot(line[:, 0], line[:, 1], line[:, 2], color=PALETTE[6],
+                            linewidth=0.6, linestyle="--")
         lo = np.array([c.min() for c in corners])
         hi = np.array([c.max() for c in corners])
         _aspect(ax, lo, hi)

@@ -597,7 +597,8 @@ class _Builder:
             return '<p class="none">mode_shapes.csv has no mode columns.</p>'
         return self._fig(lambda: F.mode_shapes_figure(grid, index, shapes),
                          "The first mode shapes, exaggerated (largest displacement drawn as 12 % "
-                         "of the block's size); shade shows |u| relative to its largest value.",
+                         "of the block's size); shade runs from the smallest |u| (light) to the "
+                         "largest (dark); the dashed box is the undeformed block.",
                          fid="fig-mode-shapes")
 
     # ----------------------------------------------------------------- results
