@@ -8,6 +8,7 @@ from pathlib import Path
 from .._cautions import CAUTIONS, SCREENING_NOTE
 from .._cli_common import print_json, table
 from .._errors import InputError
+from .._progress import Progress
 
 __all__ = ["register", "cmd_modes"]
 
@@ -28,9 +29,13 @@ def cmd_modes(args) -> int:
     with warnings.catch_warnings(record=True) as wlist:
         warnings.simplefilter("always")
         t0 = time.perf_counter()
-        model = build_model(scenario)
+        with Progress("model", total=1) as bar:
+            model = build_model(scenario)
+            bar.advance()
         t_build = time.perf_counter() - t0
-        modes = compute_modes(model, cutoff_hz=None if n_modes else cutoff, n_modes=n_modes)
+        with Progress("modes", total=1) as bar:
+            modes = compute_modes(model, cutoff_hz=None if n_modes else cutoff, n_modes=n_modes)
+            bar.advance()
         t_modes = time.perf_counter() - t0 - t_build
     for w in wlist:
         msg = str(w.message)
