@@ -278,3 +278,20 @@ def test_voxel_grid_recovers_a_box_grid():
     # the grid is the node coordinates by construction
     assert np.allclose(g.xs, xs) and np.allclose(g.zs, zs) and g.filled.all()
     assert voxel_grid(C + [0.3, 0, 0], N) is None               # centres off the cell middles
+
+
+def test_fp_given_by_the_run_is_shown_beside_the_time_history(tmp_path):
+    import json
+
+    out = make_output_folder(tmp_path / "run", files=())
+    s = json.loads((out / "summary.json").read_text())
+    s["equipment"]["transformer"]["fp"] = {"fp": 52955.9, "fv": 35303.9, "peak_tension": 40e3,
+                                           "peak_shear": 20e3, "time_history_peak_tension": 95e3,
+                                           "time_history_peak_shear": 22e3}
+    (out / "summary.json").write_text(json.dumps(s))
+    text = write_report(out, progress=False).read_text(encoding="utf-8")
+    body = re.search(r'<section id="anchorage">(.*?)</section>', text, re.S).group(1)
+    # ratio = time-history peak / static value (definition of the comparison)
+    assert f"{95e3 / 40e3:.4g}" in body and f"{22e3 / 20e3:.4g}" in body
+    assert "52956" in body                                      # Fp itself, in N, 4 digits
+    assert "not a code check" in html.unescape(body)

@@ -63,7 +63,7 @@ _UNIT_RULES = (
     (re.compile(r"displacement|pgd|disp"), "m"),
     (re.compile(r"moment|torque|_m[xyz]$"), "N·m"),
     (re.compile(r"stress|mises|modulus|pressure"), "Pa"),
-    (re.compile(r"shear|tension|force|reaction|weight|_f[xyz]$|^f[xyz]$|fp"), "N"),
+    (re.compile(r"shear|tension|force|reaction|weight|_f[xyz]$|^f[xyzpv]$|fp"), "N"),
     (re.compile(r"mass"), "kg"),
     (re.compile(r"density"), "kg/m³"),
 )

@@ -812,7 +812,21 @@ class _Builder:
             given = eq.get("fp")
             params = _get(scen_eq.get(name, {}), "fp")
             if isinstance(given, Mapping) and given:
-                out.append(f"<h3>Fp comparison: {esc(name)}</h3>" + key_values(given))
+                out.append(f"<h3>Fp comparison: {esc(name)}</h3>")
+                rows, used = [], set()
+                for q, a, b in (("bolt tension [N]", "peak_tension", "time_history_peak_tension"),
+                                ("bolt shear [N]", "peak_shear", "time_history_peak_shear")):
+                    fa, fb = _as_float(given.get(a)), _as_float(given.get(b))
+                    if fa is not None and fb is not None:
+                        rows.append([q, fa, fb, fb / fa if fa > 0 else None])
+                        used.update((a, b))
+                if rows:
+                    out.append('<p class="note">Largest bolt forces under the equivalent static '
+                               "force Fp (from the parameters entered) beside the time-history "
+                               "peaks: a screening comparison, not a code check.</p>"
+                               + table(rows, ["quantity", "under Fp (static)",
+                                              "time-history peak", "ratio [–]"]))
+                out.append(key_values({k: v for k, v in given.items() if k not in used}))
                 continue
             if not isinstance(params, Mapping) or _as_float(params.get("sds")) is None:
                 continue
