@@ -100,3 +100,34 @@ def test_report_command_refuses_to_overwrite_without_force(tmp_path, capsys):
     assert main(["report", str(out)]) == 2
     assert "already exists" in capsys.readouterr().err
     assert main(["report", str(out), "--force", "--quiet"]) == 0
+
+
+def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
+    """The demo's own steps with the analysis stubbed by an invented output folder
+    (INVENTED TEST DATA), so --force can be checked without a full run."""
+    import groundshake.results as results
+    from groundshake.cli import main
+    from groundshake.report import write_report
+    from test_report_fixture import make_output_folder
+
+    class Fake:
+        summary = {"title": "stub", "warnings": [], "provenance": {}}
+
+    def fake_write(res, out, *, overwrite=False, **kw):
+        make_output_folder(out, files=())
+        write_report(out, progress=False)
+        return out
+
+    monkeypatch.setattr(results, "analyse", lambda scenario, **kw: Fake())
+    monkeypatch.setattr(results, "write_outputs", fake_write)
+    folder = tmp_path / "demo"
+    assert main(["demo", "-o", str(folder), "--quiet"]) == 0    # Unix convention: success
+    assert (folder / "results" / "report.html").is_file()
+    assert main(["demo", "-o", str(folder), "--quiet"]) == 2    # refused without --force
+    (folder / "records" / "demo-h1.csv").write_text("damaged")
+    assert main(["demo", "-o", str(folder), "--force", "--quiet"]) == 0
+    # --force regenerates the inputs: the shipped record again, byte for byte
+    assert (folder / "records" / "demo-h1.csv").read_bytes() == \
+        (ROOT / "records" / "demo-h1.csv").read_bytes()
+    out = capsys.readouterr().out
+    assert f"report: {folder / 'results' / 'report.html'}" in out

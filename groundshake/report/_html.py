@@ -280,7 +280,10 @@ footer { margin-top: 34px; border-top: 1px solid var(--rule); padding-top: 8px; 
   nav.toc { display: none; }
   section { break-before: auto; }
   h2 { break-after: avoid; }
-  figure, table { break-inside: avoid; }
+  figure { break-inside: avoid; }
+  table { font-size: 9px; }
+  tr { break-inside: avoid; }
+  td, th { overflow-wrap: anywhere; }
   figure img { border: 0; }
   .scroll { overflow: visible; }
   a { color: inherit; text-decoration: none; }
