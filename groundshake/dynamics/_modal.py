@@ -194,8 +194,10 @@ def pruned_peak(A: np.ndarray, Z: np.ndarray, *, rows_per_chunk: int | None = No
                 ) -> tuple[int, float, int]:
     """Exact max |A Z| over rows and columns without forming A Z whole.
 
-    Rows are taken in decreasing order of the bound Σₖ |A_ik| max_t |Z_k(t)| and
-    stop as soon as the bound of the rest cannot beat the best exact peak.
+    Two exact bounds prune the work: per row, Σₖ |A_ik| max_t |Z_k(t)|; per row and
+    column, ‖A_i D‖·‖D⁻¹ z(t)‖ with D = diag(max_t |Z_k|) (Cauchy-Schwarz). All rows
+    are first evaluated at the columns of largest ‖D⁻¹ z(t)‖; then only the rows and
+    columns whose bounds can still beat the best exact peak.
 
     Parameters
     ----------
@@ -208,18 +210,45 @@ def pruned_peak(A: np.ndarray, Z: np.ndarray, *, rows_per_chunk: int | None = No
     """
     if A.shape[0] == 0 or Z.shape[1] == 0:
         return -1, 0.0, 0
+    n_t = Z.shape[1]
     if rows_per_chunk is None:                 # about 32 MB of exact values at a time
-        rows_per_chunk = max(1, 4_000_000 // max(1, Z.shape[1]))
-    bound = np.abs(A) @ np.max(np.abs(Z), axis=1)
-    order = np.argsort(-bound, kind="stable")
+        rows_per_chunk = max(1, 4_000_000 // max(1, n_t))
+    zmax = np.max(np.abs(Z), axis=1)
+    bound = np.abs(A) @ zmax
+    scale = np.where(zmax > 0, zmax, 1.0)
+    nw = np.sqrt(np.sum((Z / scale[:, None]) ** 2, axis=0))
+    order = np.argsort(-nw, kind="stable")
+    nw_sorted = nw[order]
+    an = np.sqrt(np.sum((A * scale[None, :]) ** 2, axis=1))          # ‖A_i D‖
+    head = np.sort(order[:min(n_t, 64)])
     best, best_row, best_col = -1.0, -1, 0
-    for start in range(0, order.size, rows_per_chunk):
-        idx = order[start:start + rows_per_chunk]
-        if bound[idx[0]] <= best:
-            break
-        vals = np.abs(A[idx] @ Z)
-        flat = int(np.argmax(vals))
-        r, c = divmod(flat, vals.shape[1])
-        if vals[r, c] > best:
-            best, best_row, best_col = float(vals[r, c]), int(idx[r]), int(c)
+
+    def scan(rows: np.ndarray, cols: np.ndarray) -> None:
+        nonlocal best, best_row, best_col
+        per = max(1, (rows_per_chunk * n_t) // max(1, cols.size))
+        for s0 in range(0, rows.size, per):
+            idx = rows[s0:s0 + per]
+            vals = np.abs(A[idx] @ Z[:, cols])
+            flat = int(np.argmax(vals))
+            r, c = divmod(flat, vals.shape[1])
+            if vals[r, c] > best:
+                best, best_row, best_col = float(vals[r, c]), int(idx[r]), int(cols[c])
+
+    scan(np.arange(A.shape[0]), head)
+    live = np.flatnonzero(bound > best)
+    if live.size:
+        with np.errstate(divide="ignore", invalid="ignore"):
+            thr = np.where(an[live] > 0, best / an[live], np.inf)
+        k = np.searchsorted(-nw_sorted, -thr, side="left")
+        keep = k > head.size
+        live, k = live[keep], k[keep]
+        srt = np.argsort(-bound[live], kind="stable")
+        live, k = live[srt], k[srt]
+        for s0 in range(0, live.size, 256):
+            idx = live[s0:s0 + 256]
+            idx = idx[bound[idx] > best]
+            if idx.size == 0:
+                continue
+            kk = int(np.max(k[s0:s0 + 256]))
+            scan(idx, np.sort(order[:kk]))
     return best_row, max(best, 0.0), best_col
