@@ -330,15 +330,55 @@ class _Builder:
                 pair = []
                 for state in ("raw", "corrected"):
                     i = cols.get((q, state))
-                    pair.append(None if i is None else (time_for(i, comp, state), t.column(i)))
+                    if i is None:
+                        pair.append(None)
+                        continue
+                    tt = time_for(i, comp, state)
+                    if state == "corrected":
+                        tt = tt - self.pad_before(comp, cols, time_for)
+                    pair.append((tt, t.column(i)))
                 unit = t.unit(cols.get((q, "corrected"), cols.get((q, "raw")))) or names[q][1]
                 rows.append((names[q][0], unit, pair[0], pair[1]))
             if rows:
                 out.append(self._fig(lambda rows=rows, comp=comp: F.record_figure(
                     rows, title=f"component {comp}"),
                     f"Component {comp}: acceleration, velocity and displacement as read (grey) "
-                    f"and after correction (colour)."))
+                    f"and after correction (colour); the corrected record's leading pad is "
+                    f"drawn at negative time, so both share the time of the original record."))
         return "".join(out) or '<p class="none">records.csv has no raw/corrected columns.</p>'
+
+    def pad_before(self, comp: str, cols: Mapping[tuple[str, str], int], time_for) -> float:
+        """Length [s] of the zero pad ahead of the corrected record of ``comp``.
+
+        Taken from summary.json (``records[i].pad_before_s`` or its metadata) when
+        given; otherwise, when both time columns start together and the corrected
+        series is longer, half the difference in length (processing pads both ends
+        equally, Boore 2005); else 0.
+        """
+        for r in self.record_list():
+            if str(r.get("direction", r.get("component", ""))).lower() != comp.lower():
+                continue
+            for src in (r, r.get("metadata") or {}):
+                v = _as_float(src.get("pad_before_s")) if isinstance(src, Mapping) else None
+                if v is not None:
+                    return v
+        t = self.f.table("records")
+        i_raw = next((cols[k] for k in cols if k[1] == "raw"), None)
+        i_cor = next((cols[k] for k in cols if k[1] == "corrected"), None)
+        if t is None or i_raw is None or i_cor is None:
+            return 0.0
+        spans = []
+        for i, state in ((i_raw, "raw"), (i_cor, "corrected")):
+            tt = time_for(i, comp, state)
+            ok = np.isfinite(tt) & np.isfinite(t.column(i))
+            if not ok.any():
+                return 0.0
+            spans.append((float(tt[ok][0]), float(tt[ok][-1])))
+        (r0, r1), (c0, c1) = spans
+        step = (r1 - r0) / max(1, t.n_rows - 1)
+        if abs(r0 - c0) <= step and (c1 - c0) > (r1 - r0) * 1.001:
+            return 0.5 * ((c1 - c0) - (r1 - r0))
+        return 0.0
 
     def ground_spectra(self) -> str:
         t = self.f.table("ground_spectra")
