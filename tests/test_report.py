@@ -295,3 +295,34 @@ def test_fp_given_by_the_run_is_shown_beside_the_time_history(tmp_path):
     assert f"{95e3 / 40e3:.4g}" in body and f"{22e3 / 20e3:.4g}" in body
     assert "52956" in body                                      # Fp itself, in N, 4 digits
     assert "not a code check" in html.unescape(body)
+
+
+def test_corrected_record_is_drawn_on_the_original_time(tmp_path):
+    import csv as _csv
+    import json
+
+    from groundshake.report._load import load_output
+    from groundshake.report._report import _Builder
+
+    out = make_output_folder(tmp_path / "run", files=())
+    dt = 0.01
+    raw_t = np.arange(1001) * dt                 # 10 s as read
+    cor_t = np.arange(1601) * dt                 # 3 s of zeros padded at each end
+    with open(out / "records.csv", "w", newline="") as fh:
+        w = _csv.writer(fh)
+        w.writerow(["time [s]", "x raw time [s]", "x raw acc [m/s2]", "x corrected time [s]",
+                    "x corrected acc [m/s2]"])
+        for k in range(cor_t.size):
+            r = [raw_t[k], 0.1] if k < raw_t.size else ["", ""]
+            w.writerow([cor_t[k], *r, cor_t[k], 0.1])
+    b = _Builder(load_output(out))
+    t = b.f.table("records")
+    cols = {("acc", "raw"): 2, ("acc", "corrected"): 4}
+    time_for = lambda i, comp, state: t.column(i - 1)           # noqa: E731
+    # Boore (2005): the pads are equal at both ends, so the lead pad is half the extra
+    assert b.pad_before("x", cols, time_for) == pytest.approx(3.0, abs=1e-9)
+    s = json.loads((out / "summary.json").read_text())
+    s["records"][0]["direction"] = "x"
+    s["records"][0]["pad_before_s"] = 2.5                       # stated: taken as given
+    (out / "summary.json").write_text(json.dumps(s))
+    assert _Builder(load_output(out)).pad_before("x", cols, time_for) == 2.5
