@@ -216,32 +216,7 @@ def history_range(acc, src, coef, b0, b1, hd, hv, ha):
     _history_block(acc, src, coef, b0 * NB, min(n_osc, b1 * NB), hd, hv, ha)
 
 
-_NBUCKET = 32   # length classes of the rotated-peak search
-_ARC_MARGIN = 0.01   # degrees added to each side of an arc (covers the atan2 error)
-
-
-@njit(cache=True, nogil=True, inline="always")
-def _fast_atan2_deg(y, x):
-    """atan2 in degrees, error below 1e-4 degrees (octant reduction + odd polynomial)."""
-    ax = abs(x); ay = abs(y)
-    if ax == 0.0 and ay == 0.0:
-        return 0.0
-    swap = ay > ax
-    t = ax / ay if swap else ay / ax          # t in [0, 1]
-    # atan(t) on [0, 1]: reduce around tan(π/8) for accuracy
-    k = t > 0.41421356237309503
-    t2 = (t - 1.0) / (t + 1.0) if k else t    # atan(t) = π/4 + atan((t-1)/(t+1))
-    z = t2 * t2
-    p = t2 * (1.0 + z * (-0.3333333333333333 + z * (0.2 + z * (-0.14285714285714285
-              + z * (0.1111111111111111 + z * (-0.09090909090909091 + z * 0.07692307692307693))))))
-    a = p + 0.7853981633974483 if k else p
-    if swap:
-        a = 1.5707963267948966 - a
-    if x < 0.0:
-        a = 3.141592653589793 - a
-    if y < 0.0:
-        a = -a
-    return a * 57.29577951308232
+_ARC_MARGIN = 0.01   # degrees added to each side of an arc (the atan2 error is < 1e-5°)
 
 
 @njit(cache=True, nogil=True, fastmath={"contract"})
@@ -270,17 +245,71 @@ def _project_arc(a, b, cs, sn, out, lo, hi):
         _project_range(a, b, cs, sn, out, 0, k1 - na)
 
 
+@njit(cache=True, nogil=True, error_model="numpy")
+def _atan2_deg(y, x):
+    """atan2 in degrees, error below 1e-5 degrees (octant reduction + odd polynomial);
+    NaN for (0, 0)."""
+    ax = abs(x)
+    ay = abs(y)
+    hi = max(ax, ay)
+    t = min(ax, ay) / max(hi, 1e-300)
+    k = t > 0.41421356237309503
+    t2 = (t - 1.0) / (t + 1.0) if k else t          # atan t = π/4 + atan((t-1)/(t+1))
+    z = t2 * t2
+    p = t2 * (1.0 + z * (-0.3333333333333333 + z * (0.2 + z * (-0.14285714285714285
+              + z * (0.1111111111111111 + z * (-0.09090909090909091
+                                               + z * 0.07692307692307693))))))
+    a = p + 0.7853981633974483 if k else p
+    a = 1.5707963267948966 - a if ay > ax else a
+    a = 3.141592653589793 - a if x < 0.0 else a
+    a = -a if y < 0.0 else a
+    return a * 57.29577951308232 if hi > 0.0 else np.nan
+
+
 @njit(cache=True, nogil=True)
+def _visit(i, n, u1, u2, cs, sn, out):
+    """Raise the rotated peaks with sample i at the angles where it can be a local
+    maximum in time: e·(u_i - u_{i-1}) ≥ 0 ≥ e·(u_{i+1} - u_i) (or the reverse)."""
+    na = cs.size
+    a = u1[i]
+    b = u2[i]
+    if i == 0 or i == n - 1:
+        _project_range(a, b, cs, sn, out, 0, na)
+        return
+    al1 = _atan2_deg(b - u2[i - 1], a - u1[i - 1])
+    al2 = _atan2_deg(u2[i + 1] - b, u1[i + 1] - a)
+    if not (al1 == al1 and al2 == al2):      # a zero-length segment: all angles
+        _project_range(a, b, cs, sn, out, 0, na)
+        return
+    beta = al2 - al1
+    if beta > 180.0:
+        beta -= 360.0
+    elif beta <= -180.0:
+        beta += 360.0
+    if beta >= 0.0:
+        lo = al1 - 90.0
+        hi = lo + beta
+    else:
+        hi = al1 + 90.0
+        lo = hi + beta
+    _project_arc(a, b, cs, sn, out, lo - _ARC_MARGIN + 360.0, hi + _ARC_MARGIN + 360.0)
+
+
+_NCLASS = 16    # length classes of the candidates (counting sort)
+_FIRST = 0.36   # candidates first: squared length at least 0.36 of the largest (0.6 R)
+
+
+@njit(cache=True, nogil=True, error_model="numpy")
 def rotated_peaks(u1, u2, cs, sn, out):
     """out[k] = max_i |u1[i]·cos k° + u2[i]·sin k°| for k = 0..len(cs)-1 (1° steps), exactly.
 
     Two exact prunings. (1) For any angle the maximum over samples is a local maximum
     in time of |projection|, so an interior sample can hold it only at the angles
     whose direction e satisfies e·(u_i - u_{i-1}) ≥ 0 ≥ e·(u_{i+1} - u_i) (or the
-    reverse): an arc as wide as the curve's turn at that sample. (2) Samples are
-    visited longest first (a counting sort into length classes); one no longer than
-    the smallest running peak L cannot raise any, and the search stops at the first
-    length class entirely below L.
+    reverse): an arc as wide as the curve's turn at that sample. (2) Samples at least
+    0.6 of the longest are visited longest first (counting sort into length classes),
+    then the rest in time order; a sample no longer than the smallest running peak L
+    cannot raise any, so whole classes below L are skipped.
     """
     n = u1.size
     na = cs.size
@@ -292,58 +321,46 @@ def rotated_peaks(u1, u2, cs, sn, out):
     rmax2 = 0.0
     for i in range(n):
         r2[i] = u1[i] * u1[i] + u2[i] * u2[i]
-        if r2[i] > rmax2:
-            rmax2 = r2[i]
+        rmax2 = max(rmax2, r2[i])
     if rmax2 == 0.0:
         return
-    count = np.zeros(_NBUCKET + 1, np.int64)
-    cls = np.empty(n, np.int64)
+    thr2 = _FIRST * rmax2
+    scale = _NCLASS / (rmax2 - thr2)
+    count = np.zeros(_NCLASS + 1, np.int64)
     for i in range(n):
-        c = int((1.0 - r2[i] / rmax2) * _NBUCKET)
-        c = min(max(c, 0), _NBUCKET - 1)
-        cls[i] = c
-        count[c + 1] += 1
-    for c in range(_NBUCKET):
+        if r2[i] >= thr2:
+            c = min(_NCLASS - 1, int((rmax2 - r2[i]) * scale))
+            count[c + 1] += 1
+    for c in range(_NCLASS):
         count[c + 1] += count[c]
-    order = np.empty(n, np.int64)
-    fill = count[:_NBUCKET].copy()
+    order = np.empty(count[_NCLASS], np.int64)
+    fill = count[:_NCLASS].copy()
     for i in range(n):
-        order[fill[cls[i]]] = i
-        fill[cls[i]] += 1
-    for c in range(_NBUCKET):
+        if r2[i] >= thr2:
+            c = min(_NCLASS - 1, int((rmax2 - r2[i]) * scale))
+            order[fill[c]] = i
+            fill[c] += 1
+    low2 = 0.0
+    for c in range(_NCLASS):
         low = out[0]
         for k in range(1, na):
-            if out[k] < low:
-                low = out[k]
+            low = min(low, out[k])
         low2 = low * low
-        if rmax2 * (1.0 - c / _NBUCKET) <= low2:
+        if rmax2 - c / scale <= low2:            # the whole class is no longer than L
             break
         for m in range(count[c], count[c + 1]):
             i = order[m]
-            if r2[i] <= low2:
-                continue
-            a = u1[i]; b = u2[i]
-            if i == 0 or i == n - 1:
-                _project_range(a, b, cs, sn, out, 0, na)
-                continue
-            d1x = a - u1[i - 1]; d1y = b - u2[i - 1]
-            d2x = u1[i + 1] - a; d2y = u2[i + 1] - b
-            if (d1x == 0.0 and d1y == 0.0) or (d2x == 0.0 and d2y == 0.0):
-                _project_range(a, b, cs, sn, out, 0, na)
-                continue
-            al1 = _fast_atan2_deg(d1y, d1x)
-            beta = _fast_atan2_deg(d2y, d2x) - al1
-            if beta > 180.0:
-                beta -= 360.0
-            elif beta <= -180.0:
-                beta += 360.0
-            if beta >= 0.0:
-                lo = al1 - 90.0
-                hi = lo + beta
-            else:
-                hi = al1 + 90.0
-                lo = hi + beta
-            _project_arc(a, b, cs, sn, out, lo - _ARC_MARGIN + 360.0, hi + _ARC_MARGIN + 360.0)
+            if r2[i] > low2:
+                _visit(i, n, u1, u2, cs, sn, out)
+    low = out[0]
+    for k in range(1, na):
+        low = min(low, out[k])
+    low2 = low * low
+    if low2 >= thr2:
+        return
+    for i in range(n):
+        if r2[i] > low2 and r2[i] < thr2:
+            _visit(i, n, u1, u2, cs, sn, out)
 
 
 @njit(cache=True, nogil=True, fastmath={"contract"})
