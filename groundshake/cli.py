@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import signal
 import sys
 import warnings
@@ -90,6 +91,13 @@ def main(argv: list[str] | None = None) -> int:
         where = f"{e.filename}: " if getattr(e, "filename", None) else ""
         sys.stderr.write(f"groundshake: error: {where}{e.strerror or e}\n")
         return 2
+    except BrokenPipeError:
+        # the reader of stdout went away (``groundshake info ... | head``): not an error
+        try:
+            sys.stdout = open(os.devnull, "w")
+        except OSError:
+            pass
+        return 0
     except KeyboardInterrupt:
         if debug:
             raise
