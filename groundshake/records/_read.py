@@ -235,13 +235,22 @@ def _records_from_stream(stream, path: Path, user_units: str | None,
         if name in names:
             name = f"{name}.{index}"
         names.add(name)
-        records.append(Record(acc=data * UNITS[rec_units], dt=step, name=name,
+        records.append(Record(acc=_to_si(data, rec_units, where), dt=step, name=name,
                               component=tr.stats.channel, source=where, units=rec_units,
                               start_time=start_text, metadata=meta))
     return records
 
 
 # -- shared checks -----------------------------------------------------------------
+def _to_si(values: np.ndarray, units: str, where: str) -> np.ndarray:
+    """Values in ``units`` → m/s²; an overflow is the file's fault, said in one line."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = np.asarray(values, dtype=float) * UNITS[units]
+    if not np.all(np.isfinite(out)):
+        raise RecordError(f"{where}: values too large to be accelerations in {units} "
+                          "(they overflow when converted to m/s2)")
+    return out
+
 
 def _resolve_units(file_units: str | None, user_units: str | None, label: str) -> str:
     if file_units is not None and user_units is not None and file_units != user_units:
@@ -470,7 +479,7 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
         for key in ("station", "event", "title"):
             if key in meta:
                 md[key] = meta[key]
-        records.append(Record(acc=acc * UNITS[rec_units], dt=step, name=name,
+        records.append(Record(acc=_to_si(acc, rec_units, where), dt=step, name=name,
                               component=component, source=where, units=rec_units,
                               start_time=meta.get("start", meta.get("start time", "")),
                               metadata=md))
