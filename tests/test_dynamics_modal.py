@@ -49,3 +49,16 @@ def test_pruned_peak_equals_brute_force(seed):
     X = np.abs(A @ Z)                                    # numpy brute force
     i, j = np.unravel_index(np.argmax(X), X.shape)
     assert (row, col) == (i, j) and val == pytest.approx(X[i, j], rel=1e-12)
+
+
+def test_pruned_peak_on_a_smooth_field_of_near_equal_rows():
+    # a block moving almost rigidly: thousands of rows within 1 % of each other
+    rng = np.random.default_rng(7)
+    base = rng.normal(size=6)
+    A = base[None, :] * (1 + 0.01 * rng.random((4000, 1))) + 0.002 * rng.normal(size=(4000, 6))
+    t = np.arange(5000) * 0.005
+    Z = np.vstack([np.exp(-((t - 8) / 3) ** 2) * np.sin(2 * np.pi * (0.7 + k) * t) for k in range(6)])
+    row, val, col = pruned_peak(A, Z)
+    X = np.abs(A @ Z)                                    # numpy brute force
+    i, j = np.unravel_index(np.argmax(X), X.shape)
+    assert (row, col) == (i, j) and val == pytest.approx(X[i, j], rel=1e-12)

@@ -242,13 +242,15 @@ def pruned_peak(A: np.ndarray, Z: np.ndarray, *, rows_per_chunk: int | None = No
         k = np.searchsorted(-nw_sorted, -thr, side="left")
         keep = k > head.size
         live, k = live[keep], k[keep]
-        srt = np.argsort(-bound[live], kind="stable")
+        srt = np.argsort(k, kind="stable")            # rows needing few columns first
         live, k = live[srt], k[srt]
-        for s0 in range(0, live.size, 256):
-            idx = live[s0:s0 + 256]
-            idx = idx[bound[idx] > best]
-            if idx.size == 0:
+        for s0 in range(0, live.size, 1024):
+            idx = live[s0:s0 + 1024]
+            with np.errstate(divide="ignore", invalid="ignore"):
+                thr = np.where(an[idx] > 0, best / an[idx], np.inf)
+            kk = np.searchsorted(-nw_sorted, -thr, side="left")    # with the best so far
+            sel = (bound[idx] > best) & (kk > head.size)
+            if not np.any(sel):
                 continue
-            kk = int(np.max(k[s0:s0 + 256]))
-            scan(idx, np.sort(order[:kk]))
+            scan(idx[sel], np.sort(order[head.size:int(np.max(kk[sel]))]))
     return best_row, max(best, 0.0), best_col
