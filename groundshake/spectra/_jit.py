@@ -229,6 +229,12 @@ def _project_range(a, b, cs, sn, out, k0, k1):
 def _project_arc(a, b, cs, sn, out, lo, hi):
     """Project (a, b) on the integer angles in [lo, hi] degrees (any real lo ≤ hi)."""
     na = cs.size
+    if hi - lo < 1.0:                # the usual case: a narrow arc holds one angle or none
+        k = int(np.ceil(lo))
+        if k <= hi:
+            k %= na
+            out[k] = max(out[k], abs(a * cs[k] + b * sn[k]))
+        return
     if hi - lo >= na - 1:
         _project_range(a, b, cs, sn, out, 0, na)
         return
@@ -267,20 +273,28 @@ def _atan2_deg(y, x):
 
 
 @njit(cache=True, nogil=True)
-def _visit(i, n, u1, u2, cs, sn, out):
+def _visit(i, n, u1, u2, cs, sn, out, prev_i, prev_al):
     """Raise the rotated peaks with sample i at the angles where it can be a local
-    maximum in time: e·(u_i - u_{i-1}) ≥ 0 ≥ e·(u_{i+1} - u_i) (or the reverse)."""
+    maximum in time: e·(u_i - u_{i-1}) ≥ 0 ≥ e·(u_{i+1} - u_i) (or the reverse).
+
+    Returns the direction of the segment after sample i, which is the segment before
+    sample i + 1: a caller visiting i + 1 next passes it back as ``prev_al`` with
+    ``prev_i = i`` and saves one arctangent.
+    """
     na = cs.size
     a = u1[i]
     b = u2[i]
     if i == 0 or i == n - 1:
         _project_range(a, b, cs, sn, out, 0, na)
-        return
-    al1 = _atan2_deg(b - u2[i - 1], a - u1[i - 1])
+        return np.nan
+    if prev_i == i - 1:
+        al1 = prev_al
+    else:
+        al1 = _atan2_deg(b - u2[i - 1], a - u1[i - 1])
     al2 = _atan2_deg(u2[i + 1] - b, u1[i + 1] - a)
     if not (al1 == al1 and al2 == al2):      # a zero-length segment: all angles
         _project_range(a, b, cs, sn, out, 0, na)
-        return
+        return al2
     beta = al2 - al1
     if beta > 180.0:
         beta -= 360.0
@@ -293,6 +307,7 @@ def _visit(i, n, u1, u2, cs, sn, out):
         hi = al1 + 90.0
         lo = hi + beta
     _project_arc(a, b, cs, sn, out, lo - _ARC_MARGIN + 360.0, hi + _ARC_MARGIN + 360.0)
+    return al2
 
 
 _NCLASS = 16    # length classes of the candidates (counting sort)
@@ -341,6 +356,8 @@ def rotated_peaks(u1, u2, cs, sn, out):
             order[fill[c]] = i
             fill[c] += 1
     low2 = 0.0
+    prev_i = -2
+    prev_al = np.nan
     for c in range(_NCLASS):
         low = out[0]
         for k in range(1, na):
@@ -351,16 +368,19 @@ def rotated_peaks(u1, u2, cs, sn, out):
         for m in range(count[c], count[c + 1]):
             i = order[m]
             if r2[i] > low2:
-                _visit(i, n, u1, u2, cs, sn, out)
+                prev_al = _visit(i, n, u1, u2, cs, sn, out, prev_i, prev_al)
+                prev_i = i
     low = out[0]
     for k in range(1, na):
         low = min(low, out[k])
     low2 = low * low
     if low2 >= thr2:
         return
+    prev_i = -2
     for i in range(n):
         if r2[i] > low2 and r2[i] < thr2:
-            _visit(i, n, u1, u2, cs, sn, out)
+            prev_al = _visit(i, n, u1, u2, cs, sn, out, prev_i, prev_al)
+            prev_i = i
 
 
 @njit(cache=True, nogil=True, fastmath={"contract"})
