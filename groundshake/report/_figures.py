@@ -447,6 +447,9 @@ def model_figure(grid: VoxelGrid | None, *, cell_part: np.ndarray | None = None,
     fig = _figure(8.0, 5.6)
     fig.subplots_adjust(left=0.0, right=1.0, top=1.0, bottom=0.02)
     ax = fig.add_subplot(projection="3d")
+    # Draw in call order (block, equipment, bolts, sensors) so that the bolts under an
+    # equipment envelope stay visible through it.
+    ax.computed_zorder = False
     pts = []
     tints = ["#c9d6d8", "#e3d3b3", "#cfc4da", "#cbd7bb", "#e2c2b8", "#c3cdd8"]
     if grid is not None:
@@ -470,7 +473,7 @@ def model_figure(grid: VoxelGrid | None, *, cell_part: np.ndarray | None = None,
         ax.plot([], [], "s", color=tints[k % len(tints)], label=f"part: {mpl_text(name)}")
     for name, lo, hi in equipment:
         ax.add_collection3d(Poly3DCollection(_box_faces(lo, hi), facecolor=PALETTE[2],
-                                             edgecolor="#7a5210", linewidth=0.7, alpha=0.28))
+                                             edgecolor="#7a5210", linewidth=0.7, alpha=0.2))
         ax.text(*(0.5 * (np.asarray(lo) + np.asarray(hi)) + [0, 0, 0.5 * (hi[2] - lo[2])]),
                 mpl_text(name), fontsize=7.5, color="#7a5210", ha="center")
         pts += [np.asarray(lo), np.asarray(hi)]
