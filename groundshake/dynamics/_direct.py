@@ -13,6 +13,7 @@ blocks of steps for stress peaks — never the whole displacement history.
 from __future__ import annotations
 
 import math
+import time
 from dataclasses import dataclass, field
 from typing import Callable
 
@@ -116,6 +117,7 @@ class DirectResponse:
     gamma: float
     solver: str
     assumptions: list[str] = field(default_factory=list)
+    factor_time: float = 0.0
 
 
 def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
@@ -191,7 +193,9 @@ def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
     c4 = 1.0 - gamma / beta
     c5 = h * (1.0 - gamma / (2.0 * beta))
     Keff = (c0 * M + (1.0 + alpha) * c1 * C + (1.0 + alpha) * K).tocsr()
+    t_fac = time.perf_counter()
     factor = _Factor(Keff, solver=solver)
+    t_fac = time.perf_counter() - t_fac
     Miota = np.asarray(M @ iota)                    # (n, 3)
 
     if output is None:
@@ -261,7 +265,7 @@ def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
     return DirectResponse(time=np.arange(n_t) * dt, ground=ag, disp=yd, vel=yv, acc=ya,
                           dof_peak=peak, dof_peak_step=peak_step, substeps=substeps,
                           alpha=alpha, beta=beta, gamma=gamma, solver=factor.name,
-                          assumptions=assumptions)
+                          assumptions=assumptions, factor_time=t_fac)
 
 
 class _Null:

@@ -170,7 +170,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         i = int(np.argmax(vals)) if vals.size else -1
         node_peak[d] = {"value": float(vals[i]) if i >= 0 else 0.0, "node": i,
                         "time": float(res.dof_peak_step[j::3][i] * dt) if i >= 0 else 0.0}
-    info.update(timings={"time_history": _time.perf_counter() - t0},
+    info.update(timings={"time_history": _time.perf_counter() - t0,
+                         "factorization": res.factor_time},
                 substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
                 solver=res.solver, rayleigh_hz=getattr(model, "rayleigh_used_hz", None))
     assumptions = list(res.assumptions)
