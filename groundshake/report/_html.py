@@ -54,7 +54,8 @@ _UNIT_RULES = (
     (re.compile(r"^k_?r[xyz]$|^k_?(t|rocking|torsion)$"), "N·m/rad"),
     (re.compile(r"^c_?[xyz]$"), "N·s/m"),
     (re.compile(r"^c_?r[xyz]$"), "N·m·s/rad"),
-    (re.compile(r"ratio|_over_|_dc|dc_|percent|factor|count|index|^n_|number"), ""),
+    (re.compile(r"(^|_)ratios?($|_)|_over_|(^|_)dc($|_)|percent|factor|count|index|^n_|number"),
+     ""),
     (re.compile(r"(^|_)time$|^time_of|_time_|period|duration|d5_|^t$|^dt$|_s$"), "s"),
     (re.compile(r"frequency|_hz$|cutoff"), "Hz"),
     (re.compile(r"acceleration|pga|psa|^sa$|zpa|abs_acc"), "m/s²"),
@@ -108,13 +109,20 @@ def value_html(v: Any, *, depth: int = 0) -> str:
 
 
 def key_values(d: Mapping[str, Any], *, depth: int = 0, units: bool = True,
-               cls: str = "kv") -> str:
-    """A two-column table of a mapping; units implied by key names are shown."""
+               cls: str = "kv", force_unit: str | None = None) -> str:
+    """A two-column table of a mapping; units implied by key names are shown
+    (``force_unit`` for every number, e.g. the children of a ``..._s`` key)."""
     rows = []
     for k, v in d.items():
         u = unit_of_key(str(k)) if units and isinstance(v, (int, float)) and not isinstance(v, bool) else ""
+        if force_unit is not None and isinstance(v, (int, float)) and not isinstance(v, bool):
+            u = force_unit
         unit = f' <span class="unit">{esc(u)}</span>' if u else ""
-        rows.append(f"<tr><th>{esc(k)}</th><td>{value_html(v, depth=depth)}{unit}</td></tr>")
+        if isinstance(v, Mapping) and str(k).endswith("_s") and depth <= 4:
+            inner = key_values(v, depth=depth + 1, units=units, force_unit="s")
+        else:
+            inner = value_html(v, depth=depth)
+        rows.append(f"<tr><th>{esc(k)}</th><td>{inner}{unit}</td></tr>")
     if not rows:
         return '<p class="none">—</p>'
     return f'<table class="{esc(cls)}">' + "".join(rows) + "</table>"

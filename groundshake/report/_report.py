@@ -959,7 +959,10 @@ class _Builder:
         for name, curves in points.items():
             direction = next((x for x in name.split() if x in ("x", "y", "z")), None)
             panels.append((name, with_ground(curves, direction)))
-        env_panels = [(f"envelope {name}".strip(), with_ground(c)) for name, c in env.items()]
+        env_panels = [(f"envelope {name}".strip(),
+                       with_ground(c, next((x for x in name.split() if x in ("x", "y", "z")),
+                                           None)))
+                      for name, c in env.items()]
         unit = t.unit(1) if len(t.header) > 1 else ""
         cap = ("Floor response spectra (PSA) at each point: unbroadened (thin) and broadened "
                "(thick), with the ground spectrum (dotted).")
