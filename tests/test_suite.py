@@ -159,3 +159,25 @@ def test_resume_runs_only_the_rest(suite_case, tmp_path):
     again = run_suite(scenario, sets, out, shared=shared, resume=True, on_result=seen.append)
     assert [r["record"] for r in seen] == ["b"]
     _assert_same(_numbers(first.records), _numbers(again.records))
+
+
+def test_workers_reuse_the_shared_missing_mass_shapes(suite_case):
+    # build once (issue contract): with the modal method the missing-mass shapes come
+    # with the shared data, so a worker never factorizes K itself; and they equal a
+    # fresh K^-1 (M iota - sum Gamma M phi) solve (the missing-mass definition,
+    # USNRC RG 1.92 Rev. 3)
+    import scipy.sparse.linalg as spla
+
+    from groundshake.suite._run import _objects, run_record_set
+
+    root, rec, scen, scenario, shared = suite_case
+    local = {k: v for k, v in shared.items() if not k.startswith("_")}
+    sets = discover_record_sets(str(rec), units="m/s2", dt=0.01)
+    assert run_record_set(local, sets[0].to_dict())["status"] == "ok"
+    _, model, modes = _objects(local)
+    assert model._factor is None
+    M, iota = model.M, model.influence
+    B = M @ iota - M @ (modes.shapes @ modes.participation)
+    direct = spla.spsolve(model.K.tocsc(), B)
+    np.testing.assert_allclose(shared["residual"], direct, rtol=1e-8,
+                               atol=1e-12 * np.abs(direct).max())

@@ -110,12 +110,14 @@ class _Response:
 def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             method: Literal["modal", "direct"] = "modal", cutoff_hz: float | None = None,
             hht_alpha: float = 0.0, missing_mass: bool = True, stresses: bool = True,
-            progress: bool = False) -> _Response:
+            progress: bool = False, residual: np.ndarray | None = None) -> _Response:
     """Response of the model to the motion, for the rows of ``output`` (k, n).
 
     Also gives the peak relative node displacement per direction anywhere in the
     block and the per-element stress peaks, without ever holding the whole
-    displacement history.
+    displacement history. ``residual`` (n, 3), the missing-mass shapes of
+    :func:`residual_vectors` for these modes, saves the static solve when given
+    (a suite computes it once for all its records).
     """
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
@@ -128,8 +130,9 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     if method == "modal":
         shapes = np.asarray(modes.shapes)
         gam = np.asarray(modes.participation)
-        residual = None
-        if missing_mass:
+        if not missing_mass:
+            residual = None
+        elif residual is None:
             residual = residual_vectors(model.M, model.influence, shapes, gam,
                                         model.factor().solve)
         t0 = _time.perf_counter()
@@ -206,7 +209,7 @@ def _get(obj, key, default=None):
 # --------------------------------------------------------------------------- the run
 def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
-            stresses: bool = True) -> RunResults:
+            stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario: motion, model, modes, response and every result.
 
     Parameters
@@ -222,6 +225,10 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
         Compute element stress peaks.
+    residual : ndarray (n, 3), optional
+        Missing-mass shapes for ``modes`` (see
+        :func:`groundshake.dynamics.residual_vectors`), computed once by a caller
+        that runs many motions through one model.
 
     Returns
     -------
@@ -238,7 +245,7 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         out = _analyse(scenario, progress=progress, method=method, motion=motion, model=model,
-                       modes=modes, stresses=stresses, collected=collected)
+                       modes=modes, stresses=stresses, collected=collected, residual=residual)
     for w in caught:
         if issubclass(w.category, GroundshakeWarning):
             msg = str(w.message)
@@ -252,7 +259,8 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     return out
 
 
-def _analyse(scenario, *, progress, method, motion, model, modes, stresses, collected) -> RunResults:
+def _analyse(scenario, *, progress, method, motion, model, modes, stresses, collected,
+             residual=None) -> RunResults:
     from ..dynamics import compute_modes
     from ..model import build_model
     from ..spectra import response_spectrum
@@ -316,7 +324,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n))
     _tick()
     resp = respond(model, modes, motion, output, method=method, cutoff_hz=cutoff,
-                   hht_alpha=hht_alpha, stresses=stresses, progress=progress)
+                   hht_alpha=hht_alpha, stresses=stresses, progress=progress,
+                   residual=residual)
     timings["response"] = _tick()
     timings.update(resp.info.pop("timings", {}))
     # split rows back

@@ -31,11 +31,13 @@ DIRECTIONS = ("x", "y", "z")
 
 
 def prepare_suite(scenario, *, method: str | None = None) -> dict:
-    """Build the model and modes once; return the data every task shares.
+    """Build the model, its modes and the missing-mass shapes once.
 
-    The result holds the scenario as plain data (``scenario.to_dict()``), the
-    assembled model and its modes (numpy and scipy.sparse arrays inside our own
-    data classes), and the method; nothing that depends on a record.
+    Returns the data every task shares, as arrays and plain data only: the
+    scenario (``scenario.to_dict()``), the model and its modes taken apart by
+    :func:`groundshake.suite._plain.to_plain`, the method, and (modal) the
+    missing-mass shapes (n, 3) from one static solve; nothing that depends on a
+    record.
     """
     from ..dynamics import compute_modes
     from ..model import build_model
@@ -49,9 +51,17 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
         warnings.simplefilter("ignore", GroundshakeWarning)
         modes = compute_modes(model, cutoff_hz=None if n_req else cutoff, n_modes=n_req,
                               excited=tuple(d in comps for d in DIRECTIONS), warn=False)
+    residual = None
+    if (method or analysis.method) == "modal":
+        # the missing-mass shapes depend on the model only: one static solve here,
+        # so workers never factorize K
+        from ..dynamics._modal import residual_vectors
+
+        residual = residual_vectors(model.M, model.influence, np.asarray(modes.shapes),
+                                    np.asarray(modes.participation), model.factor().solve)
     return {"scenario": scenario.to_dict(), "source": str(scenario.source),
             "base_dir": str(scenario.base_dir), "model": to_plain(model),
-            "modes": to_plain(modes), "method": method}
+            "modes": to_plain(modes), "method": method, "residual": residual}
 
 
 def _objects(shared: dict[str, Any]) -> tuple[Any, Any, Any]:
@@ -132,7 +142,7 @@ def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", GroundshakeWarning)
             res = analyse(scenario, progress=False, method=shared.get("method"),
-                          model=model, modes=modes)
+                          model=model, modes=modes, residual=shared.get("residual"))
     except (GroundshakeError, OSError, ValueError) as e:
         return {"record": rs.name, "status": "failed", "files": dict(rs.files),
                 "error": str(e).strip().splitlines()[0] if str(e).strip() else type(e).__name__}
