@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import json
+import time
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -28,6 +29,7 @@ from ._stats import peak_statistics
 __all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks"]
 
 DIRECTIONS = ("x", "y", "z")
+_PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
 
 
 def prepare_suite(scenario, *, method: str | None = None) -> dict:
@@ -271,14 +273,17 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
     if todo:
         if shared is None:
             shared = prepare_suite(scenario, method=method)
+        last = time.monotonic()
         for r in run_tasks(run_record_set, shared, [rs.to_dict() for rs in todo],
                            workers=workers, scheduler=scheduler):
             name = r.get("record") or "record"
             results[name] = r
-            atomic_write_text(_record_file(out_dir, name), json_dumps(r))
+            atomic_write_text(_record_file(out_dir, name), json_dumps(r, indent=None))
             if on_result is not None:
                 on_result(r)
-            _write_suite_json(out_dir, scenario, sets, results, complete=False)
+            if time.monotonic() - last > _PROGRESS_EVERY_S:   # a progress copy, not per record
+                _write_suite_json(out_dir, scenario, sets, results, complete=False)
+                last = time.monotonic()
     ordered = [results[n] for n in names if n in results]
     stats = peak_statistics([r["peaks"] for r in ordered if r.get("status") == "ok"])
     spec = spectra_statistics(ordered)
