@@ -16,6 +16,8 @@ import numpy as np
 import pytest
 from scipy import signal
 
+from _blocks import concrete_block
+
 from groundshake._errors import GroundshakeWarning
 from groundshake.dynamics import build_motion
 from groundshake.scenario import parse_scenario_text
@@ -41,20 +43,7 @@ x = {{ file = "{rec}" }}
 z = {{ file = "{up}" }}
 target = "asce7:sds=0.8,sd1=0.4,tl=8"
 match_target = true
-[materials.c]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-[[parts]]
-name = "pad"
-material = "c"
-origin = [0, 0, 0]
-size = [2.0, 2.0, 1.0]
-[mesh]
-element_size = 1.0
-[support]
-kind = "fixed"
-"""
+""" + concrete_block()
     scen = parse_scenario_text(text, source=str(tmp_path / "s.toml"), base_dir=tmp_path)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", GroundshakeWarning)

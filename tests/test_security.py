@@ -14,6 +14,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from _blocks import concrete_block
+
 PACKAGE = Path(__file__).resolve().parents[1] / "groundshake"
 FORBIDDEN_CALLS = {"eval", "exec", "compile", "__import__"}
 FORBIDDEN_MODULES = {"pickle", "cPickle", "dill", "cloudpickle", "yaml", "marshal", "shelve"}
@@ -57,23 +59,7 @@ def test_suite_workers_receive_plain_data_only():
     from groundshake.suite._plain import from_plain
     from groundshake.suite._run import prepare_suite
 
-    text = """title = "plain data test (invented)"
-[materials.c]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-[[parts]]
-name = "pad"
-material = "c"
-origin = [0, 0, 0]
-size = [2.0, 2.0, 1.0]
-[mesh]
-element_size = 1.0
-[support]
-kind = "soil"
-shear_wave_velocity = 300.0
-poisson_ratio = 0.3
-density = 1900.0
+    text = 'title = "plain data test (invented)"\n' + concrete_block(support="soil") + """
 [[equipment]]
 name = "unit"
 mass = 500.0

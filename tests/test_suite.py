@@ -14,6 +14,7 @@ import math
 import numpy as np
 import pytest
 
+from _blocks import concrete_block
 from groundshake.cli import main
 from groundshake.scenario import load_scenario
 from groundshake.suite import discover_record_sets, flatten_scalars
@@ -26,19 +27,7 @@ x = {{ file = "{rec}/a-x.csv", units = "m/s2", dt = 0.01 }}
 y = {{ file = "{rec}/a-y.csv", units = "m/s2", dt = 0.01 }}
 [processing]
 enabled = false
-[materials.c]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-[[parts]]
-name = "pad"
-material = "c"
-origin = [0, 0, 0]
-size = [2.0, 2.0, 1.0]
-[mesh]
-element_size = 1.0
-[support]
-kind = "fixed"
+{block}
 [[equipment]]
 name = "box"
 mass = 1000.0
@@ -77,7 +66,7 @@ def suite_case(tmp_path_factory):
         _write_record(rec / f"{name}-x.csv", amp, f, seed=k)
         _write_record(rec / f"{name}-y.csv", 0.7 * amp, 1.3 * f, seed=10 + k)
     scen = root / "scenario.toml"
-    scen.write_text(SCENARIO.format(rec=rec.as_posix()))
+    scen.write_text(SCENARIO.format(rec=rec.as_posix(), block=concrete_block()))
     scenario = load_scenario(scen)
     shared = prepare_suite(scenario)
     return root, rec, scen, scenario, shared
