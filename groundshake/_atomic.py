@@ -13,7 +13,8 @@ import tempfile
 from pathlib import Path
 from typing import Iterator
 
-__all__ = ["atomic_path", "atomic_write_text", "atomic_write_bytes", "atomic_directory"]
+__all__ = ["atomic_path", "atomic_write_text", "atomic_write_bytes", "atomic_directory",
+           "atomic_savefig"]
 
 
 @contextlib.contextmanager
@@ -51,6 +52,19 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
 def atomic_write_text(path: str | os.PathLike, text: str) -> Path:
     """Write UTF-8 ``text`` to ``path`` atomically; return the final path."""
     return atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def atomic_savefig(fig, path: str | os.PathLike, **savefig_kw) -> Path:
+    """Save a matplotlib figure to ``path`` atomically, in the format its extension names.
+
+    ``savefig_kw`` go to ``Figure.savefig`` (``dpi``, ``bbox_inches``...). The figure
+    is left open; the caller closes it.
+    """
+    path = Path(path)
+    fmt = path.suffix.lstrip(".").lower() or "png"
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, format=fmt, **savefig_kw)
+    return path
 
 
 @contextlib.contextmanager

@@ -156,7 +156,7 @@ def _plot(results, path: Path) -> None:
     import matplotlib.pyplot as plt
     import matplotlib.ticker
 
-    from .._atomic import atomic_path
+    from .._atomic import atomic_savefig
     from ._measures import integrate_motion
 
     n = len(results)
@@ -203,8 +203,7 @@ def _plot(results, path: Path) -> None:
                 ax.set_xlabel("time from the first sample of the (corrected) record [s]")
     fig.suptitle("Spectral matching (screening only)", fontsize=10)
     fig.tight_layout()
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=100, format=path.suffix.lstrip(".").lower())
+    atomic_savefig(fig, path, dpi=100)
     plt.close(fig)
 
 

@@ -10,7 +10,6 @@ All displacements are relative to the ground.
 """
 from __future__ import annotations
 
-import math
 import warnings
 from dataclasses import dataclass, field
 from typing import Any, Literal
@@ -544,7 +543,6 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     # ---- equipment masses, springs
     equipment = []
     eq_parts = []
-    g_unit = np.zeros(n_extra)
     for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
         m = float(_get(e, "mass"))
         hcg = float(_get(e, "cg_height"))

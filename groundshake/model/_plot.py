@@ -5,7 +5,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .._atomic import atomic_path
+from .._atomic import atomic_savefig
 
 __all__ = ["boundary_faces", "plot_model", "plot_mode"]
 
@@ -50,8 +50,7 @@ def _surface(ax, nodes, quads, **kw):
 
 
 def _save(fig, plt, path: Path) -> Path:
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, format=path.suffix.lstrip(".") or "png", bbox_inches="tight")
+    atomic_savefig(fig, path, bbox_inches="tight")
     plt.close(fig)
     return path
 

@@ -111,7 +111,7 @@ class ProcessingSettings:
             band.append(f"low-pass {self.lowpass_hz:g} Hz")
         if band:
             if self.highpass_hz is not None and self.pad:
-                parts.append(f"zero pads 1.5·n/fc")
+                parts.append("zero pads 1.5·n/fc")
             parts.append(f"acausal Butterworth order {self.filter_order} " + ", ".join(band))
         return "; ".join(parts) + " (Boore & Bommer 2005; Boore 2005)"
 

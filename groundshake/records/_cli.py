@@ -253,7 +253,7 @@ def _plot_correction(raws, corrected, path: Path, integrate) -> None:
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from .._atomic import atomic_path
+    from .._atomic import atomic_savefig
 
     ncol = len(raws)
     fig, axes = plt.subplots(3, ncol, figsize=(6.5 * ncol, 7.5), sharex="col", squeeze=False)
@@ -273,8 +273,7 @@ def _plot_correction(raws, corrected, path: Path, integrate) -> None:
         axes[2, j].set_xlabel("time from the first sample as read [s]")
     fig.suptitle("Record correction (screening only)", fontsize=10)
     fig.tight_layout()
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=110, format=path.suffix.lstrip(".").lower())
+    atomic_savefig(fig, path, dpi=110)
     plt.close(fig)
 
 

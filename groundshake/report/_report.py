@@ -11,7 +11,7 @@ import datetime as _dt
 import hashlib
 import re
 from pathlib import Path
-from typing import Any, Callable, Mapping, Sequence
+from typing import Any, Callable, Mapping
 
 import numpy as np
 
@@ -21,7 +21,7 @@ from .._cautions import CAUTIONS, SCREENING_NOTE
 from .._progress import Progress
 from ..records import STANDARD_GRAVITY
 from . import _figures as F
-from ._html import (CSS, esc, figure, key_values, num, raw, section, table, toml_text,
+from ._html import (CSS, esc, figure, key_values, num, section, table, toml_text,
                     unit_of_key, value_html)
 from ._load import OutputFolder, Table, damping_of, label_words, load_output, split_header
 

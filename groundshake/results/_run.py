@@ -1,7 +1,6 @@
 """One scenario through the whole pipeline: motion → model → modes → response → results."""
 from __future__ import annotations
 
-import dataclasses
 import datetime as _dt
 import hashlib
 import math
@@ -121,8 +120,6 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     """
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
-    n_t = ag.shape[1]
-    n_nodes = model.nodes.shape[0]
     n_el = model.elements.shape[0]
     node_map = sp.csr_matrix(model.node_map)
     S = sp.csr_matrix(model.stress)

@@ -180,7 +180,7 @@ def _allowed_text(meta: dict) -> str:
         names = [f.name for f in _schema_fields(meta["cls"])]
         return "a table with keys " + ", ".join(names)
     if kind == "array":
-        return f"an array of tables ([[...]]) with keys " + ", ".join(
+        return "an array of tables ([[...]]) with keys " + ", ".join(
             f.name for f in _schema_fields(meta["cls"]))
     if kind == "named":
         return "tables [NAME] with keys " + ", ".join(f.name for f in _schema_fields(meta["cls"]))

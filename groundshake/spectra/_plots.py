@@ -6,7 +6,7 @@ from typing import Sequence
 
 import numpy as np
 
-from .._atomic import atomic_path
+from .._atomic import atomic_savefig
 from .._cautions import SCREENING_NOTE
 
 __all__ = ["plot_spectra"]
@@ -135,7 +135,6 @@ def plot_spectra(path: str | Path, spectra: Sequence, *, target=None, rotds=(),
     lin.legend(fontsize=7, loc="upper right")
     fig.suptitle(f"{title} — {SCREENING_NOTE}", fontsize=10)
     fig.tight_layout()
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=110, format=path.suffix.lstrip(".").lower())
+    atomic_savefig(fig, path, dpi=110)
     plt.close(fig)
     return path

@@ -1,7 +1,6 @@
 """``groundshake suite SCENARIO --records DIR|GLOB|MANIFEST.csv -o DIR``."""
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 
 from .._cli_common import print_json, table

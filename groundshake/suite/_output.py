@@ -4,7 +4,7 @@ from __future__ import annotations
 import csv
 import io
 from pathlib import Path
-from typing import Any, Sequence
+from typing import Sequence
 
 import numpy as np
 
@@ -87,7 +87,7 @@ def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[
         over the ground-spectra band; the scenario's ``motion.target`` if not given.
     """
     from ..report._figures import data_uri, spectra_figure
-    from ..report._html import CSS, esc, figure, raw, section, table
+    from ..report._html import CSS, esc, figure, section, table
 
     out = Path(result.out_dir)
     written: list[Path] = []
