@@ -121,7 +121,8 @@ def main(argv=None) -> int:
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     p.add_argument("--sizes", default="10000,50000,150000",
                    help="target DOF counts, comma-separated (default 10k, 50k, 150k; add 400000)")
-    p.add_argument("--methods", default="lanczos,block", help="eigen-solvers: lanczos, block")
+    p.add_argument("--methods", default="lanczos,block",
+                   help="eigen-solvers: lanczos, block, amg (LOBPCG + pyamg, no factor)")
     p.add_argument("--modes", type=int, default=30)
     p.add_argument("--skfem-limit", type=int, default=160000,
                    help="largest DOF count assembled with scikit-fem too")
