@@ -153,3 +153,23 @@ def test_components_resampled_to_the_finest_step(tmp_path):
     assert any("resampled" in n for n in m.notes)
     # Fourier resampling keeps a well-sampled 3 Hz sine's peak (Nyquist-Shannon), 2 %
     assert np.max(np.abs(m.acc[1])) == pytest.approx(np.max(np.abs(m.corrected["y"].acc)), rel=0.02)
+
+
+def test_records_say_how_long_their_leading_pad_is():
+    # Boore (2005): the padded record is kept, so reported times include the pad; the
+    # summary states the pad (1.5·n/fc in total, half before the record) so that a
+    # reader can line the corrected record up with the record as read
+    from groundshake.processing import ProcessingSettings, correct_record
+    from groundshake.records import Record
+    import numpy as _np
+
+    rec = Record(acc=_np.sin(_np.arange(2000) * 0.05), dt=0.01, name="invented")
+    out = correct_record(rec, ProcessingSettings(highpass_hz=0.5, filter_order=4))
+    from groundshake.dynamics import Motion
+    from groundshake.results._run import _records_summary
+
+    acc = _np.zeros((3, out.n))
+    acc[0] = out.acc
+    mot = Motion(acc=acc, dt=out.dt, components=("x",), raw={"x": rec}, corrected={"x": out})
+    (entry,) = _records_summary(mot)
+    assert entry["pad_before_s"] == pytest.approx(0.5 * 1.5 * 4 / 0.5, rel=0.05)

@@ -621,7 +621,11 @@ def _records_summary(motion: Motion) -> list:
             continue
         entry = {"direction": d, "name": rec.name, "component": rec.component,
                  "source": rec.source, "units": rec.units, "dt": rec.dt, "n": rec.n,
-                 "history": list(rec.history)}
+                 "history": list(rec.history),
+                 # leading zero pad of the corrected record [s]: its time 0 is this much
+                 # before the first sample as read (records.csv and histories.csv count
+                 # from the start of the pad)
+                 "pad_before_s": float(rec.metadata.get("pad_before_s", 0.0))}
         if intensity_measures is not None:
             try:
                 entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
