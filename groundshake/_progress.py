@@ -19,17 +19,19 @@ class Progress:
     """A minimal text progress bar.
 
     ``with Progress("modes", total=30) as p: p.advance()``. It draws only when
-    stderr is a terminal and quiet mode is off, and redraws at most 10 times a
+    ``enabled``, stderr is a terminal and quiet mode is off, and redraws at most 10 times a
     second, so it costs nothing in a hot loop's outer level.
     """
 
-    def __init__(self, label: str, total: int | None = None, *, stream=None):
+    def __init__(self, label: str, total: int | None = None, *, stream=None,
+                 enabled: bool = True):
         self.label = label
         self.total = total
         self.done = 0
         self.stream = sys.stderr if stream is None else stream
         isatty = getattr(self.stream, "isatty", lambda: False)
-        self.enabled = (not _QUIET) and bool(isatty())
+        # ``enabled=False`` makes a bar that never draws (a caller that was asked for none)
+        self.enabled = bool(enabled) and (not _QUIET) and bool(isatty())
         self._last = 0.0
         self._t0 = time.perf_counter()
 

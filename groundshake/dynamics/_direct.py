@@ -222,7 +222,7 @@ def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
     has_c = C.nnz > 0
     g_prev = ag[:, 0]
     p_prev = -Miota @ g_prev
-    with Progress("time steps", total=n_t - 1) if progress else _Null() as bar:
+    with Progress("time steps", total=n_t - 1, enabled=progress) as bar:
         for i in range(1, n_t):
             g0, g1 = ag[:, i - 1], ag[:, i]
             for s in range(1, substeps + 1):
@@ -266,14 +266,3 @@ def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
                           dof_peak=peak, dof_peak_step=peak_step, substeps=substeps,
                           alpha=alpha, beta=beta, gamma=gamma, solver=factor.name,
                           assumptions=assumptions, factor_time=t_fac)
-
-
-class _Null:
-    def __enter__(self):
-        return self
-
-    def __exit__(self, *exc):
-        return None
-
-    def advance(self, n: int = 1) -> None:
-        pass

@@ -144,7 +144,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         t1 = _time.perf_counter()
         peaks = None
         if stresses and n_el:
-            with Progress("stress peaks", total=n_el) if progress else _NullBar() as bar:
+            with Progress("stress peaks", total=n_el, enabled=progress) as bar:
                 peaks = modal_stress_peaks(r.coefficients(S), Z, n_el, progress=bar)
         info.update(n_modes=int(shapes.shape[1]), missing_mass=residual is not None,
                     timings={"time_history": t1 - t0, "stress_peaks": _time.perf_counter() - t1})
@@ -182,17 +182,6 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                        f"{getattr(model, 'rayleigh_used_hz', None)} Hz plus the discrete "
                        "dashpots of soil radiation and equipment supports.")
     return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
-
-
-class _NullBar:
-    def __enter__(self):
-        return self
-
-    def __exit__(self, *exc):
-        return None
-
-    def advance(self, n: int = 1) -> None:
-        pass
 
 
 def _get(obj, key, default=None):
@@ -288,7 +277,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         model = build_model(scenario)
     timings["model"] = _tick()
     if modes is None:
-        with Progress("modes", total=None) if progress else _NullBar():
+        with Progress("modes", total=None, enabled=progress):
             modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
                                   n_modes=n_modes_req,
                                   excited=tuple(d in motion.components for d in DIRECTIONS),
@@ -503,7 +492,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                            int(_get(pr, "count", 120)))
     damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
     frac = float(_get(fs, "broadening_percent", 15.0)) / 100.0
-    with Progress("spectra", total=None) if progress else _NullBar():
+    with Progress("spectra", total=None, enabled=progress):
         gsp = response_spectrum(ag, dt, periods, damp)
         ground_spectra = {"periods": np.asarray(gsp.periods), "damping": damp,
                           "psa": np.asarray(gsp.psa), "sa": np.asarray(gsp.sa)}
