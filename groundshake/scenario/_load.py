@@ -230,6 +230,16 @@ def _number(v, meta, path, ctx) -> float:
     return x
 
 
+def _numbers_in_range(v, meta: dict, path: tuple, ctx: _Context, allowed: str) -> tuple:
+    """Every item a number within ``meta``'s range, as a tuple of floats; else the key's error."""
+    out = []
+    for x in v:
+        if not _is_number(x) or not _in_range(_to_float(x, path, ctx, allowed), meta):
+            raise ctx.bad(path, v, allowed)
+        out.append(float(x))
+    return tuple(out)
+
+
 def _convert(f: dataclasses.Field, v: Any, path: tuple, ctx: _Context) -> Any:
     meta = f.metadata
     kind = meta["kind"]
@@ -267,23 +277,13 @@ def _convert(f: dataclasses.Field, v: Any, path: tuple, ctx: _Context) -> Any:
     if kind == "vector":
         if not isinstance(v, (list, tuple)) or len(v) != meta["length"]:
             raise ctx.bad(path, v, allowed)
-        out = []
-        for x in v:
-            if not _is_number(x) or not _in_range(_to_float(x, path, ctx, allowed), meta):
-                raise ctx.bad(path, v, allowed)
-            out.append(float(x))
-        return tuple(out)
+        return _numbers_in_range(v, meta, path, ctx, allowed)
     if kind == "numbers":
         if _is_number(v):
             v = [v]
         if not isinstance(v, (list, tuple)) or not v:
             raise ctx.bad(path, v, allowed)
-        out = []
-        for x in v:
-            if not _is_number(x) or not _in_range(_to_float(x, path, ctx, allowed), meta):
-                raise ctx.bad(path, v, allowed)
-            out.append(float(x))
-        return tuple(out)
+        return _numbers_in_range(v, meta, path, ctx, allowed)
     if kind == "points":
         if not isinstance(v, (list, tuple)):
             raise ctx.bad(path, v, allowed)
