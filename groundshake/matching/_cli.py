@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import float_list, print_json, table
+from .._cli_common import check_damping_percent, float_list, print_json, table
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_match"]
@@ -45,6 +45,7 @@ def cmd_match(args: argparse.Namespace) -> int:
     damping = [d / 100.0 for d in float_list(args.damping, name="--damping", positive=True)]
     if any(d >= 1 for d in damping):
         raise InputError(f"--damping {args.damping}: percent of critical, allowed 0 < value < 100")
+    check_damping_percent(100.0 * d for d in damping)
     band = None
     if args.band is not None:
         band = float_list(args.band, name="--band", positive=True)
