@@ -114,3 +114,19 @@ def test_saved_figures_get_the_plain_mode(tmp_path, umask):
     finally:
         plt.close(fig)
     assert stat.S_IMODE(path.stat().st_mode) == 0o644   # 0666 & ~0022 (POSIX open(2))
+
+
+@pytest.mark.skipif(os.name != "posix", reason="POSIX permission bits")
+def test_a_command_output_is_readable_by_the_group_under_umask_022(tmp_path, umask, capsys):
+    import numpy as np
+
+    from groundshake.cli import main
+
+    umask(0o022)
+    rec = tmp_path / "sine.csv"          # invented test record (a 2 Hz sine), m/s²
+    t = np.arange(0, 4, 0.01)
+    rec.write_text("# units: m/s2\ntime [s],acc [m/s2]\n"
+                   + "".join(f"{a:.2f},{b:.6f}\n" for a, b in zip(t, np.sin(4 * np.pi * t))))
+    out = tmp_path / "spectra.csv"
+    assert main(["spectrum", str(rec), "--raw", "-o", str(out), "--quiet"]) == 0
+    assert stat.S_IMODE(out.stat().st_mode) == 0o644       # 0666 & ~0022 (POSIX open(2))

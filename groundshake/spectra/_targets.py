@@ -53,6 +53,9 @@ class TargetSpectrum:
         ``"asce7"``, ``"en1998"`` or ``"table"``.
     parameters : dict
         The parameters as entered (in the units of the spec: g, s, percent).
+    period_range : (float, float) or None
+        Shortest and longest period [s] where the curve is defined (a table's first
+        and last rows); None for a code shape, defined at every period.
     """
 
     label: str
@@ -60,6 +63,7 @@ class TargetSpectrum:
     kind: str
     parameters: dict
     _fn: Callable[[np.ndarray], np.ndarray] = field(repr=False)
+    period_range: tuple[float, float] | None = None
 
     def psa(self, periods) -> np.ndarray:
         """Target pseudo-acceleration [m/s²] at ``periods`` [s] (≥ 0), shape of periods.
@@ -228,7 +232,8 @@ def table_spectrum(path: str | os.PathLike) -> TargetSpectrum:
         return out
 
     return TargetSpectrum(label=f"table {path.name}", damping=0.05, kind="table",
-                          parameters={"path": str(path), "rows": int(len(arr))}, _fn=fn)
+                          parameters={"path": str(path), "rows": int(len(arr))}, _fn=fn,
+                          period_range=(float(tt[0]), float(tt[-1])))
 
 
 _ASCE_KEYS = {"sds", "sd1", "tl"}
