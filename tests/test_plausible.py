@@ -249,3 +249,17 @@ def test_modes_on_a_slipped_scenario_exits_2(tmp_path, capsys):
     err = capsys.readouterr().err.strip()
     assert "materials.concrete.youngs_modulus = 30 Pa" in err and "30e9" in err
 
+
+
+def test_scenario_target_slip_names_file_and_line(tmp_path):
+    text = BASE + '\n[motion]\ntarget = "asce7:sds=9.81,sd1=0.6,tl=8"\n'
+    # [motion] needs a component file that exists (invented test data; not read here)
+    (tmp_path / "x.csv").write_text("# units: m/s2\n0,0\n0.01,0\n")
+    text = text.replace("[motion]\n", '[motion]\nx = { file = "x.csv" }\n')
+    with pytest.raises(ScenarioError) as info:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            _parse(text, tmp_path)
+    msg = str(info.value)
+    assert msg.startswith(f"case.toml:{_line(text, 'target =')}: motion.target")
+    assert "did you mean 1 g" in msg                     # 9.81 m/s² = 1 g (standard gravity)

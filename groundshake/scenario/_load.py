@@ -503,6 +503,25 @@ def _check_plausible(values, ctx):
     if fs is not None:
         for z in fs.damping_percent:
             _plausible("damping_percent", z, ("floor_spectra", "damping_percent"), ctx)
+    m = values.get("motion")
+    if m is not None and m.target is not None:
+        _check_target(m.target, ("motion", "target"), ctx)
+
+
+def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
+    """Parse the target now, so its unit slips (sds=9.81) name the file and line."""
+    from .._errors import InputError
+    from ..spectra._targets import parse_target
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", GroundshakeWarning)
+        try:
+            parse_target(spec, base_dir=ctx.base_dir)
+        except InputError as e:
+            raise ctx.error(path, _show(spec), f"a target without problems ({e})") from None
+    for w in caught:
+        if issubclass(w.category, GroundshakeWarning):
+            ctx.warn(path, str(w.message))
 
 
 def _check_damping(values, ctx):
