@@ -518,7 +518,9 @@ def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
         try:
             parse_target(spec, base_dir=ctx.base_dir)
         except InputError as e:
-            raise ctx.error(path, _show(spec), f"a target without problems ({e})") from None
+            err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
+            err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
+            raise err from None
     for w in caught:
         if issubclass(w.category, GroundshakeWarning):
             ctx.warn(path, str(w.message))
