@@ -25,6 +25,8 @@ __all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read"]
 
 #: Reader modules in the order they are tried (names inside this package).
 READERS: tuple[str, ...] = (
+    "peer_at2",
+    "esm",
     "obspy_formats",
     "text",
 )
