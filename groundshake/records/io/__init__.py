@@ -27,6 +27,7 @@ __all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read"]
 READERS: tuple[str, ...] = (
     "peer_at2",
     "esm",
+    "csmip",
     "obspy_formats",
     "text",
 )
