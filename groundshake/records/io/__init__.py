@@ -28,6 +28,7 @@ READERS: tuple[str, ...] = (
     "peer_at2",
     "esm",
     "csmip",
+    "cosmos",
     "obspy_formats",
     "text",
 )
