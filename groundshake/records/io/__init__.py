@@ -29,6 +29,7 @@ READERS: tuple[str, ...] = (
     "esm",
     "csmip",
     "cosmos",
+    "geonet",
     "obspy_formats",
     "text",
 )

@@ -62,10 +62,23 @@ def is_format(path: Path, head: bytes) -> bool:
         lines = head.decode("latin-1").splitlines()
         if not lines or not _FIRST.match(lines[0]):
             return False
-        # a CSMIP channel block always announces a data block or its integer header of 16i5
-        return any(re.fullmatch(r"(\s*-?\d+){16}\s*", ln) or _DATA.match(ln) for ln in lines[1:60])
+        # a CSMIP channel names its channel ("Chan  1: 360 Deg") and has an integer
+        # header of 16 fields of 5 characters
+        return any(_CHAN.match(ln) for ln in lines[1:30]) and \
+            any(_is_int_line(ln) for ln in lines[1:60])
     except Exception:
         return False
+
+
+_INT_FIELD = re.compile(r"\s*-?\d+")
+
+
+def _is_int_line(line: str) -> bool:
+    """A line of the integer header: 16 fields of 5 characters (``16I5``), all integers."""
+    body = line.rstrip()
+    if not 75 <= len(body) <= 80:
+        return False
+    return all(_INT_FIELD.fullmatch(body[k:k + 5]) for k in range(0, len(body), 5))
 
 
 @dataclass
@@ -110,8 +123,7 @@ def _channel(chunk: list[str], first: int, path: Path) -> _Channel:
     word = m.group(1).lower()
     volume = 1 if word.startswith("uncorrected") else 2 if word.startswith("corrected") else 3
     # the text header ends where the first line of 16 integers begins
-    end = next((k for k, ln in enumerate(chunk) if re.fullmatch(r"(\s*-?\d+){16}\s*", ln)
-                or re.fullmatch(r"(\s*-?\d+){2,}\s*", ln) and len(ln) >= 75), len(chunk))
+    end = next((k for k, ln in enumerate(chunk) if _is_int_line(ln)), len(chunk))
     blocks = [] if volume == 3 else _blocks(chunk, first, path)
     return _Channel(volume, first, chunk[:end], blocks, chunk, _reals(chunk, end))
 
