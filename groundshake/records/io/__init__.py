@@ -30,6 +30,7 @@ READERS: tuple[str, ...] = (
     "csmip",
     "cosmos",
     "geonet",
+    "usgs_smc",
     "obspy_formats",
     "text",
 )

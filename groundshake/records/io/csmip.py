@@ -62,15 +62,23 @@ def is_format(path: Path, head: bytes) -> bool:
         lines = head.decode("latin-1").splitlines()
         if not lines or not _FIRST.match(lines[0]):
             return False
-        # a CSMIP channel names its channel ("Chan  1: 360 Deg") and has an integer
-        # header of 16 fields of 5 characters
+        # a CSMIP channel names its channel ("Chan  1: 360 Deg"), has an integer header of
+        # 16 fields of 5 characters, and announces its data ("12000 points of accel data
+        # ...", "13200 Accelerogram points ...") or, in Volume 3, its spectra
+        spectra = lines[0].lower().lstrip().startswith("response and fourier")
         return any(_CHAN.match(ln) for ln in lines[1:30]) and \
-            any(_is_int_line(ln) for ln in lines[1:60])
+            any(_is_int_line(ln) for ln in lines[1:60]) and \
+            (spectra or any(_announces_data(ln) for ln in lines[1:100]))
     except Exception:
         return False
 
 
 _INT_FIELD = re.compile(r"\s*-?\d+")
+
+
+def _announces_data(line: str) -> bool:
+    m = _DATA.match(line)
+    return bool(m) and "instrument-" not in line.lower()
 
 
 def _is_int_line(line: str) -> bool:
