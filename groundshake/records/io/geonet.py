@@ -35,7 +35,7 @@ _COMP = re.compile(r"^\s*Component\s+(\S+)", re.I)
 _PEAK = re.compile(r"^\s*(Acceleration|Velocity|Displacement)\s*:\s*Peak\s+([-0-9.]+)\s+(\S+)"
                    r"\s+at\s+([-0-9.]+)\s*s", re.I)
 _INTS = re.compile(r"^(\s*-?\d+){10}\s*$")
-_MAG = re.compile(r"\b(M[LWS]?)\s+([0-9.]+)\s*$")
+_MAG = re.compile(r"\b(M[LWSlws]?)\s+([0-9.]+)\s*$")
 _LENGTH = {"mm": 0.001, "cm": 0.01, "m": 1.0}
 
 
