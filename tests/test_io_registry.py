@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import inspect
 import shutil
+import warnings
 
 import pytest
 
@@ -92,3 +93,29 @@ def test_at2_is_no_longer_read_as_text(tmp_path):
     # values; now the PEER reader takes it
     recs = read_record(DATA / "peer_RSN763_LOMAP_GIL067.AT2")
     assert recs[0].metadata["format"] == "PEER NGA (.AT2)"
+
+
+@pytest.mark.parametrize("name", sorted(n for n in FILES if not n.endswith(".V3")))
+def test_line_endings_do_not_matter(tmp_path, name):
+    # files travel between Windows (CR LF) and Unix (LF) machines (common practice)
+    raw = (DATA / name).read_bytes().replace(b"\r\n", b"\n")
+    lf, crlf = tmp_path / f"lf_{name}", tmp_path / f"crlf_{name}"
+    lf.write_bytes(raw)
+    crlf.write_bytes(raw.replace(b"\n", b"\r\n"))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the V0 file warns that it is uncorrected, twice
+        a, b = read_record(lf), read_record(crlf)
+    assert len(a) == len(b)
+    for x, y in zip(a, b):
+        assert x.dt == y.dt and x.n == y.n and x.component == y.component
+        assert (x.acc == y.acc).all()  # the same numbers whatever the line ends
+
+
+def test_csmip_detector_wants_its_data_announcement(tmp_path):
+    # a file with a CSMIP-like text and integer header but data written as time-value
+    # pairs and no "... points of accel data ..." line is not claimed by the CSMIP reader
+    ints = "\n".join("".join(f"{0:5d}" for _ in range(16)) for _ in range(6))
+    body = "\n".join(f"{0.005 * i:7.3f}{0.001 * i:7.3f}" for i in range(50))
+    p = tmp_path / "lookalike.v1"
+    p.write_text("UNCORRECTED ACCELEROGRAM DATA\nSTATION X\nCHAN  1: L\n" + ints + "\n" + body)
+    assert not reader("csmip").is_format(p, p.read_bytes()[:HEAD_BYTES])
