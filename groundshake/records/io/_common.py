@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import math
+import re
 from pathlib import Path
 
 import numpy as np
@@ -176,8 +177,6 @@ def azimuth_from_code(code: str) -> tuple[float | None, str | None]:
     Understands degrees ("360", "90 Deg"), compass bearings ("N28W", "S62W", "N", "E"),
     vertical words ("UP", "Up", "DOWN", "V", "Z") and SEED channel codes ("HNE", "HNZ").
     """
-    import re
-
     c = code.strip().upper()
     if not c:
         return None, None
