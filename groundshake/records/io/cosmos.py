@@ -55,8 +55,7 @@ def is_format(path: Path, head: bytes) -> bool:
     """True if the first line states a COSMOS format version and an integer header follows."""
     try:
         lines = head.decode("latin-1").splitlines()
-        return bool(lines) and bool(_FIRST.search(lines[0])) and \
-            any(_HEADER.match(ln) for ln in lines[1:60])
+        return bool(lines) and bool(_FIRST.search(lines[0]))
     except Exception:
         return False
 
