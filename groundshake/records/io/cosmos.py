@@ -215,6 +215,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                 meta["channel"] = ms.group(2)
                 meta["network"] = ms.group(3)
                 meta.update(orientation_metadata(ms.group(2)) if not component else {})
+        meta.setdefault("channel", component)
         meta["station"] = station or path.stem
         if len(ch["text"]) > 4:
             meta["station_name"] = re.sub(r"^.*?Code:\s*\S+\s*", "", ch["text"][4]).strip()
