@@ -177,6 +177,8 @@ def azimuth_from_code(code: str) -> tuple[float | None, str | None]:
     Understands degrees ("360", "90 Deg"), compass bearings ("N28W", "S62W", "N", "E"),
     vertical words ("UP", "Up", "DOWN", "V", "Z") and SEED channel codes ("HNE", "HNZ").
     """
+    import re
+
     c = code.strip().upper()
     if not c:
         return None, None
