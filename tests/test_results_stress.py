@@ -201,8 +201,8 @@ def test_pedestal_under_1g_lateral_peak_tension_not_below_beam_theory(n):
     # edge concentrates stress, so it lies above, by less than 20 % on these meshes
     assert ms <= pt["value"] <= 1.2 * ms
     assert pt["at"][0] == 0.0 and pt["at"][2] == 0.0   # tension face x = 0, at the base
-    assert pt["feature"] == "constraint edge"
-    assert len(cautions) == 1 and "edge of a fixed base" in cautions[0]
+    assert pt["feature"] == "base edge"
+    assert len(cautions) == 1 and "edge of the fixed or rigid base" in cautions[0]
     assert "Gauss points" in out["recovery"]
     # the largest peak off the flagged points lies off the base plane (definition)
     away = pt["away_from_features"]
@@ -254,3 +254,37 @@ def test_square_shaft_torsion_surface_shear_converges_at_second_order():
     # style); the finest mesh within 5 % of the series
     assert 1.7 < rate < 2.4
     assert errs[-1] < 0.05
+
+
+def test_surface_points_and_features_of_a_pedestal_on_a_mat():
+    """Which nodes are searched and which are flagged (definitions of the recovery)."""
+    model = build_model(Scenario.from_dict({
+        "title": "pedestal on a mat (invented)",
+        "materials": {"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0},
+                      "g": {"youngs_modulus": 25e9, "poisson_ratio": 0.2, "density": 2300.0}},
+        "parts": [{"name": "mat", "material": "c", "origin": [0, 0, 0], "size": [3.0, 3.0, 1.0]},
+                  {"name": "ped", "material": "g", "origin": [1, 1, 1], "size": [1.0, 1.0, 1.0]}],
+        "mesh": {"element_size": 0.5},
+        "support": {"kind": "fixed"},
+        "equipment": [{"name": "box", "mass": 1000.0, "mount": [1.5, 1.5], "footprint": [1.0, 1.0],
+                       "cg_height": 0.5}]}))
+    pts = model.stress_points
+    pos = pts.position
+
+    def feature_at(x, y, z):
+        return {pts.feature(p) for p in np.flatnonzero(np.all(np.isclose(pos, [x, y, z]), axis=1))}
+
+    # the mat: 7 × 7 × 3 nodes, 5 × 5 × 1 inside; the pedestal adds 3 × 3 × 2 nodes above
+    # the mat, 1 × 1 × 1 inside; of its 9 nodes on the mat's top face the middle one is no
+    # longer on the surface, the other 8 carry two materials (counting)
+    assert np.unique(pts.node).size == (7 * 7 * 3 - 5 * 5 * 1) + (3 * 3 * 2 - 1 * 1 * 1) - 1
+    assert pts.n_points == np.unique(pts.node).size + 8     # 8 interface-edge nodes twice
+    assert feature_at(1.0, 1.5, 1.0) == {"re-entrant corner"}   # pedestal foot on the mat
+    assert feature_at(1.0, 1.0, 1.0) == {"re-entrant corner"}
+    assert feature_at(3.0, 3.0, 1.0) == {None}                  # convex corner of the mat
+    assert feature_at(0.0, 1.5, 0.0) == {"base edge"}           # fixed base perimeter
+    assert feature_at(1.5, 1.5, 0.0) == {None}                  # inside the base face
+    assert feature_at(1.0, 1.5, 2.0) == {"mount edge"}          # footprint perimeter
+    assert feature_at(2.0, 2.0, 2.0) == {"mount edge"}
+    assert feature_at(1.5, 1.5, 2.0) == {None}                  # inside the footprint
+    assert feature_at(1.0, 1.5, 1.5) == {None}                  # pedestal side, mid-height

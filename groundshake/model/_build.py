@@ -657,8 +657,10 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         GR = np.zeros((6, 3))
     reaction = ReactionOperators(K=KR, C=CR, M=MR, G=GR)
 
-    stress_points = surface_stress_points(mesh, key_grid, mats, kmat,
-                                          constrained=status.reshape(-1, 3).any(axis=1))
+    held = status.reshape(-1, 3).max(axis=1)            # 1 fixed, 2 slaved (rigid base/mount)
+    constraint = np.where(held > 0, 2, 0)
+    constraint[base_nodes[held[base_nodes] > 0]] = 1      # fixed or rigid base
+    stress_points = surface_stress_points(mesh, key_grid, mats, kmat, constrained=constraint)
     stress = sp.csr_matrix(stress_points.operator @ P)
     materials = {nm: {"youngs_modulus": p[0], "poisson_ratio": p[1], "density": p[2]}
                  for nm, p in zip(mat_names, mat_props)}

@@ -8,10 +8,10 @@ averaging; Zienkiewicz & Zhu 1992). The recovery points are the nodes on the blo
 outer surface, once per material meeting at the node (stress jumps across a material
 interface, so it is not averaged across one).
 
-Two features are marked where stress concentrates and the linear-elastic value depends
-on the mesh: re-entrant corners and edges (the cells around the node do not form a box)
-and the edge of a constraint (a fixed base face, a rigid base or a rigid equipment mount:
-a constrained node that shares a surface face with a node that is not constrained).
+Features are marked where stress concentrates and the linear-elastic value depends on
+the mesh: re-entrant corners and edges (the cells around the node do not form a box)
+and the edge of a constraint — a fixed or rigid base, or a rigid equipment mount: a
+constrained node that shares a surface face with a node that is not constrained.
 """
 from __future__ import annotations
 
@@ -45,7 +45,8 @@ class StressPoints:
         Point of each element corner (local node order), −1 where the corner is not on
         the surface.
     reentrant : (n_p,) bool, the point sits on a re-entrant edge or corner.
-    constraint_edge : (n_p,) bool, the point sits on the edge of a constrained face.
+    constraint_edge : (n_p,) int8, the point sits on the edge of a constrained face:
+        0 no, 1 a fixed or rigid base, 2 a rigid mount (the codes of ``constrained``).
     """
 
     operator: sp.csr_matrix
@@ -61,12 +62,15 @@ class StressPoints:
         return int(self.node.size)
 
     def feature(self, p: int) -> str | None:
-        """``"re-entrant corner"``, ``"constraint edge"`` or None for point ``p``."""
+        """``"re-entrant corner"``, ``"base edge"``, ``"mount edge"`` or None for point ``p``."""
         if self.reentrant[p]:
             return "re-entrant corner"
-        if self.constraint_edge[p]:
-            return "constraint edge"
-        return None
+        return {1: "base edge", 2: "mount edge"}.get(int(self.constraint_edge[p]))
+
+    @property
+    def flagged(self) -> np.ndarray:
+        """(n_p,) bool, the point sits on any feature."""
+        return np.asarray(self.reentrant, bool) | (np.asarray(self.constraint_edge) > 0)
 
 
 def surface_faces(mesh: GridMesh) -> np.ndarray:
@@ -135,8 +139,9 @@ def surface_stress_points(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMat
         With ``corner_stress`` (k, 8, 6, 24) [Pa/m].
     key_material : (k,) int
         Material of each element matrix.
-    constrained : (n_nodes,) bool, optional
-        Nodes fixed to the ground or moving with a rigid base or mount.
+    constrained : (n_nodes,) int, optional
+        0 for a free node, 1 for a node of a fixed or rigid base, 2 for a node of a rigid
+        mount (booleans read as 0 and 1).
     batch : int
         Element corners handled at once while assembling (memory bound).
 
@@ -191,12 +196,13 @@ def surface_stress_points(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMat
     op.sum_duplicates()
 
     reentrant = _reentrant_nodes(mesh)[node]
-    edge = np.zeros(n_nodes, dtype=bool)
+    edge = np.zeros(n_nodes, dtype=np.int8)
     if constrained is not None and faces.size:
-        c = np.asarray(constrained, bool)
-        cf = c[faces]                                        # (n_f, 4)
+        code = np.asarray(constrained).astype(np.int8)
+        cf = code[faces] > 0                                 # (n_f, 4)
         mixed = cf.any(axis=1) & ~cf.all(axis=1)
-        edge[faces[mixed][cf[mixed]]] = True
+        nodes_at = faces[mixed][cf[mixed]]
+        edge[nodes_at] = code[nodes_at]
     return StressPoints(operator=op, node=node, position=np.asarray(mesh.nodes)[node],
                         material=material, element_points=element_points,
                         reentrant=reentrant, constraint_edge=edge[node])

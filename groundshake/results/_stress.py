@@ -310,7 +310,8 @@ def _join(items: list[str]) -> str:
 
 
 _FEATURE_WORDS = {"re-entrant corner": "a re-entrant corner or edge",
-                  "constraint edge": "the edge of a fixed base, rigid base or rigid mount"}
+                  "base edge": "the edge of the fixed or rigid base",
+                  "mount edge": "the edge of a rigid equipment mount"}
 
 
 def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[str]]:
@@ -330,7 +331,7 @@ def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[st
     summary : dict
         ``von_mises``, ``principal_tension``, ``principal_compression`` each with
         ``value`` [Pa], ``point``, ``at`` [m], ``time`` [s] and ``feature`` (None,
-        ``"re-entrant corner"`` or ``"constraint edge"``), and where the peak sits on
+        ``"re-entrant corner"``, ``"base edge"`` or ``"mount edge"``), and where the peak sits on
         a feature, ``away_from_features``: the largest peak among the other points;
         ``points``, ``n_points``, ``recovery``, ``units``.
     cautions : list of str
@@ -347,7 +348,7 @@ def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[st
             at = ", ".join(f"{v:.3g}" for v in d["at"])
             words = {"von_mises": "von Mises"}.get(key, key.replace("_", " "))
             found.setdefault(feat, []).append(f"{words} ({d['value'] / 1e6:.3g} MPa at ({at}) m)")
-    plain = np.flatnonzero(~(np.asarray(points.reentrant) | np.asarray(points.constraint_edge)))
+    plain = np.flatnonzero(~points.flagged)
     if plain.size:
         sub = StressPeaks(*(np.asarray(getattr(peaks, f))[plain] for f in (
             "von_mises", "von_mises_step", "tension", "tension_step", "compression",
