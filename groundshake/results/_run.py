@@ -482,7 +482,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     if resp.stress is not None:
         stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt)
         collected.extend(stress_notes)
-        resp.assumptions.append(RECOVERY_NOTE)
+        resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
         peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
         peaks["principal_tension"] = stress_out.get("principal_tension", {}).get("value")
         peaks["principal_compression"] = stress_out.get("principal_compression", {}).get("value")
