@@ -89,9 +89,9 @@ def test_time_blocks_fold_like_one_pass(engine):
 
 def test_element_peaks_take_the_largest_corner_point():
     rng = np.random.default_rng(4)
-    pk = StressPeaks(*(f(rng) for f in (lambda r: r.uniform(1, 2, 20), lambda r: r.integers(0, 99, 20),
-                                        lambda r: r.uniform(1, 2, 20), lambda r: r.integers(0, 99, 20),
-                                        lambda r: -r.uniform(1, 2, 20), lambda r: r.integers(0, 99, 20))))
+    steps = lambda: rng.integers(0, 99, 20)                           # noqa: E731
+    pk = StressPeaks(rng.uniform(1, 2, 20), steps(), rng.uniform(1, 2, 20), steps(),
+                     -rng.uniform(1, 2, 20), steps())
     ep = rng.integers(-1, 20, size=(7, 8))
     ep[3] = -1                                                       # no corner on the surface
     el = element_peaks(pk, ep)
@@ -137,17 +137,15 @@ def point_at(model, x, y, z) -> int:
     return int(np.flatnonzero(np.all(np.isclose(pos, [x, y, z]), axis=1))[0])
 
 
-@pytest.mark.parametrize("n", [2, 4])
-def test_pure_moment_gives_beam_theory_at_the_fixed_end(n):
-    """ν = 0: the pure-bending field vanishes on the base plane, so a clamped base is exact."""
-    height, M = 3.0, 2e5
-    model = pedestal(n, nu=0.0, height=height)
-    I, c = 1.0 / 12.0, 0.5
+def end_moment_forces(model, n: int, M: float, height: float) -> np.ndarray:
+    """Node forces (n_nodes, 3) [N] of the top traction t_z = −M(x − ½)/I (tension at x = 0).
+
+    Consistent loads ∫N_A t dA, exact for a linear t: h(t_i/3 + t_j/6) over each interval
+    next to node i (along x), times ∫N dy (h/2 at the edges, h inside).
+    """
     x, y, z = model.nodes.T
-    # top traction t_z = −M(x − ½)/I (tension at x = 0); consistent loads ∫N_A t dA, exact
-    # for a linear t: h(t_i/3 + t_j/6) over each interval next to node i, times ∫N dy
     h = 1.0 / n
-    t = lambda xx: -M * (xx - 0.5) / I                                   # noqa: E731
+    t = lambda xx: -M * (xx - 0.5) / (1.0 / 12.0)                        # noqa: E731
     fx = np.zeros_like(x)
     for side in (-1.0, 1.0):
         other = x + side * h
@@ -156,9 +154,17 @@ def test_pure_moment_gives_beam_theory_at_the_fixed_end(n):
     wy = h * np.where(np.isclose(y, 0) | np.isclose(y, 1), 0.5, 1.0)
     forces = np.zeros((x.size, 3))
     forces[:, 2] = np.where(np.isclose(z, height), fx * wy, 0.0)
-    sig = static_stresses(model, forces)
+    return forces
+
+
+@pytest.mark.parametrize("n", [2, 4])
+def test_pure_moment_gives_beam_theory_at_the_fixed_end(n):
+    """ν = 0: the pure-bending field vanishes on the base plane, so a clamped base is exact."""
+    height, M = 3.0, 2e5
+    model = pedestal(n, nu=0.0, height=height)
+    sig = static_stresses(model, end_moment_forces(model, n, M, height))
     s1, s3 = principal_stresses(sig)
-    ref = M * c / I                                      # Euler-Bernoulli, M·c/I
+    ref = M * 0.5 / (1.0 / 12.0)                         # Euler-Bernoulli, M·c/I
     p = int(np.argmax(s1))
     # beam theory (exact in elasticity for pure bending, Timoshenko & Goodier): 1e-9
     assert s1[p] == pytest.approx(ref, rel=1e-9)
@@ -172,16 +178,8 @@ def test_pure_moment_plain_hex8_is_low():
     """Trilinear bricks lock in bending (Wilson et al. 1973): below beam theory by > 5 %."""
     height, M, n = 3.0, 2e5, 2
     model = pedestal(n, nu=0.0, height=height, element="hex8")
-    x, y, z = model.nodes.T
-    h = 1.0 / n
-    t = lambda xx: -M * (xx - 0.5) / (1 / 12)                            # noqa: E731
-    fx = sum(np.where((x + s * h > -1e-9) & (x + s * h < 1 + 1e-9), h * (t(x) / 3 + t(x + s * h) / 6), 0)
-             for s in (-1.0, 1.0))
-    wy = h * np.where(np.isclose(y, 0) | np.isclose(y, 1), 0.5, 1.0)
-    forces = np.zeros((x.size, 3))
-    forces[:, 2] = np.where(np.isclose(z, height), fx * wy, 0.0)
-    s1, _ = principal_stresses(static_stresses(model, forces))
-    assert s1.max() < 0.95 * M * 0.5 * 12                # Euler-Bernoulli M·c/I
+    s1, _ = principal_stresses(static_stresses(model, end_moment_forces(model, n, M, height)))
+    assert s1.max() < 0.95 * M * 0.5 / (1.0 / 12.0)      # Euler-Bernoulli M·c/I
 
 
 @pytest.mark.parametrize("n", [4, 6])

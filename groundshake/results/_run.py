@@ -115,8 +115,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     """Response of the model to the motion, for the rows of ``output`` (k, n).
 
     Also gives the peak relative node displacement per direction anywhere in the
-    block and the per-element stress peaks, without ever holding the whole
-    displacement history. ``residual`` (n, 3), the missing-mass shapes of
+    block and the stress peaks at each stress point of the model, without ever
+    holding the whole displacement history. ``residual`` (n, 3), the missing-mass shapes of
     :func:`residual_vectors` for these modes, saves the static solve when given
     (a suite computes it once for all its records).
     """
@@ -212,7 +212,7 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
-        Compute element stress peaks.
+        Compute stress peaks (at the surface stress points).
     residual : ndarray (n, 3), optional
         Missing-mass shapes for ``modes`` (see
         :func:`groundshake.dynamics.residual_vectors`), computed once by a caller
