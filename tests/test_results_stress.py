@@ -274,9 +274,11 @@ def test_surface_points_and_features_of_a_pedestal_on_a_mat():
 
     # the mat: 7 × 7 × 3 nodes, 5 × 5 × 1 inside; the pedestal adds 3 × 3 × 2 nodes above
     # the mat, 1 × 1 × 1 inside; of its 9 nodes on the mat's top face the middle one is no
-    # longer on the surface, the other 8 carry two materials (counting)
+    # longer on the surface, the other 8 carry a point for each part (counting)
     assert np.unique(pts.node).size == (7 * 7 * 3 - 5 * 5 * 1) + (3 * 3 * 2 - 1 * 1 * 1) - 1
     assert pts.n_points == np.unique(pts.node).size + 8     # 8 interface-edge nodes twice
+    foot = np.flatnonzero(np.all(np.isclose(pos, [1.0, 1.5, 1.0]), axis=1))
+    assert sorted(pts.part[foot]) == [0, 1] and sorted(pts.material[foot]) == [0, 1]
     assert feature_at(1.0, 1.5, 1.0) == {"re-entrant corner"}   # pedestal foot on the mat
     assert feature_at(1.0, 1.0, 1.0) == {"re-entrant corner"}
     assert feature_at(3.0, 3.0, 1.0) == {None}                  # convex corner of the mat
@@ -343,4 +345,5 @@ def test_run_reports_surface_peaks_and_how_they_were_recovered(method):
     assert np.nanmax(res.stress.tension) == pytest.approx(st["principal_tension"]["value"],
                                                           rel=1e-12)
     assert st["principal_tension"]["feature"] == "base edge"
+    assert st["principal_tension"]["part"] == "b"
     assert any("edge of the fixed or rigid base" in w for w in res.summary["warnings"])

@@ -3,10 +3,11 @@
 Stresses of a brick are most accurate at its 2×2×2 Gauss points; peak stresses sit on
 the surface. Each element's Gauss-point stresses (incompatible modes included) are
 extrapolated to its corners (:data:`~groundshake.model._elements.GAUSS_TO_CORNERS`) and
-averaged, node by node, over the elements of one material that meet there (nodal
+averaged, node by node, over the elements of one part that meet there (nodal
 averaging; Zienkiewicz & Zhu 1992). The recovery points are the nodes on the block's
-outer surface, once per material meeting at the node (stress jumps across a material
-interface, so it is not averaged across one).
+outer surface, once per part meeting at the node: stress jumps across a material
+interface, and where a pedestal meets its mat at a re-entrant edge, averaging the
+pedestal's stresses with the mat's would dilute the pedestal's.
 
 Features are marked where stress concentrates and the linear-elastic value depends on
 the mesh: re-entrant corners and edges (the cells around the node do not form a box)
@@ -40,7 +41,8 @@ class StressPoints:
         displacement (node DOFs interleaved, as in the assembly).
     node : (n_p,) int, the mesh node of each point.
     position : (n_p, 3) [m].
-    material : (n_p,) int, material index of the elements averaged at the point.
+    part : (n_p,) int, the part whose elements are averaged at the point.
+    material : (n_p,) int, that part's material index.
     element_points : (n_el, 8) int
         Point of each element corner (local node order), −1 where the corner is not on
         the surface.
@@ -52,6 +54,7 @@ class StressPoints:
     operator: sp.csr_matrix
     node: np.ndarray
     position: np.ndarray
+    part: np.ndarray
     material: np.ndarray
     element_points: np.ndarray
     reentrant: np.ndarray
@@ -155,7 +158,7 @@ def surface_stress_points(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMat
     -----
     σ_p = (1/n_p) Σ_{e ∋ p} Σ_g X_ag σ_g,e: each element's Gauss-point stresses
     extrapolated to the corner a at the point, averaged over the n_p elements of the
-    point's material (Zienkiewicz & Zhu 1992, IJNME 33, on recovery from Gauss points).
+    point's part (Zienkiewicz & Zhu 1992, IJNME 33, on recovery from Gauss points).
     """
     if mats.corner_stress is None:
         raise ValueError("mats.corner_stress is None; brick_matrices gives it")
@@ -167,17 +170,19 @@ def surface_stress_points(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMat
     ei, ej, ek = np.asarray(mesh.element_cell).T
     keys = np.asarray(key_grid)[ek, ej, ei]                 # (n_el,)
     mat_el = np.asarray(key_material)[keys]                 # (n_el,)
-    n_mat = int(mat_el.max()) + 1 if n_el else 1
+    part_el = np.asarray(mesh.element_part, dtype=np.int64)  # (n_el,)
+    n_part = int(part_el.max()) + 1 if n_el else 1
     conn = np.asarray(mesh.elements)
     pair_e, pair_a = np.nonzero(on_surface[conn])           # element corners on the surface
     pair_node = conn[pair_e, pair_a]
-    code = pair_node.astype(np.int64) * n_mat + mat_el[pair_e]
-    ucode, pid = np.unique(code, return_inverse=True)
+    code = pair_node.astype(np.int64) * n_part + part_el[pair_e]
+    ucode, first, pid = np.unique(code, return_index=True, return_inverse=True)
     pid = pid.ravel()
     n_p = ucode.size
     count = np.bincount(pid, minlength=n_p).astype(float)
-    node = (ucode // n_mat).astype(np.int64)
-    material = (ucode % n_mat).astype(np.int64)
+    node = (ucode // n_part).astype(np.int64)
+    part = (ucode % n_part).astype(np.int64)
+    material = mat_el[pair_e[first]].astype(np.int64)
     element_points = np.full((n_el, 8), -1, dtype=np.int64)
     element_points[pair_e, pair_a] = pid
 
@@ -204,5 +209,5 @@ def surface_stress_points(mesh: GridMesh, key_grid: np.ndarray, mats: ElementMat
         nodes_at = faces[mixed][cf[mixed]]
         edge[nodes_at] = code[nodes_at]
     return StressPoints(operator=op, node=node, position=np.asarray(mesh.nodes)[node],
-                        material=material, element_points=element_points,
+                        part=part, material=material, element_points=element_points,
                         reentrant=reentrant, constraint_edge=edge[node])

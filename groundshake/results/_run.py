@@ -480,7 +480,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         peaks["relative_displacement"][d] = entry
     stress_out = {}
     if resp.stress is not None:
-        stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt)
+        stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt,
+                                                  part_names=list(model.part_names))
         collected.extend(stress_notes)
         resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
         peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")

@@ -24,8 +24,9 @@ RECOVERY_NOTE = (
     "Stresses are computed at each element's 2x2x2 Gauss points (for hex8-incompatible with "
     "the internal mode amplitudes recovered from the element's node displacements), "
     "extrapolated to the element's corners and averaged at each node over the elements of "
-    "one material (nodal averaging, Zienkiewicz & Zhu 1992); peaks are searched at every "
-    "node on the block's outer surface, not inside it. At re-entrant corners and at the "
+    "one part (nodal averaging, Zienkiewicz & Zhu 1992; where parts meet, each keeps its "
+    "own value); peaks are searched at every node on the block's outer surface, not inside "
+    "it. At re-entrant corners and at the "
     "edge of a fixed base, rigid base or rigid mount the linear-elastic stress is "
     "concentrated and grows as the mesh is refined.")
 
@@ -314,7 +315,8 @@ _FEATURE_WORDS = {"re-entrant corner": "a re-entrant corner or edge",
                   "mount edge": "the edge of a rigid equipment mount"}
 
 
-def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[str]]:
+def stress_summary(peaks: StressPeaks, points, dt: float, *,
+                   part_names: list[str] | None = None) -> tuple[dict, list[str]]:
     """Governing stress peaks for the summary, and the cautions they call for.
 
     Parameters
@@ -325,12 +327,15 @@ def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[st
         The model's stress points (``position``, ``feature(p)``).
     dt : float
         Record step [s].
+    part_names : list of str, optional
+        Names of the parts, to say which part a peak is in (``part``).
 
     Returns
     -------
     summary : dict
         ``von_mises``, ``principal_tension``, ``principal_compression`` each with
-        ``value`` [Pa], ``point``, ``at`` [m], ``time`` [s] and ``feature`` (None,
+        ``value`` [Pa], ``point``, ``at`` [m], ``time`` [s], ``part`` (with
+        ``part_names``) and ``feature`` (None,
         ``"re-entrant corner"``, ``"base edge"`` or ``"mount edge"``), and where the peak sits on
         a feature, ``away_from_features``: the largest peak among the other points;
         ``points``, ``n_points``, ``recovery``, ``units``.
@@ -342,6 +347,8 @@ def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[st
     for key, d in out.items():
         p = d.pop("element")
         d["point"] = p
+        if part_names is not None:
+            d["part"] = str(part_names[int(points.part[p])])
         feat = points.feature(p)
         d["feature"] = feat
         if feat is not None and d["value"] != 0.0:
@@ -356,6 +363,8 @@ def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[st
         for key, d in sub.governing(dt, np.asarray(points.position)[plain]).items():
             if key in out and out[key]["feature"] is not None:
                 d["point"] = int(plain[d.pop("element")])
+                if part_names is not None:
+                    d["part"] = str(part_names[int(points.part[d["point"]])])
                 out[key]["away_from_features"] = d
     notes = [f"The peak {_join(items)} sit{'s' if len(items) == 1 else ''} on "
              f"{_FEATURE_WORDS[feat]}, where the constraint or the geometry concentrates "
@@ -364,7 +373,7 @@ def stress_summary(peaks: StressPeaks, points, dt: float) -> tuple[dict, list[st
              "such details with a licensed engineer."
              for feat, items in found.items()]
     out["points"] = "nodes on the block's outer surface (Gauss-point stresses extrapolated " \
-                    "to element corners, averaged per material)"
+                    "to element corners, averaged per part)"
     out["n_points"] = int(points.n_points)
     out["recovery"] = RECOVERY_NOTE
     out["units"] = "Pa"
