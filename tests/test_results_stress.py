@@ -347,3 +347,28 @@ def test_run_reports_surface_peaks_and_how_they_were_recovered(method):
     assert st["principal_tension"]["feature"] == "base edge"
     assert st["principal_tension"]["part"] == "b"
     assert any("edge of the fixed or rigid base" in w for w in res.summary["warnings"])
+
+
+def test_peak_at_a_pedestal_foot_is_flagged_as_a_re_entrant_corner():
+    """Static 1 g lateral on a pedestal standing on a mat: the foot of the pedestal governs."""
+    model = build_model(Scenario.from_dict({
+        "title": "pedestal on a mat (invented)",
+        "materials": {"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0}},
+        "parts": [{"name": "mat", "material": "c", "origin": [0, 0, 0], "size": [3.0, 3.0, 0.5]},
+                  {"name": "ped", "material": "c", "origin": [1, 1, 0.5], "size": [1.0, 1.0, 2.0]}],
+        "mesh": {"element_size": 0.25}, "support": {"kind": "fixed"}}))
+    f = model.M @ model.influence[:, 0] * G
+    sig = (model.stress @ spla.spsolve(model.K.tocsc(), f)).reshape(-1, 1, 6).transpose(0, 2, 1)
+    peaks = StressPeaks.empty(sig.shape[0])
+    peaks.update(0, np.ascontiguousarray(sig), np.array([0]))
+    out, cautions = stress_summary(peaks, model.stress_points, 0.01, part_names=["mat", "ped"])
+    pt = out["principal_tension"]
+    # the pedestal bends as a cantilever from its foot (Euler-Bernoulli): tension on its
+    # x = 1 face at z = 0.5, where it meets the mat — a re-entrant edge (definition)
+    assert pt["part"] == "ped" and pt["feature"] == "re-entrant corner"
+    assert pt["at"][0] == 1.0 and pt["at"][2] == 0.5
+    assert any("re-entrant corner" in c for c in cautions)
+    # the re-entrant edge concentrates stress, so the recovered peak lies above beam
+    # theory's M/S of the foot section (Euler-Bernoulli, pedestal as a cantilever)
+    ms = 2400 * 1.0 * 2.0 * G * 1.0 / (1.0 / 6.0)
+    assert pt["value"] > ms
