@@ -21,7 +21,7 @@ from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
 
 __all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
-           "units_factor", "warn",
+           "units_factor", "warn", "block_before",
            "check_dt", "unique_names", "G10"]
 
 #: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
@@ -226,3 +226,35 @@ def units_factor(text: str, *, fmt: str, path: Path, line: int | None = None) ->
         raise FormatError(fmt, path, f"units {word!r} are not units of acceleration this "
                           f"reader knows", line=line) from None
     return canon, UNITS[canon]
+
+
+def block_before(lines: Sequence[str], end: int, total: int, *, fmt: str, path: Path,
+                 start: int = 0) -> tuple[np.ndarray, int]:
+    """The ``total`` numbers written on the lines just before line index ``end``.
+
+    Volume-1 style files put a fixed-format header before each channel's data
+    and close the data with a marker line; counting values back from the
+    marker finds the data without relying on the header's line count.
+
+    Returns
+    -------
+    values : ndarray, shape (total,)
+    first : int
+        Index (0-based) of the data block's first line.
+    """
+    count = 0
+    k = end
+    while k > start and count < total:
+        k -= 1
+        count += len(lines[k].split())
+    if count != total:
+        raise FormatError(fmt, path, f"the lines before the end of the channel do not hold "
+                          f"the {total} values the header announces", line=end + 1)
+    body = lines[k:end]
+    try:
+        values = np.array(" ".join(body).replace("D", "E").split(), dtype=float)
+    except ValueError:
+        bad = next(j for j, ln in enumerate(body) if not all(_is_number(c) for c in ln.split()))
+        raise FormatError(fmt, path, "a data line holds something that is not a number",
+                          line=k + bad + 1, text=body[bad]) from None
+    return values, k
