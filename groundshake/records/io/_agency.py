@@ -21,7 +21,7 @@ from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
 
 __all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
-           "units_factor", "warn", "block_before",
+           "units_factor", "warn", "block_before", "check_units",
            "check_dt", "unique_names", "G10"]
 
 #: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
@@ -131,7 +131,7 @@ def check_dt(header_dt: float, user_dt: float | None, path: Path, fmt: str) -> f
     return float(header_dt)
 
 
-def _check_units(file_units: str, user_units: str | None, path: Path, fmt: str) -> None:
+def check_units(file_units: str, user_units: str | None, path: Path, fmt: str) -> None:
     if user_units is None:
         return
     given = canonical_units(user_units, where=f"{path}: units")
@@ -163,7 +163,7 @@ def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float
         Further header fields; ``azimuth_deg``/``orientation`` here override what
         the component code says.
     """
-    _check_units(file_units, user_units, path, fmt)
+    check_units(file_units, user_units, path, fmt)
     meta: dict[str, Any] = {"format": fmt, "station": station, "channel": component}
     meta.update(metadata or {})
     kind, az = describe(component, meta)

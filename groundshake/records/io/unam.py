@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import (FormatError, check_dt, head_lines, make_record, numbers, read_lines,
+from ._agency import (FormatError, check_dt, check_units, head_lines, make_record, numbers, read_lines,
                       units_factor, warn)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -123,6 +123,9 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         file_units, factor = units_factor(units, fmt=FORMAT, path=path)
     else:
         raise FormatError(FORMAT, path, "no 'UNIDADES DE LOS DATOS' line; give the units (--units)")
+    check_units(file_units, units, path, FORMAT)
+    for step in step_values:
+        check_dt(step, dt, path, FORMAT)
     width = 10
     fmt_line = find("FORMATO")
     if fmt_line:
