@@ -21,7 +21,7 @@ from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
 
 __all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
-           "units_factor", "warn", "block_before", "check_units",
+           "units_factor", "warn", "volume1_data", "check_units",
            "check_dt", "unique_names", "G10"]
 
 #: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
@@ -228,33 +228,47 @@ def units_factor(text: str, *, fmt: str, path: Path, line: int | None = None) ->
     return canon, UNITS[canon]
 
 
-def block_before(lines: Sequence[str], end: int, total: int, *, fmt: str, path: Path,
-                 start: int = 0) -> tuple[np.ndarray, int]:
-    """The ``total`` numbers written on the lines just before line index ``end``.
+#: Lines of the real-valued header of Volume-1 style files: 50 values, 8 a line (CDMG layout).
+REAL_HEADER_LINES = 7
+_INT_LINE = re.compile(r"^[\s\d-]+$")
 
-    Volume-1 style files put a fixed-format header before each channel's data
-    and close the data with a marker line; counting values back from the
-    marker finds the data without relying on the header's line count.
+
+def volume1_data(lines: Sequence[str], start: int, end: int, total: int, *, fmt: str,
+                 path: Path) -> tuple[np.ndarray, int]:
+    """The ``total`` numbers of a Volume-1 style channel between its headers and line ``end``.
+
+    A channel is a text header, an integer header (lines of whole numbers), a
+    real header of :data:`REAL_HEADER_LINES` lines, then the data up to the
+    end marker (index ``end``, excluded). ``start`` is the channel's first line.
 
     Returns
     -------
     values : ndarray, shape (total,)
     first : int
-        Index (0-based) of the data block's first line.
+        Index (0-based) of the data's first line.
+
+    Raises
+    ------
+    RecordError
+        No integer header, or a data block that does not hold ``total`` values.
     """
-    count = 0
-    k = end
-    while k > start and count < total:
-        k -= 1
-        count += len(lines[k].split())
-    if count != total:
-        raise FormatError(fmt, path, f"the lines before the end of the channel do not hold "
-                          f"the {total} values the header announces", line=end + 1)
-    body = lines[k:end]
+    k = start
+    while k < end and not (lines[k].strip() and _INT_LINE.match(lines[k])):
+        k += 1
+    if k >= end:
+        raise FormatError(fmt, path, "the channel has no integer header (lines of whole numbers)",
+                          line=start + 1)
+    while k < end and lines[k].strip() and _INT_LINE.match(lines[k]):
+        k += 1
+    first = k + REAL_HEADER_LINES
+    body = lines[first:end]
     try:
         values = np.array(" ".join(body).replace("D", "E").split(), dtype=float)
     except ValueError:
         bad = next(j for j, ln in enumerate(body) if not all(_is_number(c) for c in ln.split()))
         raise FormatError(fmt, path, "a data line holds something that is not a number",
-                          line=k + bad + 1, text=body[bad]) from None
-    return values, k
+                          line=first + bad + 1, text=body[bad]) from None
+    if values.size != total:
+        raise FormatError(fmt, path, f"the data block holds {values.size} values; the header "
+                          f"announces {total}", line=first + 1)
+    return values, first

@@ -13,8 +13,8 @@ import math
 import re
 from pathlib import Path
 
-from ._agency import (FormatError, block_before, check_dt, head_lines, make_record, numbers,
-                      read_lines, units_factor)
+from ._agency import (FormatError, check_dt, head_lines, make_record, read_lines,
+                      units_factor, volume1_data)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -110,7 +110,7 @@ def _channel(lines, s, end, path, units, dt):
     # DURATION = n·dt (9984 points, 49.920 s at 200 per second); its printed
     # digits limit the step to six significant figures
     step = check_dt(float(f"{duration / n:.6g}"), dt, path, FORMAT)
-    values, _ = block_before(lines, end, n, fmt=FORMAT, path=path, start=pline + 1)
+    values, _ = volume1_data(lines, uline + 1, end, n, fmt=FORMAT, path=path)
 
     meta: dict = {}
     station = path.stem

@@ -16,8 +16,8 @@ from pathlib import Path
 import numpy as np
 
 from .._record import STANDARD_GRAVITY
-from ._agency import (FormatError, block_before, check_dt, head_lines, make_record, numbers,
-                      read_lines, units_factor)
+from ._agency import (FormatError, check_dt, head_lines, make_record, numbers, read_lines,
+                      units_factor, volume1_data)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -99,7 +99,8 @@ def _channel(lines, s, end, path, units, dt):
     if not um:
         raise FormatError(FORMAT, path, "no 'UNITS OF ... ARE SEC AND ...' line", line=s + 12)
     file_units, factor = units_factor(um.group(1), fmt=FORMAT, path=path, line=s + 12)
-    values, first = block_before(lines, end, 2 * n, fmt=FORMAT, path=path, start=s + 13)
+    after_units = s + 1 + next(j for j, ln in enumerate(head) if _UNITS.search(ln))
+    values, first = volume1_data(lines, after_units, end, 2 * n, fmt=FORMAT, path=path)
     pairs = values.reshape(n, 2)
     time, acc = pairs[:, 0], pairs[:, 1]
     steps = np.diff(time)
