@@ -234,12 +234,14 @@ _INT_LINE = re.compile(r"^[\s\d-]+$")
 
 
 def volume1_data(lines: Sequence[str], start: int, end: int, total: int, *, fmt: str,
-                 path: Path) -> tuple[np.ndarray, int]:
+                 path: Path, width: int | None = None) -> tuple[np.ndarray, int]:
     """The ``total`` numbers of a Volume-1 style channel between its headers and line ``end``.
 
     A channel is a text header, an integer header (lines of whole numbers), a
     real header of :data:`REAL_HEADER_LINES` lines, then the data up to the
-    end marker (index ``end``, excluded). ``start`` is the channel's first line.
+    end marker (index ``end``, excluded). ``start`` is the first line after the
+    text header. ``width``: the data's Fortran field width, used when values
+    touch (``-1.0E-01-2.0E-01``).
 
     Returns
     -------
@@ -265,6 +267,14 @@ def volume1_data(lines: Sequence[str], start: int, end: int, total: int, *, fmt:
     try:
         values = np.array(" ".join(body).replace("D", "E").split(), dtype=float)
     except ValueError:
+        values = None
+    if values is None and width:
+        cells = [ln[j:j + width] for ln in body for j in range(0, len(ln.rstrip()), width)]
+        try:
+            values = np.array([c.replace("D", "E") for c in cells if c.strip()], dtype=float)
+        except ValueError:
+            values = None
+    if values is None:
         bad = next(j for j, ln in enumerate(body) if not all(_is_number(c) for c in ln.split()))
         raise FormatError(fmt, path, "a data line holds something that is not a number",
                           line=first + bad + 1, text=body[bad]) from None

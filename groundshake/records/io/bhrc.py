@@ -110,7 +110,7 @@ def _channel(lines, s, end, path, units, dt):
     # DURATION = n·dt (9984 points, 49.920 s at 200 per second); its printed
     # digits limit the step to six significant figures
     step = check_dt(float(f"{duration / n:.6g}"), dt, path, FORMAT)
-    values, _ = volume1_data(lines, uline + 1, end, n, fmt=FORMAT, path=path)
+    values, _ = volume1_data(lines, uline + 1, end, n, fmt=FORMAT, path=path, width=13)
 
     meta: dict = {}
     station = path.stem

@@ -100,7 +100,8 @@ def _channel(lines, s, end, path, units, dt):
         raise FormatError(FORMAT, path, "no 'UNITS OF ... ARE SEC AND ...' line", line=s + 12)
     file_units, factor = units_factor(um.group(1), fmt=FORMAT, path=path, line=s + 12)
     after_units = s + 1 + next(j for j, ln in enumerate(head) if _UNITS.search(ln))
-    values, first = volume1_data(lines, after_units, end, 2 * n, fmt=FORMAT, path=path)
+    values, first = volume1_data(lines, after_units, end, 2 * n, fmt=FORMAT, path=path,
+                                 width=7)
     pairs = values.reshape(n, 2)
     time, acc = pairs[:, 0], pairs[:, 1]
     steps = np.diff(time)
