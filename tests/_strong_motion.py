@@ -1,4 +1,4 @@
-"""Helpers for the reader tests: the real files in tests/data/strong-motion and a round trip.
+"""Shared pieces of the reader tests: the real files' folder and a round trip through our writers.
 
 The files are copies of public agency records (tests/data/strong-motion/SOURCES.md);
 the tests never edit them.
@@ -12,6 +12,36 @@ import numpy as np
 from groundshake.records import read_record, write_record
 
 DATA = Path(__file__).parent / "data" / "strong-motion"
+
+
+def round_trip(records, tmp_path: Path) -> None:
+    """Write each record as MiniSEED and CSV with our writers, read both back, compare.
+
+    MiniSEED is written with 64-bit floats and the CSV with ``repr(float)`` (shortest text
+    that reads back to the same double, Python's float repr), so both must give back the
+    very same samples and step.
+    """
+    for k, rec in enumerate(records):
+        for ext in (".mseed", ".csv"):
+            out = tmp_path / f"rt{k}{ext}"
+            write_record(rec, out)
+            (back,) = read_record(out, units="m/s2") if ext == ".mseed" else read_record(out)
+            assert back.n == rec.n  # same number of samples
+            assert back.dt == rec.dt  # same step, written exactly
+            np.testing.assert_array_equal(back.acc, rec.acc)  # doubles round-trip exactly
+
+
+def round_trip_sac(records, tmp_path: Path) -> None:
+    """Write each record as SAC and read it back: SAC stores 32-bit floats (SAC format),
+    so samples agree to float32 precision and the step to its shortest decimal."""
+    for k, rec in enumerate(records):
+        out = tmp_path / f"rt{k}.sac"
+        write_record(rec, out)
+        (back,) = read_record(out)
+        assert back.n == rec.n
+        assert abs(back.dt - rec.dt) <= 1e-6 * rec.dt
+        np.testing.assert_allclose(back.acc, rec.acc, rtol=1e-6,
+                                   atol=1e-6 * float(np.max(np.abs(rec.acc))))
 
 
 def data_file(name: str) -> Path:
@@ -29,24 +59,3 @@ def other_files(name: str) -> list[Path]:
     """Every record file of tests/data/strong-motion except ``name`` (for detection checks)."""
     return [p for p in sorted(DATA.iterdir())
             if p.name != name and p.suffix.lower() not in (".md", ".xml")]
-
-
-def round_trip(records, tmp_path: Path) -> None:
-    """Write through each of our writers and read back: same samples, step and order."""
-    for suffix in (".csv", ".sac", ".mseed"):
-        if suffix == ".sac":  # a SAC file holds one trace (SAC format)
-            back = []
-            for k, rec in enumerate(records):
-                out = tmp_path / f"round{k}{suffix}"
-                write_record(rec, out)
-                back += read_record(out)
-        else:
-            out = tmp_path / f"round{suffix}"
-            write_record(records, out)
-            back = read_record(out, units="m/s2" if suffix == ".mseed" else None)
-        assert len(back) == len(records)
-        for a, b in zip(records, back):
-            # SAC and MiniSEED store 32-bit floats (their format specifications)
-            rtol = 1e-12 if suffix == ".csv" else 1e-6
-            np.testing.assert_allclose(b.acc, a.acc, rtol=rtol, atol=rtol * np.abs(a.acc).max())
-            assert abs(b.dt - a.dt) <= 1e-6 * a.dt

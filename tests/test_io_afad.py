@@ -13,7 +13,7 @@ from groundshake._errors import GroundshakeWarning, RecordError
 from groundshake.records import read_record
 from groundshake.records.io import afad
 
-from _strong_motion import data_file, head, other_files, round_trip
+from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
 
 NAME = "nsmn_us20009ynd_20170720223109_0921.txt"
 
@@ -53,7 +53,9 @@ def test_real_file_equals_an_independent_parse():
 
 
 def test_round_trip_through_our_writers(tmp_path):
-    round_trip(read_record(data_file(NAME)), tmp_path)
+    records = read_record(data_file(NAME))
+    round_trip(records, tmp_path)
+    round_trip_sac(records, tmp_path)
 
 
 def _synthetic(table: np.ndarray, dt: float, *, n_header: int | None = None,

@@ -15,7 +15,7 @@ from groundshake._errors import RecordError
 from groundshake.records import read_record
 from groundshake.records.io import bhrc
 
-from _strong_motion import data_file, head, other_files, round_trip
+from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
 
 NAME = "bhrc_usp000jq5p_5522-1.V1"
 G = 9.80665
@@ -59,7 +59,9 @@ def test_real_file_equals_an_independent_parse():
 
 
 def test_round_trip_through_our_writers(tmp_path):
-    round_trip(read_record(data_file(NAME)), tmp_path)
+    records = read_record(data_file(NAME))
+    round_trip(records, tmp_path)
+    round_trip_sac(records, tmp_path)
 
 
 def _channel(comp: str, values: np.ndarray, dt: float, azimuths="Azimuth N 10  E 100") -> list[str]:

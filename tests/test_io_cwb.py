@@ -13,7 +13,7 @@ from groundshake._errors import RecordError
 from groundshake.records import read_record
 from groundshake.records.io import cwb
 
-from _strong_motion import data_file, head, other_files, round_trip
+from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
 
 NAME = "cwb_us1000chhc_1-EAS.dat"
 
@@ -51,7 +51,9 @@ def test_real_file_equals_an_independent_parse():
 
 
 def test_round_trip_through_our_writers(tmp_path):
-    round_trip(read_record(data_file(NAME)), tmp_path)
+    records = read_record(data_file(NAME))
+    round_trip(records, tmp_path)
+    round_trip_sac(records, tmp_path)
 
 
 def _synthetic(table: np.ndarray, rate: float, unit="gal") -> str:

@@ -16,7 +16,7 @@ from groundshake._errors import RecordError
 from groundshake.records import read_record
 from groundshake.records.io import renadic
 
-from _strong_motion import data_file, head, other_files, round_trip
+from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
 
 NAME = "renadic_usp000h401_cuya0911131.v1"
 G = 9.80665
@@ -61,7 +61,9 @@ def test_real_file_equals_an_independent_parse():
 
 
 def test_round_trip_through_our_writers(tmp_path):
-    round_trip(read_record(data_file(NAME)), tmp_path)
+    records = read_record(data_file(NAME))
+    round_trip(records, tmp_path)
+    round_trip_sac(records, tmp_path)
 
 
 def _channel(k: int, comp: str, values: np.ndarray, dt: float) -> list[str]:

@@ -15,7 +15,7 @@ from groundshake._errors import GroundshakeWarning, RecordError
 from groundshake.records import read_record
 from groundshake.records.io import unam
 
-from _strong_motion import data_file, head, other_files, round_trip
+from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
 
 NAME = "unam_usp000cgtd_CUP50401.012"
 
@@ -66,7 +66,9 @@ def test_real_file_equals_an_independent_parse():
 
 
 def test_round_trip_through_our_writers(tmp_path):
-    round_trip(_read(data_file(NAME)), tmp_path)
+    records = _read(data_file(NAME))
+    round_trip(records, tmp_path)
+    round_trip_sac(records, tmp_path)
 
 
 def _synthetic(table: np.ndarray, dt: float, comps=("N45W", "UP", "S45W")) -> str:

@@ -33,6 +33,10 @@ READERS: tuple[str, ...] = (
     "renadic",
     "bhrc",
     "cwb",
+    "csmip",
+    "cosmos",
+    "geonet",
+    "usgs_smc",
     "obspy_formats",
     "text",
 )
