@@ -27,7 +27,7 @@ __all__ = ["register", "add_reading_options", "add_processing_options", "setting
 # -- shared options -------------------------------------------------------------------
 
 def add_reading_options(p: argparse.ArgumentParser) -> None:
-    """Add ``--units``, ``--dt`` and ``--resample`` (how files are read)."""
+    """Add ``--units``, ``--dt``, ``--resample`` and ``--inventory`` (how files are read)."""
     g = p.add_argument_group("reading")
     g.add_argument("--units", metavar="U",
                    help=f"units of files that do not state them: {UNIT_NAMES}")
@@ -36,6 +36,10 @@ def add_reading_options(p: argparse.ArgumentParser) -> None:
     g.add_argument("--resample", action="store_true",
                    help="put text files with uneven time steps on a uniform step "
                         "(linear interpolation at the median step)")
+    g.add_argument("--inventory", metavar="FILE",
+                   help="station inventory (StationXML) of records in raw counts (MiniSEED, "
+                        "SAC): the instrument sensitivity (accelerometers) or full response "
+                        "is removed")
 
 
 def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> None:
@@ -114,7 +118,8 @@ def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
     for path in paths:
         out.extend(read_record(path, units=getattr(args, "units", None),
                                dt=getattr(args, "dt", None),
-                               resample=getattr(args, "resample", False)))
+                               resample=getattr(args, "resample", False),
+                               inventory=getattr(args, "inventory", None)))
     return out
 
 
