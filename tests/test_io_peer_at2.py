@@ -114,3 +114,9 @@ def test_short_data_block_names_the_line(tmp_path):
     p.write_text(p.read_text().replace("NPTS=     30", "NPTS=     40"))
     with pytest.raises(InputError, match=r"PEER NGA \(\.AT2\) file .*40 values were announced"):
         read_record(p)
+
+
+def test_dt_before_npts(tmp_path):
+    p, _ = _synthetic(tmp_path, n=25, dt=0.005, line4="DT=    .0050 SEC, NPTS=     25")
+    (rec,) = read_record(p)
+    assert rec.n == 25 and rec.dt == 0.005  # the same keys in the other order, as written

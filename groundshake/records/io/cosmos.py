@@ -35,10 +35,11 @@ EXTENSIONS = (".v0", ".v0c", ".v1", ".v1c", ".v2", ".v2c")
 
 _FIRST = re.compile(r"\(Format\s+v?(\d+\.\d+)\s+with\s+(\d+)\s+text lines\)", re.I)
 _HEADER = re.compile(r"^\s*(\d+)\s+(Integer|Real)-header values follow on\s+(\d+)\s+lines,?"
-                     r"\s*Format\s*=\s*\(\s*(\d+)\s*[IFEG](\d+)(?:\.\d+)?\s*\)", re.I)
+                     r"\s*Format\s*=\s*\(\s*(?:\d*P\s*,?\s*)?(\d+)\s*[IFEG](\d+)(?:\.\d+)?\s*\)",
+                     re.I)
 _COMMENTS = re.compile(r"^\s*(\d+)\s+Comment line\(s\) follow", re.I)
 _DATA = re.compile(r"^\s*(\d+)\s+(.*?)\s+pts,.*?units\s*=\s*([^(,]*?)\s*\((\d+)\)\s*,?\s*"
-                   r"Format\s*=\s*\(\s*(\d+)\s*[IFEG](\d+)(?:\.\d+)?\s*\)", re.I)
+                   r"Format\s*=\s*\(\s*(?:\d*P\s*,?\s*)?(\d+)\s*[IFEG](\d+)(?:\.\d+)?\s*\)", re.I)
 _START = re.compile(r"Rcrd start time:\s*(?:(\d{1,2})/(\d{1,2})/(\d{4})|(\d{4})/(\d{1,2})/(\d{1,2}))"
                     r",?\s+(\d+):(\d+):([0-9.]+)\s*(UTC|GMT)?", re.I)
 _CHAN = re.compile(r"Sta\s+Cha\w*\s*:?\s*(?:\S+\s*)?:\s*(.*?)\s*\(", re.I)

@@ -408,10 +408,10 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
         series = {}
         for b in ch.blocks:
             if b.kind == "accel":
-                series["acc"] = b.values * UNITS_SI(b.unit_text, "pga", path, b.line)
+                series["acc"] = b.values * _si_factor(b.unit_text, "pga", path, b.line)
             else:
                 series[{"veloc": "vel", "displ": "disp"}[b.kind]] = \
-                    b.values * UNITS_SI(b.unit_text, b.kind, path, b.line)
+                    b.values * _si_factor(b.unit_text, b.kind, path, b.line)
         if "acc" not in series:
             raise format_error(FORMAT, path, "the channel has no acceleration data block",
                                ch.first_line, ch.lines[0])
@@ -421,7 +421,8 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
     return out
 
 
-def UNITS_SI(unit_text: str, what: str, path: Path, line: int) -> float:  # noqa: N802
+def _si_factor(unit_text: str, what: str, path: Path, line: int) -> float:
+    """Factor from a data block's units to SI (m/s², m/s or m)."""
     f = _factor(unit_text, what)
     if f is None:
         raise format_error(FORMAT, path, f"unknown units {unit_text!r}", line)

@@ -35,7 +35,7 @@ _COMP = re.compile(r"^\s*Component\s+(\S+)", re.I)
 _PEAK = re.compile(r"^\s*(Acceleration|Velocity|Displacement)\s*:\s*Peak\s+([-0-9.]+)\s+(\S+)"
                    r"\s+at\s+([-0-9.]+)\s*s", re.I)
 _INTS = re.compile(r"^(\s*-?\d+){10}\s*$")
-_MAG = re.compile(r"\b(M[LWS]?)\s+([0-9.]+)\s*$")
+_MAG = re.compile(r"\b(M[LWSlws]?)\s+([0-9.]+)\s*$")
 _LENGTH = {"mm": 0.001, "cm": 0.01, "m": 1.0}
 
 
@@ -79,19 +79,18 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     where = str(path)
     lines = path.read_text(encoding="latin-1").splitlines()
     given = user_units(units, where)
+    # a component starts with "... accelerogram ..." followed by "Site ..."
+    starts = [i for i in range(len(lines) - 1)
+              if _FIRST.match(lines[i]) and _SITE.match(lines[i + 1])]
+    if not starts or any(s.strip() for s in lines[:starts[0]]):
+        k = next((n for n, s in enumerate(lines) if s.strip()), 0)
+        raise format_error(FORMAT, path, "expected 'Uncorrected accelerogram' or 'Corrected "
+                           "accelerogram' and a 'Site' line to start a component", k + 1,
+                           lines[k] if lines else "")
     records = []
-    i = 0
-    while i < len(lines):
-        if not lines[i].strip():
-            i += 1
-            continue
-        if not _FIRST.match(lines[i]):
-            raise format_error(FORMAT, path, "expected 'Uncorrected accelerogram' or "
-                               "'Corrected accelerogram' to start a component", i + 1, lines[i])
-        rec, i = _component(lines, i, path, given, dt)
+    for i, j in zip(starts, starts[1:] + [len(lines)]):
+        rec, end = _component(lines[:j], i, path, given, dt)
         records.append(rec)
-    if not records:
-        raise format_error(FORMAT, path, "no component found")
     return unique_names(records)
 
 

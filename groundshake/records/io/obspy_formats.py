@@ -113,12 +113,19 @@ def _read_stream(path: Path):
     except TypeError as e:
         if "Unknown format" in str(e):
             raise RecordError(f"{path}: not a record groundshake can read (no format ObsPy "
-                              f"knows inside the packed file)") from e
+                              f"knows inside the packed file); formats read: {_formats()}") from e
         raise RecordError(f"{path}: not a record groundshake can read: ObsPy took it for one "
-                          f"of its formats but failed ({e})") from e
+                          f"of its formats but failed ({e}); formats read: {_formats()}") from e
     except Exception as e:  # a reader that claimed the file and then failed
         raise RecordError(f"{path}: not a record groundshake can read: ObsPy took it for one "
-                          f"of its formats but failed ({type(e).__name__}: {e})") from e
+                          f"of its formats but failed ({type(e).__name__}: {e}); formats read: "
+                          f"{_formats()}") from e
+
+
+def _formats() -> str:
+    from . import formats_read
+
+    return formats_read()
 
 
 def _plain(value: Any) -> Any:

@@ -26,7 +26,8 @@ __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 FORMAT = "PEER NGA (.AT2)"
 EXTENSIONS = (".at2",)
 
-_NPTS_DT = re.compile(r"NPTS\s*=\s*(\d+)\s*,?\s*DT\s*=\s*([0-9.Ee+-]+)", re.I)
+_NPTS = re.compile(r"NPTS\s*=\s*(\d+)", re.I)
+_DT = re.compile(r"\bDT\s*=\s*([0-9.Ee+-]+)", re.I)
 _OLD_NPTS_DT = re.compile(r"^\s*(\d+)\s+([0-9.Ee+-]+)\s+NPTS\s*,\s*DT", re.I)
 _UNITS = re.compile(r"TIME SERIES IN UNITS OF\s+(.+?)\s*$", re.I)
 _KIND = re.compile(r"^\s*(ACCELERATION|VELOCITY|DISPLACEMENT)\b", re.I)
@@ -38,7 +39,8 @@ def is_format(path: Path, head: bytes) -> bool:
         lines = head.decode("latin-1").splitlines()[:4]
         return (len(lines) == 4 and lines[0].lstrip().upper().startswith("PEER")
                 and "TIME SERIES" in lines[2].upper()
-                and bool(_NPTS_DT.search(lines[3]) or _OLD_NPTS_DT.search(lines[3])))
+                and bool(_NPTS.search(lines[3]) and _DT.search(lines[3])
+                         or _OLD_NPTS_DT.search(lines[3])))
     except Exception:
         return False
 
@@ -88,14 +90,19 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         raise format_error(FORMAT, path, f"units {unit_text!r} are not units of acceleration",
                            3, lines[2], part="header line") from None
     rec_units = resolve_units(file_units, user_units(units, where), where)
-    m = _NPTS_DT.search(lines[3]) or _OLD_NPTS_DT.search(lines[3])
-    if not m:
+    mn, md = _NPTS.search(lines[3]), _DT.search(lines[3])
+    old = _OLD_NPTS_DT.search(lines[3])
+    if mn and md:
+        npts_text, dt_text = mn.group(1), md.group(1)
+    elif old:
+        npts_text, dt_text = old.group(1), old.group(2)
+    else:
         raise format_error(FORMAT, path, "no NPTS= and DT=", 4, lines[3], part="header line")
-    npts = int(m.group(1))
+    npts = int(npts_text)
     try:
-        step = float(m.group(2))
+        step = float(dt_text)
     except ValueError:
-        raise format_error(FORMAT, path, f"DT {m.group(2)!r} is not a number", 4, lines[3],
+        raise format_error(FORMAT, path, f"DT {dt_text!r} is not a number", 4, lines[3],
                            part="header line") from None
     if not step > 0:
         raise format_error(FORMAT, path, f"DT={step:g} s must be > 0", 4, lines[3],
