@@ -13,7 +13,7 @@ E, EW, E-W, EAST, EW1                  horizontal  90
 N, NS, N-S, NORTH, NS2                 horizontal  0
 360, 90, 0, 270 (numbers 0–360)        horizontal  the number mod 360
 N08W, S45E, N90E (compass bearings)    horizontal  352, 135, 90
-L, T, H1, H2, X, Y, L1, T3             horizontal  from the header, else —
+L, T, H1, H2, X, Y, L1, T3, FN, FP     horizontal  from the header, else —
 =====================================  ==========  ===============
 
 A header's own statement wins over the code: ``metadata["orientation"]``
@@ -35,7 +35,8 @@ _VERTICAL_WORDS = {"UD", "UP", "U", "V", "Z", "VERT", "VERTICAL", "DOWN", "DN", 
 _NORTH_WORDS = {"N", "NS", "NORTH", "SN", "NORTHSOUTH"}
 _EAST_WORDS = {"E", "EW", "EAST", "WE", "EASTWEST"}
 _HORIZONTAL_WORDS = {"L", "T", "H", "H1", "H2", "X", "Y", "R", "TRAN", "TRANS", "TRANSVERSE",
-                     "LONGITUDINAL", "LONG", "RADIAL", "HORIZONTAL", "HOR"}
+                     "LONGITUDINAL", "LONG", "RADIAL", "HORIZONTAL", "HOR",
+                     "FN", "FP"}  # fault normal / fault parallel (rotated records)
 _BEARING = re.compile(r"^([NS])\s*(\d{1,2}(?:\.\d+)?)\s*([EW])$")
 _NUMBER = re.compile(r"^[+-]?\d{1,3}(?:\.\d+)?$")
 _SEED = re.compile(r"^[A-Z][A-Z]([ZNE123UVW])$")
