@@ -164,3 +164,14 @@ def test_skewed_pair_warns():
     with warnings.catch_warnings():
         warnings.simplefilter("error", GroundshakeWarning)
         _horizontal_pairs([_rec("G 340", "340", "G"), _rec("G 250", "250", "G")])  # 90° apart
+
+
+def test_same_station_and_channel_from_two_files_get_told_apart(tmp_path, capsys):
+    a = tmp_path / "event1.EW1"
+    b = tmp_path / "event2.EW1"
+    a.write_bytes(KIKNET.read_bytes())
+    b.write_bytes(KIKNET.read_bytes())
+    assert main(["info", str(a), str(b), "--raw", "--json"]) == 0
+    names = [r["name"] for r in json.loads(capsys.readouterr().out)["records"]]
+    # station and channel from the header ("NGNH31", "EW1"), then the file to tell them apart
+    assert names == ["NGNH31 EW1 (event1.EW1)", "NGNH31 EW1 (event2.EW1)"]

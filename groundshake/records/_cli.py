@@ -21,6 +21,7 @@ from ._record import STANDARD_GRAVITY, Record
 from ._units import UNIT_NAMES
 
 __all__ = ["register", "add_reading_options", "add_processing_options", "settings_from_args",
+           "distinct_names",
            "read_records_from_args", "cmd_info", "cmd_correct"]
 
 
@@ -120,6 +121,27 @@ def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
                                dt=getattr(args, "dt", None),
                                resample=getattr(args, "resample", False),
                                inventory=getattr(args, "inventory", None)))
+    return distinct_names(out)
+
+
+def distinct_names(records: list[Record]) -> list[Record]:
+    """Records whose names repeat across files get their file name added, then ``.2``, ...
+
+    Names are ``"<station> <component>"``; the same station and channel from two
+    events would otherwise be two rows that cannot be told apart.
+    """
+    from collections import Counter
+
+    count = Counter(r.name for r in records)
+    if all(c == 1 for c in count.values()):
+        return records
+    renamed = [r.replace(name=f"{r.name} ({Path(r.source).name})")
+               if count[r.name] > 1 and r.source else r for r in records]
+    seen: Counter = Counter()
+    out = []
+    for r in renamed:
+        seen[r.name] += 1
+        out.append(r if seen[r.name] == 1 else r.replace(name=f"{r.name}.{seen[r.name]}"))
     return out
 
 
