@@ -22,7 +22,7 @@ from .._units import UNITS, canonical_units
 
 __all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
            "units_factor", "warn", "volume1_data", "check_units",
-           "check_dt", "unique_names", "G10"]
+           "check_dt", "G10"]
 
 #: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
 G10 = 0.1 * STANDARD_GRAVITY
@@ -190,17 +190,6 @@ def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float
     name = f"{station} {component}".strip() or Path(path).stem
     return Record(acc=acc, dt=dt, name=name, component=component, source=str(path),
                   units=canon, start_time=start_time, metadata=meta)
-
-
-def unique_names(records: list[Record]) -> list[Record]:
-    """Records whose names repeat get ``".2"``, ``".3"``... (in file order)."""
-    seen: dict[str, int] = {}
-    out = []
-    for rec in records:
-        k = seen.get(rec.name, 0) + 1
-        seen[rec.name] = k
-        out.append(rec if k == 1 else rec.replace(name=f"{rec.name}.{k}"))
-    return out
 
 
 def warn(message: str) -> None:
