@@ -94,3 +94,12 @@ def test_options_and_broken_files(tmp_path):
     with pytest.raises(RecordError, match=r"^CWB \(Taiwan\) text file .*: #SampleRate 50 Hz disagrees "
                                           r"with the time column's step 0.01 s \(line 8\)"):
         read_record(path)
+
+
+def test_too_few_samples(tmp_path):
+    path = tmp_path / "tiny.dat"
+    path.write_text(_synthetic(np.zeros((10, 3)), 100.0))
+    # the project's floor of 16 samples (records.MIN_SAMPLES)
+    with pytest.raises(RecordError, match=r"^CWB \(Taiwan\) text file .*: channel 'U' holds 10 "
+                                          r"samples; at least 16 are needed"):
+        read_record(path)

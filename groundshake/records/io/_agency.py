@@ -19,6 +19,7 @@ from ..._errors import GroundshakeWarning, RecordError
 from .._components import describe
 from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
+from ._common import MIN_SAMPLES
 
 __all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
            "units_factor", "warn", "volume1_data", "check_units",
@@ -175,8 +176,9 @@ def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float
     elif kind == "vertical":
         meta.pop("azimuth_deg", None)
     values = np.asarray(values, dtype=float)
-    if values.size == 0:
-        raise FormatError(fmt, path, f"channel {component!r} holds no samples")
+    if values.size < MIN_SAMPLES:
+        raise FormatError(fmt, path, f"channel {component!r} holds {values.size} samples; at "
+                          f"least {MIN_SAMPLES} are needed")
     bad = np.flatnonzero(~np.isfinite(values))
     if bad.size:
         raise FormatError(fmt, path, f"channel {component!r}: sample {bad[0]} is not finite")
