@@ -23,7 +23,9 @@ from ..._errors import RecordError
 
 __all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read"]
 
-#: Reader modules in the order they are tried (names inside this package).
+#: Reader modules in the order they are tried (names inside this package). The
+#: strong-motion readers decide from content that no other format shares, so their order
+#: among themselves does not matter; new ones go before "obspy_formats".
 READERS: tuple[str, ...] = (
     "peer_at2",
     "esm",

@@ -55,8 +55,7 @@ def is_format(path: Path, head: bytes) -> bool:
     """True if the first line states a COSMOS format version and an integer header follows."""
     try:
         lines = head.decode("latin-1").splitlines()
-        return bool(lines) and bool(_FIRST.search(lines[0])) and \
-            any(_HEADER.match(ln) for ln in lines[1:60])
+        return bool(lines) and bool(_FIRST.search(lines[0]))
     except Exception:
         return False
 
@@ -216,6 +215,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                 meta["channel"] = ms.group(2)
                 meta["network"] = ms.group(3)
                 meta.update(orientation_metadata(ms.group(2)) if not component else {})
+        meta.setdefault("channel", component)
         meta["station"] = station or path.stem
         if len(ch["text"]) > 4:
             meta["station_name"] = re.sub(r"^.*?Code:\s*\S+\s*", "", ch["text"][4]).strip()

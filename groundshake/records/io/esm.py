@@ -37,8 +37,10 @@ def is_format(path: Path, head: bytes) -> bool:
     """True if the header has the ESM keys that define the format (never raises)."""
     try:
         text = head.decode("latin-1")
-        return (text.startswith("EVENT_NAME:") or "\nSTATION_CODE:" in text) and \
-            "\nSAMPLING_INTERVAL_S:" in text and "\nNDATA:" in text
+        if text.startswith("EVENT_NAME:") and "\nEVENT_ID:" in text[:400]:
+            return True  # the ESM header's first two keys
+        return "\nSTATION_CODE:" in text and "\nSAMPLING_INTERVAL_S:" in text and \
+            "\nNDATA:" in text
     except Exception:
         return False
 

@@ -43,8 +43,7 @@ def is_format(path: Path, head: bytes) -> bool:
     """True if the file begins like a GeoNet volume (never raises)."""
     try:
         lines = head.decode("latin-1").splitlines()
-        return (len(lines) > _TEXT_LINES + 1 and bool(_FIRST.match(lines[0]))
-                and bool(_SITE.match(lines[1])) and bool(_INTS.match(lines[_TEXT_LINES])))
+        return len(lines) > 1 and bool(_FIRST.match(lines[0])) and bool(_SITE.match(lines[1]))
     except Exception:
         return False
 
@@ -126,10 +125,19 @@ def _component(lines, i, path, given, dt):
                            part="header line")
     check_dt(dt, step, label, "its header")
     counts = [int(v) for v in ints[30:33]]  # points of acceleration, velocity, displacement
+    if any(v != int(v) or v < 0 for v in ints[30:33]):
+        raise format_error(FORMAT, path, "integer header values 31-33 (points of acceleration, "
+                           "velocity, displacement) are not counts", i + _TEXT_LINES + 4,
+                           lines[i + _TEXT_LINES + 3])
     mn = _NPTS.search(joined)
     n_acc = counts[0] or (int(mn.group(1)) if mn else 0)
     if n_acc <= 0:
         raise format_error(FORMAT, path, "no number of points", first, part="header line")
+    if mn and counts[0] and int(mn.group(1)) != counts[0]:
+        k = next(n for n, t in enumerate(text) if _NPTS.search(t))
+        raise format_error(FORMAT, path, f"'Number of points' says {mn.group(1)} but integer "
+                           f"header value 31 says {counts[0]}", first + k, text[k],
+                           part="header line")
     data_start = start_reals + _REAL_LINES
     acc = fixed_width(lines[data_start:], n_acc, _WIDTH, _PER, fmt=FORMAT, path=path,
                       first_line=data_start + 1) * scale
@@ -138,6 +146,11 @@ def _component(lines, i, path, given, dt):
     for n in counts[1:]:  # a V2A's velocity and displacement follow
         if n > 0:
             end += -(-n // _PER)
+    extra = [k for k in range(end, len(lines)) if lines[k].strip()]
+    if extra:
+        raise format_error(FORMAT, path, f"more data lines than the header's counts "
+                           f"({', '.join(str(c) for c in counts)} points) announce",
+                           extra[0] + 1, lines[extra[0]])
     meta: dict = {"format": FORMAT}
     ms = _SITE.match(text[1])
     station = ms.group(1) if ms else path.stem

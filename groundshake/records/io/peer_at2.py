@@ -37,8 +37,11 @@ def is_format(path: Path, head: bytes) -> bool:
     """True if the file begins like a PEER database time series (never raises)."""
     try:
         lines = head.decode("latin-1").splitlines()[:4]
-        return (len(lines) == 4 and lines[0].lstrip().upper().startswith("PEER")
-                and "TIME SERIES" in lines[2].upper()
+        if not lines or not lines[0].lstrip().upper().startswith("PEER"):
+            return False
+        if len(lines) < 4:  # a file cut short: its first line is enough to name it
+            return "STRONG MOTION" in lines[0].upper() or "DATABASE" in lines[0].upper()
+        return ("TIME SERIES" in lines[2].upper()
                 and bool(_NPTS.search(lines[3]) and _DT.search(lines[3])
                          or _OLD_NPTS_DT.search(lines[3])))
     except Exception:

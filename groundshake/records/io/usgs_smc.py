@@ -36,8 +36,10 @@ def is_format(path: Path, head: bytes) -> bool:
     """True if line 1 is an SMC data kind and the integer header sits at line 12 (never raises)."""
     try:
         lines = head.decode("latin-1").splitlines()
-        if len(lines) < _TEXT + 6 or not _FIRST.match(lines[0]):
+        if not lines or not _FIRST.match(lines[0]):
             return False
+        if len(lines) <= _TEXT:  # a file cut short: its first line is enough to name it
+            return True
         row = lines[_TEXT]
         return len(row.rstrip()) >= 70 and all(
             re.fullmatch(r"\s*-?\d+", row[k:k + 10]) for k in range(0, 80, 10))
