@@ -103,3 +103,13 @@ def test_too_few_samples(tmp_path):
     with pytest.raises(RecordError, match=r"^CWB \(Taiwan\) text file .*: channel 'U' holds 10 "
                                           r"samples; at least 16 are needed"):
         read_record(path)
+
+
+def test_file_cut_short_is_refused(tmp_path):
+    lines = data_file(NAME).read_bytes().splitlines(keepends=True)
+    path = tmp_path / "cut.dat"
+    path.write_bytes(b"".join(lines[:1000]))
+    # "#RecordLength(sec): 120" at "#SampleRate(Hz): 50" is 6000 rows; 978 are left
+    with pytest.raises(RecordError, match=r"^CWB \(Taiwan\) text file .*: 978 data rows; "
+                                          r"#RecordLength 120 s at 50 Hz needs 6000 \(line 15\)"):
+        read_record(path)

@@ -27,12 +27,13 @@ _TIME = re.compile(r"(\d{1,2})/(\d{1,2})/(\d{4})\s+(\d{1,2}):(\d{2}):(\d{2}(?:\.
 
 
 def is_format(path: Path, head: bytes) -> bool:
-    """True for an AFAD/NSMN text file (title line and ``SAMPLING INTERVAL``). Never raises."""
+    """True for an AFAD/NSMN text file: its title line and one of its keys. Never raises."""
     try:
         lines = head_lines(head, 40)
         text = "\n".join(lines).upper()
         return (bool(lines) and lines[0].strip().upper().startswith("STRONG GROUND MOTION RECORDS OF TURK")
-                and "SAMPLING INTERVAL" in text)
+                and any(k in text for k in ("SAMPLING INTERVAL", "STATION ID", "EARTHQUAKE DATE",
+                                            "NUMBER OF DATA")))
     except Exception:  # noqa: BLE001
         return False
 

@@ -27,11 +27,17 @@ _KEY = re.compile(r"^#\s*([^:]+?)\s*:\s*(.*?)\s*$")
 _TIME_TOLERANCE = 0.01  # largest relative spread of the time steps read as uniform
 
 
+_MARKS = ("#stationcode", "#amplitudeunit", "#datasequence", "#origin time(gmt",
+          "#starttime(gmt", "#samplerate(hz)", "#epicenterlongitude", "#recordlength(sec)")
+
+
 def is_format(path: Path, head: bytes) -> bool:
-    """True for CWB text: ``#StationCode``, ``#AmplitudeUnit`` and ``#DataSequence`` lines. Never raises."""
+    """True for CWB text: ``#Key:`` lines, at least three of CWB's own keys. Never raises."""
     try:
-        text = "\n".join(head_lines(head, 40)).lower()
-        return all(k in text for k in ("#stationcode", "#amplitudeunit", "#datasequence"))
+        lines = head_lines(head, 40)
+        first = next((ln.strip() for ln in lines if ln.strip()), "")
+        text = "\n".join(lines).lower().replace(" :", ":")
+        return first.startswith("#") and sum(k in text for k in _MARKS) >= 3
     except Exception:  # noqa: BLE001
         return False
 
@@ -129,6 +135,12 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                               f"column's step {step:g} s", line=rate[1])
         step = header_step
     step = check_dt(step, dt, path, FORMAT)
+    length = get("recordlength")
+    if length is not None and numbers(length[0]):
+        need = int(round(numbers(length[0])[0] / step))
+        if table.shape[0] < need:
+            raise FormatError(FORMAT, path, f"{table.shape[0]} data rows; #RecordLength "
+                              f"{length[0]} s at {1 / step:g} Hz needs {need}", line=length[1])
 
     station = (get("stationcode") or (path.stem, 0))[0].split()[0]
     meta: dict = {}
