@@ -175,3 +175,22 @@ def test_same_station_and_channel_from_two_files_get_told_apart(tmp_path, capsys
     names = [r["name"] for r in json.loads(capsys.readouterr().out)["records"]]
     # station and channel from the header ("NGNH31", "EW1"), then the file to tell them apart
     assert names == ["NGNH31 EW1 (event1.EW1)", "NGNH31 EW1 (event2.EW1)"]
+
+
+def test_sac_component_headers_fill_what_the_code_leaves_open(tmp_path):
+    # SAC header: cmpaz = azimuth from north, cmpinc = incidence from up (0 up, 90
+    # horizontal) — the SAC file format's component orientation fields
+    import obspy
+
+    def sac(channel, inc, az):
+        tr = obspy.Trace(np.linspace(-1, 1, 64).astype("f4"),
+                         header={"station": "S", "channel": channel, "sampling_rate": 100.0})
+        tr.stats.sac = {"cmpinc": inc, "cmpaz": az, "kuser0": "m/s2"}
+        p = tmp_path / f"{channel}.sac"
+        tr.write(str(p), format="SAC")
+        (rec,) = read_record(p)
+        return rec.metadata.get("orientation"), rec.metadata.get("azimuth_deg")
+
+    assert sac("HN1", 90.0, 30.0) == ("horizontal", 30.0)  # SEED "1": direction from cmpaz
+    assert sac("HNE", 90.0, 0.0) == ("horizontal", 90.0)  # SEED "E" wins over a zero cmpaz
+    assert sac("Q", 0.0, 0.0) == ("vertical", None)  # an unknown code: cmpinc 0 is up

@@ -253,11 +253,14 @@ def _orientation(tr, fmt: str) -> dict[str, Any]:
     if tr.stats.get("groundshake_azimuth") is not None:
         given["azimuth_deg"] = float(tr.stats.groundshake_azimuth)
     if fmt == "SAC":
+        # -12345 is SAC's "undefined"; some writers leave cmpinc/cmpaz at 0 for every
+        # trace, so these headers only fill what the channel code leaves open
         sac = tr.stats.get("sac", {}) or {}
         inc, az = sac.get("cmpinc"), sac.get("cmpaz")
-        if inc is not None and -12345 != inc:  # -12345: SAC's "undefined"
+        code = describe(str(tr.stats.channel or ""))
+        if inc is not None and -12345 != inc and code.kind == "unknown":
             given["dip_deg"] = float(inc) - 90.0  # incidence from up (0) → dip from horizontal
-        if az is not None and -12345 != az:
+        if az is not None and -12345 != az and code.azimuth_deg is None:
             given["azimuth_deg"] = float(az)
     kind, azimuth = describe(str(tr.stats.channel or ""), given)
     out: dict[str, Any] = {}
