@@ -151,3 +151,32 @@ def test_counts_round_trip_through_our_writers(tmp_path):
     write_record(rec, tmp_path / "a.mseed")  # written as float64 m/s²: no inventory needed
     (back,) = read_record(tmp_path / "a.mseed", units="m/s2")
     np.testing.assert_array_equal(back.acc, rec.acc)
+
+
+def test_velocity_sensor_gets_its_full_response_removed(tmp_path):
+    # A velocity sensor of our own (invented): two zeros at 0, two poles at a 0.0059-Hz
+    # corner, gain 1.5e9 counts per m/s. A 2-Hz sine of 1e5 counts lies in its flat band,
+    # so the ground velocity is 1e5 / 1.5e9 m/s and the acceleration amplitude
+    # 2π·2·1e5/1.5e9 m/s² (a sine's derivative; flat band: within 0.1 %).
+    import obspy
+    from obspy.core.inventory import Channel, Inventory, Network, Station
+    from obspy.core.inventory.response import Response
+
+    gain, f, amp = 1.5e9, 2.0, 1e5
+    resp = Response.from_paz(zeros=[0j, 0j], poles=[-0.037 + 0.037j, -0.037 - 0.037j],
+                             stage_gain=gain, input_units="M/S", output_units="COUNTS",
+                             normalization_frequency=1.0)
+    resp.recalculate_overall_sensitivity(1.0)
+    chan = Channel("HHE", "", 0, 0, 0, 0, azimuth=90, dip=0, sample_rate=100, response=resp)
+    inv = Inventory(networks=[Network("XX", stations=[Station("S", 0, 0, 0, channels=[chan])])],
+                    source="test")
+    inv.write(str(tmp_path / "v.xml"), format="STATIONXML")
+    t = np.arange(6000) / 100.0
+    tr = obspy.Trace((amp * np.sin(2 * np.pi * f * t)).astype(np.int32),
+                     header={"network": "XX", "station": "S", "channel": "HHE",
+                             "sampling_rate": 100.0})
+    tr.write(str(tmp_path / "v.mseed"), format="MSEED")
+    (rec,) = read_record(tmp_path / "v.mseed", inventory=tmp_path / "v.xml")
+    assert "full instrument response removed" in rec.metadata["units_from"]
+    middle = rec.acc[1500:4500]  # away from the tapers at the ends
+    assert np.max(np.abs(middle)) == pytest.approx(2 * np.pi * f * amp / gain, rel=1e-3)
