@@ -740,6 +740,8 @@ def replace_motion(scenario: Scenario, components: dict, target, match_target) -
     if tgt is not None:
         data["target"] = tgt
     data["match_target"] = mt
+    if old is not None and old.inventory is not None:  # the station inventory stays
+        data["inventory"] = os.fspath(old.inventory)
     motion = _parse_obj(MotionSettings, data, ("motion",), ctx)
     values = {"motion": motion}
     _check_motion(values, ctx)
