@@ -12,12 +12,15 @@ import scipy.sparse as sp
 
 from .._atomic import atomic_directory
 from .._cli_common import json_dumps
-from ..dynamics._motion import DIRECTIONS
+from ._schema import COLUMNS, DIRECTIONS, FILES, SCHEMA_VERSION, UNITS
 
-__all__ = ["write_outputs", "OUTPUT_FILES"]
+__all__ = ["write_outputs", "OUTPUT_FILES", "rotational_participation", "dominant_direction",
+           "mesh_description"]
 
-OUTPUT_FILES = ("summary.json", "histories.csv", "records.csv", "ground_spectra.csv",
-                "floor_spectra.csv", "modes.csv", "element_peaks.csv", "mode_shapes.csv")
+#: The files a run writes besides the report (names from the output contract).
+OUTPUT_FILES = tuple(FILES[k] for k in ("summary", "histories", "records", "ground_spectra",
+                                        "floor_spectra", "modes", "element_peaks",
+                                        "mode_shapes", "mesh"))
 
 
 def _csv_text(header: Sequence[str], columns: Iterable[np.ndarray | Sequence]) -> str:
@@ -70,24 +73,94 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
     out_dir = Path(out_dir)
     if out_dir.exists() and not overwrite:
         raise FileExistsError(17, "already exists (use --force to replace it)", str(out_dir))
+    rot = rotational_participation(results.model, results.modes)
+    summary = _summary_with_contract(results.summary, rot)
     with atomic_directory(out_dir, overwrite=overwrite) as tmp:
-        _write(tmp, "summary.json", json_dumps(results.summary) + "\n")
+        _write(tmp, FILES["summary"], json_dumps(summary) + "\n")
         h = results.histories
-        _write(tmp, "histories.csv", _csv_text(list(h), list(h.values())))
-        _write(tmp, "records.csv", _records_csv(results.motion))
-        _write(tmp, "ground_spectra.csv", _ground_csv(results))
-        _write(tmp, "floor_spectra.csv", _floor_csv(results))
-        _write(tmp, "modes.csv", _modes_csv(results.modes))
-        _write(tmp, "element_peaks.csv", _elements_csv(results))
-        _write(tmp, "mode_shapes.csv", _shapes_csv(results, n_shapes))
+        _write(tmp, FILES["histories"], _csv_text(list(h), list(h.values())))
+        _write(tmp, FILES["records"], _records_csv(results.motion))
+        _write(tmp, FILES["ground_spectra"], _ground_csv(results))
+        _write(tmp, FILES["floor_spectra"], _floor_csv(results))
+        _write(tmp, FILES["modes"], _modes_csv(results.modes, rot))
+        _write(tmp, FILES["element_peaks"], _elements_csv(results))
+        _write(tmp, FILES["mode_shapes"], _shapes_csv(results, n_shapes))
+        _write(tmp, FILES["mesh"], json_dumps(mesh_description(results.model)) + "\n")
         if report:
-            try:
-                from ..report import write_report
-            except ImportError:
-                write_report = None
-            if write_report is not None:
-                write_report(tmp)
+            from ..report import write_report
+
+            write_report(tmp, progress=False)
     return out_dir
+
+
+def _summary_with_contract(summary: dict, rot: np.ndarray) -> dict:
+    """The summary as written: the contract's version and units added, each mode's
+    rotational participation and dominant direction filled in (the run's dict is not
+    changed)."""
+    out = dict(summary)
+    out["schema"] = {"version": SCHEMA_VERSION, "files": dict(FILES),
+                     "units": {k: v for k, v in UNITS.items() if v}}
+    modes = out.get("modes")
+    if isinstance(modes, dict) and isinstance(modes.get("modes"), list):
+        new = []
+        for i, md in enumerate(modes["modes"]):
+            md = dict(md)
+            if i < rot.shape[0]:
+                md["rotational_participation"] = dict(zip(DIRECTIONS, map(float, rot[i])))
+                emr = md.get("effective_mass_ratio") or {}
+                md["dominant_direction"] = dominant_direction(
+                    np.array([[float(emr.get(d, 0.0)) for d in DIRECTIONS]]), rot[i:i + 1])[0]
+            new.append(md)
+        out["modes"] = dict(modes, modes=new)
+    return out
+
+
+def mesh_description(model) -> dict:
+    """The mesh once, for figures: grid lines [m], the filled cells in element order,
+    each element's part, each node's grid indices, equipment and sensor positions.
+
+    Returns
+    -------
+    dict
+        ``lines`` {x, y, z} [m]; ``cells`` (n_el, 3) int grid indices (i, j, k) in the
+        row order of element_peaks.csv; ``cell_part`` (n_el,) index into ``parts``;
+        ``node_cells`` (n_nodes, 3) int grid-line indices in the row order of
+        mode_shapes.csv; ``equipment`` [{name, footprint_lo, footprint_hi, cg, anchors}]
+        and ``sensors`` [{name, at}] [m].
+    """
+    mesh = getattr(model, "mesh", None)
+    out: dict = {"schema_version": SCHEMA_VERSION, "units": "m"}
+    if mesh is None:
+        return out
+    xs, ys, zs = (np.asarray(a, float) for a in mesh.lines)
+    out["lines"] = {"x": xs.tolist(), "y": ys.tolist(), "z": zs.tolist()}
+    out["parts"] = [str(p) for p in getattr(model, "part_names", [])]
+    out["cells"] = np.asarray(mesh.element_cell, int).tolist()
+    out["cell_part"] = np.asarray(mesh.element_part, int).tolist()
+    nodes = np.asarray(model.nodes, float)
+    out["node_cells"] = np.column_stack([_nearest(xs, nodes[:, 0]), _nearest(ys, nodes[:, 1]),
+                                         _nearest(zs, nodes[:, 2])]).astype(int).tolist()
+    eqs = []
+    for e in getattr(model, "equipment", []):
+        mount = np.asarray(e.mount, float).reshape(3)
+        half = 0.5 * np.asarray(getattr(e, "footprint", np.zeros(2)), float).reshape(2)
+        anchors = np.asarray(e.anchors, float).reshape(-1, 2)
+        eqs.append({"name": e.name,
+                    "footprint_lo": [mount[0] - half[0], mount[1] - half[1], mount[2]],
+                    "footprint_hi": [mount[0] + half[0], mount[1] + half[1], mount[2]],
+                    "cg": [float(v) for v in e.cg],
+                    "anchors": [[float(mount[0] + a[0]), float(mount[1] + a[1]), float(mount[2])]
+                                for a in anchors]})
+    out["equipment"] = eqs
+    out["sensors"] = [{"name": s.name, "at": [float(v) for v in s.position]}
+                      for s in getattr(model, "sensors", [])]
+    return out
+
+
+def _nearest(lines: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """Index of the grid line nearest each value (nodes sit on grid lines)."""
+    i = np.searchsorted(lines, v).clip(1, lines.size - 1)
+    return np.where(np.abs(v - lines[i - 1]) <= np.abs(lines[i] - v), i - 1, i)
 
 
 def _records_csv(motion) -> str:
@@ -121,61 +194,143 @@ def _records_csv(motion) -> str:
     return _csv_text(header, cols)
 
 
+def _long_csv(columns, rows: list[list[np.ndarray]]) -> str:
+    """A long-format table: ``rows`` is a list of column blocks stacked top to bottom."""
+    if not rows:
+        return _csv_text([c.header for c in columns], [[] for _ in columns])
+    cols = [np.concatenate([np.asarray(r[j]) for r in rows]) for j in range(len(columns))]
+    return _csv_text([c.header for c in columns], cols)
+
+
 def _ground_csv(results) -> str:
     g = results.ground_spectra
-    header, cols = ["period [s]"], [g["periods"]]
+    per = np.asarray(g["periods"], float)
+    n = per.size
+    rows = []
     for j, d in enumerate(DIRECTIONS):
         if d not in results.motion.components:
             continue
-        for i, z in enumerate(g["damping"]):
-            header.append(f"ground {d} psa {_damp_label(z)} [m/s2]")
-            cols.append(g["psa"][j, i])
+        for i, z in enumerate(np.asarray(g["damping"], float)):
+            rows.append([np.full(n, d, dtype=object), np.full(n, float(z)), per,
+                         np.asarray(g["psa"][j, i], float)])
     if results.target_psa is not None:
-        header.append("target psa [m/s2]")
-        cols.append(results.target_psa)
-    return _csv_text(header, cols)
+        z = float(getattr(results, "target_damping", None) or 0.05)
+        rows.append([np.full(n, "target", dtype=object), np.full(n, z), per,
+                     np.asarray(results.target_psa, float)])
+    return _long_csv(COLUMNS["ground_spectra"], rows)
 
 
 def _floor_csv(results) -> str:
     f = results.floor
-    g = results.ground_spectra
-    header, cols = ["period [s]"], [f["periods"]]
-    names = f.get("points", [])
+    per = np.asarray(f["periods"], float)
+    n = per.size
+    names = list(f.get("points", []))
+    rows = []
     for p, nm in enumerate(names):
         for j, d in enumerate(DIRECTIONS):
-            for i, z in enumerate(f["damping"]):
-                header += [f"{nm} {d} psa {_damp_label(z)} raw [m/s2]",
-                           f"{nm} {d} psa {_damp_label(z)} broadened [m/s2]"]
-                cols += [f["psa"][p, j, i], f["psa_broadened"][p, j, i]]
+            for i, z in enumerate(np.asarray(f["damping"], float)):
+                rows.append([np.full(n, nm, dtype=object), np.full(n, d, dtype=object),
+                             np.full(n, float(z)), per, np.asarray(f["psa"][p, j, i], float),
+                             np.asarray(f["psa_broadened"][p, j, i], float)])
     if names:
         for j, d in enumerate(DIRECTIONS):
-            for i, z in enumerate(f["damping"]):
-                header += [f"envelope {d} psa {_damp_label(z)} raw [m/s2]",
-                           f"envelope {d} psa {_damp_label(z)} broadened [m/s2]"]
-                cols += [f["envelope_psa"][j, i], f["envelope_psa_broadened"][j, i]]
-    for j, d in enumerate(DIRECTIONS):
-        if d not in results.motion.components:
-            continue
-        for i, z in enumerate(g["damping"]):
-            header.append(f"ground {d} psa {_damp_label(z)} [m/s2]")
-            cols.append(g["psa"][j, i])
-    return _csv_text(header, cols)
+            for i, z in enumerate(np.asarray(f["damping"], float)):
+                rows.append([np.full(n, "envelope", dtype=object), np.full(n, d, dtype=object),
+                             np.full(n, float(z)), per,
+                             np.asarray(f["envelope_psa"][j, i], float),
+                             np.asarray(f["envelope_psa_broadened"][j, i], float)])
+    return _long_csv(COLUMNS["floor_spectra"], rows)
 
 
-def _modes_csv(modes) -> str:
+def rotational_participation(model, modes) -> np.ndarray:
+    """Effective-mass ratios of each mode for rigid rotation about x, y and z.
+
+    The rotation axes pass through the centre of the base. For axis a the rigid-body
+    vector ι_a (the model's DOFs moved by a unit rotation about a) gives, for
+    mass-normalised shapes φ_n, Γ_na = φ_nᵀ M ι_a and the ratio Γ_na² / (ι_aᵀ M ι_a),
+    the rotational counterpart of the effective mass ratio (Chopra, Dynamics of
+    Structures, §13.1: Σ_n Γ_n² = ιᵀ M ι over all modes, so the ratios of all modes
+    sum to 1).
+
+    Parameters
+    ----------
+    model : BlockModel
+        ``M`` (n, n) [kg], ``nodes`` (n_nodes, 3) [m], ``node_map`` (3·n_nodes, n),
+        ``equipment`` (each with ``cg`` [m] and ``operator`` (6, n)), ``base["centre"]``.
+    modes : Modes
+        ``shapes`` (n, m), mass-normalised.
+
+    Returns
+    -------
+    ndarray, shape (m, 3)
+        Ratios (–) for rotation about x, y, z; zeros when no rigid vector can be made.
+    """
+    import scipy.sparse.linalg as spla
+
+    phi = np.asarray(modes.shapes)
+    m = phi.shape[1] if phi.ndim == 2 else 0
+    out = np.zeros((m, 3))
+    if m == 0:
+        return out
+    try:
+        P = sp.csr_matrix(model.node_map)
+        nodes = np.asarray(model.nodes, float)
+        c = np.asarray(model.base.get("centre", np.zeros(3)), float)
+        blocks, rhs_rows = [P], []
+        eq_ops = [(np.asarray(e.cg, float), sp.csr_matrix(e.operator))
+                  for e in getattr(model, "equipment", []) if getattr(e, "operator", None) is not None]
+        for _, op in eq_ops:
+            blocks.append(op)
+        A = sp.vstack(blocks).tocsr()
+        M = sp.csr_matrix(model.M)
+        for a in range(3):
+            theta = np.zeros(3)
+            theta[a] = 1.0
+            rhs = [np.cross(theta, nodes - c).reshape(-1)]
+            for cg, _ in eq_ops:
+                rhs.append(np.concatenate([np.cross(theta, cg - c), theta]))
+            b = np.concatenate(rhs)
+            iota = spla.lsqr(A, b, atol=1e-12, btol=1e-12, iter_lim=2000)[0]
+            denom = float(iota @ (M @ iota))
+            if denom > 0:
+                gamma = phi.T @ (M @ iota)
+                out[:, a] = gamma ** 2 / denom
+    except Exception:  # a missing attribute of an unusual model: no rotational ratios
+        return np.zeros((m, 3))
+    return out
+
+
+def _modes_csv(modes, rot: np.ndarray | None = None) -> str:
     m = int(np.asarray(modes.omega).size)
-    header = ["mode", "frequency [Hz]", "period [s]", "damping [ratio]"]
-    cols = [np.arange(1, m + 1), np.asarray(modes.frequency, float), np.asarray(modes.period, float),
-            np.asarray(modes.damping, float)]
     emr = np.asarray(modes.effective_mass_ratio, float).reshape(m, 3)
     cum = np.asarray(modes.cumulative_ratio, float).reshape(m, 3)
-    for j, d in enumerate(DIRECTIONS):
-        header.append(f"effective mass ratio {d} [ratio]")
-        cols.append(emr[:, j])
-    for j, d in enumerate(DIRECTIONS):
-        header.append(f"cumulative mass ratio {d} [ratio]")
-        cols.append(cum[:, j])
-    return _csv_text(header, cols)
+    rot = np.zeros((m, 3)) if rot is None else rot
+    cols = [np.arange(1, m + 1), np.asarray(modes.frequency, float),
+            np.asarray(modes.period, float), np.asarray(modes.damping, float),
+            *emr.T, *cum.T, *rot.T, np.asarray(dominant_direction(emr, rot), dtype=object)]
+    return _csv_text([c.header for c in COLUMNS["modes"]], cols)
+
+
+def dominant_direction(effective_mass_ratio: np.ndarray, rotational: np.ndarray) -> list[str]:
+    """Per mode, the direction with the largest effective-mass ratio (``"x"``, ``"y"``,
+    ``"z"``), or when no translation holds 0.1 % of the mass the axis of the largest
+    rotational ratio (``"rotation about z"``), else ``"local"``.
+
+    Parameters
+    ----------
+    effective_mass_ratio, rotational : ndarray, shape (m, 3)
+        Translational and rotational ratios (–).
+    """
+    out = []
+    for t, r in zip(np.asarray(effective_mass_ratio).reshape(-1, 3),
+                    np.asarray(rotational).reshape(-1, 3)):
+        if t.max() >= 1e-3:
+            out.append(DIRECTIONS[int(np.argmax(t))])
+        elif r.max() >= 1e-3:
+            out.append(f"rotation about {DIRECTIONS[int(np.argmax(r))]}")
+        else:
+            out.append("local")
+    return out
 
 
 def _elements_csv(results) -> str:

@@ -1,0 +1,308 @@
+"""The output contract of a run: file names, CSV columns and summary.json keys, with units.
+
+Every file a run writes is described here, and the writers (``_outputs.py``) and the
+report (``groundshake.report``) both import it: the report never guesses a column from
+its wording or a unit from a key's spelling. Files stay in SI units; each CSV header is
+``label [unit]`` and each summary.json value's quantity kind is listed in
+:data:`SUMMARY_KINDS` (a path pattern, ``*`` standing for one name or index).
+
+Changing a name or a unit here is a change of the contract: raise
+:data:`SCHEMA_VERSION`.
+"""
+from __future__ import annotations
+
+import fnmatch
+import re
+from dataclasses import dataclass
+from typing import Any, Iterator, Mapping
+
+__all__ = ["SCHEMA_VERSION", "FILES", "UNITS", "Column", "COLUMNS", "SUMMARY_KINDS",
+           "kind_of", "header", "parse_header", "history_label", "HISTORY_BASE",
+           "iter_values", "DIRECTIONS"]
+
+#: Version of the output contract, written into summary.json (``schema.version``).
+SCHEMA_VERSION = 2
+
+DIRECTIONS = ("x", "y", "z")
+
+#: The files of a run's output folder, by role.
+FILES: dict[str, str] = {
+    "summary": "summary.json",
+    "histories": "histories.csv",
+    "records": "records.csv",
+    "ground_spectra": "ground_spectra.csv",
+    "floor_spectra": "floor_spectra.csv",
+    "modes": "modes.csv",
+    "element_peaks": "element_peaks.csv",
+    "mode_shapes": "mode_shapes.csv",
+    "mesh": "mesh.json",
+    "report": "report.html",
+}
+
+#: SI unit of each quantity kind, as written in files ("" for a plain number).
+UNITS: dict[str, str] = {
+    "force": "N", "moment": "N*m", "length": "m", "stress": "Pa", "pressure": "Pa",
+    "modulus": "Pa", "acceleration": "m/s2", "velocity": "m/s", "displacement": "m",
+    "angular_acceleration": "rad/s2", "time": "s", "frequency": "Hz", "damping": "ratio",
+    "ratio": "ratio", "mass": "kg", "density": "kg/m3", "area": "m2",
+    "stiffness": "N/m", "rotational_stiffness": "N*m/rad", "dashpot": "N*s/m",
+    "rotational_dashpot": "N*m*s/rad", "arias": "m/s", "count": "", "number": "",
+    "percent": "%", "text": "", "flag": "", "weight": "N",
+}
+
+
+@dataclass(frozen=True)
+class Column:
+    """One CSV column: its label and quantity kind (the unit follows from the kind)."""
+
+    label: str
+    kind: str
+
+    @property
+    def unit(self) -> str:
+        return UNITS[self.kind]
+
+    @property
+    def header(self) -> str:
+        return header(self.label, self.kind)
+
+
+def header(label: str, kind: str) -> str:
+    """The CSV header of a column: ``"label [unit]"`` (the label alone for text/counts)."""
+    unit = UNITS[kind]
+    return f"{label} [{unit}]" if unit else label
+
+
+_HEADER = re.compile(r"^(.*?)\s*\[([^\]]*)\]\s*$")
+
+
+def parse_header(text: str) -> tuple[str, str]:
+    """Split a header written by :func:`header` into ``(label, unit)``."""
+    m = _HEADER.match(text)
+    return (m.group(1), m.group(2)) if m else (text.strip(), "")
+
+
+#: Fixed columns of the CSV files (files with per-name columns list their patterns).
+COLUMNS: dict[str, tuple[Column, ...]] = {
+    # long format: one row per (direction, damping, period); the target, when given,
+    # has direction "target"
+    "ground_spectra": (Column("direction", "text"), Column("damping", "damping"),
+                       Column("period", "time"), Column("psa", "acceleration")),
+    # long format: one row per (point, direction, damping, period); "envelope" is the
+    # envelope over the points
+    "floor_spectra": (Column("point", "text"), Column("direction", "text"),
+                      Column("damping", "damping"), Column("period", "time"),
+                      Column("psa", "acceleration"), Column("psa broadened", "acceleration")),
+    "modes": (Column("mode", "count"), Column("frequency", "frequency"),
+              Column("period", "time"), Column("damping", "damping"),
+              *(Column(f"effective mass ratio {d}", "ratio") for d in DIRECTIONS),
+              *(Column(f"cumulative mass ratio {d}", "ratio") for d in DIRECTIONS),
+              *(Column(f"rotational participation {d}", "ratio") for d in DIRECTIONS),
+              Column("dominant direction", "text")),
+    # rows in the element order of mesh.json "cells"; NaN where an element has no value
+    "element_peaks": (Column("x", "length"), Column("y", "length"), Column("z", "length"),
+                      Column("von mises", "stress"), Column("principal tension", "stress"),
+                      Column("principal compression", "stress"),
+                      Column("time of von mises peak", "time"), Column("part", "text")),
+    # then per mode k: "mode k ux/uy/uz" [m] (mass-normalised shapes, arbitrary scale)
+    "mode_shapes": (Column("x", "length"), Column("y", "length"), Column("z", "length")),
+    # per direction d and state s (raw, corrected): "d s time", "d s acc", "d s vel",
+    # "d s disp"; the first column is the time of the longest series
+    "records": (Column("time", "time"),),
+    # first the time, then HISTORY_BASE, then per sensor / equipment / bolt (history_label)
+    "histories": (Column("time", "time"),),
+}
+
+#: The base resultants in histories.csv (the structure on its support, about the base centre).
+HISTORY_BASE: tuple[Column, ...] = (
+    Column("base Fx", "force"), Column("base Fy", "force"), Column("base Fz", "force"),
+    Column("base Mx", "moment"), Column("base My", "moment"), Column("base Mz", "moment"))
+
+_HISTORY_KINDS = {"ground acc": "acceleration", "abs acc": "acceleration",
+                  "rel disp": "displacement", "tension": "force", "shear": "force"}
+
+
+def history_label(what: str, *, name: str = "", direction: str = "", bolt: int = 0) -> Column:
+    """The column of one history in histories.csv.
+
+    ``what`` is ``"ground acc"`` (label ``ground x acc``), ``"abs acc"`` or ``"rel disp"``
+    (``NAME abs acc x``) of a sensor or equipment, ``"tension"`` or ``"shear"`` of bolt
+    ``bolt`` (numbered from 1) of equipment ``name`` (``NAME bolt 1 tension``).
+    """
+    kind = _HISTORY_KINDS[what]
+    if what == "ground acc":
+        return Column(f"ground {direction} acc", kind)
+    if what in ("tension", "shear"):
+        return Column(f"{name} bolt {bolt} {what}", kind)
+    return Column(f"{name} {what} {direction}", kind)
+
+
+#: Quantity kind of each summary.json value, by path (``*`` matches one key or index).
+#: Paths not listed are words (text) or bookkeeping the report does not show as a number.
+SUMMARY_KINDS: dict[str, str] = {
+    "peaks.base_shear.*": "force",
+    "peaks.base_axial": "force",
+    "peaks.overturning_moment.*": "moment",
+    "peaks.torsion": "moment",
+    "peaks.relative_displacement.*.value": "displacement",
+    "peaks.relative_displacement.*.time": "time",
+    "peaks.relative_displacement.*.at": "length",
+    "peaks.von_mises": "stress",
+    "peaks.principal_tension": "stress",
+    "peaks.principal_compression": "stress",
+    "sensors.*.position": "length",
+    "sensors.*.peak_absolute_acceleration.*": "acceleration",
+    "sensors.*.peak_relative_displacement.*": "displacement",
+    "sensors.*.time_of_peak_absolute_acceleration.*": "time",
+    "sensors.*.time_of_peak_relative_displacement.*": "time",
+    "equipment.*.mass": "mass",
+    "equipment.*.cg": "length",
+    "equipment.*.frequency_hz": "frequency",
+    "equipment.*.damping": "damping",
+    "equipment.*.peak_absolute_acceleration.*": "acceleration",
+    "equipment.*.peak_relative_displacement.*": "displacement",
+    "equipment.*.time_of_peak_absolute_acceleration.*": "time",
+    "equipment.*.peak_angular_acceleration.*": "angular_acceleration",
+    "equipment.*.anchors.*.position": "length",
+    "equipment.*.anchors.*.peak_tension": "force",
+    "equipment.*.anchors.*.time_of_peak_tension": "time",
+    "equipment.*.anchors.*.peak_shear": "force",
+    "equipment.*.anchors.*.time_of_peak_shear": "time",
+    "equipment.*.anchors.*.min_axial": "force",
+    "equipment.*.anchors.*.dc_tension": "ratio",
+    "equipment.*.anchors.*.dc_shear": "ratio",
+    "equipment.*.capacity.tension": "force",
+    "equipment.*.capacity.shear": "force",
+    "equipment.*.fp.fp": "force",
+    "equipment.*.fp.fp_unbounded": "force",
+    "equipment.*.fp.fp_over_weight": "ratio",
+    "equipment.*.fp.fv": "force",
+    "equipment.*.fp.peak_tension": "force",
+    "equipment.*.fp.peak_shear": "force",
+    "equipment.*.fp.time_history_peak_tension": "force",
+    "equipment.*.fp.time_history_peak_shear": "force",
+    "worst_dc.value": "ratio",
+    "worst_dc.bolt": "number",
+    "stresses.*.value": "stress",
+    "stresses.*.time": "time",
+    "stresses.*.at": "length",
+    "stresses.*.away_from_features.value": "stress",
+    "stresses.*.away_from_features.time": "time",
+    "stresses.*.away_from_features.at": "length",
+    "stresses.n_points": "count",
+    "base.about": "length",
+    "base.peaks.Fx.*": "force", "base.peaks.Fy.*": "force", "base.peaks.Fz.*": "force",
+    "base.peaks.Mx.*": "moment", "base.peaks.My.*": "moment", "base.peaks.Mz.*": "moment",
+    "base.peaks.*.time": "time",
+    "base.contact.static_pressure": "pressure",
+    "base.contact.peak_pressure": "pressure",
+    "base.contact.time_of_peak_pressure": "time",
+    "base.contact.min_pressure": "pressure",
+    "base.contact.time_of_min_pressure": "time",
+    "stability.sliding.min_safety_factor": "ratio",
+    "stability.overturning.min_safety_factor": "ratio",
+    "stability.bearing.peak_pressure": "pressure",
+    "stability.*.time": "time",
+    "stability.*.time_of_min": "time",
+    "stability.bearing.capacity": "pressure",
+    "floor_spectra.damping_percent": "percent",
+    "floor_spectra.broadening_percent": "percent",
+    "floor_spectra.points.*.*.*.peak_psa": "acceleration",
+    "floor_spectra.points.*.*.*.period_of_peak": "time",
+    "floor_spectra.points.*.*.*.zpa": "acceleration",
+    "modes.total_mass.*": "mass",
+    "modes.n_modes": "count",
+    "modes.captured_ratio.*": "ratio",
+    "modes.modes.*.mode": "number",
+    "modes.modes.*.frequency": "frequency",
+    "modes.modes.*.period": "time",
+    "modes.modes.*.damping": "damping",
+    "modes.modes.*.effective_mass.*": "mass",
+    "modes.modes.*.effective_mass_ratio.*": "ratio",
+    "modes.modes.*.cumulative_ratio.*": "ratio",
+    "modes.modes.*.rotational_participation.*": "ratio",
+    "model.n_nodes": "count", "model.n_elements": "count", "model.n_dof": "count",
+    "model.materials.*.youngs_modulus": "modulus",
+    "model.materials.*.poisson_ratio": "ratio",
+    "model.materials.*.density": "density",
+    "model.total_mass": "mass",
+    "model.weight": "weight",
+    "model.support.springs.k_x": "stiffness", "model.support.springs.k_y": "stiffness",
+    "model.support.springs.k_z": "stiffness",
+    "model.support.springs.k_rx": "rotational_stiffness",
+    "model.support.springs.k_ry": "rotational_stiffness",
+    "model.support.springs.k_rz": "rotational_stiffness",
+    "model.support.dashpots.c_x": "dashpot", "model.support.dashpots.c_y": "dashpot",
+    "model.support.dashpots.c_z": "dashpot",
+    "model.support.dashpots.c_rx": "rotational_dashpot",
+    "model.support.dashpots.c_ry": "rotational_dashpot",
+    "model.support.dashpots.c_rz": "rotational_dashpot",
+    "model.support.shear_modulus": "modulus",
+    "model.base.area": "area", "model.base.lx": "length", "model.base.ly": "length",
+    "model.base.centre": "length", "model.base.z": "length",
+    "model.damping.ratio": "damping",
+    "model.damping.rayleigh_hz": "frequency",
+    "analysis.cutoff_hz": "frequency",
+    "analysis.n_modes": "count",
+    "analysis.retained_mass_ratio.*": "ratio",
+    "analysis.dt": "time",
+    "analysis.n_steps": "count",
+    "analysis.duration": "time",
+    "records.*.dt": "time",
+    "records.*.n": "count",
+    "records.*.pad_before_s": "time",
+    "records.*.measures.pga": "acceleration",
+    "records.*.measures.pgv": "velocity",
+    "records.*.measures.pgd": "displacement",
+    "records.*.measures.*_time": "time",
+    "records.*.measures.arias_intensity": "arias",
+    "records.*.measures.d5_75": "time",
+    "records.*.measures.d5_95": "time",
+    "records.*.measures.bracketed_duration": "time",
+    "records.*.measures.cav": "velocity",
+    "records.*.measures.cav_std": "velocity",
+    "records.*.measures.mean_period": "time",
+    "records.*.measures.t5": "time",
+    "records.*.measures.t75": "time",
+    "records.*.measures.t95": "time",
+    "motion.dt": "time",
+    "motion.n_steps": "count",
+    "soil_cases.*.shear_modulus": "modulus",
+    "soil_cases.*.modes.*.frequency": "frequency",
+    "soil_cases.*.modes.*.period": "time",
+}
+
+_PATTERNS = [(tuple(p.split(".")), k) for p, k in SUMMARY_KINDS.items()]
+
+
+def kind_of(path: str | tuple[str, ...]) -> str | None:
+    """The quantity kind of the summary.json value at ``path`` (``"peaks.base_axial"`` or
+    a tuple of keys/indices), or None when the contract gives it none.
+
+    The most specific pattern wins (fewest ``*``), so ``base.peaks.*.time`` beats nothing
+    but ``base.peaks.Fx.*`` is read for ``value``/``signed``.
+    """
+    parts = tuple(str(p) for p in (path.split(".") if isinstance(path, str) else path))
+    best, best_stars = None, 99
+    for pat, kind in _PATTERNS:
+        if len(pat) != len(parts):
+            continue
+        if all(fnmatch.fnmatchcase(a, b) for a, b in zip(parts, pat)):
+            stars = sum(1 for b in pat if "*" in b)
+            # a literal last key (…*.time) beats a wildcard last key (…Fx.*)
+            stars += 0.5 if "*" in pat[-1] else 0
+            if stars < best_stars:
+                best, best_stars = kind, stars
+    return best
+
+
+def iter_values(d: Any, prefix: tuple[str, ...] = ()) -> Iterator[tuple[tuple[str, ...], Any]]:
+    """Every scalar leaf of a summary as ``(path, value)`` (lists of numbers are leaves)."""
+    if isinstance(d, Mapping):
+        for k, v in d.items():
+            yield from iter_values(v, prefix + (str(k),))
+    elif isinstance(d, list) and d and any(isinstance(x, (Mapping, list)) for x in d):
+        for i, v in enumerate(d):
+            yield from iter_values(v, prefix + (str(i),))
+    else:
+        yield prefix, d
