@@ -118,10 +118,46 @@ def test_csv_headers_carry_si_units(run_dir):
         head = next(csv.reader(fh))
     assert head[:6] == ["x [m]", "y [m]", "z [m]", "von mises [Pa]", "principal tension [Pa]",
                         "principal compression [Pa]"]
+    from groundshake.results._schema import COLUMNS
+
     with open(out / "floor_spectra.csv", newline="") as fh:
         rows = list(csv.reader(fh))
-    assert rows[0][0] == "period [s]" and len(rows) == 1 + 15
-    assert any("broadened" in h for h in rows[0]) and any("envelope" in h for h in rows[0])
+    # the output contract (results/_schema.py): long format, damping a number column
+    assert rows[0] == [c.header for c in COLUMNS["floor_spectra"]]
+    assert rows[0] == ["point", "direction", "damping [ratio]", "period [s]", "psa [m/s2]",
+                       "psa broadened [m/s2]"]
+    assert {r[0] for r in rows[1:]} >= {"envelope"}
+    per_curve = {}
+    for r in rows[1:]:
+        per_curve.setdefault((r[0], r[1], r[2]), []).append(r)
+    assert {len(v) for v in per_curve.values()} == {15}           # 15 periods per curve
+    with open(out / "ground_spectra.csv", newline="") as fh:
+        g = list(csv.reader(fh))
+    assert g[0] == ["direction", "damping [ratio]", "period [s]", "psa [m/s2]"]
+
+
+def test_rotational_participation_of_all_modes_sums_to_one():
+    """Chopra, Dynamics of Structures §13.1: with every mode kept, Σ Γn² = ιᵀMι for any
+    rigid-body vector ι, so the rotational ratios of all modes sum to 1."""
+    from types import SimpleNamespace
+
+    import scipy.linalg as sla
+    import scipy.sparse as sp
+
+    from groundshake.results._outputs import rotational_participation
+
+    rng = np.random.default_rng(3)
+    nodes = rng.uniform(-1, 1, (5, 3))                           # invented 5-node body
+    n = 15
+    M = np.diag(rng.uniform(1.0, 3.0, n))
+    A = rng.normal(size=(n, n))
+    K = A @ A.T + n * np.eye(n)
+    w2, phi = sla.eigh(K, M)                                     # mass-normalised (scipy)
+    model = SimpleNamespace(M=sp.csr_matrix(M), nodes=nodes, node_map=sp.identity(n, format="csr"),
+                            equipment=[], base={"centre": np.zeros(3)})
+    r = rotational_participation(model, SimpleNamespace(shapes=phi))
+    assert r.shape == (n, 3)
+    np.testing.assert_allclose(r.sum(axis=0), 1.0, rtol=1e-9)    # completeness, Chopra §13.1
 
 
 def test_refuses_existing_folder_and_the_scenario_folder(run_dir, capsys):
