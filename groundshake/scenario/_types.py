@@ -22,6 +22,7 @@ __all__ = [
     "Part",
     "MeshSettings",
     "SupportSettings",
+    "StrainCompatible",
     "DampingSettings",
     "AnchorCapacity",
     "FpParameters",
@@ -166,6 +167,20 @@ class MeshSettings:
 
 
 @dataclass(frozen=True, kw_only=True)
+class StrainCompatible:
+    """Reduction of the soil's shear modulus with the level of shaking (soil only).
+
+    Effective shear modulus ratio G/G0 by site class and S_DS/2.5 (ASCE 7-16
+    Table 19.2-1, from memory; linear interpolation between its columns).
+    """
+
+    site_class: Literal["A", "B", "C", "D", "E"] = spec(
+        "choice", choices=("A", "B", "C", "D", "E"), doc="site class of the table")
+    shaking_g: float = spec("number", ge=0.0, unit="g",
+                            doc="level of shaking S_DS/2.5 (or the site's PGA)")
+
+
+@dataclass(frozen=True, kw_only=True)
 class SupportSettings:
     """The ``[support]`` table; the soil keys are required when ``kind = "soil"``."""
 
@@ -181,6 +196,28 @@ class SupportSettings:
     springs: Literal["lumped", "distributed"] = spec(
         "choice", "lumped", choices=("lumped", "distributed"),
         doc="six springs at a rigid base, or a spring bed with the same totals")
+    embedment_depth: float = spec("number", 0.0, ge=0.0, unit="m",
+                                  doc="depth of the base below grade (soil only; Gazetas 1991 "
+                                      "embedment factors)")
+    sidewall_contact_depth: float | None = spec(
+        "number", None, ge=0.0, unit="m", derived="embedment_depth",
+        doc="height of the side walls in good contact with the soil (soil only)")
+    variation: float | None = spec("number", None, ge=0.0, le=10.0,
+                                   doc="Cv of the shear modulus: lower, best and upper cases "
+                                       "G/(1+Cv), G, G(1+Cv); none = best estimate only")
+    modulus_ratio: float | None = spec("number", None, gt=0.0, le=1.0,
+                                       doc="strain-compatible G/G0 as entered (soil only)")
+    strain_compatible: StrainCompatible | None = spec(
+        "table", None, cls=StrainCompatible,
+        doc="G/G0 from the level of shaking {site_class, shaking_g} (soil only)")
+    friction_coefficient: float | None = spec(
+        "number", None, gt=0.0, doc="base friction coefficient μ for the sliding check; "
+                                    "none = no sliding check")
+    passive_resistance: float = spec("number", 0.0, ge=0.0, unit="N",
+                                     doc="horizontal resistance added to friction (user entered)")
+    allowable_bearing_pressure: float | None = spec(
+        "number", None, gt=0.0, unit="Pa", doc="allowable bearing pressure for the screening "
+                                               "ratio; none = no comparison")
 
 
 @dataclass(frozen=True, kw_only=True)
