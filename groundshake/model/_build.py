@@ -23,6 +23,7 @@ from ._elements import brick_matrices, shape_values
 from ._factor import Factor, factorize
 from ._memory import check_memory
 from ._mesh import Box, count_grid, mesh_boxes
+from ._impedance import adjust_impedance
 from ._supports import Impedance, distributed_bed, gazetas_rectangle
 
 __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_model",
@@ -286,7 +287,7 @@ def _materials(scenario):
 
 
 def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None = None,
-                check_memory_first: bool = True) -> BlockModel:
+                check_memory_first: bool = True, soil_frequency_hz=None) -> BlockModel:
     """Build the :class:`BlockModel` of a scenario.
 
     Parameters
@@ -296,6 +297,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         ``equipment``, ``sensors``, ``analysis``).
     solver : factorization for :meth:`BlockModel.factor` (default from
         ``analysis.solver``).
+    soil_frequency_hz : array (6,), optional
+        On soil: the frequency [Hz] at which each base spring x, y, z, rx, ry, t is
+        evaluated (frequency-dependent impedance, model/_impedance.py); None = static.
 
     Raises
     ------
@@ -393,6 +397,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         impedance = gazetas_rectangle(lx, ly, shear_wave_velocity=vs, poisson_ratio=nus,
                                       density=rhos,
                                       radiation_damping=bool(_get(support, "radiation_damping", True)))
+        # embedment and frequency dependence (model/_impedance.py)
+        impedance = adjust_impedance(impedance, lx, ly, support=support,
+                                     frequency_hz=soil_frequency_hz)
         if springs == "distributed":
             # tributary areas: ∫N_A dA over the bottom faces of the bottom cells
             w = np.zeros(nn)

@@ -21,7 +21,7 @@ import numpy as np
 
 from .._errors import GroundshakeWarning
 
-__all__ = ["embedment_factors", "embedment_dashpots", "dynamic_stiffness_coefficients",
+__all__ = ["adjust_impedance", "embedment_factors", "embedment_dashpots", "dynamic_stiffness_coefficients",
            "to_model_axes", "half_sides", "shear_modulus_ratio", "SHEAR_MODULUS_RATIO_TABLE"]
 
 #: ASCE 7-16 Table 19.2-1, effective shear modulus ratio G/G0 by site class (rows) and
@@ -210,3 +210,69 @@ def shear_modulus_ratio(site_class: str, shaking_g: float) -> float:
                          f"site-specific study above {xs[ok][-1]:g} g; enter modulus_ratio "
                          "instead")
     return float(np.interp(shaking_g, xs[ok], ys[ok]))
+
+
+def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=None):
+    """Surface springs of :func:`gazetas_rectangle` adjusted for embedment and frequency.
+
+    Parameters
+    ----------
+    impedance : Impedance
+        Static surface springs and dashpots in the model's axes.
+    lx, ly : float
+        Base lengths along the model's x and y [m].
+    support : SupportSettings or dict
+        Reads ``embedment_depth``, ``sidewall_contact_depth`` (default: the embedment
+        depth), ``shear_wave_velocity``, ``poisson_ratio``, ``density`` and
+        ``radiation_damping``.
+    frequency_hz : array (6,), optional
+        Frequency [Hz] at which each spring [x, y, z, rx, ry, t] (model axes) is
+        evaluated with :func:`dynamic_stiffness_coefficients`; None: static springs.
+
+    Returns
+    -------
+    Impedance
+        A new one (the input is not changed), with notes naming each formula used.
+    """
+    from ._supports import Impedance
+
+    def get(key, default=None):
+        v = support.get(key, default) if isinstance(support, dict) else getattr(support, key,
+                                                                                 default)
+        return default if v is None else v
+
+    L, B, swapped = half_sides(lx, ly)
+    depth = float(get("embedment_depth", 0.0))
+    contact = float(get("sidewall_contact_depth", depth))
+    vs, nu, rho = (float(get(k)) for k in ("shear_wave_velocity", "poisson_ratio", "density"))
+    k = np.array(impedance.stiffness, dtype=float)
+    c = np.array(impedance.damping, dtype=float)
+    notes = [n for n in impedance.notes if not n.startswith("soil springs: embedment is not")]
+    if depth > 0:
+        k = k * to_model_axes(embedment_factors(L, B, depth=depth, contact_depth=contact),
+                              swapped)
+        notes.append(f"embedded base: D = {depth:g} m below grade, side walls in contact over "
+                     f"d = {contact:g} m; stiffness factors of Gazetas (1991) Table 2 "
+                     "(from memory - verify)")
+        if bool(get("radiation_damping", True)) and contact > 0:
+            c = c + to_model_axes(embedment_dashpots(L, B, contact_depth=contact,
+                                                     shear_wave_velocity=vs,
+                                                     poisson_ratio=nu, density=rho), swapped)
+            notes.append("side-wall dashpots rho*Vs and rho*VLa per unit wall area added to "
+                         "the translations (Gazetas 1991 Table 2, from memory)")
+    else:
+        notes.append("soil springs: surface foundation (embedment_depth = 0)")
+    if frequency_hz is not None:
+        f = np.asarray(frequency_hz, dtype=float).reshape(6)
+        a0 = 2 * np.pi * f * B / vs
+        a0_paper = to_model_axes(a0, swapped)          # the swap is its own inverse
+        kd = dynamic_stiffness_coefficients(a0_paper, L=L, B=B, poisson_ratio=nu)
+        kdiag = to_model_axes(np.diagonal(kd), swapped) if kd.ndim == 2 else kd
+        k = k * kdiag
+        notes.append("frequency-dependent springs K(w) = K_static * k(a0), a0 = wB/Vs, "
+                     "k_rx = 1 - 0.20a0, k_ry = 1 - 0.26a0, k_t = 1 - 0.14a0, k_x = k_y = "
+                     "k_z = 1 (Gazetas 1991 Table 1, from memory; the k_y, k_z charts not "
+                     "encoded); evaluated at " + ", ".join(
+                         f"{n} {v:.3g} Hz (a0 {a:.2f})" for n, v, a in
+                         zip(("x", "y", "z", "rx", "ry", "t"), f, a0)))
+    return Impedance(stiffness=k, damping=c, shear_modulus=impedance.shear_modulus, notes=notes)

@@ -19,7 +19,8 @@ from .._progress import Progress
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
-from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+from ._anchorage import INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction, fp_comparison
+from ._stability import base_stability
 from ._floor import floor_spectra
 from ._stress import StressPeaks, modal_stress_peaks
 
@@ -360,6 +361,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     # ---- equipment and anchorage
     equip_out: dict[str, Any] = {}
     worst_dc = None
+    worst_ir = None
     for e in model.equipment:
         sl = rows[("equipment", e.name)]
         rel = resp.disp[sl]
@@ -398,6 +400,15 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 if cap is not None:
                     b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
                     b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
+                    ir = bolt_interaction(t, v, tension_capacity=float(_get(cap, "tension")),
+                                          shear_capacity=float(_get(cap, "shear")),
+                                          form=_get(cap, "interaction", "5/3-power"))
+                    ii = int(np.argmax(ir))
+                    b["interaction_ratio"] = float(ir[ii])
+                    b["time_of_peak_interaction"] = float(ii * dt)
+                    if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
+                        worst_ir = (b["interaction_ratio"], e.name, i + 1,
+                                    _get(cap, "interaction", "5/3-power"))
                     dc = max(b["dc_tension"], b["dc_shear"])
                     if worst_dc is None or dc > worst_dc[0]:
                         worst_dc = (dc, e.name, i + 1)
@@ -410,8 +421,11 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                       "resists uplift; vertical motion included; "
                                       f"{SCREENING_WORDING}")
             if cap is not None:
+                form = _get(cap, "interaction", "5/3-power")
                 d_["capacity"] = {"tension": float(_get(cap, "tension")),
                                   "shear": float(_get(cap, "shear")),
+                                  "interaction": form,
+                                  "interaction_formula": INTERACTION_FORMS[form],
                                   "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
@@ -461,6 +475,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
             collected.append(f"Possible uplift / loss of contact: the linear contact pressure falls "
                              f"to {pmin[i_min]:.3g} Pa at t = {i_min * dt:.3f} s; the linear model "
                              "(bonded soil springs) no longer holds there.")
+
+    # ---- stability of the base (results/_stability.py): screening with user values
+    stab = base_stability(base, weight=float(model.weight),
+                          lx=float(model.base.get("lx", 1.0)), ly=float(model.base.get("ly", 1.0)),
+                          support=_get(scenario, "support"))
+    stability_out = stab.summary(dt)
 
     peaks: dict[str, Any] = {
         "base_shear": {"x": base_out["peaks"]["Fx"]["value"], "y": base_out["peaks"]["Fy"]["value"]},
@@ -549,8 +569,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         "worst_dc": None if worst_dc is None else
         {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
          "note": SCREENING_WORDING},
+        "worst_interaction": None if worst_ir is None else
+        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
+         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
         "stresses": stress_out,
         "base": base_out,
+        "stability": stability_out,
         "floor_spectra": floor_out,
         "modes": _modes_dict(modes, model),
         "model": model.describe(),

@@ -39,7 +39,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["Stability", "stability_histories", "no_tension_pressure", "EDGES",
+__all__ = ["Stability", "stability_histories", "base_stability", "no_tension_pressure", "EDGES",
            "STABILITY_WORDING"]
 
 #: Names of the four base edges, in the order of :attr:`Stability.overturning`.
@@ -327,3 +327,38 @@ def no_tension_pressure(n, mx, my, *, lx: float, ly: float, grid: int = _GRID,
         peak[sel] = pbar * qc.max(axis=1)
         contact[sel] = (coef.T @ basis > 0).mean(axis=1)
     return peak, contact
+
+
+def base_stability(base: np.ndarray, *, weight: float, lx: float, ly: float,
+                   support=None) -> Stability:
+    """:func:`stability_histories` from a run's base resultants and its scenario support.
+
+    Parameters
+    ----------
+    base : ndarray (6, n_t)
+        [Fx, Fy, Fz, Mx, My, Mz] the structure exerts on its support about the base
+        centre [N, N·m], dynamic part (Fz positive upward), as in ``histories.csv``.
+    weight : float
+        Weight of block and equipment [N]; N(t) = weight − Fz(t).
+    lx, ly : float
+        Base lengths [m].
+    support : SupportSettings or dict, optional
+        Reads ``friction_coefficient``, ``passive_resistance`` and
+        ``allowable_bearing_pressure``.
+
+    Returns
+    -------
+    Stability
+    """
+    def get(key, default=None):
+        if support is None:
+            return default
+        v = support.get(key, default) if isinstance(support, dict) else getattr(support, key,
+                                                                                 default)
+        return default if v is None else v
+
+    b = np.asarray(base, dtype=float)
+    return stability_histories(b[0], b[1], float(weight) - b[2], b[3], b[4], lx=lx, ly=ly,
+                               friction_coefficient=get("friction_coefficient"),
+                               passive_resistance=float(get("passive_resistance", 0.0)),
+                               allowable_bearing_pressure=get("allowable_bearing_pressure"))

@@ -239,6 +239,9 @@ class AnchorCapacity:
 
     tension: float = spec("number", gt=0.0, unit="N", doc="tension capacity per bolt")
     shear: float = spec("number", gt=0.0, unit="N", doc="shear capacity per bolt")
+    interaction: Literal["5/3-power", "trilinear"] = spec(
+        "choice", "5/3-power", choices=("5/3-power", "trilinear"),
+        doc="tension-shear interaction: (T/Tc)^5/3 + (V/Vc)^5/3, or the trilinear form")
 
 
 @dataclass(frozen=True, kw_only=True)
