@@ -10,6 +10,8 @@ All displacements are relative to the ground.
 """
 from __future__ import annotations
 
+import math
+
 import warnings
 from dataclasses import dataclass, field
 from typing import Any, Literal
@@ -23,7 +25,7 @@ from ._elements import brick_matrices, shape_values
 from ._factor import Factor, factorize
 from ._memory import check_memory
 from ._mesh import Box, count_grid, mesh_boxes
-from ._impedance import adjust_impedance
+from ._impedance import adjust_impedance, modulus_ratio_of
 from ._supports import Impedance, distributed_bed, gazetas_rectangle
 
 __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_model",
@@ -391,7 +393,8 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     if kind == "fixed":
         status[base_dofs] = 1
     elif kind == "soil":
-        vs = float(_get(support, "shear_wave_velocity"))
+        # strain-compatible modulus G = (G/G0)·ρVs², as an effective Vs (model/_impedance.py)
+        vs = float(_get(support, "shear_wave_velocity")) * math.sqrt(modulus_ratio_of(support)[0])
         nus = float(_get(support, "poisson_ratio"))
         rhos = float(_get(support, "density"))
         impedance = gazetas_rectangle(lx, ly, shear_wave_velocity=vs, poisson_ratio=nus,

@@ -19,9 +19,9 @@ import warnings
 
 import numpy as np
 
-from .._errors import GroundshakeWarning
+from .._errors import GroundshakeWarning, ScenarioError
 
-__all__ = ["adjust_impedance", "embedment_factors", "embedment_dashpots", "dynamic_stiffness_coefficients",
+__all__ = ["adjust_impedance", "modulus_ratio_of", "embedment_factors", "embedment_dashpots", "dynamic_stiffness_coefficients",
            "to_model_axes", "half_sides", "shear_modulus_ratio", "SHEAR_MODULUS_RATIO_TABLE"]
 
 #: ASCE 7-16 Table 19.2-1, effective shear modulus ratio G/G0 by site class (rows) and
@@ -245,6 +245,7 @@ def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=N
     depth = float(get("embedment_depth", 0.0))
     contact = float(get("sidewall_contact_depth", depth))
     vs, nu, rho = (float(get(k)) for k in ("shear_wave_velocity", "poisson_ratio", "density"))
+    vs *= math.sqrt(modulus_ratio_of(support)[0])       # strain-compatible, as the springs
     k = np.array(impedance.stiffness, dtype=float)
     c = np.array(impedance.damping, dtype=float)
     notes = [n for n in impedance.notes if not n.startswith("soil springs: embedment is not")]
@@ -276,3 +277,42 @@ def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=N
                          f"{n} {v:.3g} Hz (a0 {a:.2f})" for n, v, a in
                          zip(("x", "y", "z", "rx", "ry", "t"), f, a0)))
     return Impedance(stiffness=k, damping=c, shear_modulus=impedance.shear_modulus, notes=notes)
+
+
+def _sget(obj, key, default=None):
+    if obj is None:
+        return default
+    v = obj.get(key, default) if isinstance(obj, dict) else getattr(obj, key, default)
+    return default if v is None else v
+
+
+def modulus_ratio_of(support) -> tuple[float, str]:
+    """Strain-compatible G/G0 of a ``[support]`` table and where it came from.
+
+    Parameters
+    ----------
+    support : SupportSettings or dict
+
+    Returns
+    -------
+    (float, str)
+        The ratio (1 when none is asked for) and a one-line source.
+
+    Raises
+    ------
+    ScenarioError
+        When the table asks for a site-specific study.
+    """
+    r = _sget(support, "modulus_ratio")
+    if r is not None:
+        return float(r), "modulus_ratio as entered"
+    sc = _sget(support, "strain_compatible")
+    if sc is not None:
+        cls, g = _sget(sc, "site_class"), float(_sget(sc, "shaking_g"))
+        try:
+            ratio = shear_modulus_ratio(cls, g)
+        except ValueError as exc:
+            raise ScenarioError(f"support.strain_compatible: {exc}") from exc
+        return ratio, (f"ASCE 7-16 Table 19.2-1 (from memory), site class {cls}, "
+                       f"S_DS/2.5 = {g:g} g")
+    return 1.0, "small-strain modulus (no reduction asked for)"

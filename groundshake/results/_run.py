@@ -228,7 +228,15 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     acceleration = relative + ground. Each method's assumptions are listed in
     ``summary["analysis"]["assumptions"]``.
     """
+    from ._cases import analyse_cases, needs_soil_cases
+    if model is None and modes is None and needs_soil_cases(scenario):
+        # lower/best/upper soil cases, one model each, envelope governs (results/_cases.py)
+        return analyse_cases(scenario, analyse=analyse, progress=progress, method=method,
+                             motion=motion, stresses=stresses)
     collected: list[str] = []
+    if _get(_get(scenario, "support"), "variation", None) is not None:
+        collected.append("support.variation: the soil cases run only when the run builds its "
+                         "own model; this run (model given, e.g. a suite) is the best estimate")
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         out = _analyse(scenario, progress=progress, method=method, motion=motion, model=model,
