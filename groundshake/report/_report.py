@@ -209,6 +209,19 @@ class _Builder:
             worst = self.worst_dc()
         if worst is not None:
             items.append(("largest demand / entered capacity", num(worst, 3)))
+        st = self.s.get("stability")
+        if isinstance(st, Mapping):
+            for key, label in (("sliding", "least sliding FS"),
+                               ("overturning", "least overturning FS")):
+                v = _as_float(_get(st, key, "min_safety_factor"))
+                if v is not None:
+                    items.append((label, num(v, 3)))
+            q = _as_float(_get(st, "bearing", "peak_pressure"))
+            if q is not None:
+                items.append(("peak bearing pressure", f"{num(q / 1e3)} kPa"))
+        wi = _as_float(_get(self.s, "worst_interaction", "value"))
+        if wi is not None:
+            items.append(("largest bolt interaction", num(wi, 3)))
         freq = self.first_frequency()
         if freq is not None:
             items.append(("first mode", f"{num(freq)} Hz"))
@@ -642,8 +655,49 @@ class _Builder:
                          fid="fig-mode-shapes")
 
     # ----------------------------------------------------------------- results
+    def stability(self) -> str:
+        """Compact table: sliding, overturning, bearing and bolt interaction per soil case."""
+        st = self.s.get("stability")
+        if not isinstance(st, Mapping) or not st:
+            return ""
+
+        def row(name: str, g, f1, stab: Any, wi: Any) -> list:
+            stab = stab if isinstance(stab, Mapping) else {}
+            sl, ot, br = (stab.get(k) or {} for k in ("sliding", "overturning", "bearing"))
+            q = _as_float(br.get("peak_pressure"))
+            return [name, None if g is None else g / 1e6, f1,
+                    _as_float(sl.get("min_safety_factor")),
+                    _as_float(ot.get("min_safety_factor")), ot.get("edge") or "—",
+                    None if q is None else q / 1e3, _as_float(br.get("ratio_to_allowable")),
+                    _as_float(_get(wi, "value"))]
+
+        rows = []
+        for c in self.s.get("soil_cases") or []:
+            if isinstance(c, Mapping):
+                modes = c.get("modes") or []
+                f1 = _as_float(modes[0].get("frequency")) if modes and isinstance(
+                    modes[0], Mapping) else None
+                rows.append(row(str(c.get("name")), _as_float(c.get("shear_modulus")), f1,
+                                c.get("stability"), c.get("worst_interaction")))
+        label = "envelope (governs)" if rows else "this run"
+        rows.append(row(label, None, None if rows else self.first_frequency(), st,
+                        self.s.get("worst_interaction")))
+        sl = st.get("sliding") or {}
+        note = ("Rigid-block statics from the base resultants (weights of block and equipment "
+                "with the vertical motion): sliding FS = (μN + P)/|V|, overturning FS = "
+                "stabilising/overturning moment about each base edge, bearing = peak edge "
+                "pressure (linear; the no-tension rigid-base value where contact is lost), bolt "
+                "interaction against the entered capacities. Screening comparisons with "
+                "user-entered values, not a code check.")
+        if sl.get("min_safety_factor") is None and sl.get("note"):
+            note += " " + str(sl["note"]) + "."
+        return ("<h3>Foundation stability</h3>" + f'<p class="note">{esc(note)}</p>'
+                + table(rows, ["soil case", "G [MPa]", "first mode [Hz]", "sliding FS min",
+                               "overturning FS min", "edge", "peak bearing [kPa]",
+                               "bearing / allowable", "bolt interaction max"]))
+
     def results(self) -> str:
-        html_ = ["<h3>Governing peaks</h3>"]
+        html_ = [self.stability(), "<h3>Governing peaks</h3>"]
         peaks = self.s.get("peaks")
         html_.append(key_values(peaks) if isinstance(peaks, Mapping) and peaks
                      else '<p class="none">No peaks in summary.json.</p>')

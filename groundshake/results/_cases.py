@@ -235,9 +235,14 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
     results = []
     for c in cases:
         sc = _case_scenario(scenario, c)
-        model = build_model(sc)
-        r = analyse(sc, progress=progress, method=method, motion=motion, model=model,
-                    stresses=stresses)
+        with warnings.catch_warnings(record=True) as caught:   # re-emitted once, combined
+            warnings.simplefilter("always", GroundshakeWarning)
+            model = build_model(sc)
+            r = analyse(sc, progress=progress, method=method, motion=motion, model=model,
+                        stresses=stresses)
+        for w in caught:
+            if not issubclass(w.category, GroundshakeWarning):
+                warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
         results.append(r)
     names = [c["name"] for c in cases]
     ib = names.index("best")
@@ -265,6 +270,16 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         s["equipment"] = {nm: _envelope_equipment([x["equipment"][nm] for x in sums], names)
                           for nm in s["equipment"]}
         s["stability"] = _envelope_stability([x["stability"] for x in sums], names)
+        s["base"]["peaks"] = _govern_peaks([x["base"]["peaks"] for x in sums], names)
+        contacts = [x["base"].get("contact") for x in sums]
+        if all(contacts):
+            kmin = int(np.argmin([c["min_pressure"] for c in contacts]))
+            kmax = int(np.argmax([c["peak_pressure"] for c in contacts]))
+            s["base"]["contact"] = {
+                **contacts[kmin], "peak_pressure": contacts[kmax]["peak_pressure"],
+                "time_of_peak_pressure": contacts[kmax]["time_of_peak_pressure"],
+                "uplift": any(c["uplift"] for c in contacts),
+                "governing_case": {"min_pressure": names[kmin], "peak_pressure": names[kmax]}}
         s["worst_dc"] = _worst([x.get("worst_dc") for x in sums], names)
         s["worst_interaction"] = _worst([x.get("worst_interaction") for x in sums], names)
         best.floor = _envelope_floor(results, names)
@@ -293,7 +308,7 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
     s["envelope"] = {"cases": names, "histories": f"histories.csv holds the {names[ib]} case",
                      "governing": "largest peak and least safety factor over the cases"}
     s["scenario"] = scenario.to_dict() if hasattr(scenario, "to_dict") else s.get("scenario", {})
-    for n in notes:
-        s["warnings"].append(n)
-        warnings.warn(n, GroundshakeWarning, stacklevel=3)
+    s["warnings"].extend(n for n in notes if n not in s["warnings"])
+    for w in s["warnings"]:
+        warnings.warn(w, GroundshakeWarning, stacklevel=3)
     return best
