@@ -214,3 +214,27 @@ def test_run_reports_each_case_and_the_envelope():
     assert s["envelope"]["histories"].endswith("best case")
     # floor spectra: the summary states the enveloping practice it followed
     assert "enveloped" in s["floor_spectra"]["soil_cases"]
+
+
+@pytest.mark.filterwarnings("ignore::groundshake._errors.GroundshakeWarning")
+def test_frequency_dependent_springs_settle_at_their_own_modes():
+    from groundshake.dynamics import compute_modes
+    from groundshake.model._supports import gazetas_rectangle
+    from groundshake.results._cases import consistent_soil_model, spring_frequencies
+    scen = _scenario({**SOIL, "frequency_dependent": True}, size=(3.0, 2.0, 1.5))
+    model, info = consistent_soil_model(scen, n_modes=6, tol=1e-4, max_iter=30)
+    assert info["converged"]
+    f = np.array(info["spring_frequencies_hz"])
+    static = gazetas_rectangle(3.0, 2.0, shear_wave_velocity=200.0, poisson_ratio=0.3,
+                               density=1900.0, warn=False).stiffness
+    a0 = 2 * np.pi * f * 1.0 / 200.0                     # a0 = ωB/Vs, B = 1 m half-width
+    # Gazetas (1991) Table 1 (from memory): rocking about x (the long side here is x, so
+    # the paper's axes are the model's) 1 − 0.20a0, about y 1 − 0.26a0, torsion 1 − 0.14a0
+    np.testing.assert_allclose(model.impedance.stiffness[3:],
+                               static[3:] * (1 - np.array([0.20, 0.26, 0.14]) * a0[3:]),
+                               rtol=1e-12)
+    np.testing.assert_allclose(model.impedance.stiffness[:3], static[:3], rtol=1e-12)
+    # a fixed point: the final model's own modes give back the frequencies it was built at
+    f_again = spring_frequencies(model, compute_modes(model, n_modes=6, warn=False))
+    np.testing.assert_allclose(f_again, f, rtol=1e-3)
+    assert np.all(f[3:] > 0)

@@ -25,7 +25,8 @@ import numpy as np
 from .._errors import GroundshakeWarning
 from ..model._impedance import modulus_ratio_of
 
-__all__ = ["soil_cases", "needs_soil_cases", "analyse_cases", "CASE_PRACTICE"]
+__all__ = ["soil_cases", "needs_soil_cases", "analyse_cases", "consistent_soil_model",
+           "spring_frequencies", "CASE_PRACTICE"]
 
 CASE_PRACTICE = ("lower, best and upper estimates G/(1+Cv), G, G(1+Cv) of the strain-"
                  "compatible shear modulus (ASCE 4-16 §5.1.7, from memory); the envelope "
@@ -46,7 +47,95 @@ def needs_soil_cases(scenario) -> bool:
     if _get(s, "kind", "fixed") != "soil":
         return False
     return (_get(s, "variation") is not None or _get(s, "modulus_ratio") is not None
-            or _get(s, "strain_compatible") is not None)
+            or _get(s, "strain_compatible") is not None
+            or bool(_get(s, "frequency_dependent", False)))
+
+
+def spring_frequencies(model, modes, *, least_share: float = 0.05) -> np.ndarray:
+    """Frequency at which each base spring works, from the modes that load it.
+
+    Parameters
+    ----------
+    model : BlockModel
+        On soil (``model.reaction.K`` gives the six base resultants of a displacement).
+    modes : Modes
+        Mass-normalised shapes (n, m), so that mode n's strain energy is ω_n²/2.
+    least_share : float
+        Modes with a smaller share of their strain energy in a spring are left out of
+        its average; a spring no mode works that much keeps 0 Hz (static stiffness).
+
+    Returns
+    -------
+    ndarray (6,)
+        [Hz] for the springs x, y, z, rx, ry, t: the average of the mode frequencies
+        weighted by the share s_jn = E_jn/ω_n² of each mode's strain energy in spring j,
+        E_jn = F_jn²/k_j (F_jn the spring's resultant in mode n, k_j its stiffness; exact
+        for a rigid base on six springs). Coupled sway-rocking modes share a spring
+        almost equally, so a weighted average (not the single largest share) keeps the
+        iteration from jumping between them.
+    """
+    phi = np.asarray(modes.shapes, dtype=float)
+    om2 = np.asarray(modes.omega, dtype=float) ** 2
+    if phi.shape[1] == 0:
+        return np.zeros(6)
+    k = np.asarray(model.impedance.stiffness, dtype=float)
+    F = np.asarray(model.reaction.K, dtype=float) @ phi                 # (6, m)
+    share = (F ** 2 / k[:, None]) / np.where(om2 > 0, om2, np.inf)[None, :]   # (6, m)
+    w = np.where(share >= least_share, share, 0.0)
+    f = np.asarray(modes.frequency, dtype=float)
+    tot = w.sum(axis=1)
+    return np.where(tot > 0, (w @ f) / np.where(tot > 0, tot, 1.0), 0.0)
+
+
+def consistent_soil_model(scenario, *, cutoff_hz=None, n_modes=None, tol: float = 0.01,
+                          max_iter: int = 8):
+    """A model whose springs are evaluated at the frequencies of their own modes.
+
+    Starting from the static springs, each spring is re-evaluated with Gazetas' (1991)
+    dynamic stiffness coefficient at the frequency of the modes that work it
+    (:func:`spring_frequencies`), the model is rebuilt and its modes recomputed, until
+    those frequencies change by less than ``tol`` (relative).
+
+    Parameters
+    ----------
+    scenario : Scenario
+        On soil.
+    cutoff_hz, n_modes : optional
+        Which modes to compute (as ``[analysis]``).
+    tol : float
+        Relative change of the spring frequencies that ends the iteration.
+    max_iter : int
+        At most this many rebuilds (a warning says when it did not settle).
+
+    Returns
+    -------
+    (BlockModel, dict)
+        The model and ``{"spring_frequencies_hz": [6], "iterations": int, "converged": bool}``.
+    """
+    from ..dynamics import compute_modes
+    from ..model import build_model
+    an = _get(scenario, "analysis")
+    cutoff_hz = cutoff_hz if cutoff_hz is not None else _get(an, "cutoff_hz", 50.0)
+    n_modes = n_modes if n_modes is not None else _get(an, "modes")
+    model = build_model(scenario)
+    f_old = None
+    converged = False
+    it = 0
+    for it in range(1, max_iter + 1):
+        modes = compute_modes(model, cutoff_hz=None if n_modes else cutoff_hz,
+                              n_modes=n_modes, warn=False)
+        f = spring_frequencies(model, modes)
+        if f_old is not None and np.all(np.abs(f - f_old) <= tol * np.maximum(f_old, 1e-9)):
+            converged = True
+            break
+        model = build_model(scenario, soil_frequency_hz=f)
+        f_old = f
+    if not converged:
+        warnings.warn(f"frequency-dependent soil springs did not settle in {max_iter} "
+                      "rebuilds; the last spring frequencies are used", GroundshakeWarning,
+                      stacklevel=2)
+    return model, {"spring_frequencies_hz": [float(v) for v in f_old],
+                   "iterations": it, "converged": converged}
 
 
 def soil_cases(support) -> list[dict]:
@@ -237,7 +326,11 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         sc = _case_scenario(scenario, c)
         with warnings.catch_warnings(record=True) as caught:   # re-emitted once, combined
             warnings.simplefilter("always", GroundshakeWarning)
-            model = build_model(sc)
+            if _get(sc.support, "frequency_dependent", False):
+                model, info = consistent_soil_model(sc)
+                c["frequency_dependent"] = info
+            else:
+                model = build_model(sc)
             r = analyse(sc, progress=progress, method=method, motion=motion, model=model,
                         stresses=stresses)
         for w in caught:
@@ -261,7 +354,8 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
                         "peaks": rs["peaks"], "stability": rs["stability"],
                         "worst_dc": rs.get("worst_dc"),
                         "worst_interaction": rs.get("worst_interaction"),
-                        "springs": rs["model"].get("support", {}).get("springs")})
+                        "springs": rs["model"].get("support", {}).get("springs"),
+                        "frequency_dependent": c.get("frequency_dependent")})
     sums = [r.summary for r in results]
     if len(results) > 1:
         s["peaks"] = _govern_peaks([x["peaks"] for x in sums], names)
