@@ -160,8 +160,14 @@ def test_effective_masses_sum_to_total_mass_and_warning():
         model = build_model(scenario(**{**_as_dict(s), "support": sup}))
         md = compute_modes(model, n_modes=model.n_dof, warn=False)
         assert md.n_modes == model.n_dof
-        # Chopra §13.2: Σ effective modal masses over all modes = total mass (ιᵀMι)
-        np.testing.assert_allclose(md.effective_mass.sum(axis=0), model.total_mass, rtol=1e-9)
+        # Chopra §13.2: Σ effective modal masses over all modes = the mass the ground load
+        # drives, Lᵀ M⁻¹ L; with the mass moving rigidly with the ground (fixed base nodes,
+        # Clough & Penzien support excitation) it makes up the whole mass ρV + equipment
+        np.testing.assert_allclose(md.effective_mass.sum(axis=0) + model.rigid_mass,
+                                   model.total_mass, rtol=1e-9)
+        np.testing.assert_allclose(model.total_mass, 2400.0 * 1.0 + 500.0, rtol=1e-12)
+        if sup["kind"] == "soil":   # nothing is held by the ground on springs (definition)
+            np.testing.assert_allclose(model.rigid_mass, 0.0, atol=1e-9)
     with pytest.warns(GroundshakeWarning, match="ASCE 7-16"):
         compute_modes(model, n_modes=2)   # 2 modes cannot hold 90 % in every direction
 
@@ -201,7 +207,7 @@ def test_static_base_reaction_equals_inertia(support):
     R = model.reaction
     m_blk = 2400.0 * 4 * 3 * 1
     for a in range(2):
-        u = model.factor().solve(-(model.M @ model.influence[:, a]))
+        u = model.factor().solve(-model.ground_load[:, a])
         r = R.K @ u + R.G[:, a]
         # D'Alembert statics: the structure pushes its support with −(total mass)·a_g
         assert r[a] == pytest.approx(-(m_blk + 3000.0), rel=1e-8)
@@ -210,7 +216,7 @@ def test_static_base_reaction_equals_inertia(support):
         sign = 1 if a == 0 else -1
         assert r[4 if a == 0 else 3] == pytest.approx(sign * mom, rel=1e-8)
     # vertical: the whole mass, and the weight includes block + equipment (g = 9.80665)
-    u = model.factor().solve(-(model.M @ model.influence[:, 2]))
+    u = model.factor().solve(-model.ground_load[:, 2])
     assert (R.K @ u + R.G[:, 2])[2] == pytest.approx(-(m_blk + 3000.0), rel=1e-8)
     assert model.weight == pytest.approx(9.80665 * (m_blk + 3000.0), rel=1e-10)
 

@@ -55,6 +55,26 @@ def rigid_link(offsets: np.ndarray) -> np.ndarray:
     return T.reshape(3 * p, 6)
 
 
+def _mass_solve(M: sp.spmatrix, B: np.ndarray) -> np.ndarray:
+    """M⁻¹ B for a mass matrix M (n, n) and B (n, k): diagonal, dense or Jacobi-preconditioned
+    conjugate gradients (a consistent mass is well conditioned, Wathen 1987)."""
+    M = sp.csr_matrix(M)
+    n = M.shape[0]
+    d = M.diagonal()
+    if M.nnz == n:
+        return B / d[:, None]
+    if n <= 3000:
+        import scipy.linalg as sla
+        return sla.solve(M.toarray(), B, assume_a="pos")
+    import scipy.sparse.linalg as spla
+    pre = sp.diags(1.0 / d)
+    out = np.empty_like(B, dtype=float)
+    for j in range(B.shape[1]):
+        x, info = spla.cg(M, B[:, j], rtol=1e-13, atol=0.0, M=pre, maxiter=2000)
+        out[:, j] = x
+    return out
+
+
 def _resultant_rows(offsets: np.ndarray) -> np.ndarray:
     """(6, 3p): forces at points ``offsets`` (p, 3) → [Fx, Fy, Fz, Mx, My, Mz] about 0."""
     return rigid_link(offsets).T
@@ -114,7 +134,13 @@ class BlockModel:
     """The finite-element model of a block and what stands on it (see docs/INTERNALS.md).
 
     Matrices are in the reduced DOFs (n,) of relative displacement: ``K`` [N/m],
-    ``M`` [kg] sparse CSR (n, n); ``influence`` (n, 3).
+    ``M`` [kg] sparse CSR (n, n), the consistent (or lumped) mass exactly as assembled;
+    ``influence`` (n, 3) ι, the rigid translation of each reduced DOF under a unit ground
+    displacement; ``ground_load`` (n, 3) [kg], L = M_ff ι_f + M_fb ι_b, so that the load of
+    the ground acceleration a_g is −L·a_g (equal to M ι unless the base is fixed);
+    ``total_mass`` (3,) [kg], every mass of the model including the fixed base nodes';
+    ``rigid_mass`` (3,) [kg], m − Lᵀ M⁻¹ L, the mass that moves rigidly with the ground
+    (the base nodes' share on a fixed base; zero on soil).
     """
 
     nodes: np.ndarray
@@ -125,6 +151,8 @@ class BlockModel:
     M: sp.csr_matrix
     influence: np.ndarray
     total_mass: np.ndarray
+    ground_load: np.ndarray
+    rigid_mass: np.ndarray
     weight: float
     sensors: list
     equipment: list
@@ -253,6 +281,7 @@ class BlockModel:
             "parts": list(self.part_names),
             "materials": self.materials,
             "total_mass": [float(v) for v in self.total_mass],
+            "rigid_mass": [float(v) for v in self.rigid_mass],
             "weight": float(self.weight),
             "support": {"kind": self.support_kind},
             "base": {k: (v.tolist() if isinstance(v, np.ndarray) else v)
@@ -462,21 +491,6 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             n_extra += 3
         eq_info.append((q, name, e, mount_pt, mo, eo, fp_nodes))
 
-    if kind == "fixed" and mass_kind == "consistent":
-        # The consistent mass couples the first layer of nodes with the fixed base nodes;
-        # those couplings are lumped onto the diagonals (row sums), so that M·ι on the
-        # free DOFs is exactly the load of the ground acceleration and ιᵀMι the mass
-        # it drives (total mass is kept).
-        fx = sp.diags((status == 1).astype(float))
-        fr = sp.diags((status != 1).astype(float))
-        Dc = fx @ Mn @ fr
-        Dc = Dc + Dc.T
-        Mn = sp.csr_matrix(Mn - Dc + sp.diags(np.asarray(Dc.sum(axis=1)).ravel()))
-        Mn.eliminate_zeros()
-        Mn.sort_indices()
-        notes.append("consistent mass; its coupling to the fixed base nodes is lumped "
-                     "onto the diagonal so that M·ι is the exact ground load")
-
     # ---- node map P: node DOFs (3nn) = P · reduced
     free_dofs = np.flatnonzero(status == 0)
     nf = free_dofs.size
@@ -612,7 +626,32 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         iota[nf + mo + np.arange(3), np.arange(3)] = 1.0
         if eo is not None:
             iota[nf + eo + np.arange(3), np.arange(3)] = 1.0
-    total_mass = np.einsum("ia,ia->a", iota, M @ iota)
+    # ground load L = M_ff ι_f + M_fb ι_b: the consistent mass stays as assembled; on a
+    # fixed base the coupling of the first layer of nodes to the moving base nodes is part
+    # of the load (Clough & Penzien, support excitation).
+    iota_nodes = sp.csr_matrix((np.ones(n_node_dof), (np.arange(n_node_dof),
+                                                      np.arange(n_node_dof) % 3)),
+                               shape=(n_node_dof, 3))
+    Mi = np.asarray(M @ iota)
+    if kind == "fixed":
+        iota_b = np.zeros((n_node_dof, 3))
+        fixed_dofs = np.flatnonzero(status == 1)
+        iota_b[fixed_dofs, fixed_dofs % 3] = 1.0
+        Mnb = np.asarray(Mn @ iota_b)
+        ground_load = Mi + np.asarray(P.T @ Mnb)
+        total_mass = (np.einsum("ia,ia->a", iota, Mi)
+                      + 2 * np.einsum("ia,ia->a", iota, np.asarray(P.T @ Mnb))
+                      + np.einsum("ia,ia->a", iota_b, Mnb))
+        moving = np.einsum("ia,ia->a", ground_load, _mass_solve(M, ground_load))
+        rigid_mass = np.maximum(total_mass - moving, 0.0)
+        notes.append(f"fixed base: {mass_kind} mass kept as assembled; ground load "
+                     "L = M_ff·ι_f + M_fb·ι_b; mass moving rigidly with the ground "
+                     f"(m − Lᵀ M_ff⁻¹ L) {rigid_mass[0]:.4g} kg of {total_mass[0]:.4g} kg; "
+                     "base reactions include the base nodes' inertia and M_bf·ü_f")
+    else:
+        ground_load = Mi
+        total_mass = np.einsum("ia,ia->a", iota, Mi)
+        rigid_mass = np.zeros(3)
     block_mass = float(Mn.sum() / 3.0)
     weight = G_STANDARD * (block_mass + sum(e.mass for e in equipment))
 
@@ -632,9 +671,6 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         Sres = sp.csr_matrix(_resultant_rows(nodes[base_nodes] - centre))  # (6, 3nb)
         KR = -(Sres @ (Kn[base_dofs] @ P)).toarray()
         MR = -(Sres @ (Mn[base_dofs] @ P)).toarray()
-        iota_nodes = sp.csr_matrix((np.ones(n_node_dof), (np.arange(n_node_dof),
-                                                          np.arange(n_node_dof) % 3)),
-                                   shape=(n_node_dof, 3))
         GR = -(Sres @ (Mn[base_dofs] @ iota_nodes)).toarray()
         CR = np.zeros_like(KR)  # damping forces at the fixed base are not included
     elif base_master is not None:
@@ -663,6 +699,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     model = BlockModel(
         nodes=nodes, elements=mesh.elements, element_centres=mesh.element_centres,
         element_part=mesh.element_part, K=K, M=M, influence=iota, total_mass=total_mass,
+        ground_load=ground_load, rigid_mass=rigid_mass,
         weight=weight, sensors=sensors, equipment=equipment, reaction=reaction,
         stress=stress, base=base, damping_ratio=ratio,
         rayleigh_hz=None if rayleigh is None else (float(rayleigh[0]), float(rayleigh[1])),

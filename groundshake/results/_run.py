@@ -131,7 +131,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             residual = None
         elif residual is None:
             residual = residual_vectors(model.M, model.influence, shapes, gam,
-                                        model.factor().solve)
+                                        model.factor().solve,
+                                        load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
         r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt, residual=residual)
         u, v, a = r.recover(output)
@@ -163,7 +164,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                           hht_alpha=hht_alpha, substeps=n_sub,
                           on_block=on_block if peaks is not None else None,
                           peak_operator=node_map, solver=getattr(model, "solver", "auto"),
-                          progress=progress)
+                          progress=progress, load=getattr(model, "ground_load", None))
     node_peak = {}
     for j, d in enumerate(DIRECTIONS):
         vals = res.dof_peak[j::3]
