@@ -177,6 +177,10 @@ class BlockModel:
     notes: list = field(default_factory=list)
     rayleigh_used_hz: tuple[float, float] | None = None
     mesh: Any = None  # the GridMesh, for plots
+    inertia_reaction: ReactionOperators | None = None
+    _equipment_mass: sp.csr_matrix | None = None       # masses on flexible supports (n, n)
+    rayleigh_choice: str = ""
+    _radiation_lowrank: tuple | None = None            # (U (n, r), d (r,))
 
     @property
     def n_dof(self) -> int:
@@ -185,7 +189,8 @@ class BlockModel:
     @property
     def is_classically_damped(self) -> bool:
         """False when discrete dashpots (soil radiation, equipment supports) are present."""
-        return self._dashpots is None or self._dashpots.nnz == 0
+        return ((self._dashpots is None or self._dashpots.nnz == 0)
+                and self._radiation_lowrank is None)
 
     def factor(self) -> Factor:
         """The factorization of K, built once and reused (``.solve(B)`` gives K⁻¹B)."""
@@ -193,18 +198,59 @@ class BlockModel:
             self._factor = factorize(self.K, solver=self.solver)
         return self._factor
 
-    def rayleigh_coefficients(self, frequencies_hz=None) -> tuple[float, float]:
-        """(a, b) of C = a·M + b·K giving the block's ratio at two frequencies [Hz].
+    def block_mass_matrix(self) -> sp.csr_matrix:
+        """M (n, n) [kg] without the masses on flexible equipment supports: the block, its
+        rigidly attached equipment and the equipment's rotary inertia on its mount."""
+        if self._equipment_mass is None or self._equipment_mass.nnz == 0:
+            return self.M
+        return sp.csr_matrix(self.M - self._equipment_mass)
 
-        Uses ``frequencies_hz``, else the scenario's ``rayleigh_hz``, else the first
-        mode and max(cutoff_hz, 5·f1) (the choice is kept in ``rayleigh_used_hz``).
+    def governing_frequencies(self, modes=None) -> tuple[float, float]:
+        """Rayleigh anchor frequencies [Hz] from the block's governing modes.
+
+        A mode belongs to the block when at least half of its kinetic energy
+        (φᵀ M_block φ, φᵀMφ = 1) is in the block; among those, the governing modes hold
+        at least 5 % of the total mass in some direction (effective mass Γ²/m). The
+        anchors are the lowest and highest governing frequencies, spread to at least
+        f2 = 1.5·f1. Without such a mode: the block mode of largest effective mass, else
+        the first mode. ``modes`` (a :class:`~groundshake.dynamics.Modes`) is computed
+        (12 lowest) when not given.
+        """
+        if modes is None:
+            from ..dynamics._modes import compute_modes
+            modes = compute_modes(self, n_modes=min(12, self.n_dof - 1), warn=False)
+        phi = np.asarray(modes.shapes)
+        f = np.asarray(modes.frequency, float)
+        share = np.einsum("im,im->m", phi, self.block_mass_matrix() @ phi)
+        ratio = np.asarray(modes.effective_mass_ratio).max(axis=1)
+        own = share >= 0.5
+        gov = own & (ratio >= 0.05)
+        if gov.any():
+            sel = f[gov]
+            why = "block modes holding ≥ 5 % of the mass"
+        elif own.any():
+            sel = f[own][[int(np.argmax(np.where(own, ratio, -1)[own]))]]
+            why = "the block mode of largest effective mass"
+        else:
+            sel = f[:1]
+            why = "the first mode (no mode is mostly the block's)"
+        f1, f2 = float(sel.min()), float(sel.max())
+        f2 = max(f2, 1.5 * f1)
+        self.rayleigh_choice = why
+        return f1, f2
+
+    def rayleigh_coefficients(self, frequencies_hz=None, *, modes=None) -> tuple[float, float]:
+        """(a, b) of C = a·M_block + b·K_block giving the block's ratio at two frequencies.
+
+        Uses ``frequencies_hz`` [Hz], else the scenario's ``rayleigh_hz``, else the
+        block's governing modes (:meth:`governing_frequencies`); the choice is kept in
+        ``rayleigh_used_hz``. Chopra §11.4: a = 2ξω1ω2/(ω1+ω2), b = 2ξ/(ω1+ω2).
         """
         f = frequencies_hz if frequencies_hz is not None else self.rayleigh_hz
         if f is None:
-            from ..dynamics._modes import lowest_modes
-            w, _ = lowest_modes(self.K, self.M, n_modes=1, factor=self.factor())
-            f1 = float(np.sqrt(max(w[0], 0.0)) / (2 * np.pi))
-            f = (f1, max(self.cutoff_hz or 0.0, 5 * f1))
+            f = self.governing_frequencies(modes)
+        elif frequencies_hz is None:
+            self.rayleigh_choice = "rayleigh_hz of the scenario"
         self.rayleigh_used_hz = (float(f[0]), float(f[1]))
         w1, w2 = 2 * np.pi * f[0], 2 * np.pi * f[1]
         z = self.damping_ratio
@@ -212,20 +258,27 @@ class BlockModel:
         b = 2 * z / (w1 + w2)
         return a, b
 
-    def damping_matrix(self, frequencies_hz=None) -> sp.csr_matrix:
+    def damping_matrix(self, frequencies_hz=None, *, modes=None) -> sp.csr_matrix:
         """Damping (n, n) [N·s/m] for direct integration.
 
-        Rayleigh a·M + b·K_block on the block (and equipment masses/soil springs, which
-        are part of M and K), with the block's ratio at two frequencies (see
-        :meth:`rayleigh_coefficients`), plus the discrete dashpots of equipment
-        supports and of soil radiation.
+        C = a·M_block + b·K_block + C_equipment + C_radiation: Rayleigh damping from the
+        block's own mass and stiffness (equipment on flexible supports left out of both;
+        soil springs inside K_block, so the soil's material damping is the block ratio at
+        the anchors), each equipment support's dashpot at its own ratio, and the soil's
+        radiation dashpots. Dashpots acting on the averaged base motion of a distributed
+        bed are not in this matrix: see :meth:`damping_update`.
         """
-        a, b = self.rayleigh_coefficients(frequencies_hz)
-        Kb = self._block_stiffness()
-        C = a * self.M + b * Kb
+        a, b = self.rayleigh_coefficients(frequencies_hz, modes=modes)
+        C = a * self.block_mass_matrix() + b * self._block_stiffness()
         if self._dashpots is not None:
             C = C + self._dashpots
         return sp.csr_matrix(C)
+
+    def damping_update(self):
+        """Low-rank damping (U (n, r), d (r,)) added to :meth:`damping_matrix`: C += U·diag(d)·Uᵀ
+        [N·s/m] (radiation dashpots on the area-averaged translations of a distributed bed),
+        or None."""
+        return self._radiation_lowrank
 
     def _block_stiffness(self):
         K = self.K
@@ -239,7 +292,8 @@ class BlockModel:
 
         ξ_n = Σ_j ξ_j·φᵀK_jφ / φᵀKφ (strain-energy weights: block and soil springs at the
         block ratio or its Rayleigh value, each equipment support at its own ratio), plus
-        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term),
+        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term,
+        low-rank bed dashpots included),
         limited to :data:`MODAL_DAMPING_CAP` (20 %, ASCE 4 practice, from memory).
         """
         phi = np.asarray(shapes, dtype=float)
@@ -267,6 +321,10 @@ class BlockModel:
             z = np.where(e_tot > 0, (zb * e_rest + num) / e_tot, zb)
             if self._radiation is not None and self._radiation.nnz:
                 cr = np.einsum("im,im->m", phi, self._radiation @ phi)
+                z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
+            if self._radiation_lowrank is not None:
+                U, d = self._radiation_lowrank
+                cr = np.einsum("rm,r->m", np.asarray(U.T @ phi) ** 2, np.asarray(d))
                 z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
         return np.minimum(z, MODAL_DAMPING_CAP)
 
@@ -555,6 +613,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             dash = rad
 
     # ---- equipment masses, springs
+    Meq = np.zeros((n_extra, n_extra))   # masses on flexible supports (damped by them alone)
     equipment = []
     eq_parts = []
     for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
@@ -584,6 +643,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             kk = m * (2 * np.pi * fz) ** 2
             cc = 2 * zeta * m * (2 * np.pi * fz)
             Mx[eo:eo + 3, eo:eo + 3] += m * np.eye(3)
+            Meq[eo:eo + 3, eo:eo + 3] += m * np.eye(3)
             L = np.zeros((3, n_extra))
             L[:, eo:eo + 3] = np.eye(3)
             L[:, mo:mo + 6] -= Tcg
@@ -690,6 +750,24 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         MR = np.zeros((6, n))
         GR = np.zeros((6, 3))
     reaction = ReactionOperators(K=KR, C=CR, M=MR, G=GR)
+    # d'Alembert: the structure exerts −Σ m ü_abs on its support (moments about the centre
+    # of the base face). T (n, 6) is a rigid motion about that centre in reduced DOFs.
+    T = np.zeros((n, 6))
+    T[:nf] = rigid_link(nodes[free_dofs // 3] - centre).reshape(-1, 3, 6)[
+        np.arange(nf), free_dofs % 3]
+    if base_master is not None:
+        T[nf + base_master:nf + base_master + 6] = np.eye(6)
+    for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
+        T[nf + mo:nf + mo + 3] = rigid_link(mount_pt - centre)
+        T[nf + mo + 3:nf + mo + 6, 3:] = np.eye(3)
+        if eo is not None:
+            T[nf + eo:nf + eo + 3] = rigid_link(equipment[q].cg - centre)
+    MT = -np.asarray((M @ T).T)
+    GT = -T.T @ ground_load
+    if kind == "fixed":   # the base nodes' own inertia and their coupling M_bf ü_f
+        MT = MT + MR
+        GT = GT + GR
+    inertia_reaction = ReactionOperators(K=np.zeros((6, n)), C=np.zeros((6, n)), M=MT, G=GT)
 
     stress = sp.csr_matrix(assemble_stress(mesh, key_grid, mats) @ P)
     materials = {nm: {"youngs_modulus": p[0], "poisson_ratio": p[1], "density": p[2]}
@@ -707,7 +785,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         part_names=[b.name for b in boxes], materials=materials, node_map=P,
         impedance=impedance, solver=solver,
         cutoff_hz=_get(analysis, "cutoff_hz", None),
-        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh)
+        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh,
+        inertia_reaction=inertia_reaction,
+        _equipment_mass=extra_mat(Meq) if n_extra else None)
     return model
 
 

@@ -23,7 +23,7 @@ from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
 from ._floor import floor_spectra
 from ._stress import StressPeaks, modal_stress_peaks
 
-__all__ = ["RunResults", "analyse", "respond"]
+__all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
 RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
 
@@ -60,6 +60,30 @@ class RunResults:
     stress: StressPeaks | None
     target_psa: np.ndarray | None = None
     inputs: dict = field(default_factory=dict)
+    base: np.ndarray | None = None
+
+
+def base_resultants(results: RunResults) -> dict[str, np.ndarray]:
+    """Base resultant histories of a run, the structure acting on its support.
+
+    Parameters
+    ----------
+    results : RunResults
+
+    Returns
+    -------
+    dict
+        ``"Fx", "Fy", "Fz"`` [N] and ``"Mx", "My", "Mz"`` [N·m], each an ndarray (n_t,)
+        on ``results.time``; moments about the centre of the base face
+        (``results.model.base["centre"]``). Taken by d'Alembert, −Σ m·ü_abs over every
+        mass of the model (block, base nodes, equipment), for both methods. The weight is
+        not included: Fz is the dynamic part, −m·a_z for a rigid body.
+    """
+    b = results.base
+    if b is None:
+        b = np.vstack([results.histories[f"base {c} [{'N' if c.startswith('F') else 'N*m'}]"]
+                       for c in RESULTANTS])
+    return {c: np.asarray(b[j]) for j, c in enumerate(RESULTANTS)}
 
 
 # --------------------------------------------------------------------------- helpers
@@ -158,13 +182,15 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     def on_block(ub, steps):
         peaks.update(0, (S @ ub).reshape(n_el, 6, -1), steps)
 
-    C = model.damping_matrix()
+    C = model.damping_matrix(modes=modes)
+    update = model.damping_update() if hasattr(model, "damping_update") else None
     t0 = _time.perf_counter()
     res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
                           hht_alpha=hht_alpha, substeps=n_sub,
                           on_block=on_block if peaks is not None else None,
                           peak_operator=node_map, solver=getattr(model, "solver", "auto"),
-                          progress=progress, load=getattr(model, "ground_load", None))
+                          progress=progress, load=getattr(model, "ground_load", None),
+                          damping_update=update)
     node_peak = {}
     for j, d in enumerate(DIRECTIONS):
         vals = res.dof_peak[j::3]
@@ -179,9 +205,17 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     if n_sub > 1:
         assumptions.append(f"The record step {dt:g} s was subdivided into {n_sub} steps so that "
                            f"the step is at most 1/10 of the period at {cutoff_hz:g} Hz.")
-    assumptions.append("Block damping: Rayleigh matrix a·M + b·K at "
-                       f"{getattr(model, 'rayleigh_used_hz', None)} Hz plus the discrete "
-                       "dashpots of soil radiation and equipment supports.")
+    fr = getattr(model, "rayleigh_used_hz", None)
+    fr_txt = "?" if fr is None else f"{fr[0]:.3g} and {fr[1]:.3g} Hz"
+    why = getattr(model, "rayleigh_choice", "") or ""
+    assumptions.append(
+        f"Damping matrix: Rayleigh a·M + b·K of the block alone, {100 * model.damping_ratio:g} % "
+        f"at {fr_txt}" + (f" ({why})" if why else "") + "; the soil springs sit in the "
+        "stiffness term (their material damping is the block ratio at those frequencies); "
+        "each flexible equipment support carries only its own dashpot at its own ratio; "
+        "soil radiation dashpots as modelled. Non-classical damping is kept whole (no modal "
+        "uncoupling); the Rayleigh ratio differs from the target between and beyond the two "
+        "frequencies.")
     return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
 
 
@@ -306,7 +340,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         blocks.append(sp.csr_matrix(e.operator)); names.append(("equipment", e.name, 6))
     for e in model.equipment:
         blocks.append(_mount_operator(model, e.mount)); names.append(("mount", e.name, 3))
-    R = model.reaction
+    R = getattr(model, "inertia_reaction", None) or model.reaction
     blocks += [sp.csr_matrix(R.K), sp.csr_matrix(R.C), sp.csr_matrix(R.M)]
     output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n))
     _tick()
@@ -540,8 +574,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                     "cutoff_hz": cutoff, "n_modes": int(np.asarray(modes.omega).size),
                     "retained_mass_ratio": retained, "dt": dt, "n_steps": n_t,
                     "duration": float((n_t - 1) * dt), **resp.info,
-                    "effective_force": "p(t) = -M iota a_g(t), relative to the moving base; "
-                                       "absolute = relative + ground"}
+                    "effective_force": "p(t) = -L a_g(t), L = M iota (on a fixed base "
+                                       "M_ff iota_f + M_fb iota_b), relative to the moving "
+                                       "base; absolute = relative + ground",
+                    "base_resultants": "d'Alembert: -sum m * absolute acceleration over every "
+                                       "mass (block, base nodes, equipment), moments about "
+                                       "the centre of the base face"}
     summary.update({
         "analysis": analysis_out,
         "peaks": peaks,
@@ -580,7 +618,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     }
     return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
                       histories=hist, ground_spectra=ground_spectra, floor=floor,
-                      stress=resp.stress, target_psa=target_psa, inputs=inputs)
+                      stress=resp.stress, target_psa=target_psa, inputs=inputs, base=base)
 
 
 def _modes_dict(modes, model) -> dict:
