@@ -30,6 +30,9 @@ __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_
 
 #: Standard gravity [m/s²].
 G_STANDARD = 9.80665
+#: Default share of the equipment weight that resists uplift: the 0.9·D of the load
+#: combination with E (ASCE 7-16 §2.3.6, from memory).
+DEAD_LOAD_FACTOR = 0.9
 #: Upper limit of composite modal damping ratios (ASCE 4 practice, from memory: 20 %).
 MODAL_DAMPING_CAP = 0.20
 
@@ -656,7 +659,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         equipment.append(EquipmentModel(
             name=name, mass=m, inertia=inertia, cg=cg, mount=mount_pt,
             anchors=np.asarray(_get(e, "anchors", []) or [], float).reshape(-1, 2),
-            dead_load_factor=float(_get(e, "dead_load_factor", 1.0)),
+            dead_load_factor=float(_get(e, "dead_load_factor", DEAD_LOAD_FACTOR)),
             capacity=_get(e, "capacity", None), fp=_get(e, "fp", None),
             operator=sp.csr_matrix(op), frequency_hz=fz, damping=zeta,
             footprint=np.array([bxf, byf])))

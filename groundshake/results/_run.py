@@ -319,12 +319,14 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   warn=False)
     timings["modes"] = _tick()
     # the modes' own notes, except the mass one (ours below also names the correction)
+    # and the modal damping cap, which only modal runs use
     collected.extend(m for m in getattr(modes, "warnings", []) or []
-                     if not str(m).startswith("modes capture"))
+                     if not str(m).startswith("modes capture")
+                     and not (method == "direct" and str(m).startswith("modal damping of mode")))
     if method == "modal" and not getattr(model, "is_classically_damped", True):
         collected.append("Non-classical damping (soil radiation and/or equipment dashpots) is "
-                         "represented by modal damping ratios (coupling terms neglected, ratios "
-                         "capped); run with --method direct to check.")
+                         "represented by modal damping ratios (coupling terms between modes "
+                         "neglected); --method direct keeps the whole damping matrix.")
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
@@ -440,9 +442,11 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 hist[f"{e.name} bolt {i + 1} tension [N]"] = t
                 hist[f"{e.name} bolt {i + 1} shear [N]"] = v
                 peak_times.append((f"{e.name} bolt {i + 1} tension", float(it * dt)))
+            d_["dead_load_factor"] = float(e.dead_load_factor)
             d_["anchorage_method"] = ("rigid base plate, elastic bolt group (common practice); "
                                       f"weight × dead_load_factor {float(e.dead_load_factor):g} "
-                                      "resists uplift; vertical motion included; "
+                                      "resists uplift (default 0.9: 0.9D with E, ASCE 7-16 "
+                                      "§2.3.6, from memory); vertical motion included; "
                                       f"{SCREENING_WORDING}")
             if cap is not None:
                 d_["capacity"] = {"tension": float(_get(cap, "tension")),
@@ -664,33 +668,68 @@ def _records_summary(motion: Motion) -> list:
     return out
 
 
+def motion_band(scenario, motion: Motion) -> tuple[float, str]:
+    """Upper edge [Hz] of the motion's usable band and what sets it: the low-pass corner of
+    the processing when one is applied, else the Nyquist frequency 1/(2·dt)."""
+    nyq = 0.5 / motion.dt
+    lp = None
+    try:
+        settings = scenario.processing_settings() if hasattr(scenario, "processing_settings") \
+            else None
+        if settings is not None and bool(_get(settings, "enabled", True)):
+            lp = _get(settings, "lowpass_hz", None)
+    except (AttributeError, TypeError, ValueError, InputError):
+        lp = None
+    if lp is not None and float(lp) < nyq:
+        return float(lp), f"the low-pass corner {float(lp):.3g} Hz"
+    return nyq, f"the Nyquist frequency {nyq:.3g} Hz"
+
+
 def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff, peak_times,
                    n_modes) -> None:
-    """Append the automatic warnings of a run to ``collected``."""
+    """Append the automatic warnings of a run to ``collected`` (only those that apply)."""
     dt, dur = motion.dt, motion.duration
+    f_band, band_why = motion_band(scenario, motion)
     freq = np.asarray(modes.frequency) if n_modes else np.zeros(0)
+    excited = np.array([d in motion.components for d in DIRECTIONS])
     if n_modes:
         T1 = 1.0 / float(freq[0])
         if dur < 10 * T1:
             collected.append(f"The record ({dur:.3g} s) is shorter than 10 periods of the lowest "
                              f"mode (T1 = {T1:.3g} s): its response may not develop.")
         f_hi = float(freq[-1])
-        if dt > 1.0 / (10.0 * f_hi):
-            what = ("the modal kernel is exact for a piecewise-linear record, but the record "
-                    "cannot carry motion at that frequency") if method == "modal" else \
-                   "the step was subdivided, but the record cannot carry motion at that frequency"
-            collected.append(f"The time step dt = {dt:g} s is coarser than 1/10 of the period of "
-                             f"the highest retained mode ({f_hi:.3g} Hz); {what}.")
-        cum = np.asarray(modes.cumulative_ratio)[-1]
+        ratio = np.asarray(modes.effective_mass_ratio)
+        # modes holding mass that the record cannot drive: above its usable band
+        above = (freq > f_band) & np.any((ratio >= 0.05) & excited[None, :], axis=1)
+        if method == "modal" and np.any(above):
+            share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
+                                 * excited))
+            collected.append(
+                f"Mode(s) at {', '.join(f'{f:.3g}' for f in freq[above][:4])} Hz holding "
+                f"{100 * share:.0f} % of the mass lie above the motion's usable band (up to "
+                f"{band_why}, dt = {dt:g} s): the record carries no motion there, so they "
+                "respond quasi-statically; a record sampled more finely (or filtered less) "
+                "is needed to excite them.")
+        rigid = np.asarray(getattr(modes, "rigid_mass", None) if getattr(modes, "rigid_mass",
+                                                                         None) is not None
+                           else np.zeros(3), float)
+        total = np.asarray(modes.total_mass, float)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            cum = np.where(total - rigid > 0, np.asarray(modes.effective_mass).sum(axis=0)
+                           / (total - rigid), 1.0)
         low = [f"{d} {100 * cum[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
-               if d in motion.components and cum[j] < 0.9]
-        if low:
-            collected.append("Retained modal mass below 90 % (" + ", ".join(low) + "); "
-                             + ("the missing-mass correction carries the rest statically."
-                                if method == "modal" else "the direct solution uses all DOFs."))
-        f_use = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+               if excited[j] and cum[j] < 0.9]
+        if low and method == "modal" and f_hi < f_band:
+            collected.append("Retained modal mass below 90 % of the mass free to move ("
+                             + ", ".join(low) + ") while the modes left out start within the "
+                             f"motion's band (the highest kept is {f_hi:.3g} Hz, the band reaches "
+                             f"{f_band:.3g} Hz): the missing-mass correction treats them "
+                             "statically; raise cutoff_hz or modes (ASCE 7-16 §12.9.1.1 asks "
+                             "for 90 %).")
+        f_model = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+        f_use = min(f_model, f_band)
     else:
-        f_use = float(cutoff or 0.0)
+        f_use = min(float(cutoff or 0.0), f_band)
         collected.append("No mode below the cutoff: the block responds quasi-statically "
                          "(missing mass only)." if method == "modal" else
                          "No mode below the cutoff.")
@@ -710,8 +749,9 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
             h = float(_get(_get(scenario, "mesh"), "element_size"))
         if f_use > 0 and h > vs / (10.0 * f_use):
             collected.append(f"Elements up to {h:.3g} m are larger than 1/10 of the shear "
-                             f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m): fewer than about "
-                             "10 elements per wavelength; refine the mesh or lower the cutoff.")
+                             f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m), the highest "
+                             "frequency both modelled and carried by the motion: fewer than "
+                             "about 10 elements per wavelength; refine the mesh.")
     except (TypeError, ValueError, AttributeError):
         pass
     tail = max(5 * dt, 0.02 * dur)
