@@ -473,7 +473,6 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     base_master = None
     impedance = None
     base_dofs = (3 * base_nodes[:, None] + np.arange(3)).ravel()
-    k_bed = None
     if kind == "fixed":
         status[base_dofs] = 1
     elif kind == "soil":
@@ -484,18 +483,22 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
                                       density=rhos,
                                       radiation_damping=bool(_get(support, "radiation_damping", True)))
         if springs == "distributed":
-            # tributary areas: ∫N_A dA over the bottom faces of the bottom cells
-            w = np.zeros(nn)
+            # consistent Winkler bed: ∫N_A N_B dA over the bottom faces of the bottom cells
             jj, ii = np.nonzero(bottom)
-            a4 = (dxs[ii] * dys[jj]) / 4
-            for di in (0, 1):
-                for dj in (0, 1):
-                    np.add.at(w, mesh.node_id[0, jj + dj, ii + di], a4)
-            wb = w[base_nodes]
-            k_bed, note = distributed_bed(nodes[base_nodes, :2] - centre[:2], wb,
-                                          impedance.stiffness)
-            c_bed = impedance.damping[:3][None, :] * (wb / wb.sum())[:, None]
+            quad = np.stack([mesh.node_id[0, jj, ii], mesh.node_id[0, jj, ii + 1],
+                             mesh.node_id[0, jj + 1, ii + 1], mesh.node_id[0, jj + 1, ii]], 1)
+            q4 = np.array([[4, 2, 1, 2], [2, 4, 2, 1], [1, 2, 4, 2], [2, 1, 2, 4]]) / 36.0
+            vals = (dxs[ii] * dys[jj])[:, None, None] * q4[None]
+            Qn = sp.csr_matrix((vals.ravel(), (np.repeat(quad, 4, axis=1).ravel(),
+                                               np.tile(quad, (1, 4)).ravel())), shape=(nn, nn))
+            wq = np.asarray(Qn.sum(axis=1)).ravel()           # ∫N_A dA, tributary areas
+            xc, yc = nodes[:, 0] - centre[0], nodes[:, 1] - centre[1]
+            ix_b, iy_b = float(wq @ (yc * yc)), float(wq @ (xc * xc))  # exact for bilinear N
+            k_area, note = distributed_bed(area, (ix_b, iy_b), impedance.stiffness)
             notes.append(note)
+            notes.append("distributed bed: radiation dashpots Cx, Cy, Cz act on the base's "
+                         "area-averaged translations, so rocking and torsion carry no "
+                         "radiation damping, as with lumped springs")
         else:
             base_master = n_extra
             n_extra += 6
@@ -599,6 +602,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
 
     rad = None
     dash = None
+    radiation_lowrank = None
     if kind == "soil":
         if base_master is not None:
             Ks = np.zeros((n_extra, n_extra))
@@ -610,10 +614,17 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             rad = extra_mat(Cr)
         else:
             bd = red_of[base_dofs]
-            Ks_sp = sp.csr_matrix((k_bed.ravel(), (bd, bd)), shape=(n, n))
+            Qc = Qn.tocoo()
+            Ks_sp = sp.csr_matrix(sum(
+                sp.csr_matrix((k_area[d] * Qc.data, (red_of[3 * Qc.row + d],
+                                                     red_of[3 * Qc.col + d])), shape=(n, n))
+                for d in range(3)))
             K = K + Ks_sp
-            rad = sp.csr_matrix((c_bed.ravel(), (bd, bd)), shape=(n, n))
-            dash = rad
+            # dashpots on the mean translation ū_d = Σ (w_A/A) u_Ad: C = U diag(c) Uᵀ
+            U = sp.csr_matrix((np.tile(wq[base_nodes] / area, 3),
+                               (np.concatenate([red_of[3 * base_nodes + d] for d in range(3)]),
+                                np.repeat(np.arange(3), base_nodes.size))), shape=(n, 3))
+            radiation_lowrank = (U, impedance.damping[:3].copy())
 
     # ---- equipment masses, springs
     Meq = np.zeros((n_extra, n_extra))   # masses on flexible supports (damped by them alone)
@@ -748,8 +759,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         bd = red_of[base_dofs]
         KR = np.zeros((6, n))
         CR = np.zeros((6, n))
-        KR[:, bd] = Sres * k_bed.ravel()[None, :]
-        CR[:, bd] = Sres * c_bed.ravel()[None, :]
+        KR = (sp.csr_matrix(Sres) @ Ks_sp[bd]).toarray()
+        Ul, cl = radiation_lowrank
+        CR = ((Sres @ Ul[bd].toarray()) * cl[None, :]) @ Ul.T.toarray()
         MR = np.zeros((6, n))
         GR = np.zeros((6, 3))
     reaction = ReactionOperators(K=KR, C=CR, M=MR, G=GR)
@@ -789,7 +801,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         impedance=impedance, solver=solver,
         cutoff_hz=_get(analysis, "cutoff_hz", None),
         _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh,
-        inertia_reaction=inertia_reaction,
+        inertia_reaction=inertia_reaction, _radiation_lowrank=radiation_lowrank,
         _equipment_mass=extra_mat(Meq) if n_extra else None)
     return model
 
