@@ -80,10 +80,22 @@ def test_no_tension_triangle_one_way(e):
     N, L, B = 1e5, 4.0, 2.0
     p, c = no_tension_pressure([N], [0.0], [N * e], lx=L, ly=B)
     # rigid base, no tension, e > L/6: q_max = 2N/(3B(L/2 − e)) over 3(L/2 − e) (statics)
-    assert p[0] == pytest.approx(2 * N / (3 * B * (L / 2 - e)), rel=2e-3)
-    assert c[0] == pytest.approx(3 * (L / 2 - e) / L, abs=1.0 / 64)
+    assert p[0] == pytest.approx(2 * N / (3 * B * (L / 2 - e)), rel=1e-9)
+    assert c[0] == pytest.approx(3 * (L / 2 - e) / L, rel=1e-9)
     p, c = no_tension_pressure([N], [-N * e], [0.0], lx=B, ly=L)   # the same turned to y
-    assert p[0] == pytest.approx(2 * N / (3 * B * (L / 2 - e)), rel=2e-3)       # (statics)
+    assert p[0] == pytest.approx(2 * N / (3 * B * (L / 2 - e)), rel=1e-9)       # (statics)
+
+
+@pytest.mark.parametrize("ex, ey", [(1.5, 0.6), (1.2, 0.55), (1.0, 0.5)])
+def test_no_tension_corner_pyramid(ex, ey):
+    # statics: with ex ≥ L/4 and ey ≥ B/4 the contact is a corner triangle with legs
+    # s = 4(L/2 − ex), t = 4(B/2 − ey) (the centroid of the pressure pyramid lies a quarter
+    # of each leg from the corner) and N = q_max·s·t/6
+    N, L, B = 1e5, 4.0, 2.0
+    s_, t_ = 4 * (L / 2 - ex), 4 * (B / 2 - ey)
+    p, c = no_tension_pressure([N], [-N * ey], [N * ex], lx=L, ly=B)
+    assert p[0] == pytest.approx(6 * N / (s_ * t_), rel=1e-3)
+    assert c[0] == pytest.approx(s_ * t_ / 2 / (L * B), rel=1e-3)
 
 
 def test_no_tension_biaxial_equilibrium_and_bounds():
@@ -105,9 +117,9 @@ def test_bearing_summary_against_allowable():
                             lx=4.0, ly=2.0, allowable_bearing_pressure=5e4)
     summ = s.summary(0.5)["bearing"]
     q = 2 * 1e5 / (3 * 2.0 * (2.0 - 1.0))                      # triangle, e = 1 m (statics)
-    assert summ["peak_pressure"] == pytest.approx(q, rel=2e-3)
+    assert summ["peak_pressure"] == pytest.approx(q, rel=1e-9)
     assert summ["time"] == 0.5 and summ["edge"] == "+x" and summ["contact_lost"]
-    assert summ["ratio_to_allowable"] == pytest.approx(q / 5e4, rel=2e-3)
+    assert summ["ratio_to_allowable"] == pytest.approx(q / 5e4, rel=1e-9)
 
 
 def test_no_friction_means_no_sliding_check():
