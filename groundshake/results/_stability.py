@@ -27,9 +27,10 @@ Methods (statics of a rigid block, common practice):
 - bearing: the peak of the linear distribution while the whole base is in
   contact; where the linear distribution would pull (contact lost) the
   no-tension pressure of a rigid base, q = max(0, a + b·x + c·y), with a, b, c
-  solved from the three equilibrium equations by Newton's method (exact along the
-  larger eccentricity, 64 strips across it; the biaxial rigid-base solution; for one-way eccentricity e > L/6 it is
-  the triangle q_max = 2N / (3·B·(L/2 − e))). When the resultant falls outside the
+  solved from the three equilibrium equations by Newton's method, exact along the
+  larger eccentricity with 64 strips across it (the biaxial rigid-base solution; for
+  one-way eccentricity e > L/6 it is the triangle q_max = 2N / (3·B·(L/2 − e)), for
+  contact at a corner the pyramid q_max = 6N/(s·t)). When the resultant falls outside the
   base (FS against overturning < 1) no contact pressure can balance it and the
   pressure is reported as infinite.
 """
