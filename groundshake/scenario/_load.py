@@ -455,7 +455,7 @@ def _check_support(values, ctx):
         if s is not None and (any(v is not None for v in (s.shear_wave_velocity, s.poisson_ratio,
                                                           s.density, s.variation,
                                                           s.modulus_ratio, s.strain_compatible))
-                              or s.embedment_depth):
+                              or s.embedment_depth or s.frequency_dependent):
             ctx.notes.append(f"{ctx.where(('support',))}: support: soil properties given with "
                              f'kind = "fixed" are not used')
         return
