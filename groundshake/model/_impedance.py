@@ -21,7 +21,8 @@ import numpy as np
 
 from .._errors import GroundshakeWarning, ScenarioError
 
-__all__ = ["adjust_impedance", "modulus_ratio_of", "embedment_factors", "embedment_dashpots", "dynamic_stiffness_coefficients",
+__all__ = ["adjust_impedance", "modulus_ratio_of", "embedment_factors", "embedment_dashpots",
+           "dynamic_stiffness_coefficients",
            "to_model_axes", "half_sides", "shear_modulus_ratio", "SHEAR_MODULUS_RATIO_TABLE"]
 
 #: ASCE 7-16 Table 19.2-1, effective shear modulus ratio G/G0 by site class (rows) and

@@ -19,7 +19,8 @@ from .._progress import Progress
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
-from ._anchorage import INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction, fp_comparison
+from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
+                         fp_comparison)
 from ._stability import base_stability
 from ._floor import floor_spectra
 from ._stress import StressPeaks, modal_stress_peaks
