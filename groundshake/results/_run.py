@@ -23,7 +23,7 @@ from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt
                          fp_comparison)
 from ._stability import base_stability
 from ._floor import floor_spectra
-from ._stress import StressPeaks, modal_stress_peaks
+from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_peaks, stress_summary
 
 __all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
@@ -49,6 +49,8 @@ class RunResults:
     floor : dict
         Output of :func:`floor_spectra` plus ``points`` (names).
     stress : StressPeaks
+        Per element: the largest peaks of its corner stress points (NaN for an element
+        with no corner on the surface).
     """
 
     summary: dict
@@ -139,16 +141,16 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     """Response of the model to the motion, for the rows of ``output`` (k, n).
 
     Also gives the peak relative node displacement per direction anywhere in the
-    block and the per-element stress peaks, without ever holding the whole
-    displacement history. ``residual`` (n, 3), the missing-mass shapes of
+    block and the stress peaks at each stress point of the model, without ever
+    holding the whole displacement history. ``residual`` (n, 3), the missing-mass shapes of
     :func:`residual_vectors` for these modes, saves the static solve when given
     (a suite computes it once for all its records).
     """
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
-    n_el = model.elements.shape[0]
     node_map = sp.csr_matrix(model.node_map)
     S = sp.csr_matrix(model.stress)
+    n_el = S.shape[0] // 6          # stress points (rows of six components)
     info: dict = {}
     if method == "modal":
         shapes = np.asarray(modes.shapes)
@@ -247,7 +249,7 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
-        Compute element stress peaks.
+        Compute stress peaks (at the surface stress points).
     residual : ndarray (n, 3), optional
         Missing-mass shapes for ``modes`` (see
         :func:`groundshake.dynamics.residual_vectors`), computed once by a caller
@@ -546,9 +548,10 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         peaks["relative_displacement"][d] = entry
     stress_out = {}
     if resp.stress is not None:
-        stress_out = resp.stress.governing(dt, np.asarray(model.element_centres))
-        stress_out["points"] = "element centres"
-        stress_out["units"] = "Pa"
+        stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt,
+                                                  part_names=list(model.part_names))
+        collected.extend(stress_notes)
+        resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
         peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
         peaks["principal_tension"] = stress_out.get("principal_tension", {}).get("value")
         peaks["principal_compression"] = stress_out.get("principal_compression", {}).get("value")
@@ -655,7 +658,9 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     }
     return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
                       histories=hist, ground_spectra=ground_spectra, floor=floor,
-                      stress=resp.stress, target_psa=target_psa, inputs=inputs, base=base)
+                      stress=None if resp.stress is None else
+                      element_peaks(resp.stress, model.stress_points.element_points),
+                      target_psa=target_psa, inputs=inputs, base=base)
 
 
 def _modes_dict(modes, model) -> dict:
