@@ -5,7 +5,7 @@ tables) and writes ``out_dir/report.html``.
 """
 from .._cautions import CAUTIONS, SCREENING_NOTE
 from ._load import OutputFolder, Table, load_output
-from ._report import SECTIONS, fp_force, render_report, write_report
+from ._report import SECTIONS, render_report, write_report
 
 __all__ = ["write_report", "render_report", "load_output", "OutputFolder", "Table",
-           "SECTIONS", "fp_force", "CAUTIONS", "SCREENING_NOTE"]
+           "SECTIONS", "CAUTIONS", "SCREENING_NOTE"]

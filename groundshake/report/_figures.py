@@ -17,14 +17,17 @@ from matplotlib.colors import LinearSegmentedColormap, Normalize
 from matplotlib.cm import ScalarMappable
 from matplotlib.figure import Figure
 
-__all__ = ["PALETTE", "STRESS_MAP", "SHAPE_MAP", "VoxelGrid", "voxel_grid", "data_uri",
+__all__ = ["PALETTE", "LINESTYLES", "plain_log_axis", "STRESS_MAP", "SHAPE_MAP", "VoxelGrid", "voxel_grid", "data_uri",
            "mpl_text", "strip_figure", "record_figure", "spectra_figure", "model_figure",
            "stress_figure", "mode_shapes_figure", "exterior_faces"]
 
 DPI = 96
-#: Our colours: ink, teal, amber, brick, plum, moss, slate, sand.
-PALETTE = ("#22303c", "#1f7a7a", "#d08c1f", "#a8432a", "#6b4c8a", "#5d7f2f", "#51667a",
-           "#b99a6b")
+#: Colour-blind-safe colours (Okabe & Ito 2008, "Color Universal Design"): black, blue,
+#: orange, bluish green, vermillion, reddish purple, sky blue, yellow.
+PALETTE = ("#000000", "#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9",
+           "#F0E442")
+#: Line styles cycled with the colours, so curves differ in print and to every reader.
+LINESTYLES = ("-", "--", "-.", ":", (0, (5, 1, 1, 1, 1, 1)), (0, (1, 1)))
 RAW_COLOUR = "#a9b1b8"
 STRESS_MAP = LinearSegmentedColormap.from_list(
     "groundshake_stress", ["#f3efe2", "#e9c46a", "#d08c1f", "#a8432a", "#4a2545"])
@@ -68,6 +71,21 @@ def _style(ax) -> None:
     ax.tick_params(labelsize=8)
 
 
+def plain_log_axis(axis) -> None:
+    """Label a logarithmic axis with plain numbers (0.05, 0.1, 0.2, 0.5, 1, 2) instead of
+    powers of ten."""
+    from matplotlib.ticker import FixedLocator, FuncFormatter, NullLocator
+
+    lo, hi = axis.get_view_interval()
+    lo, hi = (min(lo, hi), max(lo, hi))
+    ticks = [m * 10.0 ** e for e in range(-4, 5) for m in (1, 2, 5)
+             if lo * 0.999 <= m * 10.0 ** e <= hi * 1.001]
+    if len(ticks) >= 2:
+        axis.set_major_locator(FixedLocator(ticks))
+    axis.set_minor_locator(NullLocator())
+    axis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+
+
 def _finite(t: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     ok = np.isfinite(t) & np.isfinite(y)
     return t[ok], y[ok]
@@ -99,8 +117,8 @@ def strip_figure(time: np.ndarray, strips: Sequence[tuple[str, Sequence[tuple[st
         signed = "tension" in str(label).lower()
         for c, (name, y) in enumerate(curves):
             t, v = _finite(t_all, np.asarray(y, float))
-            colour = PALETTE[1 + (c if len(curves) > 1 else k) % (len(PALETTE) - 1)]
-            ax.plot(t, v, color=colour, linewidth=0.7,
+            colour = PALETTE[(1 + c) % 7] if len(curves) > 1 else PALETTE[1]
+            ax.plot(t, v, color=colour, linewidth=0.8, linestyle=LINESTYLES[c % len(LINESTYLES)],
                     label=mpl_text(name) if len(curves) > 1 and name else None)
             if v.size:
                 i = int(np.argmax(v if signed else np.abs(v)))
@@ -173,16 +191,31 @@ def record_figure(rows: Sequence[tuple[str, str, tuple[np.ndarray, np.ndarray] |
     fig = _figure(9.0, 0.8 + 1.3 * n)
     axes = fig.subplots(n, 1, sharex=True, squeeze=False)[:, 0]
     _margins(fig, left=0.9, top=0.4 if title else 0.15, hspace=0.12)
+    span = None
     for ax, (quantity, unit, raw, cor) in zip(axes, rows):
+        cv = None
         if raw is not None:
             t, v = _finite(*map(np.asarray, raw))
-            ax.plot(t, v, color=RAW_COLOUR, linewidth=0.8, label="as read")
+            ax.plot(t, v, color=RAW_COLOUR, linewidth=0.9, linestyle="--", label="as read")
+            if t.size:
+                span = (float(t[0]), float(t[-1]))
+            rv = v
         if cor is not None:
-            t, v = _finite(*map(np.asarray, cor))
-            ax.plot(t, v, color=PALETTE[1], linewidth=0.8, label="corrected")
+            t, cv = _finite(*map(np.asarray, cor))
+            ax.plot(t, cv, color=PALETTE[1], linewidth=0.8, label="corrected")
+        if cv is not None and cv.size and raw is not None and rv.size:
+            top = float(np.max(np.abs(cv)))
+            if top > 0 and float(np.max(np.abs(rv))) > 3.0 * top:
+                # the drift of the record as read would flatten the corrected curve
+                ax.set_ylim(-1.3 * top, 1.3 * top)
+                ax.text(0.005, 0.04, f"as read reaches {float(np.max(np.abs(rv))):.3g} "
+                        f"{mpl_text(unit)} (off this scale)", transform=ax.transAxes,
+                        fontsize=7, color="#555555")
         ax.set_ylabel(f"{mpl_text(quantity)}\n[{mpl_text(unit)}]", fontsize=8)
         ax.yaxis.set_major_locator(MaxNLocator(4))
         _style(ax)
+    if span is not None and span[1] > span[0]:
+        axes[-1].set_xlim(*span)            # the record's own time, as read
     axes[0].legend(fontsize=7.5, loc="upper right", frameon=False, ncol=2)
     axes[-1].set_xlabel("time [s]", fontsize=8)
     if title:
@@ -218,20 +251,22 @@ def spectra_figure(panels: Sequence[tuple[str, Sequence[tuple[str, np.ndarray, n
             if not per.size:
                 continue
             if kind == "ground":
-                style = dict(color=(PALETTE[0], PALETTE[6], PALETTE[7])[g % 3], linewidth=1.0,
-                             linestyle=(":", "-.", "--")[g % 3])
+                style = dict(color="#777777", linewidth=0.9, linestyle=(":", "-.", "--")[g % 3])
                 g += 1
             elif kind == "target":
-                style = dict(color=PALETTE[3], linewidth=1.4, linestyle="--")
+                style = dict(color=PALETTE[0], linewidth=1.6, linestyle="--")
+            elif kind == "envelope":
+                style = dict(color=PALETTE[0], linewidth=1.8, linestyle="-")
             elif kind == "raw":
-                style = dict(color=PALETTE[1 + k % 6], linewidth=0.9, alpha=0.55)
+                style = dict(color=PALETTE[1 + k % 6], linewidth=0.9, alpha=0.55,
+                             linestyle=LINESTYLES[k % len(LINESTYLES)])
             else:
-                style = dict(color=PALETTE[1 + k % 6], linewidth=1.3)
+                style = dict(color=PALETTE[1 + k % 6], linewidth=1.3,
+                             linestyle=LINESTYLES[k % len(LINESTYLES)])
                 k += 1
             ax.plot(per, val, label=mpl_text(label), **style)
         ax.set_xscale("log")
-        from matplotlib.ticker import NullLocator
-        ax.xaxis.set_minor_locator(NullLocator())     # minor log ticks cost more than they tell
+        plain_log_axis(ax.xaxis)
         ax.set_xlabel("period [s]", fontsize=8)
         ax.set_ylabel(mpl_text(ylabel), fontsize=8)
         ax.set_title(mpl_text(title), fontsize=9, color=PALETTE[0])
@@ -498,8 +533,8 @@ def model_figure(grid: VoxelGrid | None, *, cell_part: np.ndarray | None = None,
     return fig
 
 
-def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von Mises stress"
-                  ) -> Figure:
+def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von Mises stress",
+                  unit: str = "MPa", factor: float = 1e-6) -> Figure:
     """Peak stress of each element drawn on the outer faces of the block, two views.
 
     Parameters
@@ -508,7 +543,7 @@ def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von
     values : ndarray, shape (n_el,)
         Peak stress of each element [Pa]; drawn in MPa with a colour scale.
     """
-    v = np.asarray(values, float) / 1e6
+    v = np.asarray(values, float) * factor
     top = float(np.nanmax(v)) if np.any(np.isfinite(v)) else 1.0
     norm = Normalize(vmin=0.0, vmax=top if top > 0 else 1.0)
     cells = grid.cell_values(v)
@@ -529,7 +564,7 @@ def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von
     sm = ScalarMappable(norm=norm, cmap=STRESS_MAP)
     cax = fig.add_axes([0.925, 0.15, 0.014, 0.7])
     cb = fig.colorbar(sm, cax=cax)
-    cb.set_label(f"{mpl_text(label)} [MPa]", fontsize=8)
+    cb.set_label(f"{mpl_text(label)} [{mpl_text(unit)}]", fontsize=8)
     cb.ax.tick_params(labelsize=7)
     return fig
 

@@ -19,6 +19,7 @@ from typing import Any, Iterable
 import numpy as np
 
 from .._errors import InputError
+from ..results._schema import FILES
 
 __all__ = ["Table", "OutputFolder", "load_output", "split_header", "label_words",
            "damping_of"]
@@ -28,8 +29,7 @@ _SPLIT = re.compile(r"[\s_:/,;|=]+")
 _DAMPING = re.compile(r"(\d+(?:\.\d+)?)\s*(?:%|pct|percent)")
 
 #: The files a run writes (INTERNALS.md "Files in DIR").
-CSV_FILES = ("histories", "records", "ground_spectra", "floor_spectra", "modes",
-             "element_peaks", "mode_shapes")
+CSV_FILES = tuple(k for k, v in FILES.items() if v.endswith(".csv"))
 
 
 def split_header(header: str) -> tuple[str, str]:
@@ -85,6 +85,23 @@ class Table:
 
     def unit(self, i: int) -> str:
         return split_header(self.header[i])[1]
+
+    def get(self, header: str) -> np.ndarray | None:
+        """The column whose header is exactly ``header`` (as the contract writes it)."""
+        try:
+            return self.data[:, self.header.index(header)]
+        except ValueError:
+            return None
+
+    def strings(self, header: str) -> list[str] | None:
+        """A text column (e.g. ``direction``) by its exact header."""
+        try:
+            j = self.header.index(header)
+        except ValueError:
+            return None
+        if self.text:
+            return [r[j] for r in self.text]
+        return [f"{v:g}" for v in self.data[:, j]]
 
     def find(self, *words: str, exclude: Iterable[str] = (), start: int = 0) -> list[int]:
         """Indices of the columns whose header holds every one of ``words``.
@@ -166,6 +183,7 @@ class OutputFolder:
     summary: dict[str, Any]
     tables: dict[str, Table]
     notes: list[str]
+    mesh: dict | None = None
 
     def table(self, name: str) -> Table | None:
         return self.tables.get(name)
@@ -203,7 +221,7 @@ def load_output(out_dir: str | Path) -> OutputFolder:
     tables: dict[str, Table] = {}
     notes: list[str] = []
     for stem in CSV_FILES:
-        p = out / f"{stem}.csv"
+        p = out / FILES[stem]
         if not p.is_file():
             notes.append(f"{stem}.csv was not in the output folder; its figures are left out.")
             continue
@@ -211,4 +229,13 @@ def load_output(out_dir: str | Path) -> OutputFolder:
             tables[stem] = _read_table(p)
         except (InputError, UnicodeDecodeError, csv.Error) as e:
             notes.append(f"{stem}.csv could not be read ({e}); its figures are left out.")
-    return OutputFolder(path=out, summary=summary, tables=tables, notes=notes)
+    mesh = None
+    mp = out / FILES["mesh"]
+    if mp.is_file():
+        try:
+            mesh = json.loads(mp.read_text(encoding="utf-8"))
+        except (UnicodeDecodeError, json.JSONDecodeError) as e:
+            notes.append(f"{FILES['mesh']} could not be read ({e}); the model figures are left out.")
+    else:
+        notes.append(f"{FILES['mesh']} was not in the output folder; the model figures are left out.")
+    return OutputFolder(path=out, summary=summary, tables=tables, notes=notes, mesh=mesh)

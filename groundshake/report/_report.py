@@ -1,9 +1,11 @@
 """The run report: one self-contained HTML file built from a run's output folder.
 
-``write_report(out_dir)`` reads ``summary.json`` and the CSV files a run wrote (the
-file contract of docs/INTERNALS.md) and writes ``out_dir/report.html``: figures are
-embedded PNG data, the style sheet is inline, there are no scripts and no network
-resources, and every piece of user text is escaped.
+``write_report(out_dir)`` reads the files a run wrote, through the output contract
+(``groundshake.results._schema``: file names, CSV headers, summary keys and their
+quantity kinds), and writes ``out_dir/report.html``. The answers come first; tables have
+plain headings and engineering units (SI or US customary); the inputs are a folded
+appendix. Figures are embedded PNG data, the style sheet is inline, there are no
+scripts and no network resources, and every piece of user text is escaped.
 """
 from __future__ import annotations
 
@@ -18,45 +20,48 @@ import numpy as np
 from .. import __version__
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
+from .._errors import InputError
 from .._progress import Progress
-from ..records import STANDARD_GRAVITY
+from ..results._schema import (COLUMNS, DIRECTIONS, FILES, HISTORY_BASE, header, history_label,
+                               iter_values, kind_of)
 from . import _figures as F
-from ._html import (CSS, esc, figure, key_values, num, section, table, toml_text,
-                    unit_of_key, value_html)
-from ._load import OutputFolder, Table, damping_of, label_words, load_output, split_header
+from ._html import CSS, esc, figure, raw, section, table, toml_text
+from ._load import OutputFolder, load_output
+from ._units import check_system, display_unit, fmt, to_display
 
-__all__ = ["write_report", "render_report", "SECTIONS", "fp_force"]
+__all__ = ["write_report", "render_report", "SECTIONS"]
 
 #: Section ids and headings, in order (ids are stable: tests and links use them).
 SECTIONS: tuple[tuple[str, str], ...] = (
-    ("inputs", "Inputs"),
+    ("summary", "Summary"),
     ("model", "Model"),
     ("modes", "Modes"),
-    ("results", "Results"),
+    ("response", "Response of the block"),
     ("anchorage", "Anchorage"),
-    ("floor-spectra", "Floor spectra"),
-    ("warnings", "Warnings"),
-    ("cautions", "Cautions"),
+    ("floor-spectra", "Floor response spectra"),
+    ("motion", "Ground motion"),
+    ("inputs", "Appendix: inputs"),
     ("provenance", "Provenance"),
 )
 
-_MAX_STRIPS = 12
-_MAX_TABLE_ROWS = 80
+_DIR_WORDS = {"x": "x", "y": "y", "z": "z (vertical)"}
 
 
 # ----------------------------------------------------------------------------- API
 def write_report(out_dir: str | Path, *, path: str | Path | None = None,
-                 progress: bool = True) -> Path:
+                 progress: bool = True, units: str | None = None) -> Path:
     """Write the HTML report of a run's output folder.
 
     Parameters
     ----------
     out_dir : path
-        Folder written by ``groundshake run`` (summary.json and the CSV files).
+        Folder written by ``groundshake run`` (summary.json, the CSV files, mesh.json).
     path : path, optional
         Where to write; default ``out_dir/report.html``. Written atomically.
     progress : bool
         Show a progress bar on stderr (only when it is a terminal).
+    units : {"si", "us"}, optional
+        Display units; default the scenario's ``[report] units``, else ``"si"``.
 
     Returns
     -------
@@ -66,47 +71,54 @@ def write_report(out_dir: str | Path, *, path: str | Path | None = None,
     Raises
     ------
     InputError
-        If ``out_dir`` has no readable summary.json.
+        If ``out_dir`` has no readable summary.json, or ``units`` is not si/us.
     """
     out = Path(out_dir)
-    text = render_report(out, progress=progress)
-    target = out / "report.html" if path is None else Path(path)
+    text = render_report(out, progress=progress, units=units)
+    target = out / FILES["report"] if path is None else Path(path)
     return atomic_write_text(target, text)
 
 
-def render_report(out_dir: str | Path, *, progress: bool = True) -> str:
+def render_report(out_dir: str | Path, *, progress: bool = True, units: str | None = None) -> str:
     """The report of ``out_dir`` as HTML text (see :func:`write_report`)."""
     folder = load_output(out_dir)
-    builder = _Builder(folder)
+    if units is None:
+        scen = folder.summary.get("scenario") or {}
+        units = ((scen.get("report") or {}).get("units") if isinstance(scen, Mapping) else None) or "si"
+    try:
+        check_system(str(units))
+    except ValueError as e:
+        raise InputError(f"report units: {e}") from None
+    b = _Builder(folder, str(units))
     steps: list[tuple[str, Callable[[], str]]] = [
-        ("inputs", builder.inputs), ("model", builder.model), ("modes", builder.modes),
-        ("results", builder.results), ("anchorage", builder.anchorage),
-        ("floor-spectra", builder.floor_spectra),
-    ]
+        ("model", b.model), ("modes", b.modes), ("response", b.response),
+        ("anchorage", b.anchorage), ("floor-spectra", b.floor_spectra), ("motion", b.motion),
+        ("inputs", b.inputs), ("provenance", b.provenance), ("summary", b.summary)]
     bodies: dict[str, str] = {}
-    with Progress("report", total=len(steps) + 1) as bar:
+    with Progress("report", total=len(steps)) as bar:
         if not progress:
             bar.enabled = False
         for sid, make in steps:
             bodies[sid] = make()
             bar.advance()
-        bodies["warnings"] = builder.warnings()
-        bodies["cautions"] = builder.cautions()
-        bodies["provenance"] = builder.provenance()
-        bar.advance()
-    return builder.page(bodies)
+    return b.page(bodies)
 
 
 # ----------------------------------------------------------------------- helpers
-def _get(d: Any, *keys: str, default: Any = None) -> Any:
+def _get(d: Any, *keys: Any, default: Any = None) -> Any:
     for k in keys:
-        if not isinstance(d, Mapping) or k not in d:
+        if isinstance(d, Mapping) and k in d:
+            d = d[k]
+        elif isinstance(d, list) and isinstance(k, int) and -len(d) <= k < len(d):
+            d = d[k]
+        else:
             return default
-        d = d[k]
     return d
 
 
-def _as_float(v: Any) -> float | None:
+def _f(v: Any) -> float | None:
+    if isinstance(v, bool):
+        return None
     try:
         f = float(v)
     except (TypeError, ValueError):
@@ -115,7 +127,6 @@ def _as_float(v: Any) -> float | None:
 
 
 def _named(d: Any) -> list[tuple[str, Any]]:
-    """``{name: obj}`` or ``[{name: ..., ...}]`` as (name, obj) pairs."""
     if isinstance(d, Mapping):
         return [(str(k), v) for k, v in d.items()]
     if isinstance(d, list):
@@ -124,53 +135,49 @@ def _named(d: Any) -> list[tuple[str, Any]]:
     return []
 
 
-def _header_cell(table_: Table, i: int) -> str:
-    label, unit = split_header(table_.header[i])
-    return f"{label} [{unit}]" if unit else label
-
-
-def fp_force(*, weight: float, sds: float, ap: float = 1.0, rp: float = 2.5,
-             ip: float = 1.0, z_over_h: float = 0.0) -> dict[str, float]:
-    """Horizontal and vertical equivalent static forces of ASCE 7-16 §13.3.1.
-
-    Fp = 0.4·ap·SDS·Wp·(1 + 2z/h)/(Rp/Ip), held between 0.3·SDS·Ip·Wp and
-    1.6·SDS·Ip·Wp; the vertical force is 0.2·SDS·Wp (§13.3.1.2).
-
-    Parameters
-    ----------
-    weight : float
-        Operating weight Wp [N].
-    sds : float
-        Design short-period spectral acceleration SDS [g].
-    ap, rp, ip : float
-        Amplification, response-modification and importance factors (–).
-    z_over_h : float
-        Height of attachment over roof height (0 at grade, 1 at the roof).
-
-    Returns
-    -------
-    dict
-        ``fp`` (the governing value), ``fp_formula``, ``fp_min``, ``fp_max``,
-        ``fv`` — all in N.
-    """
-    z = min(max(float(z_over_h), 0.0), 1.0)
-    formula = 0.4 * ap * sds * weight * (1.0 + 2.0 * z) / (rp / ip)
-    lo = 0.3 * sds * ip * weight
-    hi = 1.6 * sds * ip * weight
-    return {"fp": float(min(max(formula, lo), hi)), "fp_formula": float(formula),
-            "fp_min": float(lo), "fp_max": float(hi), "fv": float(0.2 * sds * weight)}
+def _sentence(text: str) -> str:
+    text = str(text).strip()
+    return text[:1].upper() + text[1:] if text else text
 
 
 # ------------------------------------------------------------------ the builder
 class _Builder:
-    def __init__(self, folder: OutputFolder):
+    def __init__(self, folder: OutputFolder, system: str):
         self.f = folder
         self.s = folder.summary
-        self.scenario = self.s.get("scenario") if isinstance(self.s.get("scenario"), Mapping) else {}
+        self.sys = system
+        scen = self.s.get("scenario")
+        self.scenario = scen if isinstance(scen, Mapping) else {}
         self.notes: list[str] = list(folder.notes)
-        self._grid_cache: Any = False
+        self.ref: dict[str, float] = {}
+        for path, v in iter_values(self.s):
+            k = kind_of(path)
+            fv = _f(v)
+            if k and fv is not None:
+                self.ref[k] = max(self.ref.get(k, 0.0), abs(fv))
+        self._grid: Any = False
 
-    # ------------------------------------------------------------------ generic
+    # ---------------------------------------------------------------- numbers
+    def n(self, value: Any, kind: str | None, *, digits: int = 3) -> str:
+        """A number in display units (no unit), round-off shown as 0."""
+        return fmt(value, kind, self.sys, ref=self.ref.get(kind) if kind else None,
+                   digits=digits)
+
+    def q(self, value: Any, kind: str, *, digits: int = 3) -> str:
+        """A number with its display unit."""
+        if _f(value) is None:
+            return "—"
+        u = display_unit(kind, self.sys)
+        return self.n(value, kind, digits=digits) + (("" if u == "%" else "\u202f") + u if u else "")
+
+    def h(self, label: str, kind: str | None) -> str:
+        """A column heading with its display unit."""
+        u = display_unit(kind, self.sys) if kind else ""
+        return f"{label} [{u}]" if u else label
+
+    def cell(self, value: Any, kind: str | None, *, digits: int = 3) -> Any:
+        return raw(f'<span class="n">{esc(self.n(value, kind, digits=digits))}</span>')
+
     def _fig(self, make: Callable[[], Any], caption: str, fid: str = "") -> str:
         """Draw one figure; a failure leaves a note instead of the figure."""
         try:
@@ -179,7 +186,7 @@ class _Builder:
                 return ""
             return figure(F.data_uri(fig), caption, fid=fid)
         except Exception as e:  # a figure must never sink the report
-            self.notes.append(f"The figure '{caption}' could not be drawn "
+            self.notes.append(f"The figure '{caption[:60]}' could not be drawn "
                               f"({type(e).__name__}: {e}).")
             return ""
 
@@ -187,924 +194,818 @@ class _Builder:
         t = self.s.get("title") or self.scenario.get("title")
         return str(t) if t else self.f.path.name
 
-    # ------------------------------------------------------------------ header
-    def key_figures(self) -> str:
-        items = []
-        bs = _get(self.s, "peaks", "base_shear")
-        if isinstance(bs, Mapping):
-            for d in ("x", "y"):
-                v = _as_float(bs.get(d))
-                if v is not None:
-                    items.append((f"base shear {d}", f"{num(v)} N"))
-        acc = []
-        for name, eq in _named(self.s.get("equipment")):
-            pa = _get(eq, "peak_absolute_acceleration")
-            if isinstance(pa, Mapping):
-                acc += [(_as_float(v), name, d) for d, v in pa.items() if _as_float(v) is not None]
-        if acc:
-            v, name, d = max(acc, key=lambda t: t[0])
-            items.append((f"equipment peak acc. ({name}, {d})", f"{num(v)} m/s²"))
-        worst = _as_float(_get(self.s, "worst_dc", "value"))
-        if worst is None:
-            worst = self.worst_dc()
-        if worst is not None:
-            items.append(("largest demand / entered capacity", num(worst, 3)))
-        st = self.s.get("stability")
-        if isinstance(st, Mapping):
-            for key, label in (("sliding", "least sliding FS"),
-                               ("overturning", "least overturning FS")):
-                v = _as_float(_get(st, key, "min_safety_factor"))
-                if v is not None:
-                    items.append((label, num(v, 3)))
-            q = _as_float(_get(st, "bearing", "peak_pressure"))
-            if q is not None:
-                items.append(("peak bearing pressure", f"{num(q / 1e3)} kPa"))
-        wi = _as_float(_get(self.s, "worst_interaction", "value"))
-        if wi is not None:
-            items.append(("largest bolt interaction", num(wi, 3)))
-        freq = self.first_frequency()
-        if freq is not None:
-            items.append(("first mode", f"{num(freq)} Hz"))
-        items.append(("warnings", str(len(self.warning_list()))))
-        return '<div class="keyfigs">' + "".join(
-            f"<div><span>{esc(k)}</span><b>{v}</b></div>" for k, v in items) + "</div>"
-
-    def first_frequency(self) -> float | None:
-        t = self.f.table("modes")
-        if t is not None and t.n_rows:
-            i = t.first("frequency")
-            if i is not None:
-                return _as_float(np.nanmin(t.column(i)))
-        modes = self.s.get("modes")
-        if isinstance(modes, Mapping):
-            modes = modes.get("modes", modes.get("frequency"))
-        if isinstance(modes, list) and modes:
-            if isinstance(modes[0], Mapping):
-                return _as_float(modes[0].get("frequency"))
-            return _as_float(modes[0])
-        return None
-
-    # ------------------------------------------------------------------ inputs
-    def inputs(self) -> str:
-        parts = ["<h3>Scenario as run (every default filled in)</h3>"]
-        if self.scenario:
-            parts.append(f"<pre>{esc(toml_text(self.scenario))}</pre>")
-        else:
-            parts.append('<p class="none">summary.json holds no scenario echo.</p>')
-        parts.append("<h3>Records and their measures</h3>")
-        parts.append(self.records_table())
-        parts.append(self.records_figures())
-        parts.append("<h3>Ground response spectra</h3>")
-        parts.append(self.ground_spectra())
-        return "".join(parts)
-
-    def record_list(self) -> list[dict[str, Any]]:
-        recs = self.s.get("records")
+    # ------------------------------------------------------------ exceedances
+    def exceedances(self) -> list[str]:
+        """Every comparison above 1 (or a safety factor below 1) and lost contact, in words."""
         out = []
-        for name, r in _named(recs):
-            if isinstance(r, Mapping):
-                d = dict(r)
-                d.setdefault("name", name)
-                out.append(d)
+        for name, eq in _named(self.s.get("equipment")):
+            for k, a in enumerate(_get(eq, "anchors") or [], start=1):
+                for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
+                                  ("interaction_ratio", "tension–shear interaction")):
+                    v = _f(_get(a, key))
+                    if v is not None and v > 1.0:
+                        out.append(f"Bolt {k} of {name}: {what} demand is {self.n(v, 'ratio')} "
+                                   f"times the capacity entered (above 1).")
+        st = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
+        for key, what in (("sliding", "sliding"), ("overturning", "overturning")):
+            v = _f(_get(st, key, "min_safety_factor"))
+            if v is not None and v < 1.0:
+                out.append(f"Least {what} safety factor {self.n(v, 'ratio')} is below 1.")
+        v = _f(_get(st, "bearing", "ratio_to_allowable"))
+        if v is not None and v > 1.0:
+            out.append(f"Peak bearing pressure is {self.n(v, 'ratio')} times the allowable entered.")
+        c = _get(self.s, "base", "contact")
+        if isinstance(c, Mapping) and c.get("uplift"):
+            out.append(f"The base loses contact: the linear contact pressure falls to "
+                       f"{self.q(c.get('min_pressure'), 'pressure')} at "
+                       f"{self.q(c.get('time_of_min_pressure'), 'time')}; the bonded-spring "
+                       f"model does not hold there.")
         return out
 
-    def records_table(self) -> str:
-        recs = self.record_list()
-        if not recs:
-            return '<p class="none">summary.json lists no records.</p>'
-        skip = {"name", "history", "metadata", "component", "source", "file", "units", "measures",
-                "raw_measures", "processing", "direction"}
-        cols: list[str] = []
-        rows_measures = []
-        for r in recs:
-            m = dict(r.get("measures") or {})
-            m.update({k: v for k, v in r.items() if k not in skip and _as_float(v) is not None
-                      and not isinstance(v, bool)})
-            rows_measures.append(m)
-            cols += [k for k in m if k not in cols]
-        head = ["direction", "record", "component", "file"] + [
-            f"{k} [{unit_of_key(k)}]" if unit_of_key(k) else k for k in cols]
-        rows = [[r.get("direction", ""), r.get("name"), r.get("component", ""), r.get("source", r.get("file", ""))]
-                + [m.get(k) for k in cols] for r, m in zip(recs, rows_measures)]
-        html_ = ['<div class="scroll">', table(rows, head), "</div>",
-                 "<h3>Processing history</h3>"]
-        for r in recs:
-            hist = r.get("history") or r.get("processing") or []
-            if isinstance(hist, str):
-                hist = [hist]
-            items = "".join(f"<li>{value_html(h)}</li>" for h in hist) or "<li>as read</li>"
-            html_.append(f"<p><b>{esc(r.get('name'))}</b></p><ol>{items}</ol>")
-            md = r.get("metadata")
-            if isinstance(md, Mapping) and md:
-                html_.append("<details><summary>file metadata</summary>"
-                             + key_values(md, units=False) + "</details>")
+    def warning_list(self) -> list[str]:
+        w = self.s.get("warnings") or []
+        if isinstance(w, (str, Mapping)):
+            w = [w]
+        return [str(x.get("message") or x) if isinstance(x, Mapping) else str(x) for x in w]
+
+    # ------------------------------------------------------------------ summary
+    def summary(self) -> str:
+        rows: list[list[Any]] = []
+        classes: list[str] = []
+
+        def add(label, value, kind, where="", over=False):
+            rows.append([label, self.cell(value, kind), display_unit(kind, self.sys) if kind else "",
+                         where])
+            classes.append("over" if over else "")
+
+        pk = self.s.get("peaks") or {}
+        bp = _get(self.s, "base", "peaks") or {}
+        for d, key in (("x", "Fx"), ("y", "Fy")):
+            add(f"Peak base shear, {d}", _get(pk, "base_shear", d), "force",
+                self._when(_get(bp, key, "time")))
+        add("Peak vertical base force (dynamic part)", _get(pk, "base_axial"), "force",
+            self._when(_get(bp, "Fz", "time")))
+        for d, key in (("x", "Mx"), ("y", "My")):
+            add(f"Peak overturning moment about {d}", _get(pk, "overturning_moment", d),
+                "moment", self._when(_get(bp, key, "time")))
+        rd = _get(pk, "relative_displacement") or {}
+        if isinstance(rd, Mapping) and rd:
+            d = max(rd, key=lambda k: _f(_get(rd, k, "value")) or 0.0)
+            add("Peak displacement relative to the ground", _get(rd, d, "value"), "displacement",
+                f"{d}, at {self._at(_get(rd, d, 'at'))}, {self._when(_get(rd, d, 'time'))}")
+        st = self.s.get("stresses") or {}
+        vm = _get(st, "von_mises")
+        if isinstance(vm, Mapping):
+            away = _get(vm, "away_from_features", "value")
+            if _f(away) is not None:
+                add("Peak von Mises stress (away from local features)", away, "stress",
+                    f"at {self._at(_get(vm, 'away_from_features', 'at'))}")
+            add("Peak von Mises stress (anywhere)", vm.get("value"), "stress",
+                f"at {self._at(vm.get('at'))}" + (f", {vm['feature']}" if vm.get("feature") else ""))
+        elif _f(pk.get("von_mises")) is not None:
+            add("Peak von Mises stress", pk.get("von_mises"), "stress")
+        pt = _get(st, "principal_tension")
+        if isinstance(pt, Mapping):
+            add("Peak principal tension", pt.get("value"), "stress", f"at {self._at(pt.get('at'))}")
+        c = _get(self.s, "base", "contact")
+        if isinstance(c, Mapping):
+            add("Peak contact pressure under the base", c.get("peak_pressure"), "pressure",
+                self._when(c.get("time_of_peak_pressure")))
+            add("Least contact pressure (negative: uplift)", c.get("min_pressure"), "pressure",
+                self._when(c.get("time_of_min_pressure")), over=bool(c.get("uplift")))
+        stab = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
+        for key, label in (("sliding", "Least sliding safety factor"),
+                           ("overturning", "Least overturning safety factor")):
+            v = _f(_get(stab, key, "min_safety_factor"))
+            if v is not None:
+                add(label, v, "ratio", self._when(_get(stab, key, "time")), over=v < 1.0)
+        q = _f(_get(stab, "bearing", "peak_pressure"))
+        if q is not None:
+            r = _f(_get(stab, "bearing", "ratio_to_allowable"))
+            add("Peak bearing pressure (no-tension base)", q, "pressure",
+                "" if r is None else f"{self.n(r, 'ratio')} × allowable entered",
+                over=r is not None and r > 1.0)
+        for name, eq in _named(self.s.get("equipment")):
+            pa = _get(eq, "peak_absolute_acceleration") or {}
+            if isinstance(pa, Mapping) and pa:
+                d = max(pa, key=lambda k: _f(pa[k]) or 0.0)
+                add(f"Peak acceleration of {name} (centre of mass)", pa[d], "acceleration", d)
+        w = self.s.get("worst_dc")
+        if isinstance(w, Mapping) and _f(w.get("value")) is not None:
+            v = float(w["value"])
+            add("Largest bolt demand / entered capacity", v, "ratio",
+                f"{w.get('equipment')}, bolt {w.get('bolt')}", over=v > 1.0)
+        wi = self.s.get("worst_interaction")
+        if isinstance(wi, Mapping) and _f(wi.get("value")) is not None:
+            v = float(wi["value"])
+            add("Largest bolt tension–shear interaction", v, "ratio",
+                f"{wi.get('equipment')}, bolt {wi.get('bolt')}", over=v > 1.0)
+        for md in (_get(self.s, "modes", "modes") or [])[:3]:
+            if isinstance(md, Mapping):
+                add(f"Mode {md.get('mode')} frequency", md.get("frequency"), "frequency",
+                    self._direction_words(md.get("dominant_direction")))
+        html_ = [table(rows, ["quantity", "value", "unit", "where, when"], row_classes=classes,
+                       cls="grid answers")]
+        ex = self.exceedances()
+        ws = self.warning_list()
+        if ex:
+            html_.append('<h3>Exceedances</h3><ul class="exceed">'
+                         + "".join(f"<li>{esc(x)}</li>" for x in ex) + "</ul>")
+        else:
+            html_.append('<p class="ok">No entered capacity or safety factor is exceeded.</p>')
+        if ws:
+            html_.append(f'<h3>Warnings of this run ({len(ws)})</h3><ul class="warn">'
+                         + "".join(f"<li>{esc(_sentence(x))}</li>" for x in ws) + "</ul>")
+        else:
+            html_.append('<p class="none">No automatic warnings for this run.</p>')
+        html_.append('<h3>Cautions</h3><ol class="cautions">'
+                     + "".join(f"<li>{esc(c)}</li>" for c in self.caution_list()) + "</ol>")
         return "".join(html_)
 
-    def records_figures(self) -> str:
-        t = self.f.table("records")
-        if t is None or t.n_rows == 0:
-            return '<p class="none">records.csv is missing: no before/after plots.</p>'
-        time_cols = [i for i in range(len(t.header)) if "time" in label_words(t.header[i])]
-        series: dict[str, dict[tuple[str, str], int]] = {}
-        for i in range(len(t.header)):
-            if i in time_cols or i == 0:
-                continue
-            w = label_words(t.header[i])
-            q = ("acc" if any(x.startswith("acc") for x in w) else
-                 "vel" if any(x.startswith("vel") for x in w) else
-                 "disp" if any(x.startswith("disp") for x in w) else None)
-            state = ("raw" if any(x in ("raw", "uncorrected", "before", "read") for x in w) else
-                     "corrected" if any(x in ("corrected", "processed", "after") for x in w)
-                     else None)
-            if q is None or state is None:
-                continue
-            rest = [x for x in w if not (x.startswith(("acc", "vel", "disp")) or x in
-                                         ("raw", "uncorrected", "before", "read", "as",
-                                          "corrected", "processed", "after", "record"))]
-            comp = " ".join(rest) or "record"
-            series.setdefault(comp, {})[(q, state)] = i
+    def caution_list(self) -> list[str]:
+        items = list(CAUTIONS)
+        extra = self.s.get("cautions") or []
+        for c in extra if isinstance(extra, list) else [extra]:
+            if str(c) not in items:
+                items.append(str(c))
+        return items
 
-        def time_for(i: int, comp: str, state: str) -> np.ndarray:
-            best = 0
-            for j in time_cols:
-                w = label_words(t.header[j])
-                if state in w and (comp in " ".join(w) or best == 0):
-                    best = j
-            return t.column(best)
+    def _when(self, t: Any) -> str:
+        return "" if _f(t) is None else f"t = {self.q(t, 'time')}"
 
-        names = {"acc": ("acceleration", "m/s²"), "vel": ("velocity", "m/s"),
-                 "disp": ("displacement", "m")}
-        out = []
-        for comp, cols in series.items():
-            rows = []
-            for q in ("acc", "vel", "disp"):
-                if (q, "raw") not in cols and (q, "corrected") not in cols:
-                    continue
-                pair = []
-                for state in ("raw", "corrected"):
-                    i = cols.get((q, state))
-                    if i is None:
-                        pair.append(None)
-                        continue
-                    tt = time_for(i, comp, state)
-                    if state == "corrected":
-                        tt = tt - self.pad_before(comp, cols, time_for)
-                    pair.append((tt, t.column(i)))
-                unit = t.unit(cols.get((q, "corrected"), cols.get((q, "raw")))) or names[q][1]
-                rows.append((names[q][0], unit, pair[0], pair[1]))
-            if rows:
-                out.append(self._fig(lambda rows=rows, comp=comp: F.record_figure(
-                    rows, title=f"component {comp}"),
-                    f"Component {comp}: acceleration, velocity and displacement as read (grey) "
-                    f"and after correction (colour); the corrected record's leading pad is "
-                    f"drawn at negative time, so both share the time of the original record."))
-        return "".join(out) or '<p class="none">records.csv has no raw/corrected columns.</p>'
+    def _at(self, p: Any) -> str:
+        try:
+            xyz = [float(v) for v in p]
+        except (TypeError, ValueError):
+            return "—"
+        return "(" + ", ".join(self.n(v, "length") for v in xyz) + f") {display_unit('length', self.sys)}"
 
-    def pad_before(self, comp: str, cols: Mapping[tuple[str, str], int], time_for) -> float:
-        """Length [s] of the zero pad ahead of the corrected record of ``comp``.
-
-        Taken from summary.json (``records[i].pad_before_s`` or its metadata) when
-        given; otherwise, when both time columns start together and the corrected
-        series is longer, half the difference in length (processing pads both ends
-        equally, Boore 2005); else 0.
-        """
-        for r in self.record_list():
-            if str(r.get("direction", r.get("component", ""))).lower() != comp.lower():
-                continue
-            for src in (r, r.get("metadata") or {}):
-                v = _as_float(src.get("pad_before_s")) if isinstance(src, Mapping) else None
-                if v is not None:
-                    return v
-        t = self.f.table("records")
-        i_raw = next((cols[k] for k in cols if k[1] == "raw"), None)
-        i_cor = next((cols[k] for k in cols if k[1] == "corrected"), None)
-        if t is None or i_raw is None or i_cor is None:
-            return 0.0
-        spans = []
-        for i, state in ((i_raw, "raw"), (i_cor, "corrected")):
-            tt = time_for(i, comp, state)
-            ok = np.isfinite(tt) & np.isfinite(t.column(i))
-            if not ok.any():
-                return 0.0
-            spans.append((float(tt[ok][0]), float(tt[ok][-1])))
-        (r0, r1), (c0, c1) = spans
-        step = (r1 - r0) / max(1, t.n_rows - 1)
-        if abs(r0 - c0) <= step and (c1 - c0) > (r1 - r0) * 1.001:
-            return 0.5 * ((c1 - c0) - (r1 - r0))
-        return 0.0
-
-    def ground_spectra(self) -> str:
-        t = self.f.table("ground_spectra")
-        if t is None or t.n_rows == 0:
-            return '<p class="none">ground_spectra.csv is missing.</p>'
-        per = t.column(0)
-        target = [i for i in t.find("target")]
-        panels: dict[str, list] = {}
-        for i in range(1, len(t.header)):
-            if i in target:
-                continue
-            w = label_words(re.sub(r"\d+(?:\.\d+)?\s*%", " ", t.header[i]))
-            comp = " ".join(x for x in w if x not in ("psa", "sa", "ground", "spectrum",
-                                                      "damping", "pseudo", "acceleration",
-                                                      "spectral", "response", "rotd50",
-                                                      "rotd100")) or t.label(i)
-            for r in ("rotd50", "rotd100"):
-                if r in w:
-                    comp = f"{comp} {r.replace('rotd', 'RotD')}".strip()
-            d = damping_of(t.header[i])
-            key = f"{num(d)} % damping" if d is not None else "ground"
-            panels.setdefault(key, []).append((comp, per, t.column(i), "broadened"))
-        for key, curves in panels.items():
-            for i in target:
-                curves.append((t.label(i), per, t.column(i), "target"))
-        unit = t.unit(1) if len(t.header) > 1 else "m/s2"
-        html_ = self._fig(lambda: F.spectra_figure(list(panels.items()),
-                                                   ylabel=f"PSA [{unit or 'm/s²'}]"),
-                          "Ground response spectra (pseudo-spectral acceleration) of the corrected "
-                          "components" + (", with the target" if target else "") + ".",
-                          fid="fig-ground-spectra")
-        return html_
+    @staticmethod
+    def _direction_words(d: Any) -> str:
+        if not d:
+            return ""
+        d = str(d)
+        return {"x": "sways in x", "y": "sways in y", "z": "vertical"}.get(
+            d, "torsion" if d == "rotation about z" else d)
 
     # ------------------------------------------------------------------- model
     def grid(self):
-        if self._grid_cache is not False:
-            return self._grid_cache
-        self._grid_cache = None
-        e = self.f.table("element_peaks")
-        if e is None or e.n_rows == 0:
-            return None
-        xyz = self._xyz(e)
-        if xyz is None:
-            return None
-        nodes = None
-        m = self.f.table("mode_shapes")
-        if m is not None and m.n_rows:
-            nodes = self._xyz(m)
-        grid = F.voxel_grid(xyz, nodes)
-        if grid is None and nodes is not None:
-            grid = F.voxel_grid(xyz, None)
-        self._grid_cache = grid
-        return grid
-
-    @staticmethod
-    def _xyz_cols(t: Table) -> list[int] | None:
-        idx = []
-        for c in ("x", "y", "z"):
-            exact = [i for i in range(len(t.header)) if label_words(t.header[i]) in
-                     ([c], [c, "centre"], ["centre", c], [c, "center"], ["center", c],
-                      ["node", c], [c, "node"])]
-            if not exact:
-                return None
-            idx.append(exact[0])
-        return idx
-
-    def _xyz(self, t: Table) -> np.ndarray | None:
-        idx = self._xyz_cols(t)
-        if idx is None:
-            return None
-        xyz = t.data[:, idx]
-        xyz = xyz[np.all(np.isfinite(xyz), axis=1)]
-        return xyz if xyz.size else None
-
-    def part_boxes(self) -> list[tuple[str, np.ndarray, np.ndarray, str]]:
-        out = []
-        for name, p in _named(self.scenario.get("parts")):
-            o, sz = p.get("origin"), p.get("size")
-            try:
-                lo = np.asarray(o, float).reshape(3)
-                hi = lo + np.asarray(sz, float).reshape(3)
-            except (TypeError, ValueError):
-                continue
-            out.append((str(p.get("name", name)), lo, hi, str(p.get("material", ""))))
-        return out
-
-    def top_at(self, x: float, y: float) -> float:
-        z = [hi[2] for _, lo, hi, _ in self.part_boxes()
-             if lo[0] - 1e-9 <= x <= hi[0] + 1e-9 and lo[1] - 1e-9 <= y <= hi[1] + 1e-9]
-        if z:
-            return float(max(z))
-        g = self.grid()
-        return float(g.zs[-1]) if g is not None else 0.0
-
-    def equipment_geometry(self):
-        boxes, anchors = [], []
-        for name, eq in _named(self.scenario.get("equipment")):
-            try:
-                mx, my = (float(v) for v in eq.get("mount")[:2])
-            except (TypeError, ValueError, IndexError):
-                continue
-            bx, by = (float(v) for v in (eq.get("footprint") or [0.5, 0.5])[:2])
-            h = 2.0 * float(eq.get("cg_height") or 0.5)
-            z0 = self.top_at(mx, my)
-            boxes.append((str(eq.get("name", name)), np.array([mx - bx / 2, my - by / 2, z0]),
-                          np.array([mx + bx / 2, my + by / 2, z0 + h])))
-            for a in eq.get("anchors") or []:
-                try:
-                    anchors.append([mx + float(a[0]), my + float(a[1]), z0])
-                except (TypeError, ValueError, IndexError):
-                    pass
-        return boxes, np.array(anchors) if anchors else None
-
-    def sensor_points(self):
-        pts = []
-        for name, s in _named(self.scenario.get("sensors")):
-            try:
-                pts.append((str(s.get("name", name)), np.asarray(s.get("at"), float).reshape(3)))
-            except (TypeError, ValueError, AttributeError):
-                pass
-        return pts
+        if self._grid is not False:
+            return self._grid
+        self._grid = None
+        m = self.f.mesh
+        if isinstance(m, Mapping) and isinstance(m.get("lines"), Mapping) and m.get("cells"):
+            xs, ys, zs = (np.asarray(m["lines"][a], float) for a in "xyz")
+            idx = np.asarray(m["cells"], int).reshape(-1, 3)
+            filled = np.zeros((xs.size - 1, ys.size - 1, zs.size - 1), bool)
+            filled[tuple(idx.T)] = True
+            self._grid = F.VoxelGrid(xs=xs, ys=ys, zs=zs, index=idx, filled=filled)
+        return self._grid
 
     def model(self) -> str:
         grid = self.grid()
-        parts = self.part_boxes()
-        boxes, anchors = self.equipment_geometry()
-        cell_part = None
-        if grid is not None and parts:
-            cell_part = np.full(grid.filled.shape, -1)
-            cx = 0.5 * (grid.xs[1:] + grid.xs[:-1])
-            cy = 0.5 * (grid.ys[1:] + grid.ys[:-1])
-            cz = 0.5 * (grid.zs[1:] + grid.zs[:-1])
-            X, Y, Z = np.meshgrid(cx, cy, cz, indexing="ij")
-            for k, (_, lo, hi, _) in enumerate(parts):
-                inside = ((X >= lo[0]) & (X <= hi[0]) & (Y >= lo[1]) & (Y <= hi[1])
-                          & (Z >= lo[2]) & (Z <= hi[2]) & grid.filled & (cell_part < 0))
-                cell_part[inside] = k
+        m = self.f.mesh if isinstance(self.f.mesh, Mapping) else {}
+        md = self.s.get("model") if isinstance(self.s.get("model"), Mapping) else {}
         html_ = []
-        if grid is not None or parts:
-            n_el = int(grid.filled.sum()) if grid is not None else 0
-            cap = ("The block as modelled: parts (tinted), " +
-                   (f"the mesh of {n_el} hexahedral elements, " if n_el else "") +
-                   "the equipment envelope (footprint × twice the height of its centre of mass), "
-                   "anchor bolts (triangles) and sensors (stars). Lengths in m.")
+        if grid is not None:
+            parts = [str(p) for p in m.get("parts", [])]
+            cell_part = np.full(grid.filled.shape, -1)
+            cp = np.asarray(m.get("cell_part", np.zeros(grid.index.shape[0])), int)
+            cell_part[tuple(grid.index.T)] = cp
+            boxes = [(e["name"], np.asarray(e["footprint_lo"], float),
+                      np.asarray(e["footprint_hi"], float)
+                      + [0, 0, 2.0 * (float(e["cg"][2]) - float(e["footprint_lo"][2]))])
+                     for e in m.get("equipment", [])]
+            anchors = [a for e in m.get("equipment", []) for a in e.get("anchors", [])]
+            sensors = [(s["name"], np.asarray(s["at"], float)) for s in m.get("sensors", [])]
             html_.append(self._fig(lambda: F.model_figure(
-                grid, cell_part=cell_part, part_names=[p[0] for p in parts],
-                part_boxes=[(p[1], p[2]) for p in parts], equipment=boxes, anchors=anchors,
-                sensors=self.sensor_points()), cap, fid="fig-model"))
-        else:
-            html_.append('<p class="none">No geometry to draw (no parts in the scenario echo '
-                         'and no element_peaks.csv).</p>')
-        mats = _named(self.scenario.get("materials"))
-        if mats:
-            html_.append("<h3>Materials</h3>")
-            html_.append(table([[n, m.get("youngs_modulus"), m.get("poisson_ratio"),
-                                 m.get("density")] for n, m in mats if isinstance(m, Mapping)],
-                               ["material", "Young's modulus [Pa]", "Poisson's ratio [–]",
-                                "density [kg/m³]"]))
-        if parts:
-            html_.append("<h3>Parts</h3>")
-            html_.append(table([[n, mat, list(np.round(lo, 6)), list(np.round(hi - lo, 6))]
-                                for n, lo, hi, mat in parts],
-                               ["part", "material", "origin x, y, z [m]", "size lx, ly, lz [m]"]))
-        model = self.s.get("model")
-        support = self.scenario.get("support")
-        html_.append("<h3>Support</h3>")
-        if isinstance(support, Mapping):
-            html_.append(key_values(support))
-        springs = {k: v for k, v in (model or {}).items()
-                   if isinstance(model, Mapping) and re.search(r"spring|support|soil|imped|dashpot", k)}
+                grid, cell_part=cell_part, part_names=parts, equipment=boxes,
+                anchors=np.asarray(anchors, float) if anchors else None, sensors=sensors),
+                f"The block as modelled: {int(grid.filled.sum())} hexahedral elements, the "
+                "equipment envelope (footprint × twice the height of its centre of mass), anchor "
+                "bolts (triangles) and sensors (stars). Lengths in m.", fid="fig-model"))
+        rows = []
+        mats = _named(md.get("materials"))
+        for name, mat in mats:
+            rows.append([f"Material {name}: Young's modulus, Poisson's ratio, density",
+                         f"{self.q(_get(mat, 'youngs_modulus'), 'modulus')}, "
+                         f"{self.n(_get(mat, 'poisson_ratio'), 'ratio')}, "
+                         f"{self.q(_get(mat, 'density'), 'density')}"])
+        rows.append(["Elements, nodes, degrees of freedom",
+                     f"{md.get('n_elements', '—')} {md.get('element', '')}, {md.get('n_nodes', '—')}, "
+                     f"{md.get('n_dof', '—')}"])
+        if _f(md.get("weight")) is not None:
+            rows.append(["Weight of block and equipment", self.q(md.get("weight"), "weight")])
+        sup = md.get("support") if isinstance(md.get("support"), Mapping) else {}
+        base = md.get("base") if isinstance(md.get("base"), Mapping) else {}
+        if base:
+            rows.append(["Base footprint", f"{self.n(base.get('lx'), 'length')} × "
+                         f"{self.n(base.get('ly'), 'length')} {display_unit('length', self.sys)}"])
+        rows.append(["Support", str(sup.get("kind", "—"))])
+        if _f(sup.get("shear_modulus")) is not None:
+            rows.append(["Soil shear modulus", self.q(sup["shear_modulus"], "modulus")])
+        html_.append(table(rows, ["item", "value"], cls="grid kv2"))
+        springs = sup.get("springs") if isinstance(sup.get("springs"), Mapping) else {}
+        dash = sup.get("dashpots") if isinstance(sup.get("dashpots"), Mapping) else {}
         if springs:
-            html_.append("<p class=\"note\">Soil springs and dashpots with the formula each "
-                         "came from, as the model built them:</p>")
-            html_.append(key_values(springs))
-        if isinstance(model, Mapping):
-            rest = {k: v for k, v in model.items() if k not in springs}
-            if rest:
-                html_.append("<h3>Mesh and model</h3>")
-                html_.append(key_values(rest))
-        eqs = _named(self.scenario.get("equipment"))
+            srows = []
+            for d in ("x", "y", "z"):
+                srows.append([f"translation {d}", self.cell(springs.get(f"k_{d}"), "stiffness"),
+                              self.cell(dash.get(f"c_{d}"), "dashpot"),
+                              f"rotation about {d}", self.cell(springs.get(f"k_r{d}"), "rotational_stiffness"),
+                              self.cell(dash.get(f"c_r{d}"), "rotational_dashpot")])
+            html_.append("<h3>Soil springs and dashpots</h3>" + table(
+                srows, ["motion", self.h("stiffness", "stiffness"), self.h("dashpot", "dashpot"),
+                        "motion", self.h("stiffness", "rotational_stiffness"),
+                        self.h("dashpot", "rotational_dashpot")]))
+            formulas = sup.get("formulas") or []
+            if formulas:
+                html_.append('<p class="note">' + esc(" ".join(str(x) for x in formulas)) + "</p>")
+        eqs = [(n, e) for n, e in _named(self.s.get("equipment")) if isinstance(e, Mapping)]
         if eqs:
-            html_.append("<h3>Equipment</h3>")
-            keys: list[str] = []
-            for _, e in eqs:
-                keys += [k for k in e if k not in keys and k != "anchors"]
-            rows = [[e.get(k) for k in keys] + [len(e.get("anchors") or [])] for _, e in eqs]
-            html_.append('<div class="scroll">' + table(
-                rows, [f"{k} [{unit_of_key(k)}]" if unit_of_key(k) and k not in ("fp", "capacity")
-                       else k for k in keys] + ["bolts"]) + "</div>")
-        sensors = self.sensor_points()
-        if sensors:
-            html_.append("<h3>Sensors</h3>")
-            html_.append(table([[n, list(p)] for n, p in sensors], ["sensor", "at x, y, z [m]"]))
+            erows = []
+            for name, e in eqs:
+                fh = e.get("frequency_hz")
+                erows.append([name, self.cell(e.get("mass"), "mass"),
+                              self._at(e.get("cg")),
+                              "rigid" if not fh else ", ".join(self.n(v, "frequency") for v in fh),
+                              self.cell(e.get("damping"), "damping"), len(e.get("anchors") or [])])
+            html_.append("<h3>Equipment</h3>" + table(
+                erows, ["equipment", self.h("mass", "mass"), "centre of mass",
+                        self.h("support frequency x, y, z", "frequency"),
+                        self.h("damping", "damping"), "bolts"]))
         return "".join(html_)
 
     # ------------------------------------------------------------------- modes
     def modes(self) -> str:
-        html_ = []
         t = self.f.table("modes")
-        if t is not None and t.n_rows:
-            rows = [[None if not np.isfinite(v) else (int(v) if j == 0 and float(v).is_integer()
-                                                      else float(v))
-                     for j, v in enumerate(r)] for r in t.data[:_MAX_TABLE_ROWS]]
-            html_.append('<div class="scroll">' + table(
-                rows, [_header_cell(t, i) for i in range(len(t.header))]) + "</div>")
-            if t.n_rows > _MAX_TABLE_ROWS:
-                html_.append(f'<p class="note">First {_MAX_TABLE_ROWS} of {t.n_rows} modes; '
-                             "all are in modes.csv.</p>")
-        else:
-            modes = self.s.get("modes")
-            if modes:
-                html_.append(value_html(modes))
-            else:
-                html_.append('<p class="none">No modes in this output.</p>')
-        info = self.s.get("modes")
-        if isinstance(info, Mapping):
-            extra = {k: v for k, v in info.items() if not isinstance(v, list)}
-            if extra:
-                html_.append(key_values(extra))
+        if t is None or t.n_rows == 0:
+            return '<p class="none">No modes in this output.</p>'
+        cols = {c.label: c for c in COLUMNS["modes"]}
+
+        def col(label):
+            return t.get(cols[label].header)
+
+        dom = t.strings(cols["dominant direction"].header) or [""] * t.n_rows
+        rows = []
+        for i in range(min(t.n_rows, 30)):
+            rows.append([int(col("mode")[i]), self.cell(col("frequency")[i], "frequency"),
+                         self.cell(col("period")[i], "time"),
+                         self.cell(col("damping")[i], "damping", digits=2),
+                         *(self.cell(100 * col(f"effective mass ratio {d}")[i], "percent", digits=2)
+                           for d in DIRECTIONS),
+                         *(self.cell(100 * col(f"rotational participation {d}")[i], "percent",
+                                     digits=2) for d in DIRECTIONS),
+                         self._direction_words(dom[i])])
+        self.ref["percent"] = 100.0
+        html_ = ['<p class="note">Effective mass in each direction and rotational participation '
+                 "(the same ratio for a rigid rotation about axes through the centre of the base), "
+                 "in percent of the total; values below round-off show as 0.</p>",
+                 table(rows, ["mode", self.h("frequency", "frequency"), self.h("period", "time"),
+                              self.h("damping", "damping"),
+                              *(f"mass {d} [%]" for d in DIRECTIONS),
+                              *(f"rotation about {d} [%]" for d in DIRECTIONS), "character"])]
+        if t.n_rows > 30:
+            html_.append(f'<p class="note">First 30 of {t.n_rows} modes; all are in modes.csv.</p>')
+        cap = _get(self.s, "analysis", "retained_mass_ratio")
+        if isinstance(cap, Mapping):
+            html_.append('<p class="note">Mass held by the modes kept: ' + ", ".join(
+                f"{d} {self.n(100 * (_f(cap.get(d)) or 0), 'percent', digits=4)} %"
+                for d in DIRECTIONS) + "; the rest is carried by the missing-mass term.</p>")
         html_.append(self.mode_shapes())
         return "".join(html_)
 
     def mode_shapes(self) -> str:
         m = self.f.table("mode_shapes")
         grid = self.grid()
-        if m is None or grid is None or m.n_rows == 0:
-            return '<p class="none">mode_shapes.csv is missing: no mode shapes drawn.</p>'
-        nodes = self._xyz(m)
-        if nodes is None or nodes.shape[0] != m.n_rows:
-            return '<p class="none">mode_shapes.csv has no x, y, z columns.</p>'
-        index = grid.node_index(nodes)
-        if index is None:
-            return '<p class="none">mode_shapes.csv nodes are not on the mesh grid.</p>'
-        cols: dict[int, dict[str, int]] = {}
-        for i in range(len(m.header)):
-            mm = re.search(r"mode\D*(\d+)\D*?\bu?([xyz])\b", " ".join(label_words(m.header[i])))
-            if mm:
-                cols.setdefault(int(mm.group(1)), {})[mm.group(2)] = i
-        freqs = {}
-        t = self.f.table("modes")
-        if t is not None:
-            fi = t.first("frequency")
-            if fi is not None:
-                for r in range(t.n_rows):
-                    n = int(t.data[r, 0]) if np.isfinite(t.data[r, 0]) else r + 1
-                    freqs[n] = t.data[r, fi]
+        mesh = self.f.mesh if isinstance(self.f.mesh, Mapping) else {}
+        if m is None or grid is None or not mesh.get("node_cells"):
+            return ""
+        index = np.asarray(mesh["node_cells"], int).reshape(-1, 3)
+        if index.shape[0] != m.n_rows:
+            return '<p class="none">mode_shapes.csv and mesh.json do not hold the same nodes.</p>'
+        modes_t = self.f.table("modes")
+        freq = modes_t.get(header("frequency", "frequency")) if modes_t is not None else None
         shapes = []
-        for n in sorted(cols)[:4]:
-            c = cols[n]
-            u = np.column_stack([m.column(c[d]) if d in c else np.zeros(m.n_rows)
-                                 for d in "xyz"])
-            f = freqs.get(n)
-            shapes.append((f"mode {n}" + (f" · {f:.4g} Hz" if f is not None and np.isfinite(f)
-                                          else ""), np.nan_to_num(u)))
+        for k in range(1, 5):
+            cs = [m.get(header(f"mode {k} u{d}", "length")) for d in DIRECTIONS]
+            if any(c is None for c in cs):
+                break
+            f = freq[k - 1] if freq is not None and k - 1 < freq.size else None
+            shapes.append((f"mode {k}" + (f" · {self.q(f, 'frequency')}" if f is not None else ""),
+                           np.nan_to_num(np.column_stack(cs))))
         if not shapes:
-            return '<p class="none">mode_shapes.csv has no mode columns.</p>'
+            return ""
         return self._fig(lambda: F.mode_shapes_figure(grid, index, shapes),
-                         "The first mode shapes, exaggerated (largest displacement drawn as 12 % "
-                         "of the block's size); shade runs from the smallest |u| (light) to the "
-                         "largest (dark); the dashed box is the undeformed block.",
+                         "The first mode shapes, exaggerated (largest displacement drawn as 12 % of "
+                         "the block's size); shade runs from the smallest displacement (light) to "
+                         "the largest (dark); the dashed box is the undeformed block.",
                          fid="fig-mode-shapes")
 
-    # ----------------------------------------------------------------- results
-    def stability(self) -> str:
-        """Compact table: sliding, overturning, bearing and bolt interaction per soil case."""
-        st = self.s.get("stability")
-        if not isinstance(st, Mapping) or not st:
-            return ""
-
-        def row(name: str, g, f1, stab: Any, wi: Any) -> list:
-            stab = stab if isinstance(stab, Mapping) else {}
-            sl, ot, br = (stab.get(k) or {} for k in ("sliding", "overturning", "bearing"))
-            q = _as_float(br.get("peak_pressure"))
-            return [name, None if g is None else g / 1e6, f1,
-                    _as_float(sl.get("min_safety_factor")),
-                    _as_float(ot.get("min_safety_factor")), ot.get("edge") or "—",
-                    None if q is None else q / 1e3, _as_float(br.get("ratio_to_allowable")),
-                    _as_float(_get(wi, "value"))]
-
-        rows = []
-        for c in self.s.get("soil_cases") or []:
-            if isinstance(c, Mapping):
-                modes = c.get("modes") or []
-                f1 = _as_float(modes[0].get("frequency")) if modes and isinstance(
-                    modes[0], Mapping) else None
-                rows.append(row(str(c.get("name")), _as_float(c.get("shear_modulus")), f1,
-                                c.get("stability"), c.get("worst_interaction")))
-        label = "envelope (governs)" if rows else "this run"
-        rows.append(row(label, None, None if rows else self.first_frequency(), st,
-                        self.s.get("worst_interaction")))
-        sl = st.get("sliding") or {}
-        note = ("Rigid-block statics from the base resultants (weights of block and equipment "
-                "with the vertical motion): sliding FS = (μN + P)/|V|, overturning FS = "
-                "stabilising/overturning moment about each base edge, bearing = peak edge "
-                "pressure (linear; the no-tension rigid-base value where contact is lost), bolt "
-                "interaction against the entered capacities. Screening comparisons with "
-                "user-entered values, not a code check.")
-        if sl.get("min_safety_factor") is None and sl.get("note"):
-            note += " " + str(sl["note"]) + "."
-        cases = [c for c in self.s.get("soil_cases") or [] if isinstance(c, Mapping)]
-        if cases and _as_float(cases[0].get("modulus_ratio")) not in (None, 1.0):
-            note += (f" G is the strain-compatible modulus, G/G0 = "
-                     f"{num(_as_float(cases[0]['modulus_ratio']), 3)} "
-                     f"({cases[0].get('modulus_source', '')}).")
-        if len(cases) > 1:
-            note += " " + str(self.s.get("soil_case_practice", ""))
-        return ('<div class="stability"><h3>Foundation stability</h3>'
-                + f'<p class="note">{esc(note)}</p>'
-                + table(rows, ["soil case", "G [MPa]", "first mode [Hz]", "sliding FS min",
-                               "overturning FS min", "edge", "peak bearing [kPa]",
-                               "bearing / allowable", "bolt interaction max"]) + "</div>")
-
-    def results(self) -> str:
-        html_ = ["<h3>Governing peaks</h3>"]
-        peaks = self.s.get("peaks")
-        html_.append(key_values(peaks) if isinstance(peaks, Mapping) and peaks
-                     else '<p class="none">No peaks in summary.json.</p>')
-        for group, label in (("sensors", "sensor"), ("equipment", "equipment")):
+    # ---------------------------------------------------------------- response
+    def response(self) -> str:
+        html_ = []
+        bp = _get(self.s, "base", "peaks") or {}
+        if isinstance(bp, Mapping) and bp:
             rows = []
-            for name, obj in _named(self.s.get(group)):
-                if not isinstance(obj, Mapping):
-                    continue
-                for q, v in obj.items():
-                    if isinstance(v, Mapping) and any(d in v for d in ("x", "y", "z")):
-                        u = unit_of_key(q)
-                        rows.append([name, f"{q} [{u}]" if u else q,
-                                     *(_as_float(v.get(d)) for d in ("x", "y", "z"))])
-                    elif _as_float(v) is not None and not isinstance(v, bool):
-                        u = unit_of_key(q)
-                        rows.append([name, f"{q} [{u}]" if u else q, _as_float(v), None, None])
-            if rows:
-                html_.append(f"<h3>Peaks at each {label}</h3>")
-                html_.append(table(rows, [label, "quantity", "x", "y", "z"]))
-        stresses = self.s.get("stresses")
-        html_.append("<h3>Stresses</h3>")
-        if isinstance(stresses, Mapping) and stresses:
-            html_.append(key_values(stresses))
-        html_.append(self.stress_figure())
-        base = self.s.get("base")
-        html_.append("<h3>Base reactions</h3>")
-        if isinstance(base, Mapping) and base:
-            html_.append(key_values(base))
+            for key, what, kind in (("Fx", "shear x", "force"), ("Fy", "shear y", "force"),
+                                    ("Fz", "vertical force", "force"),
+                                    ("Mx", "overturning moment about x", "moment"),
+                                    ("My", "overturning moment about y", "moment"),
+                                    ("Mz", "torsion about z", "moment")):
+                p = bp.get(key)
+                if isinstance(p, Mapping):
+                    rows.append([what, self.cell(p.get("value"), kind),
+                                 display_unit(kind, self.sys), self.cell(p.get("time"), "time")])
+            html_.append("<h3>Base resultants</h3>"
+                         '<p class="note">Peaks of the forces the block exerts on its support, '
+                         "about the centre of the base (dynamic part; the weight is not "
+                         "included).</p>"
+                         + table(rows, ["resultant", "peak", "unit", self.h("time", "time")]))
+        html_.append(self.stress_table())
+        html_.append(self.contact_table())
+        html_.append(self.points_table())
         html_.append(self.history_figures())
+        return "".join(html_)
+
+    def stress_table(self) -> str:
+        st = self.s.get("stresses")
+        if not isinstance(st, Mapping):
+            return ""
+        rows = []
+        for key, what in (("von_mises", "von Mises"), ("principal_tension", "principal tension"),
+                          ("principal_compression", "principal compression (negative)")):
+            e = st.get(key)
+            if not isinstance(e, Mapping):
+                continue
+            away = e.get("away_from_features") if isinstance(e.get("away_from_features"), Mapping) else {}
+            rows.append([what, self.cell(e.get("value"), "stress"), self._at(e.get("at")),
+                         str(e.get("feature") or ""), self.cell(away.get("value"), "stress"),
+                         self._at(away.get("at")) if away else "—"])
+        if not rows:
+            return ""
+        html_ = ["<h3>Stresses</h3>", table(rows, [
+            "stress", self.h("peak", "stress"), "at", "local feature there",
+            self.h("peak away from features", "stress"), "at"])]
+        if st.get("points"):
+            html_.append(f'<p class="note">{esc(_sentence(st["points"]))}</p>')
+        html_.append(self.stress_figure())
         return "".join(html_)
 
     def stress_figure(self) -> str:
         e = self.f.table("element_peaks")
         grid = self.grid()
         if e is None or grid is None:
-            return '<p class="none">element_peaks.csv is missing or not on a box grid: ' \
-                   'no stress figure.</p>'
-        i = e.first("von mises") or e.first("mises") or e.first("vm")
-        if i is None:
-            return '<p class="none">element_peaks.csv has no von Mises column.</p>'
-        cols = self._xyz_cols(e)
-        ok = np.all(np.isfinite(e.data[:, cols]), axis=1)
-        v = e.column(i)[ok]
-        if v.size != int(grid.filled.sum()) and v.size != grid.index.shape[0]:
-            return '<p class="none">element_peaks.csv rows do not match its mesh.</p>'
-        top = float(np.nanmax(v)) if v.size else 0.0
-        where = ""
-        if v.size and np.isfinite(top):
-            k = int(np.nanargmax(v))
-            c = e.data[ok][k, cols]
-            where = f" The largest, {num(top / 1e6)} MPa, is in the element centred at " \
-                    f"({c[0]:.3g}, {c[1]:.3g}, {c[2]:.3g}) m."
-        html_ = self._fig(lambda: F.stress_figure(grid, v),
-                          "Peak von Mises stress of each element over the record, shown on the "
-                          "block's outer faces (colour scale in MPa)." + where,
-                          fid="fig-stress")
+            return ""
+        v = e.get(header("von mises", "stress"))
+        if v is None or v.size != grid.index.shape[0] or not np.any(np.isfinite(v)):
+            return ""
+        unit = display_unit("stress", self.sys)
+        top = float(np.nanmax(v))
+        return self._fig(lambda: F.stress_figure(grid, v, unit=unit,
+                                                 factor=to_display(1.0, "stress", self.sys)),
+                         "Peak von Mises stress of each element over the record on the block's "
+                         f"outer faces; the largest element value is {self.q(top, 'stress')}.",
+                         fid="fig-stress")
+
+    def contact_table(self) -> str:
+        c = _get(self.s, "base", "contact")
+        st = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
+        rows, classes = [], []
+        if isinstance(c, Mapping):
+            rows.append(["contact pressure from the weight alone", self.cell(c.get("static_pressure"), "pressure"), ""])
+            rows.append(["peak contact pressure (linear)", self.cell(c.get("peak_pressure"), "pressure"),
+                         self._when(c.get("time_of_peak_pressure"))])
+            rows.append(["least contact pressure (linear; negative is uplift)",
+                         self.cell(c.get("min_pressure"), "pressure"), self._when(c.get("time_of_min_pressure"))])
+            classes += ["", "", "over" if c.get("uplift") else ""]
+        for key, what in (("sliding", "least sliding safety factor"),
+                          ("overturning", "least overturning safety factor")):
+            e = st.get(key) if isinstance(st.get(key), Mapping) else None
+            if e is None:
+                continue
+            v = _f(e.get("min_safety_factor"))
+            extra = f", edge {e['edge']}" if e.get("edge") else ""
+            rows.append([what, self.cell(v, "ratio") if v is not None else
+                         str(e.get("note") or "not evaluated"), self._when(e.get("time")) + extra])
+            classes.append("over" if v is not None and v < 1.0 else "")
+        br = st.get("bearing") if isinstance(st.get("bearing"), Mapping) else None
+        if br is not None and _f(br.get("peak_pressure")) is not None:
+            r = _f(br.get("ratio_to_allowable"))
+            rows.append(["peak bearing pressure (no-tension base)", self.cell(br["peak_pressure"], "pressure"),
+                         self._when(br.get("time")) + ("" if r is None else
+                                                        f"; {self.n(r, 'ratio')} × allowable entered")])
+            classes.append("over" if r is not None and r > 1.0 else "")
+        for case in self.s.get("soil_cases") or []:
+            if isinstance(case, Mapping):
+                f1 = _f(_get(case, "modes", 0, "frequency"))
+                sl = _f(_get(case, "stability", "sliding", "min_safety_factor"))
+                ot = _f(_get(case, "stability", "overturning", "min_safety_factor"))
+                rows.append([f"soil case {case.get('name')}: G, first mode, sliding / overturning FS",
+                             f"{self.q(case.get('shear_modulus'), 'modulus')}, {self.q(f1, 'frequency')}",
+                             f"{self.n(sl, 'ratio')} / {self.n(ot, 'ratio')}"])
+                classes.append("")
+        if not rows:
+            return ""
+        note = ('<p class="note">Rigid-base statics from the base resultants with the weights: '
+                "screening comparisons with the values entered, not a code check.</p>")
+        return ("<h3>Contact and stability</h3>" + note
+                + table(rows, ["quantity", self.h("value", "pressure") + " or factor", "when, where"],
+                        row_classes=classes))
+
+    def points_table(self) -> str:
         rows = []
-        for words, name in ((("von mises",), "von Mises"), (("tension",), "principal tension"),
-                            (("compression",), "principal compression")):
-            j = e.first(*words)
-            if j is not None and np.any(np.isfinite(e.column(j))):
-                col = e.column(j)
-                rows.append([name, float(np.nanmax(np.abs(col)))])
-        if rows:
-            html_ += table(rows, ["largest element peak", f"value [{e.unit(i) or 'Pa'}]"])
-        return html_
+        for group, word in (("sensors", "sensor"), ("equipment", "equipment")):
+            for name, obj in _named(self.s.get(group)):
+                if not isinstance(obj, Mapping):
+                    continue
+                pa = obj.get("peak_absolute_acceleration") or {}
+                rd = obj.get("peak_relative_displacement") or {}
+                rows.append([f"{word} {name}",
+                             *(self.cell(_get(pa, d), "acceleration") for d in DIRECTIONS),
+                             *(self.cell(_get(rd, d), "displacement") for d in DIRECTIONS)])
+        if not rows:
+            return ""
+        return ("<h3>Peaks at sensors and equipment</h3>"
+                + table(rows, ["point", *(self.h(f"acceleration {d}", "acceleration") for d in DIRECTIONS),
+                               *(self.h(f"displacement {d}", "displacement") for d in DIRECTIONS)])
+                + '<p class="note">Acceleration is absolute; displacement is relative to the '
+                  "ground. Equipment values are at its centre of mass.</p>")
+
+    def _hist(self, col) -> np.ndarray | None:
+        h = self.f.table("histories")
+        if h is None:
+            return None
+        v = h.get(col.header)
+        return None if v is None else to_display(1.0, col.kind, self.sys) * v
 
     def history_figures(self) -> str:
         h = self.f.table("histories")
         if h is None or h.n_rows == 0:
-            return '<p class="none">histories.csv is missing: no time histories.</p>'
-        time = h.column(0)
-        used = {0}
+            return ""
+        time = h.get(header("time", "time"))
+        if time is None:
+            return ""
         out = []
-
-        def strips(cols: list[int]):
-            """Columns that differ only in a direction or a number share one strip."""
-            groups: dict[tuple[str, str], list[tuple[str, np.ndarray]]] = {}
-            for i in cols:
-                words = label_words(h.header[i])
-                tag = [w for w in words if w in ("x", "y", "z") or w.isdigit()]
-                key = " ".join(w for w in words if w not in tag) or h.label(i)
-                groups.setdefault((key, h.unit(i)), []).append((" ".join(tag), h.column(i)))
-            return [(key, curves, unit) for (key, unit), curves in groups.items()]
-
-        def add(cols: list[int], title: str, caption: str, fid: str = "") -> None:
-            cols = [c for c in cols if c not in used]
-            if not cols:
-                return
-            used.update(cols)
-            groups = strips(cols)
-            shown = groups[:_MAX_STRIPS]
-            extra = (f" ({len(groups) - len(shown)} more groups of columns in histories.csv.)"
-                     if len(groups) > len(shown) else "")
-            out.append(self._fig(lambda: F.strip_figure(time, shown, title=title),
-                                 caption + extra, fid=fid))
-
-        ground = h.find("ground")
-        base = [i for i in h.find("base") if i not in ground]
-        if not base:
-            base = [i for i in range(1, len(h.header))
-                    if set(label_words(h.header[i])) & {"fx", "fy", "fz", "mx", "my", "mz"}]
-        add(base, "base resultants", "Resultants the block exerts on its support, about the "
-                  "centre of the base face (forces in N, moments in N·m). Time axes of these "
-                  "figures are cropped to the strong shaking when the record is much longer.",
-            fid="fig-base")
-        add(ground, "ground motion", "Ground acceleration driving the model.")
+        fu, mu = display_unit("force", self.sys), display_unit("moment", self.sys)
+        strips = []
+        forces = [(c.label.split()[-1], self._hist(c)) for c in HISTORY_BASE[:3]]
+        strips.append(("base forces Fx, Fy, Fz", [(n, v) for n, v in forces if v is not None], fu))
+        moments = [(c.label.split()[-1], self._hist(c)) for c in HISTORY_BASE[3:]]
+        strips.append(("base moments Mx, My, Mz", [(n, v) for n, v in moments if v is not None], mu))
+        ground = [(d, self._hist(history_label("ground acc", direction=d))) for d in DIRECTIONS]
+        strips.insert(0, ("ground acceleration", [(d, v) for d, v in ground if v is not None],
+                          display_unit("acceleration", self.sys)))
+        strips = [s for s in strips if s[1]]
+        if strips:
+            out.append(self._fig(lambda: F.strip_figure(time, strips),
+                                 "Ground acceleration and the resultants the block exerts on its "
+                                 "support, on the time of the record as read (each strip on its "
+                                 "own scale; the axis is cropped to the shaking).", fid="fig-base"))
+        pts = []
         for group in ("sensors", "equipment"):
-            names = [n for n, _ in _named(self.s.get(group))]
-            if not names:
-                names = [n for n, _ in _named(self.scenario.get(group))]
-            for name in sorted(names, key=len, reverse=True):
-                cols = [i for i in range(1, len(h.header))
-                        if name.lower() in split_header(h.header[i])[0].lower()]
-                anchors = [i for i in cols if set(label_words(h.header[i])) & {"anchor", "bolt",
-                                                                                "anchors", "bolts"}]
-                add([i for i in cols if i not in anchors],
-                    f"{group[:-1] if group == 'sensors' else 'equipment'} {name}",
-                    f"Histories at {'sensor' if group == 'sensors' else 'equipment'} '{name}'.")
-                add(anchors, f"anchor bolts of {name}",
-                    f"Bolt forces of '{name}' (tension positive).")
-        rest = [i for i in range(1, len(h.header)) if i not in used]
-        if rest:
-            add(rest, "other histories", "Other columns of histories.csv.")
+            for name, _ in _named(self.s.get(group)):
+                acc = [(d, self._hist(history_label("abs acc", name=name, direction=d))) for d in DIRECTIONS]
+                acc = [(d, v) for d, v in acc if v is not None]
+                if acc:
+                    pts.append((f"{name}: absolute acceleration", acc,
+                                display_unit("acceleration", self.sys)))
+        eq_strips = []
+        for name, eq in _named(self.s.get("equipment")):
+            k = len(_get(eq, "anchors") or [])
+            ax = [(f"bolt {b}", self._hist(history_label("tension", name=name, bolt=b)))
+                  for b in range(1, k + 1)]
+            sh = [(f"bolt {b}", self._hist(history_label("shear", name=name, bolt=b)))
+                  for b in range(1, k + 1)]
+            ax = [(n, v) for n, v in ax if v is not None]
+            sh = [(n, v) for n, v in sh if v is not None]
+            if ax:
+                eq_strips.append((f"{name}: bolt axial force, tension positive", ax, fu))
+            if sh:
+                eq_strips.append((f"{name}: bolt shear", sh, fu))
+        if pts or eq_strips:
+            out.append(self._fig(lambda: F.strip_figure(time, pts + eq_strips),
+                                 "Absolute acceleration at sensors and equipment, and the bolt "
+                                 "forces (axial force drawn signed: tension above zero, compression "
+                                 "below; the marked value is the largest tension).",
+                                 fid="fig-points"))
         return "".join(out)
 
     # --------------------------------------------------------------- anchorage
-    def anchor_rows(self):
-        """(equipment name, rows, capacity) for each equipment with bolts."""
-        scen_eq = {n: e for n, e in _named(self.scenario.get("equipment"))
-                   if isinstance(e, Mapping)}
-        scen_eq.update({str(e.get("name")): e for e in scen_eq.values() if e.get("name")})
-        out = []
-        for name, eq in _named(self.s.get("equipment")):
-            if not isinstance(eq, Mapping):
-                continue
-            anchors = eq.get("anchors") or []
-            if not isinstance(anchors, list) or not anchors:
-                continue
-            cap = eq.get("capacity") or _get(scen_eq.get(name, {}), "capacity") or {}
-            positions = _get(scen_eq.get(name, {}), "anchors") or []
-            rows = []
-            for k, a in enumerate(anchors):
-                if not isinstance(a, Mapping):
-                    continue
-                t = _as_float(a.get("peak_tension"))
-                v = _as_float(a.get("peak_shear"))
-                ct = _as_float((a.get("capacity") or {}).get("tension") if isinstance(
-                    a.get("capacity"), Mapping) else None) or _as_float(
-                    cap.get("tension") if isinstance(cap, Mapping) else None)
-                cv = _as_float((a.get("capacity") or {}).get("shear") if isinstance(
-                    a.get("capacity"), Mapping) else None) or _as_float(
-                    cap.get("shear") if isinstance(cap, Mapping) else None)
-                dct = _as_float(a.get("dc_tension"))
-                dcv = _as_float(a.get("dc_shear"))
-                if dct is None and t is not None and ct:
-                    dct = max(t, 0.0) / ct
-                if dcv is None and v is not None and cv:
-                    dcv = v / cv
-                pos = positions[k] if k < len(positions) else a.get("position")
-                rows.append({"bolt": k + 1, "position": pos, "tension": t, "shear": v,
-                             "cap_t": ct, "cap_v": cv, "dc_t": dct, "dc_v": dcv,
-                             "ir": _as_float(a.get("interaction_ratio"))})
-            out.append((name, rows))
-        return out
-
-    def worst_dc(self) -> float | None:
-        vals = [d for _, rows in self.anchor_rows() for r in rows
-                for d in (r["dc_t"], r["dc_v"]) if d is not None]
-        return max(vals) if vals else None
-
     def anchorage(self) -> str:
         html_ = ['<p class="note">Peak bolt forces over the record, from the equipment\'s base '
-                 "reactions shared among its bolts. Demand/capacity ratios compare these peaks "
-                 "with the capacities entered in the scenario: a screening comparison, not a "
-                 "code check.</p>"]
+                 "reactions shared among its bolts (rigid plate, elastic bolt group). "
+                 "Demand/capacity ratios compare these peaks with the capacities entered in the "
+                 "scenario: a screening comparison, not a code check.</p>"]
         found = False
-        for name, rows in self.anchor_rows():
+        for name, eq in _named(self.s.get("equipment")):
+            anchors = _get(eq, "anchors") or []
+            if not anchors:
+                continue
             found = True
-            html_.append(f"<h3>{esc(name)}</h3>")
+            cap = eq.get("capacity") if isinstance(eq.get("capacity"), Mapping) else {}
             body, classes = [], []
-            for r in rows:
-                over = any(d is not None and d > 1.0 for d in (r["dc_t"], r["dc_v"], r["ir"]))
-                have = r["dc_t"] is not None or r["dc_v"] is not None
-                body.append([r["bolt"], r["position"], r["tension"], r["shear"], r["cap_t"],
-                             r["cap_v"], r["dc_t"], r["dc_v"], r["ir"],
-                             "above entered capacity" if over else
-                             ("within entered capacity" if have else "no capacity entered")])
+            has_ir = any(_f(_get(a, "interaction_ratio")) is not None for a in anchors)
+            for k, a in enumerate(anchors, start=1):
+                dct, dcv = _f(_get(a, "dc_tension")), _f(_get(a, "dc_shear"))
+                ir = _f(_get(a, "interaction_ratio"))
+                over = any(d is not None and d > 1.0 for d in (dct, dcv, ir))
+                have = dct is not None or dcv is not None
+                pos = _get(a, "position") or []
+                row = [k, ", ".join(self.n(v, "length") for v in pos),
+                       self.cell(_get(a, "peak_tension"), "force"),
+                       self.cell(_get(a, "peak_shear"), "force"),
+                       raw(f'<b class="dc">{esc(self.n(dct, "ratio"))}</b>'),
+                       raw(f'<b class="dc">{esc(self.n(dcv, "ratio"))}</b>')]
+                if has_ir:
+                    row.append(raw(f'<b class="dc">{esc(self.n(ir, "ratio"))}</b>'))
+                row.append("ABOVE the capacity entered" if over else
+                           ("within the capacity entered" if have else "no capacity entered"))
+                body.append(row)
                 classes.append("over" if over else "")
-            html_.append(table(body, ["bolt", "offset from mount x, y [m]", "peak tension [N]",
-                                      "peak shear [N]", "entered tension capacity [N]",
-                                      "entered shear capacity [N]", "D/C tension [–]",
-                                      "D/C shear [–]", "tension–shear interaction [–]",
-                                      "screening comparison"],
-                               row_classes=classes))
+            heads = ["bolt", self.h("offset from mount x, y", "length"), self.h("peak tension", "force"),
+                     self.h("peak shear", "force"), "D/C tension", "D/C shear"]
+            if has_ir:
+                heads.append("interaction")
+            heads.append("screening comparison")
+            capt = ""
+            if cap:
+                capt = (f" Capacities entered per bolt: tension {self.q(cap.get('tension'), 'force')}, "
+                        f"shear {self.q(cap.get('shear'), 'force')}.")
+            html_.append(f"<h3>{esc(name)}</h3>")
+            if capt:
+                html_.append(f'<p class="note">{esc(capt.strip())}</p>')
+            html_.append(table(body, heads, row_classes=classes))
+            fp = eq.get("fp")
+            if isinstance(fp, Mapping) and _f(fp.get("fp")) is not None:
+                rows = [["horizontal force Fp", self.cell(fp.get("fp"), "force"), ""],
+                        ["vertical force Fv", self.cell(fp.get("fv"), "force"), ""]]
+                for label, a, b in (("bolt tension", "peak_tension", "time_history_peak_tension"),
+                                    ("bolt shear", "peak_shear", "time_history_peak_shear")):
+                    fa, fb = _f(fp.get(a)), _f(fp.get(b))
+                    rows.append([f"largest {label}: under Fp / time history",
+                                 raw(f'<span class="n">{esc(self.n(fa, "force"))} / '
+                                     f'{esc(self.n(fb, "force"))}</span>'),
+                                 "" if not fa else f"ratio {self.n(fb / fa, 'ratio')}"])
+                html_.append(f"<h4>Equivalent static force ({esc(fp.get('source') or 'Fp')})</h4>"
+                             + table(rows, ["quantity", self.h("value", "force"), "comparison"])
+                             + '<p class="note">From the parameters entered; a screening '
+                               "comparison, not a code check.</p>")
         if not found:
             html_.append('<p class="none">No anchor bolts in this scenario.</p>')
-        html_.append(self.fp_section())
         return "".join(html_)
-
-    def fp_section(self) -> str:
-        scen_eq = {str(e.get("name", n)): e for n, e in _named(self.scenario.get("equipment"))
-                   if isinstance(e, Mapping)}
-        out = []
-        for name, eq in _named(self.s.get("equipment")) or list(scen_eq.items()):
-            if not isinstance(eq, Mapping):
-                continue
-            given = eq.get("fp")
-            params = _get(scen_eq.get(name, {}), "fp")
-            if isinstance(given, Mapping) and given:
-                out.append(f"<h3>Fp comparison: {esc(name)}</h3>")
-                rows, used = [], set()
-                for q, a, b in (("bolt tension [N]", "peak_tension", "time_history_peak_tension"),
-                                ("bolt shear [N]", "peak_shear", "time_history_peak_shear")):
-                    fa, fb = _as_float(given.get(a)), _as_float(given.get(b))
-                    if fa is not None and fb is not None:
-                        rows.append([q, fa, fb, fb / fa if fa > 0 else None])
-                        used.update((a, b))
-                if rows:
-                    out.append('<p class="note">Largest bolt forces under the equivalent static '
-                               "force Fp (from the parameters entered) beside the time-history "
-                               "peaks: a screening comparison, not a code check.</p>"
-                               + table(rows, ["quantity", "under Fp (static)",
-                                              "time-history peak", "ratio [–]"]))
-                out.append(key_values({k: v for k, v in given.items() if k not in used}))
-                continue
-            if not isinstance(params, Mapping) or _as_float(params.get("sds")) is None:
-                continue
-            mass = _as_float(_get(scen_eq.get(name, {}), "mass"))
-            if mass is None:
-                continue
-            kw = {k: float(params[k]) for k in ("ap", "rp", "ip", "z_over_h")
-                  if _as_float(params.get(k)) is not None}
-            fp = fp_force(weight=mass * STANDARD_GRAVITY, sds=float(params["sds"]), **kw)
-            pa = eq.get("peak_absolute_acceleration") if isinstance(eq, Mapping) else None
-            ah = max((_as_float(pa.get(d)) or 0.0) for d in ("x", "y")) if isinstance(pa, Mapping) else None
-            av = _as_float(pa.get("z")) if isinstance(pa, Mapping) else None
-            rows = [["horizontal", fp["fp"], None if ah is None else mass * ah,
-                     None if ah is None or fp["fp"] <= 0 else mass * ah / fp["fp"]],
-                    ["vertical", fp["fv"], None if av is None else mass * av,
-                     None if av is None or fp["fv"] <= 0 else mass * av / fp["fv"]]]
-            out.append(f"<h3>Fp comparison: {esc(name)}</h3>"
-                       '<p class="note">Equivalent static force of ASCE 7-16 §13.3.1 (Fp = '
-                       "0.4·ap·SDS·Wp·(1 + 2z/h)/(Rp/Ip), between 0.3 and 1.6·SDS·Ip·Wp; vertical "
-                       "0.2·SDS·Wp) from the parameters entered, beside the peak inertial force "
-                       "of the time history (mass × peak absolute acceleration at the centre of "
-                       "mass). A screening comparison, not a code check.</p>"
-                       + table(rows, ["direction", "Fp from the entered parameters [N]",
-                                      "time-history peak m·a [N]", "ratio [–]"])
-                       + key_values({"formula value": fp["fp_formula"], "lower bound": fp["fp_min"],
-                                     "upper bound": fp["fp_max"]}, units=False))
-        return "".join(out)
 
     # ------------------------------------------------------------ floor spectra
     def floor_spectra(self) -> str:
-        html_ = []
-        info = self.s.get("floor_spectra")
-        if isinstance(info, Mapping) and info:
-            small = {k: v for k, v in info.items()
-                     if not (isinstance(v, list) and len(v) > 24)}
-            html_.append(key_values(small))
         t = self.f.table("floor_spectra")
         if t is None or t.n_rows == 0:
-            html_.append('<p class="none">floor_spectra.csv is missing.</p>')
-            return "".join(html_)
-        per = t.column(0)
-        known = {"psa", "sa", "raw", "broadened", "unbroadened", "damping", "envelope", "ground",
-                 "floor", "spectrum", "spectra", "abs", "pseudo", "absolute", "acceleration",
-                 "spectral", "response", "target", "of", "at", "point"}
-        points: dict[str, list] = {}
-        ground: dict[str, list] = {}
-        env: dict[str, list] = {}
-        for i in range(1, len(t.header)):
-            w = set(label_words(t.header[i]))
-            d = damping_of(t.header[i])
-            dl = f"{num(d)} %" if d is not None else ""
-            rest = [x for x in label_words(re.sub(r"\d+(?:\.\d+)?\s*(?:%|pct|percent)", " ",
-                                                  t.header[i])) if x not in known]
-            kind = "raw" if (w & {"raw", "unbroadened"}) else "broadened"
-            if "ground" in w:
-                ground.setdefault(dl, []).append((f"ground {' '.join(rest)} {dl}".strip(), per,
-                                                  t.column(i), "ground"))
-            elif "envelope" in w:
-                env.setdefault(" ".join(rest), []).append(
-                    (f"{kind} {dl}".strip(), per, t.column(i), kind))
-            else:
-                points.setdefault(" ".join(rest) or "point", []).append(
-                    (f"{kind} {dl}".strip(), per, t.column(i), kind))
-        if not ground:
-            g = self.f.table("ground_spectra")
-            if g is not None and g.n_rows:
-                for i in range(1, len(g.header)):
-                    if "target" in label_words(g.header[i]):
-                        continue
-                    d = damping_of(g.header[i])
-                    dl = f"{num(d)} %" if d is not None else ""
-                    comp = " ".join(x for x in label_words(re.sub(r"\d+(?:\.\d+)?\s*%", " ",
-                                                                   g.header[i])) if x not in known)
-                    ground.setdefault(dl, []).append((f"ground {comp} {dl}".strip(),
-                                                      g.column(0), g.column(i), "ground"))
-
-        def with_ground(curves, direction: str | None = None):
-            dls = {c[0].split(maxsplit=1)[1] for c in curves if " " in c[0]}
-            extra = []
-            for dl, cs in ground.items():
-                if dls and dl and dl not in dls:
-                    continue
-                for c in cs:
-                    dirs = {x for x in c[0].split() if x in ("x", "y", "z")}
-                    if direction is None or not dirs or direction in dirs:
-                        extra.append(c)
-            return list(curves) + extra[:6]
-
+            return '<p class="none">No floor response spectra in this output.</p>'
+        c = COLUMNS["floor_spectra"]
+        point, dirs = t.strings(c[0].header), t.strings(c[1].header)
+        damp, per = t.get(c[2].header), t.get(c[3].header)
+        psa, psab = t.get(c[4].header), t.get(c[5].header)
+        if any(x is None for x in (point, dirs, damp, per, psa, psab)):
+            return '<p class="none">floor_spectra.csv does not follow the output contract.</p>'
+        point, dirs = np.asarray(point), np.asarray(dirs)
+        g = to_display(1.0, "acceleration", self.sys)
+        curves: dict[tuple[str, str, float], tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+        for key in dict.fromkeys(zip(point, dirs, damp)):
+            sel = (point == key[0]) & (dirs == key[1]) & (damp == key[2])
+            curves[key] = (per[sel], g * psa[sel], g * psab[sel])
+        rows = []
+        for (p, d, z), (pp, a, b) in curves.items():
+            if p == "envelope":
+                continue
+            i = int(np.nanargmax(b))
+            rows.append([p, d, self.cell(z, "damping"),
+                         raw(f'<span class="n">{esc(_round3(np.nanmax(a)))}</span>'),
+                         raw(f'<span class="n">{esc(_round3(b[i]))}</span>'),
+                         self.cell(pp[i], "time"), raw(f'<span class="n">{esc(_round3(a[-1] if pp[-1] < pp[0] else a[0]))}</span>')])
+        unit = display_unit("acceleration", self.sys)
+        html_ = [table(rows, ["point", "direction", self.h("damping", "damping"),
+                              f"peak PSA [{unit}]", f"peak PSA broadened [{unit}]",
+                              self.h("at period", "time"), f"PSA at the shortest period [{unit}]"])]
+        info = self.s.get("floor_spectra") if isinstance(self.s.get("floor_spectra"), Mapping) else {}
+        if info.get("broadening"):
+            html_.append(f'<p class="note">Broadening ±{self.n(info.get("broadening_percent"), "percent")} %: '
+                         f'{esc(info["broadening"])}.</p>')
         panels = []
-        for name, curves in points.items():
-            direction = next((x for x in name.split() if x in ("x", "y", "z")), None)
-            panels.append((name, with_ground(curves, direction)))
-        env_panels = [(f"envelope {name}".strip(),
-                       with_ground(c, next((x for x in name.split() if x in ("x", "y", "z")),
-                                           None)))
-                      for name, c in env.items()]
-        unit = t.unit(1) if len(t.header) > 1 else ""
-        cap = ("Floor response spectra (PSA) at each point: unbroadened (thin) and broadened "
-               "(thick), with the ground spectrum (dotted).")
+        for d in DIRECTIONS:
+            cs = []
+            for (p, dd, z), (pp, a, b) in curves.items():
+                if dd != d:
+                    continue
+                lab = f"{p} {self.n(z, 'damping')} %"
+                cs.append((lab, pp, b, "envelope" if p == "envelope" else "broadened"))
+            if cs:
+                panels.append((f"direction {_DIR_WORDS[d]}", cs))
         if panels:
-            html_.append(self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit or 'm/s²'}]"),
-                                   cap, fid="fig-floor-spectra"))
-        if env_panels:
-            html_.append(self._fig(lambda: F.spectra_figure(env_panels,
-                                                            ylabel=f"PSA [{unit or 'm/s²'}]"),
-                                   "Envelope of the floor response spectra over all points.",
-                                   fid="fig-floor-envelope"))
-        if not panels and not env_panels:
-            html_.append('<p class="none">floor_spectra.csv has no spectra columns.</p>')
+            html_.append(self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3),
+                                   "Broadened floor response spectra (pseudo-spectral acceleration) "
+                                   "at each point and damping, with their envelope (thick black).",
+                                   fid="fig-floor-spectra"))
         return "".join(html_)
 
-    # ---------------------------------------------------------------- warnings
-    def warning_list(self) -> list[str]:
-        w = self.s.get("warnings") or []
-        if isinstance(w, (str, Mapping)):
-            w = [w]
-        out = []
-        for x in w:
-            if isinstance(x, Mapping):
-                out.append(str(x.get("message") or x.get("text") or x))
-            else:
-                out.append(str(x))
-        return out
+    # ------------------------------------------------------------------ motion
+    def record_list(self) -> list[dict[str, Any]]:
+        return [dict(r) for r in self.s.get("records") or [] if isinstance(r, Mapping)]
 
-    def warnings(self) -> str:
-        ws = self.warning_list()
-        html_ = ['<p class="note">Automatic checks of this run.</p>']
-        if ws:
-            html_.append('<ul class="warn">' + "".join(f"<li>{esc(x)}</li>" for x in ws) + "</ul>")
-        else:
-            html_.append('<p class="none">No automatic warnings for this run.</p>')
-        if self.notes:
-            html_.append("<h3>Notes from the report writer</h3><ul>"
-                         + "".join(f"<li>{esc(n)}</li>" for n in self.notes) + "</ul>")
-        return "".join(html_)
-
-    def cautions(self) -> str:
-        items = list(CAUTIONS)
-        extra = self.s.get("cautions") or []
-        for c in extra if isinstance(extra, list) else [extra]:
-            if str(c) not in items:
-                items.append(str(c))
-        return ('<ol class="cautions">' + "".join(f"<li>{esc(c)}</li>" for c in items) + "</ol>")
-
-    def provenance(self) -> str:
-        prov = self.s.get("provenance")
+    def motion(self) -> str:
         html_ = []
-        if isinstance(prov, Mapping) and prov:
-            html_.append(key_values(prov, units=False))
-        else:
-            html_.append('<p class="none">summary.json holds no provenance.</p>')
-        analysis = self.s.get("analysis")
-        if isinstance(analysis, Mapping) and analysis:
-            html_.append("<h3>Analysis settings</h3>" + key_values(analysis))
+        recs = self.record_list()
+        measures = (("pga", "PGA", "acceleration"), ("pgv", "PGV", "velocity"),
+                    ("pgd", "PGD", "displacement"), ("arias_intensity", "Arias intensity", "arias"),
+                    ("d5_95", "significant duration D5–95", "time"), ("cav", "CAV", "velocity"))
+        rows = []
+        for r in recs:
+            m = r.get("measures") if isinstance(r.get("measures"), Mapping) else r
+            rows.append([_DIR_WORDS.get(str(r.get("direction")), r.get("direction", "")),
+                         r.get("name", ""), Path(str(r.get("source") or "")).name,
+                         *(self.cell(_get(m, k), kind) for k, _, kind in measures)])
+        if rows:
+            html_.append(table(rows, ["direction", "record", "file",
+                                      *(self.h(lab, kind) for _, lab, kind in measures)]))
+            items = []
+            for r in recs:
+                hist = r.get("history") or []
+                if hist:
+                    items.append(f"<li><b>{esc(r.get('name'))}</b>: "
+                                 + esc("; ".join(str(x) for x in hist)) + "</li>")
+            if items:
+                html_.append("<details><summary>Processing of each record</summary><ul>"
+                             + "".join(items) + "</ul></details>")
+        html_.append(self.records_figure())
+        html_.append(self.ground_spectra())
+        html_.append(self.matching())
+        return "".join(html_)
+
+    def records_figure(self) -> str:
+        t = self.f.table("records")
+        if t is None or t.n_rows == 0:
+            return ""
+        kinds = (("acc", "acceleration", "acceleration", "m/s2"), ("vel", "velocity", "velocity", "m/s"),
+                 ("disp", "displacement", "displacement", "m"))
+        pads = {str(r.get("direction")): _f(r.get("pad_before_s")) or 0.0 for r in self.record_list()}
+        figs = []
+        for d in DIRECTIONS:
+            rt = t.get(f"{d} raw time [s]")
+            ct = t.get(f"{d} corrected time [s]")
+            if rt is None or ct is None:
+                continue
+            shift = pads.get(d, 0.0)
+            ok = np.isfinite(ct)
+            if ok.any() and np.isfinite(rt).any() and ct[ok][0] >= np.nanmin(rt) - 1e-9 and shift > 0:
+                ct = ct - shift          # corrected series written from its own pad start
+            rows = []
+            for short, kind, word, si in kinds:
+                a, b = t.get(f"{d} raw {short} [{si}]"), t.get(f"{d} corrected {short} [{si}]")
+                if a is None and b is None:
+                    continue
+                fac = to_display(1.0, kind, self.sys)
+                rows.append((word, display_unit(kind, self.sys),
+                             None if a is None else (rt, fac * a), None if b is None else (ct, fac * b)))
+            if rows:
+                figs.append((d, rows))
+        out = []
+        for d, rows in figs:
+            out.append(self._fig(lambda rows=rows, d=d: F.record_figure(rows, title=f"direction {_DIR_WORDS[d]}"),
+                                 f"Direction {_DIR_WORDS[d]}: acceleration, velocity and displacement "
+                                 "as read (grey, dashed) and corrected (blue), on the time of the record "
+                                 "as read.", fid=f"fig-record-{d}"))
+        return "".join(out)
+
+    def ground_spectra(self) -> str:
+        t = self.f.table("ground_spectra")
+        if t is None or t.n_rows == 0:
+            return ""
+        c = COLUMNS["ground_spectra"]
+        dirs = t.strings(c[0].header)
+        damp, per, psa = (t.get(x.header) for x in c[1:])
+        if dirs is None or damp is None or per is None or psa is None:
+            return '<p class="none">ground_spectra.csv does not follow the output contract.</p>'
+        dirs = np.asarray(dirs)
+        g = to_display(1.0, "acceleration", self.sys)
+        unit = display_unit("acceleration", self.sys)
+        target = None
+        if np.any(dirs == "target"):
+            sel = dirs == "target"
+            target = (per[sel], g * psa[sel])
+        panels = []
+        for d in DIRECTIONS:
+            cs = []
+            for z in dict.fromkeys(damp[dirs == d]):
+                sel = (dirs == d) & (damp == z)
+                cs.append((f"{self.n(z, 'damping')} % damping", per[sel], g * psa[sel], "broadened"))
+            if target is not None and cs:
+                cs.append(("target", target[0], target[1], "target"))
+            if cs:
+                panels.append((f"direction {_DIR_WORDS[d]}", cs))
+        if not panels:
+            return ""
+        return self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3),
+                         "Response spectra (pseudo-spectral acceleration) of the corrected ground "
+                         "motion" + (", with the target" if target is not None else "") + ".",
+                         fid="fig-ground-spectra")
+
+    def matching(self) -> str:
+        mt = _get(self.s, "motion", "matching")
+        if not isinstance(mt, Mapping) or not mt:
+            return ""
+        rows = []
+        for k, v in mt.items():
+            if isinstance(v, (int, float, str, bool)) and not isinstance(v, bool):
+                rows.append([k.replace("_", " "), v if isinstance(v, str) else self.n(v, None)])
+            elif isinstance(v, bool):
+                rows.append([k.replace("_", " "), "yes" if v else "no"])
+        if not rows:
+            return ""
+        return "<h3>Spectrum matching</h3>" + table(rows, ["item", "value"])
+
+    # ------------------------------------------------------------------ inputs
+    def scenario_as_run(self) -> dict:
+        """The scenario echo, made re-runnable: no ``notes``, record paths relative to
+        the scenario file, unset keys dropped."""
+        def clean(v):
+            if isinstance(v, Mapping):
+                return {k: clean(x) for k, x in v.items() if x is not None and k != "notes"}
+            if isinstance(v, list):
+                return [clean(x) for x in v if x is not None]
+            return v
+
+        scen = clean(dict(self.scenario))
+        scen_file = None
+        for k in (_get(self.s, "provenance", "inputs") or {}):
+            if str(k).endswith(".toml"):
+                scen_file = Path(str(k))
+        motion = scen.get("motion") if isinstance(scen.get("motion"), Mapping) else None
+        if motion and scen_file is not None:
+            for d, m in list(motion.items()):
+                if isinstance(m, Mapping) and isinstance(m.get("file"), str):
+                    p = Path(m["file"])
+                    if p.is_absolute():
+                        try:
+                            rel = Path(_relpath(p, scen_file.parent))
+                            motion[d] = dict(m, file=rel.as_posix())
+                        except ValueError:
+                            pass
+            if isinstance(motion.get("inventory"), str) and Path(motion["inventory"]).is_absolute():
+                try:
+                    motion["inventory"] = Path(_relpath(Path(motion["inventory"]), scen_file.parent)).as_posix()
+                except ValueError:
+                    pass
+        return scen
+
+    def inputs(self) -> str:
+        if not self.scenario:
+            return '<p class="none">summary.json holds no scenario echo.</p>'
+        text = toml_text(self.scenario_as_run())
+        return ("<details><summary>The scenario as run, with every default filled in "
+                "(TOML; save it beside the original to run it again)</summary>"
+                f"<pre>{esc(text)}</pre></details>")
+
+    # -------------------------------------------------------------- provenance
+    def provenance(self) -> str:
+        prov = self.s.get("provenance") if isinstance(self.s.get("provenance"), Mapping) else {}
+        rows = [["groundshake version", str(prov.get("version", "—"))],
+                ["run at (UTC)", str(prov.get("date", "—"))],
+                ["command", str(prov.get("command", "—"))]]
+        a = self.s.get("analysis") if isinstance(self.s.get("analysis"), Mapping) else {}
+        if a:
+            rows.append(["method", f"{a.get('method', '—')}; {a.get('n_modes', '—')} modes up to "
+                                   f"{self.q(a.get('cutoff_hz'), 'frequency')}; time step "
+                                   f"{self.q(a.get('dt'), 'time')}, {a.get('n_steps', '—')} steps"])
+            for x in a.get("assumptions") or []:
+                rows.append(["assumption", str(x)])
+        for name, digest in (prov.get("inputs") or {}).items():
+            rows.append([f"input {Path(str(name)).name}", f"SHA-256 {digest}"])
+        html_ = [table(rows, ["item", "value"], cls="grid kv2")]
         files = []
         for p in sorted(self.f.path.glob("*")):
             if p.is_file() and p.suffix in (".json", ".csv"):
                 files.append([p.name, p.stat().st_size, _sha256(p)])
-        html_.append("<h3>Files this report was built from</h3>")
-        html_.append(table(files, ["file", "bytes", "SHA-256"]))
-        html_.append(key_values({"report written by": f"groundshake {__version__}",
-                                 "report written at (UTC)":
-                                     _dt.datetime.now(_dt.timezone.utc).strftime(
-                                         "%Y-%m-%d %H:%M:%S")}, units=False))
+        html_.append("<details><summary>Files this report was built from</summary>"
+                     + table(files, ["file", "bytes", "SHA-256"]) + "</details>")
+        if self.notes:
+            html_.append("<h3>Notes from the report writer</h3><ul>"
+                         + "".join(f"<li>{esc(n)}</li>" for n in self.notes) + "</ul>")
+        html_.append(f'<p class="note">Report written by groundshake {esc(__version__)} at '
+                     f'{_dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%d %H:%M")} UTC; '
+                     f'display units: {"US customary" if self.sys == "us" else "SI"}.</p>')
         return "".join(html_)
 
     # -------------------------------------------------------------------- page
     def page(self, bodies: Mapping[str, str]) -> str:
         title = self.title()
         prov = self.s.get("provenance") if isinstance(self.s.get("provenance"), Mapping) else {}
-        when = prov.get("date") or prov.get("time") or ""
-        version = prov.get("version") or prov.get("groundshake") or __version__
+        when = str(prov.get("date") or "")
         toc = "".join(f'<a href="#{sid}">{esc(name)}</a>' for sid, name in SECTIONS)
         sections = "".join(section(sid, name, bodies.get(sid, "")) for sid, name in SECTIONS)
+        n_ex, n_w = len(self.exceedances()), len(self.warning_list())
+        flags = []
+        if n_ex:
+            flags.append(f'<span class="flag over">{n_ex} exceedance{"s" if n_ex > 1 else ""}</span>')
+        if n_w:
+            flags.append(f'<span class="flag warn">{n_w} warning{"s" if n_w > 1 else ""}</span>')
         return (
             "<!DOCTYPE html>\n"
             '<html lang="en"><head><meta charset="utf-8">'
@@ -1114,24 +1015,26 @@ class _Builder:
             f"<style>{CSS}</style></head><body>"
             '<header class="top">'
             f"<h1>{esc(title)}</h1>"
-            f'<div class="sub">Screening report · groundshake {esc(version)}'
-            + (f" · run {esc(when)}" if when else "") +
-            f" · output folder {esc(_folder_name(self.f.path))}</div>"
-            f'<div class="banner">{esc(SCREENING_NOTE)} Linear-elastic model; verify against '
-            "the governing code and have a licensed engineer review. See "
-            '<a href="#cautions">Cautions</a>.</div>'
-            + self.key_figures() + self.stability() +
+            f'<div class="sub">Seismic screening report · groundshake {esc(__version__)}'
+            + (f" · run {esc(when)}" if when else "")
+            + f" · units {'US customary' if self.sys == 'us' else 'SI'}</div>"
+            f'<div class="banner">{esc(SCREENING_NOTE)} Linear-elastic model; screening, not '
+            "design; verify against the governing code and have a licensed engineer review. "
+            + " ".join(flags) + "</div>"
             f'<nav class="toc">{toc}</nav></header>'
             f"<main>{sections}</main>"
             f"<footer>{esc(SCREENING_NOTE)} Generated by groundshake {esc(__version__)}.</footer>"
             "</body></html>\n")
 
 
-def _folder_name(path: Path) -> str:
-    """The folder's name; inside a run's temporary folder (``.NAME.xxxx.part``, see
-    groundshake._atomic) the name it will have once moved into place."""
-    m = re.match(r"^\.(.+)\.[^.]+\.part$", path.name)
-    return m.group(1) if m else path.name
+def _round3(v: float) -> str:
+    return fmt(v, None, digits=3)
+
+
+def _relpath(path: Path, start: Path) -> str:
+    import os
+
+    return os.path.relpath(str(path), str(start))
 
 
 def _sha256(path: Path) -> str:
@@ -1140,3 +1043,6 @@ def _sha256(path: Path) -> str:
         for chunk in iter(lambda: fh.read(1 << 20), b""):
             h.update(chunk)
     return h.hexdigest()
+
+
+_ = re  # kept for callers that patch module attributes
