@@ -29,6 +29,9 @@ def register(subparsers, parents) -> None:
                     "(summary.json and the CSV tables).")
     r.add_argument("folder", metavar="DIR", help="output folder of `groundshake run`")
     r.add_argument("--force", action="store_true", help="replace an existing report.html")
+    r.add_argument("--report-units", choices=("si", "us"), default=None,
+                   help="display units: si (kN, mm, MPa, g) or us (kip, in, psi, g); default "
+                        "the scenario's [report] units")
     r.set_defaults(func=_report)
 
 
@@ -43,12 +46,9 @@ def _demo(args) -> int:
                     "results": str(run.results), "report": str(run.report),
                     "warnings": s.get("warnings", []), "worst_dc": s.get("worst_dc")})
         return 0
-    try:
-        from ..results._cli import _terminal_summary
-        print(_terminal_summary(s, run.results))
-    except Exception:  # the run's own table is a nicety here; the paths below are the point
-        print(f"{s.get('title', 'demo')}: warnings: {len(s.get('warnings', []))}")
-        print(SCREENING_NOTE)
+    from ..results._cli import _terminal_summary
+
+    print(_terminal_summary(s, run.results, report=False))
     print(f"report: {run.report}")
     return 0
 
@@ -60,7 +60,7 @@ def _report(args) -> int:
     if (Path(args.folder) / "report.html").exists() and not args.force:
         raise InputError(f"{Path(args.folder) / 'report.html'}: already exists; use --force to "
                          "replace it")
-    path = write_report(Path(args.folder), progress=not quiet)
+    path = write_report(Path(args.folder), progress=not quiet, units=args.report_units)
     if getattr(args, "json", False):
         print_json({"report": str(path)})
     else:

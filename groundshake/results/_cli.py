@@ -24,6 +24,10 @@ def register(subparsers, parents) -> None:
     p.add_argument("--force", action="store_true", help="replace DIR if it exists")
     p.add_argument("--method", choices=("modal", "direct"), default=None,
                    help="override [analysis] method")
+    p.add_argument("--report-units", choices=("si", "us"), default=None,
+                   help="display units of report.html and of the table printed here: si (kN, "
+                        "mm, MPa, g; default) or us (kip, in, psi, g); overrides [report] units. "
+                        "Files stay SI")
     p.add_argument("--no-report", action="store_true",
                    help="write summary.json and the CSV tables only (no report.html)")
     p.add_argument("--inventory", metavar="FILE",
@@ -53,12 +57,14 @@ def _run(args) -> int:
     results = analyse(scenario, progress=not quiet, method=args.method)
     results.summary["provenance"]["command"] = " ".join(["groundshake", *sys.argv[1:]]) \
         if sys.argv and sys.argv[0].endswith("groundshake") else f"groundshake run {args.scenario}"
-    write_outputs(results, out, overwrite=bool(args.force), report=not args.no_report)
+    units = args.report_units or getattr(getattr(scenario, "report", None), "units", None) or "si"
+    write_outputs(results, out, overwrite=bool(args.force), report=not args.no_report,
+                  report_units=units)
     s = results.summary
     if getattr(args, "json", False):
         print_json(s)
         return 0
-    print(_terminal_summary(s, out))
+    print(_terminal_summary(s, out, units=units, report=not args.no_report))
     return 0
 
 
@@ -74,58 +80,105 @@ def _with_inventory(scenario, inventory: Path):
     return dataclasses.replace(scenario, motion=motion)
 
 
-def _terminal_summary(s: dict, out: Path) -> str:
+def _terminal_summary(s: dict, out: Path, *, units: str = "si", report: bool = True) -> str:
+    """What ``run`` prints: the key answers in engineering units, then every exceedance
+    and warning in words, then where the report is (units from the output contract)."""
+    from ..report._units import display_unit, fmt
+
     rows = []
-    pk = s["peaks"]
-    for d in ("x", "y"):
-        rows.append((f"base shear {d}", pk["base_shear"][d], "N"))
-    rows.append(("base axial", pk["base_axial"], "N"))
-    for d in ("x", "y"):
-        rows.append((f"overturning moment {d}", pk["overturning_moment"][d], "N*m"))
-    for d in ("x", "y", "z"):
-        rd = pk["relative_displacement"][d]
-        rows.append((f"relative displacement {d}", rd["value"], "m"))
+
+    def add(label, value, kind, where=""):
+        u = display_unit(kind, units) if kind else ""
+        rows.append((label, fmt(value, kind, units), u, where))
+
+    pk = s.get("peaks") or {}
+    bp = (s.get("base") or {}).get("peaks") or {}
+    big_f = max([abs(float(v)) for v in (pk.get("base_shear") or {}).values()] + [1.0])
+    for d, key in (("x", "Fx"), ("y", "Fy")):
+        v = (pk.get("base_shear") or {}).get(d)
+        if v is not None:
+            rows.append((f"peak base shear {d}", fmt(v, "force", units, ref=big_f),
+                         display_unit("force", units), _at_time(bp.get(key))))
+    if pk.get("base_axial") is not None:
+        add("peak vertical base force", pk["base_axial"], "force", _at_time(bp.get("Fz")))
+    for d, key in (("x", "Mx"), ("y", "My")):
+        v = (pk.get("overturning_moment") or {}).get(d)
+        if v is not None:
+            add(f"peak overturning moment about {d}", v, "moment", _at_time(bp.get(key)))
+    rd = pk.get("relative_displacement") or {}
+    if rd:
+        d = max(rd, key=lambda k: float((rd[k] or {}).get("value") or 0.0))
+        add("peak displacement (relative)", rd[d]["value"], "displacement", d)
     if pk.get("von_mises") is not None:
-        rows.append(("von Mises stress", pk["von_mises"], "Pa"))
-        rows.append(("principal tension", pk["principal_tension"], "Pa"))
-    for nm, e in s["sensors"].items():
-        a = e["peak_absolute_acceleration"]
-        rows.append((f"{nm}: abs acc x/y/z", "/".join(f"{a[d]:.3g}" for d in "xyz"), "m/s2"))
-    for nm, e in s["equipment"].items():
-        a = e["peak_absolute_acceleration"]
-        rows.append((f"{nm}: abs acc x/y/z", "/".join(f"{a[d]:.3g}" for d in "xyz"), "m/s2"))
-        if e["anchors"]:
-            rows.append((f"{nm}: max bolt tension", max(b["peak_tension"] for b in e["anchors"]), "N"))
-            rows.append((f"{nm}: max bolt shear", max(b["peak_shear"] for b in e["anchors"]), "N"))
-    contact = s["base"].get("contact")
+        add("peak von Mises stress", pk["von_mises"], "stress")
+    contact = (s.get("base") or {}).get("contact")
     if contact:
-        rows.append(("min contact pressure", contact["min_pressure"], "Pa"))
+        add("peak contact pressure", contact["peak_pressure"], "pressure")
+        add("least contact pressure", contact["min_pressure"], "pressure")
     st = s.get("stability") or {}
-    for key, label in (("sliding", "least sliding FS"), ("overturning", "least overturning FS")):
+    for key, label in (("sliding", "least sliding safety factor"),
+                       ("overturning", "least overturning safety factor")):
         v = (st.get(key) or {}).get("min_safety_factor")
         if v is not None:
             case = (st.get(key) or {}).get("case")
-            rows.append((label + (f" ({case} soil)" if case else ""), v, "-"))
-    q = (st.get("bearing") or {}).get("peak_pressure")
-    if q is not None:
-        rows.append(("peak bearing pressure", q / 1e3, "kPa"))
-    wi = s.get("worst_interaction")
-    if wi:
-        rows.append((f"bolt interaction ({wi['equipment']}, bolt {wi['bolt']})", wi["value"], "-"))
-    lines = [f"{s['title']} — {s['analysis']['method']} "
-             f"({s['analysis']['n_modes']} modes, {s['analysis']['n_steps']} steps)",
-             table(rows, ("peak", "value", "unit"))]
+            add(label, v, "ratio", f"{case} soil" if case else "")
+    for nm, e in (s.get("equipment") or {}).items():
+        a = e.get("peak_absolute_acceleration") or {}
+        if a:
+            d = max(a, key=lambda k: float(a[k]))
+            add(f"{nm}: peak acceleration", a[d], "acceleration", d)
     w = s.get("worst_dc")
     if w:
-        lines.append(f"worst demand/capacity: {w['value']:.3g} ({w['equipment']}, bolt {w['bolt']}) "
-                     f"— {w['note']}")
+        add("largest bolt demand/capacity", w["value"], "ratio",
+            f"{w['equipment']}, bolt {w['bolt']}")
+    wi = s.get("worst_interaction")
+    if wi:
+        add("largest bolt interaction", wi["value"], "ratio", f"{wi['equipment']}, bolt {wi['bolt']}")
+    modes = (s.get("modes") or {}).get("modes") or []
+    if modes:
+        add("first mode", modes[0]["frequency"], "frequency", str(modes[0].get("dominant_direction", "")))
+    an = s.get("analysis") or {}
+    lines = [f"{s.get('title', 'run')} — {an.get('method', '')} "
+             f"({an.get('n_modes', '—')} modes, {an.get('n_steps', '—')} steps)",
+             table(rows, ("result", "value", "unit", "where"))]
     if s.get("soil_cases"):
         lines.append("soil cases: " + ", ".join(
-            f"{c['name']} G = {c['shear_modulus'] / 1e6:.4g} MPa" for c in s["soil_cases"])
+            f"{c['name']} G = {fmt(c['shear_modulus'], 'modulus', units)} "
+            f"{display_unit('modulus', units)}" for c in s["soil_cases"])
             + " (peaks above: envelope)")
-    if st:
-        lines.append(f"stability: {st.get('note', '')}")
-    lines.append(f"warnings: {len(s['warnings'])}" + (" (see summary.json)" if s["warnings"] else ""))
-    lines.append(f"written: {out}")
+    ex = _exceedances(s)
+    for x in ex:
+        lines.append(f"EXCEEDED: {x}")
+    if not ex and (w or wi):
+        lines.append("no entered capacity is exceeded (screening comparison, not a code check)")
+    for x in s.get("warnings") or []:
+        lines.append(f"WARNING: {x}")
+    lines.append(f"results: {out}" + (f"  report: {out / 'report.html'}" if report else ""))
     lines.append(SCREENING_NOTE)
     return "\n".join(lines)
+
+
+def _at_time(p) -> str:
+    return f"t = {p['time']:.3g} s" if isinstance(p, dict) and p.get("time") is not None else ""
+
+
+def _exceedances(s: dict) -> list[str]:
+    """Comparisons above 1 and lost contact, in words."""
+    out = []
+    for nm, e in (s.get("equipment") or {}).items():
+        for k, b in enumerate(e.get("anchors") or [], start=1):
+            for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
+                              ("interaction_ratio", "tension-shear interaction")):
+                v = b.get(key)
+                if v is not None and v > 1.0:
+                    out.append(f"{nm} bolt {k}: {what} demand/capacity {v:.3g} (above 1)")
+    c = (s.get("base") or {}).get("contact") or {}
+    if c.get("uplift"):
+        out.append("the base loses contact (uplift): the linear soil-spring model does not hold "
+                   "there")
+    st = s.get("stability") or {}
+    for key in ("sliding", "overturning"):
+        v = (st.get(key) or {}).get("min_safety_factor")
+        if v is not None and v < 1.0:
+            out.append(f"least {key} safety factor {v:.3g} (below 1)")
+    return out

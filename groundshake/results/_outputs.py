@@ -45,7 +45,7 @@ def _damp_label(r: float) -> str:
 
 
 def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = False,
-                  n_shapes: int = 6, report: bool = True) -> Path:
+                  n_shapes: int = 6, report: bool = True, report_units: str | None = None) -> Path:
     """Write a run's files into ``out_dir`` (a new folder, moved into place when complete).
 
     Parameters
@@ -59,6 +59,8 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
     report : bool
         Also write report.html with ``groundshake.report.write_report`` when that
         stage is installed (inside the same atomic folder).
+    report_units : {"si", "us"}, optional
+        Display units of the report (default: the scenario's ``[report] units``).
 
     Returns
     -------
@@ -89,7 +91,7 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         if report:
             from ..report import write_report
 
-            write_report(tmp, progress=False)
+            write_report(tmp, progress=False, units=report_units)
     return out_dir
 
 

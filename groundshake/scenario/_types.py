@@ -344,6 +344,14 @@ class FloorSpectraSettings:
                                 doc="period range {min, max, count}")
 
 
+@dataclass(frozen=True, kw_only=True)
+class ReportSettings:
+    """The ``[report]`` table."""
+
+    units: str = spec("choice", "si", choices=("si", "us"),
+                      doc="display units of report.html: si (kN, mm, MPa) or us (kip, in, psi)")
+
+
 # --- the scenario ------------------------------------------------------------------------
 
 @dataclass(frozen=True, kw_only=True)
@@ -375,6 +383,8 @@ class Scenario:
                                       doc="analysis")
     floor_spectra: FloorSpectraSettings = spec("table", factory=FloorSpectraSettings,
                                                cls=FloorSpectraSettings, doc="floor spectra")
+    report: ReportSettings = spec("table", factory=ReportSettings, cls=ReportSettings,
+                                  doc="report display")
     source: str = _internal("<dict>")
     base_dir: Path = _internal(factory=Path.cwd)
     notes: tuple[str, ...] = _internal(())
