@@ -24,15 +24,16 @@ import numpy as np
 import pytest
 
 from groundshake._errors import InputError
-from groundshake.report import CAUTIONS, SECTIONS, fp_force, write_report
+from groundshake.report import CAUTIONS, SECTIONS, write_report
+from groundshake.results._anchorage import fp_comparison
 from groundshake.report._figures import exterior_faces, voxel_grid
 from groundshake.report._html import esc, toml_text
 
 from test_report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
                                  HOSTILE_TITLE, make_output_folder)
 
-SECTION_IDS = ["inputs", "model", "modes", "results", "anchorage", "floor-spectra",
-               "warnings", "cautions", "provenance"]
+SECTION_IDS = ["summary", "model", "modes", "response", "anchorage", "floor-spectra",
+               "motion", "inputs", "provenance"]
 
 
 class _Dom(HTMLParser):
@@ -93,7 +94,7 @@ def test_report_is_self_contained(plain):
 def test_images_are_embedded_png(plain):
     _, text = plain
     imgs = [a["src"] for t, a in _dom(text).tags if t == "img"]
-    # Inputs (3 records, spectra), model, modes, stress, histories, floor spectra, envelope
+    # model, mode shapes, stress, 2 history figures, floor spectra, 3 records, ground spectra
     assert len(imgs) >= 10
     for src in imgs:
         assert src.startswith("data:image/png;base64,")
@@ -115,7 +116,7 @@ def test_every_section_present_in_order(plain):
 
 def test_cautions_of_the_trade(plain):
     _, text = plain
-    m = re.search(r'<section id="cautions">(.*?)</section>', text, re.S)
+    m = re.search(r'<section id="summary">(.*?)</section>', text, re.S)   # on the first page
     body = html.unescape(re.sub(r"<[^>]+>", " ", m.group(1))).lower()
     # issue 6 "Cautions": the four of the trade
     for words in (("linear-elastic", "sliding", "uplift", "soil nonlinearity"),
@@ -142,31 +143,34 @@ def test_bolt_demand_over_capacity(plain):
     _, text = plain
     m = re.search(r'<section id="anchorage">(.*?)</section>', text, re.S)
     body = m.group(1)
-    # D/C = demand / capacity (common practice): bolt 2, 95 kN over 80 kN entered
-    assert f"{95e3 / 80e3:.4g}" in body
-    assert f"{22e3 / 50e3:.4g}" in body                         # bolt 4 shear 22 kN / 50 kN
+    # D/C = demand / capacity (common practice): bolt 2, 95 kN over 80 kN entered, 3 digits
+    assert f"{95e3 / 80e3:.3g}" in body
+    assert f"{22e3 / 50e3:.3g}" in body                         # bolt 4 shear 22 kN / 50 kN
     over = re.findall(r'<tr class="over">(.*?)</tr>', body, re.S)
-    assert len(over) == 1 and "above entered capacity" in over[0]
+    assert len(over) == 1 and "ABOVE the capacity entered" in over[0]
     assert "not a code check" in html.unescape(body)
-    # The largest ratio is also in the key figures at the top
-    head = text.split("<main>")[0]
-    assert f"{95e3 / 80e3:.3g}" in head
+    # The largest ratio is on the first page's summary, highlighted, and in words
+    first = re.search(r'<section id="summary">(.*?)</section>', text, re.S).group(1)
+    assert f"{95e3 / 80e3:.3g}" in first
+    assert "Bolt 2 of transformer: tension demand is 1.19 times the capacity entered" in \
+        html.unescape(first)
 
 
-def test_fp_force_asce7_13_3_1():
+def test_fp_comparison_asce7_13_3_1():
     w = 18000 * 9.80665
+    kw = dict(anchors=np.array([[-1.0, -0.6], [1.0, -0.6], [1.0, 0.6], [-1.0, 0.6]]),
+              mass=18000.0, cg_height=1.6, dead_load_factor=1.0)
     # ASCE 7-16 §13.3.1: 0.4·1·1·W·1/2.5 = 0.16 W, below the floor 0.3·SDS·Ip·W
-    f = fp_force(weight=w, sds=1.0, ap=1.0, rp=2.5, ip=1.0, z_over_h=0.0)
-    assert f["fp_formula"] == pytest.approx(0.16 * w, rel=1e-12)
+    f = fp_comparison(weight=w, sds=1.0, ap=1.0, rp=2.5, ip=1.0, z_over_h=0.0, **kw)
+    assert f["fp_unbounded"] == pytest.approx(0.16 * w, rel=1e-12)
     assert f["fp"] == pytest.approx(0.3 * w, rel=1e-12)
     assert f["fv"] == pytest.approx(0.2 * w, rel=1e-12)       # §13.3.1.2: 0.2·SDS·Wp
     # 0.4·2.5·1·W·3/(2.5/1) = 1.2 W  (within 0.3 W .. 1.6 W)
-    f = fp_force(weight=w, sds=1.0, ap=2.5, rp=2.5, ip=1.0, z_over_h=1.0)
+    f = fp_comparison(weight=w, sds=1.0, ap=2.5, rp=2.5, ip=1.0, z_over_h=1.0, **kw)
     assert f["fp"] == pytest.approx(1.2 * w, rel=1e-12)
-    # 0.4·2.5·1.5·W·3/(1.5/1.5) = 4.5 W, held at the ceiling 1.6·1.5·1 W = 2.4 W
-    f = fp_force(weight=w, sds=1.5, ap=2.5, rp=1.5, ip=1.5, z_over_h=1.0)
-    assert f["fp_max"] == pytest.approx(1.6 * 1.5 * 1.5 * w, rel=1e-12)
-    assert f["fp"] == pytest.approx(f["fp_max"], rel=1e-12)
+    # 0.4·2.5·1.5·W·3/(1.5/1.5) = 4.5 W, held at the ceiling 1.6·1.5·1.5 W
+    f = fp_comparison(weight=w, sds=1.5, ap=2.5, rp=1.5, ip=1.5, z_over_h=1.0, **kw)
+    assert f["fp"] == pytest.approx(1.6 * 1.5 * 1.5 * w, rel=1e-12)
 
 
 def test_hostile_text_is_escaped(hostile):
@@ -192,8 +196,8 @@ def test_missing_files_leave_notes_not_errors(tmp_path):
     text = write_report(out, progress=False).read_text(encoding="utf-8")
     ids = [a.get("id") for t, a in _dom(text).tags if t == "section"]
     assert ids == SECTION_IDS
-    for stem in ("histories", "records", "modes", "element_peaks"):
-        assert f"{stem}.csv was not in the output folder" in text
+    for stem in ("histories", "records", "modes", "element_peaks", "mesh"):
+        assert f"{stem}." in text and "was not in the output folder" in text
 
 
 def test_no_summary_is_an_input_error(tmp_path):
@@ -238,7 +242,10 @@ def test_scenario_echo_round_trips_through_tomllib(plain):
 
     assert back == drop_none(scen)
     assert "# lowpass_hz: not set" in echo                      # a default shown, not dropped
-    assert esc("# rotary_inertia: not set") in text
+    # the report's appendix is re-runnable: TOML that parses, without the notes key
+    m = re.search(r"<details><summary>The scenario as run.*?<pre>(.*?)</pre></details>", text, re.S)
+    shown = tomllib.loads(html.unescape(m.group(1)))            # TOML 1.0 via tomllib
+    assert "notes" not in shown and shown["title"] == scen["title"]
 
 
 def test_stress_figure_caption_names_the_largest_value(plain):
@@ -248,7 +255,7 @@ def test_stress_figure_caption_names_the_largest_value(plain):
     top = vm.max() / 1e6                                        # numpy on the CSV, in MPa
     cap = re.search(r'<figure id="fig-stress">.*?<figcaption>(.*?)</figcaption>', text, re.S)
     assert cap and "MPa" in cap.group(1)
-    assert f"{top:.4g} MPa" in html.unescape(cap.group(1))
+    assert f"{top:.3g}\u202fMPa" in html.unescape(cap.group(1))  # 3 significant digits
 
 
 def test_exterior_face_counts():
@@ -290,39 +297,35 @@ def test_fp_given_by_the_run_is_shown_beside_the_time_history(tmp_path):
                                            "time_history_peak_shear": 22e3}
     (out / "summary.json").write_text(json.dumps(s))
     text = write_report(out, progress=False).read_text(encoding="utf-8")
-    body = re.search(r'<section id="anchorage">(.*?)</section>', text, re.S).group(1)
-    # ratio = time-history peak / static value (definition of the comparison)
-    assert f"{95e3 / 40e3:.4g}" in body and f"{22e3 / 20e3:.4g}" in body
-    assert "52956" in body                                      # Fp itself, in N, 4 digits
-    assert "not a code check" in html.unescape(body)
+    body = html.unescape(re.search(r'<section id="anchorage">(.*?)</section>', text, re.S).group(1))
+    # ratio = time-history peak / static value (definition of the comparison), 3 digits
+    assert f"ratio {95e3 / 40e3:.3g}" in body and f"ratio {22e3 / 20e3:.3g}" in body
+    assert ">53<" in body.replace("\u202f", "")               # Fp 52 956 N = 53 kN (SI prefix)
+    assert "not a code check" in body
 
 
 def test_corrected_record_is_drawn_on_the_original_time(tmp_path):
-    import csv as _csv
+    """A corrected record written from the start of its lead pad is moved back by the
+    pad the run reports (summary records[i].pad_before_s), so both share the time of the
+    record as read."""
     import json
+    from unittest import mock
 
-    from groundshake.report._load import load_output
-    from groundshake.report._report import _Builder
+    import groundshake.report._figures as F
 
-    out = make_output_folder(tmp_path / "run", files=())
-    dt = 0.01
-    raw_t = np.arange(1001) * dt                 # 10 s as read
-    cor_t = np.arange(1601) * dt                 # 3 s of zeros padded at each end
-    with open(out / "records.csv", "w", newline="") as fh:
-        w = _csv.writer(fh)
-        w.writerow(["time [s]", "x raw time [s]", "x raw acc [m/s2]", "x corrected time [s]",
-                    "x corrected acc [m/s2]"])
-        for k in range(cor_t.size):
-            r = [raw_t[k], 0.1] if k < raw_t.size else ["", ""]
-            w.writerow([cor_t[k], *r, cor_t[k], 0.1])
-    b = _Builder(load_output(out))
-    t = b.f.table("records")
-    cols = {("acc", "raw"): 2, ("acc", "corrected"): 4}
-    time_for = lambda i, comp, state: t.column(i - 1)           # noqa: E731
-    # Boore (2005): the pads are equal at both ends, so the lead pad is half the extra
-    assert b.pad_before("x", cols, time_for) == pytest.approx(3.0, abs=1e-9)
+    out = make_output_folder(tmp_path / "run", files=("records",))
     s = json.loads((out / "summary.json").read_text())
-    s["records"][0]["direction"] = "x"
-    s["records"][0]["pad_before_s"] = 2.5                       # stated: taken as given
+    s["records"][0]["pad_before_s"] = 2.5
     (out / "summary.json").write_text(json.dumps(s))
-    assert _Builder(load_output(out)).pad_before("x", cols, time_for) == 2.5
+    seen = {}
+
+    def spy(rows, title=""):
+        seen.setdefault(title, rows)
+        return None
+
+    with mock.patch.object(F, "record_figure", spy):
+        write_report(out, progress=False)
+    rows = seen["direction x"]
+    (t_raw, _), (t_cor, _) = rows[0][2], rows[0][3]
+    assert t_raw[0] == pytest.approx(0.0)
+    assert t_cor[0] == pytest.approx(-2.5)                      # the pad, at negative time

@@ -87,7 +87,7 @@ def test_demo_writes_the_report_and_says_where():
     assert f"report: {report}" in out
     text = report.read_text(encoding="utf-8")
     ids = re.findall(r'<section id="([^"]+)"', text)
-    assert ids == ["inputs", "model", "modes", "results", "anchorage", "floor-spectra",
+    assert ids == ["summary", "model", "modes", "response", "anchorage", "floor-spectra",
                    "warnings", "cautions", "provenance"]       # issue 6 sections
     assert "invented" in text.lower()                           # the site is labelled invented
     # the demo's inputs sit beside the results, so the run can be repeated by hand

@@ -1,6 +1,6 @@
 """An invented run-output folder for the report tests (INVENTED TEST DATA, not a result
-of any analysis): the files of docs/INTERNALS.md "Files in DIR" with plausible shapes
-and units, so the report can be tested without running the pipeline.
+of any analysis): the files of the output contract (groundshake/results/_schema.py), with
+plausible shapes and units, so the report can be tested without running the pipeline.
 
 Sources of the checks in this file: counting of a structured hexahedral grid
 (n_nodes = (nx+1)(ny+1)(nz+1) for a full box; common practice) and RFC 4180 (CSV).
@@ -12,6 +12,8 @@ import json
 from pathlib import Path
 
 import numpy as np
+
+from groundshake.results._schema import COLUMNS, HISTORY_BASE, header, history_label
 
 HOSTILE_TITLE = "<script>alert(1)</script> pad & \"co\" 'quoted' $x$"
 HOSTILE_EQUIPMENT = "<img src=x onerror=alert(2)>"
@@ -103,38 +105,60 @@ def make_output_folder(path, *, hostile: bool = False, capacity: bool = True,
     }
     tension = [41e3, 95e3, 30e3, 12e3]
     shear = [20e3, 21e3, 19e3, 22e3]
+    anchors_out = []
+    for (px, py), a, v in zip(anchors, tension, shear):
+        b = {"position": [px, py], "peak_tension": a, "peak_shear": v, "time_of_peak_tension": 5.0,
+             "time_of_peak_shear": 5.1, "min_axial": -a}
+        if capacity:
+            b.update(dc_tension=a / 80e3, dc_shear=v / 50e3)
+        anchors_out.append(b)
+    f = np.array([7.9, 8.4, 12.5, 15.0, 22.0, 31.0])
     summary = {
         "title": title,
-        "peaks": {"base_shear": {"x": 3.1e5, "y": 2.4e5}, "base_moment": {"x": 4.0e5, "y": 5.2e5}},
-        "sensors": {sensor: {"peak_absolute_acceleration": {"x": 2.6, "y": 2.0, "z": 1.1},
+        "schema": {"version": 2},
+        "peaks": {"base_shear": {"x": 3.1e5, "y": 2.4e5}, "base_axial": 1.1e5,
+                  "overturning_moment": {"x": 4.0e5, "y": 5.2e5}, "torsion": 3.0e-8,
+                  "relative_displacement": {d: {"value": 1.2e-4, "time": 5.0, "at": [6.0, 4.0, 0.6]}
+                                            for d in "xyz"},
+                  "von_mises": 1.9e6, "principal_tension": 1.2e6},
+        "sensors": {sensor: {"position": [6.0, 4.0, 0.6],
+                             "peak_absolute_acceleration": {"x": 2.6, "y": 2.0, "z": 1.1},
                              "peak_relative_displacement": {"x": 1.2e-4, "y": 9e-5, "z": 3e-5}}},
-        "equipment": {eq: {"peak_absolute_acceleration": {"x": 5.1, "y": 4.2, "z": 1.9},
-                           "anchors": [{"peak_tension": a, "peak_shear": b}
-                                       for a, b in zip(tension, shear)]}},
-        "modes": {"count": 6, "cutoff_hz": 50.0},
+        "equipment": {eq: {"mass": 18000.0, "cg": [3.0, 2.0, 2.2], "damping": 0.03,
+                           "frequency_hz": [9.0, 9.0, 20.0],
+                           "peak_absolute_acceleration": {"x": 5.1, "y": 4.2, "z": 1.9},
+                           "peak_relative_displacement": {"x": 1e-3, "y": 1e-3, "z": 1e-4},
+                           "anchors": anchors_out}
+                      | ({"capacity": {"tension": 80e3, "shear": 50e3}} if capacity else {})},
+        "worst_dc": ({"value": 95e3 / 80e3, "equipment": eq, "bolt": 2} if capacity else None),
+        "modes": {"n_modes": 6, "modes": [{"mode": k + 1, "frequency": float(f[k]),
+                                           "period": float(1 / f[k]), "dominant_direction": "x"}
+                                          for k in range(6)]},
         "warnings": ["Only 84 % of the mass in z is in the modes kept; the rest is carried by "
                      "the missing-mass term.", f"Sensor '{sensor}' sits on an edge."],
         "cautions": ["This is an invented folder for tests."],
         "scenario": scenario,
-        "records": [{"name": f"{station}.{c}", "component": c, "source": f"demo-{c}.mseed",
-                     "pga": float(np.max(np.abs(ground[k]))), "pgv": 0.2, "pgd": 0.05,
-                     "arias_intensity": 0.9, "d5_95": 6.1, "cav": 4.4,
+        "records": [{"direction": c, "name": f"{station}.{c}", "component": c,
+                     "source": f"demo-{c}.mseed",
+                     "measures": {"pga": float(np.max(np.abs(ground[k]))), "pgv": 0.2, "pgd": 0.05,
+                                  "arias_intensity": 0.9, "d5_95": 6.1, "cav": 4.4},
                      "history": ["mean removed (whole record)", "baseline order 1 fitted to velocity",
                                  "Butterworth high-pass 0.1 Hz, order 4, acausal, padded"],
                      "metadata": {"station": station, "network": "XX"}}
                     for k, c in enumerate("xyz")],
-        "model": {"nodes": int(len(nodes)), "elements": int(len(centres)), "dofs": 3 * len(nodes),
-                  "element": "hex8-incompatible",
-                  "springs": {"kx": {"value": 1.1e9, "formula": "Gazetas (1991) Table 1, Kx"},
-                              "kz": {"value": 1.6e9, "formula": "Gazetas (1991) Table 1, Kz"}}},
-        "analysis": {"method": "modal", "solver": "scipy", "modes": 6, "dt": dt},
-        "stresses": {"peak_von_mises": 1.9e6},
-        "base": {"area": 24.0, "lx": 6.0, "ly": 4.0},
-        "floor_spectra": {"points": [eq], "broadening_percent": 15.0},
+        "model": {"n_nodes": int(len(nodes)), "n_elements": int(len(centres)),
+                  "n_dof": 3 * len(nodes), "element": "hex8-incompatible",
+                  "materials": {"concrete": {"youngs_modulus": 30e9, "poisson_ratio": 0.2,
+                                             "density": 2400.0}},
+                  "support": {"kind": "soil", "springs": {"k_x": 1.1e9, "k_z": 1.6e9}},
+                  "base": {"area": 24.0, "lx": 6.0, "ly": 4.0}},
+        "analysis": {"method": "modal", "n_modes": 6, "dt": dt, "n_steps": n, "cutoff_hz": 50.0},
+        "stresses": {"von_mises": {"value": 1.9e6, "at": [3.0, 2.0, 1.2], "time": 5.0}},
+        "base": {"peaks": {k: {"value": 1e5, "time": 5.0} for k in ("Fx", "Fy", "Fz", "Mx", "My", "Mz")}},
+        "floor_spectra": {"broadening_percent": 15.0},
         "provenance": {"version": "0.1.0", "command": f"groundshake run pad.toml -o out  # {title}",
                        "date": "2026-01-01T00:00:00Z",
-                       "inputs": {"pad.toml": "0" * 64, "demo-x.mseed": "1" * 64},
-                       "solver": "scipy", "settings": {"cutoff_hz": 50.0}},
+                       "inputs": {"pad.toml": "0" * 64, "demo-x.mseed": "1" * 64}},
     }
     (out / "summary.json").write_text(json.dumps(summary, indent=1), encoding="utf-8")
     want = set(files) if files is not None else None
@@ -146,60 +170,57 @@ def make_output_folder(path, *, hostile: bool = False, capacity: bool = True,
         base = np.stack([1e5 * g for g in ground] + [2e5 * ground[1], 2e5 * ground[0],
                                                     1e4 * ground[2]])
         cols = [t, *ground, *base, *(1.3 * ground), *(2.1 * ground),
-                *(np.abs(g) * 1e4 for g in ground[[0, 1, 0, 1]]),
-                *(np.abs(g) * 5e3 for g in ground[[1, 0, 1, 0]])]
-        header = (["time [s]", "ground x [m/s2]", "ground y [m/s2]", "ground z [m/s2]",
-                   "base Fx [N]", "base Fy [N]", "base Fz [N]", "base Mx [N m]", "base My [N m]",
-                   "base Mz [N m]"]
-                  + [f"sensor {sensor} abs acc {c} [m/s2]" for c in "xyz"]
-                  + [f"equipment {eq} abs acc {c} [m/s2]" for c in "xyz"]
-                  + [f"anchor {eq} {k} tension [N]" for k in range(1, 5)]
-                  + [f"anchor {eq} {k} shear [N]" for k in range(1, 5)])
-        _write_csv(out / "histories.csv", header, np.column_stack(cols))
+                *(ground[k] * 1e4 for k in (0, 1, 0, 1)),
+                *(np.abs(ground[k]) * 5e3 for k in (1, 0, 1, 0))]
+        head = ([header("time", "time")] + [history_label("ground acc", direction=c).header for c in "xyz"]
+                + [c.header for c in HISTORY_BASE]
+                + [history_label("abs acc", name=sensor, direction=c).header for c in "xyz"]
+                + [history_label("abs acc", name=eq, direction=c).header for c in "xyz"]
+                + [history_label("tension", name=eq, bolt=k).header for k in range(1, 5)]
+                + [history_label("shear", name=eq, bolt=k).header for k in range(1, 5)])
+        _write_csv(out / "histories.csv", head, np.column_stack(cols))
     if keep("records"):
-        header, cols = ["time [s]"], [t]
+        head, cols = ["time [s]"], [t]
         for k, c in enumerate("xyz"):
             raw = ground[k] + 0.05
-            vel = np.cumsum(raw) * dt
             for state, a in (("raw", raw), ("corrected", ground[k])):
                 v = np.cumsum(a) * dt
-                header += [f"{c} {state} acc [m/s2]", f"{c} {state} vel [m/s]",
-                           f"{c} {state} disp [m]"]
-                cols += [a, v, np.cumsum(v) * dt]
-            del vel
-        _write_csv(out / "records.csv", header, np.column_stack(cols))
+                head += [f"{c} {state} time [s]", f"{c} {state} acc [m/s2]",
+                         f"{c} {state} vel [m/s]", f"{c} {state} disp [m]"]
+                cols += [t, a, v, np.cumsum(v) * dt]
+        _write_csv(out / "records.csv", head, np.column_stack(cols))
     periods = np.geomspace(0.02, 5.0, 60)
     shape = 1.0 + 1.5 * np.exp(-np.log(periods / 0.3) ** 2)
     if keep("ground_spectra"):
-        header = ["period [s]"] + [f"{c} psa {d}% [m/s2]" for d in (2, 5) for c in "xyz"] \
-                 + ["target psa 5% [m/s2]"]
-        cols = [periods] + [pga * shape * (1.2 if d == 2 else 1.0) for d in (2, 5)
-                            for pga in (2.0, 1.5, 0.8)] + [9.80665 * np.minimum(1.0, 0.6 / periods)]
-        _write_csv(out / "ground_spectra.csv", header, np.column_stack(cols))
+        rows = []
+        for c, pga in zip("xyz", (2.0, 1.5, 0.8)):
+            for d in (0.02, 0.05):
+                rows += [[c, d, p, pga * s_ * (1.2 if d == 0.02 else 1.0)] for p, s_ in zip(periods, shape)]
+        rows += [["target", 0.05, p, 9.80665 * min(1.0, 0.6 / p)] for p in periods]
+        _write_csv(out / "ground_spectra.csv", [c.header for c in COLUMNS["ground_spectra"]], rows)
     if keep("floor_spectra"):
-        header, cols = ["period [s]"], [periods]
-        for c in "xyz":
-            for d in (2, 5):
-                amp = 2.0 * shape * np.exp(-np.log(periods / 0.11) ** 2) + shape
-                header += [f"{eq} {c} raw psa {d}% [m/s2]", f"{eq} {c} broadened psa {d}% [m/s2]"]
-                cols += [amp, 1.05 * amp]
-        header += ["envelope x broadened psa 5% [m/s2]"]
-        cols += [cols[-1] * 1.1]
-        _write_csv(out / "floor_spectra.csv", header, np.column_stack(cols))
+        rows = []
+        amp = 2.0 * shape * np.exp(-np.log(periods / 0.11) ** 2) + shape
+        for pt in (f"{eq} mount", "envelope"):
+            for c in "xyz":
+                for d in (0.02, 0.05):
+                    rows += [[pt, c, d, p, a, 1.05 * a] for p, a in zip(periods, amp)]
+        _write_csv(out / "floor_spectra.csv", [c.header for c in COLUMNS["floor_spectra"]], rows)
     if keep("modes"):
-        f = np.array([7.9, 8.4, 12.5, 15.0, 22.0, 31.0])
-        ratio = np.array([[62, 0, 0], [0, 60, 0], [0, 0, 1], [20, 0, 0], [0, 22, 0], [0, 0, 83.]])
-        rows = [[k + 1, f[k], 1 / f[k], *ratio[k], *ratio[:k + 1].sum(axis=0)] for k in range(6)]
-        _write_csv(out / "modes.csv",
-                   ["mode", "frequency [Hz]", "period [s]"]
-                   + [f"effective mass ratio {c} [%]" for c in "xyz"]
-                   + [f"cumulative mass ratio {c} [%]" for c in "xyz"], rows)
+        ratio = np.array([[62, 0, 0], [0, 60, 0], [0, 0, 1], [20, 0, 0], [0, 22, 0], [0, 0, 83.]]) / 100
+        rot = np.array([[0, 30, 0], [40, 0, 0], [0, 0, 90], [0, 10, 0], [12, 0, 0], [0, 0, 1.]]) / 100
+        rows = [[k + 1, f[k], 1 / f[k], 0.05, *ratio[k], *ratio[:k + 1].sum(axis=0), *rot[k],
+                 "xyz"[int(np.argmax(ratio[k]))]] for k in range(6)]
+        _write_csv(out / "modes.csv", [c.header for c in COLUMNS["modes"]], rows)
+    xs, ys, zs = _grid_lines()
+    cells = np.column_stack([np.searchsorted(xs, centres[:, 0]) - 1, np.searchsorted(ys, centres[:, 1]) - 1,
+                             np.searchsorted(zs, centres[:, 2]) - 1])
+    node_cells = np.column_stack([np.argmin(np.abs(nodes[:, [a]] - L[None, :]), axis=1)
+                                  for a, L in enumerate((xs, ys, zs))])
     if keep("element_peaks"):
         x, y, z = centres.T
         vm = 2e5 + 3e5 * x * (1.2 - z) + 1e5 * y
-        _write_csv(out / "element_peaks.csv",
-                   ["x [m]", "y [m]", "z [m]", "von mises [Pa]", "principal tension [Pa]",
-                    "principal compression [Pa]"],
+        _write_csv(out / "element_peaks.csv", [c.header for c in COLUMNS["element_peaks"][:6]],
                    np.column_stack([centres, vm, 0.6 * vm, -0.8 * vm]))
     if keep("mode_shapes"):
         x, y, z = nodes.T
@@ -207,9 +228,17 @@ def make_output_folder(path, *, hostile: bool = False, capacity: bool = True,
         shapes = [np.column_stack([z, 0 * z, 0 * z]), np.column_stack([0 * z, z, 0 * z]),
                   np.column_stack([-r[:, 1], r[:, 0], 0 * z]),
                   np.column_stack([0 * z, 0 * z, np.sin(np.pi * x / 6.0)])]
-        header = ["x [m]", "y [m]", "z [m]"] + [f"mode {m} u{c} [m]" for m in range(1, 5)
-                                                for c in "xyz"]
-        _write_csv(out / "mode_shapes.csv", header, np.column_stack([nodes, *shapes]))
+        head = ["x [m]", "y [m]", "z [m]"] + [f"mode {m} u{c} [m]" for m in range(1, 5) for c in "xyz"]
+        _write_csv(out / "mode_shapes.csv", head, np.column_stack([nodes, *shapes]))
+    if keep("mesh"):
+        mesh = {"schema_version": 2, "lines": {"x": xs.tolist(), "y": ys.tolist(), "z": zs.tolist()},
+                "parts": ["mat", "pedestal"], "cells": cells.tolist(),
+                "cell_part": (centres[:, 2] > 0.6).astype(int).tolist(),
+                "node_cells": node_cells.tolist(),
+                "equipment": [{"name": eq, "footprint_lo": [1.8, 1.2, 1.2], "footprint_hi": [4.2, 2.8, 1.2],
+                               "cg": [3.0, 2.0, 2.8], "anchors": [[3 + a, 2 + b, 1.2] for a, b in anchors]}],
+                "sensors": [{"name": sensor, "at": [6.0, 4.0, 0.6]}]}
+        (out / "mesh.json").write_text(json.dumps(mesh), encoding="utf-8")
     return out
 
 
