@@ -4,12 +4,17 @@ PNG (not blank, figures drawn), its DOM holds every section, and it prints to PD
 Sources: Chromium itself as the independent renderer (Debian's package; `.ci/run`
 installs it); the PNG signature (ISO/IEC 15948 §5.2) and matplotlib's PNG reader as an
 independent decoder; the PDF header "%PDF-" (ISO 32000-1 §7.5.2); a blank page is one
-uniform colour (definition); the report sections listed in issue 6.
+uniform colour (definition); the report sections listed in issues 6 and 16; exact unit definitions of NIST SP 811
+Appendix B (1 kip = 4448.2216152605 N, 1 in = 0.0254 m) and standard gravity 9.80665 m/s²
+(CGPM 1901) for the unit checks; pypdf-free page counting by the PDF page-object
+dictionaries ("/Type /Page", ISO 32000-1 §7.7.3.3).
 """
 from __future__ import annotations
 
+import re
 import shutil
 import subprocess
+from html.parser import HTMLParser
 from pathlib import Path
 
 import numpy as np
@@ -19,8 +24,8 @@ from test_report_fixture import demo_run, make_output_folder, pipeline_available
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
-SECTION_IDS = ["inputs", "model", "modes", "results", "anchorage", "floor-spectra",
-               "warnings", "cautions", "provenance"]
+SECTION_IDS = ["summary", "model", "modes", "response", "anchorage", "floor-spectra",
+               "motion", "inputs", "provenance"]
 
 
 def _chromium() -> str | None:
@@ -102,3 +107,130 @@ def test_prints_to_pdf(report_file, tmp_path):
     data = pdf.read_bytes()
     assert data[:5] == b"%PDF-"                                 # ISO 32000-1 §7.5.2
     assert len(data) > 50_000                                   # pages with figures, not empty
+    pages = len(re.findall(rb"/Type\s*/Page(?![s\w])", data))   # ISO 32000-1 §7.7.3.3 page objects
+    assert 1 <= pages <= 12                                     # issue 16: the demo prints in ≤ 12 pages
+    print(f"printed pages: {pages}")
+
+
+class _Visible(HTMLParser):
+    """The text a reader sees: everything but <style>, <script> and the inside of a
+    closed <details> (its <summary> stays visible); tables' header cells collected."""
+
+    def __init__(self):
+        super().__init__(convert_charrefs=True)
+        self.stack: list[str] = []
+        self.text: list[str] = []
+        self.headers: list[str] = []
+        self._th = False
+
+    def handle_starttag(self, tag, attrs):
+        self.stack.append(tag)
+        self._th = tag == "th"
+
+    def handle_endtag(self, tag):
+        while self.stack:
+            if self.stack.pop() == tag:
+                break
+        self._th = False
+
+    def _hidden(self) -> bool:
+        if "style" in self.stack or "script" in self.stack:
+            return True
+        if "details" in self.stack:
+            i = len(self.stack) - 1 - self.stack[::-1].index("details")
+            return "summary" not in self.stack[i:]
+        return False
+
+    def handle_data(self, data):
+        if not self._hidden():
+            self.text.append(data)
+            if self._th:
+                self.headers.append(data)
+
+
+def _visible(dom: str) -> _Visible:
+    v = _Visible()
+    v.feed(dom)
+    v.close()
+    return v
+
+
+def _summary_keys(summary: dict) -> set[str]:
+    out = set()
+
+    def walk(d):
+        if isinstance(d, dict):
+            for k, v in d.items():
+                out.add(str(k))
+                walk(v)
+        elif isinstance(d, list):
+            for v in d:
+                walk(v)
+    walk({k: v for k, v in summary.items() if k != "scenario"})
+    return out
+
+
+def test_reader_sees_words_units_and_no_round_off(rendered, report_file):
+    import json
+
+    _, r = rendered
+    v = _visible(r.stdout)
+    text = " ".join(" ".join(v.text).split())
+    summary = json.loads((report_file.parent / "summary.json").read_text())
+    scenario_keys = set()
+
+    def walk(d):
+        if isinstance(d, dict):
+            for k, x in d.items():
+                scenario_keys.add(str(k))
+                walk(x)
+        elif isinstance(d, list):
+            for x in d:
+                walk(x)
+    walk(summary.get("scenario") or {})
+    # no JSON-style keys of summary.json in what a reader sees (scenario keys may be named:
+    # they are what a user types)
+    snake = {k for k in _summary_keys(summary) if "_" in k} - scenario_keys
+    shown = sorted(k for k in snake if re.search(rf"(?<![\w.]){re.escape(k)}(?![\w])", text))
+    assert shown == [], shown
+    # engineering units are present in the headings and the summary
+    for unit in ("[kN]", "[Hz]", "[mm]", "[MPa]", "[g]", "[%]"):
+        assert unit in " ".join(v.headers) or unit in text, unit
+    assert "kN·m" in text and "kPa" in text
+    # no round-off shown as a result: no power-of-ten notation below 1e-9
+    tiny = re.findall(r"×10\^?−?-?(\d+)", text)
+    assert not [e for e in tiny if int(e) >= 9], tiny
+    assert not re.search(r"\de-(?:0*[1-9]\d)", text)         # nor 1e-27 style
+    # the first page's summary table: its answers, in words, with units
+    first = text.split("Summary", 2)[-1][:4000]
+    for words in ("Peak base shear, x", "Peak overturning moment about x", "Mode 1 frequency",
+                  "Largest bolt demand / entered capacity", "Warnings of this run"):
+        assert words in first, words
+    # the base shear on the first page equals summary.json in kN (1 kN = 1000 N, SI)
+    bs = summary["peaks"]["base_shear"]["x"] / 1e3
+    assert f"{bs:.3g}" in first
+
+
+@pytest.fixture(scope="module")
+def us_report(report_file, tmp_path_factory):
+    from groundshake.report import write_report
+
+    return write_report(report_file.parent, path=tmp_path_factory.mktemp("us") / "us.html",
+                        progress=False, units="us")
+
+
+def test_us_customary_units_on_request(us_report, report_file, tmp_path):
+    import json
+
+    r = _run(["--dump-dom", us_report.as_uri()], tmp_path / "profile")
+    v = _visible(r.stdout)
+    text = " ".join(" ".join(v.text).split())
+    heads = " ".join(v.headers)
+    for unit in ("[kip]", "[in]", "[psi]", "[g]"):
+        assert unit in heads or unit in text, unit
+    assert "kip·ft" in text and "ksf" in text
+    assert "[kN]" not in heads and "[mm]" not in heads
+    summary = json.loads((report_file.parent / "summary.json").read_text())
+    kip = summary["peaks"]["base_shear"]["x"] / 4448.2216152605  # NIST SP 811: 1 kip
+    assert f"{kip:.3g}" in text
+

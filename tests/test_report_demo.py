@@ -88,7 +88,7 @@ def test_demo_writes_the_report_and_says_where():
     text = report.read_text(encoding="utf-8")
     ids = re.findall(r'<section id="([^"]+)"', text)
     assert ids == ["summary", "model", "modes", "response", "anchorage", "floor-spectra",
-                   "warnings", "cautions", "provenance"]       # issue 6 sections
+                   "motion", "inputs", "provenance"]          # issue 16: answers first
     assert "invented" in text.lower()                           # the site is labelled invented
     # the demo's inputs sit beside the results, so the run can be repeated by hand
     assert (folder / "examples" / "transformer-pad.toml").is_file()
