@@ -86,6 +86,14 @@ def plain_log_axis(axis) -> None:
     axis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
 
 
+def _plain(v: float) -> str:
+    """A number with 3 significant digits and no exponent (3180, 0.0412)."""
+    if v == 0 or not np.isfinite(v):
+        return f"{v:g}"
+    digits = max(0, 2 - int(np.floor(np.log10(abs(v)))))
+    return f"{round(v, digits):.{digits}f}" if digits else f"{round(v, digits):.0f}"
+
+
 def _finite(t: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     ok = np.isfinite(t) & np.isfinite(y)
     return t[ok], y[ok]
@@ -208,7 +216,7 @@ def record_figure(rows: Sequence[tuple[str, str, tuple[np.ndarray, np.ndarray] |
             if top > 0 and float(np.max(np.abs(rv))) > 3.0 * top:
                 # the drift of the record as read would flatten the corrected curve
                 ax.set_ylim(-1.3 * top, 1.3 * top)
-                ax.text(0.005, 0.04, f"as read reaches {float(np.max(np.abs(rv))):.3g} "
+                ax.text(0.005, 0.04, f"as read reaches {_plain(float(np.max(np.abs(rv))))} "
                         f"{mpl_text(unit)} (off this scale)", transform=ax.transAxes,
                         fontsize=7, color="#555555")
         ax.set_ylabel(f"{mpl_text(quantity)}\n[{mpl_text(unit)}]", fontsize=8)
@@ -224,7 +232,8 @@ def record_figure(rows: Sequence[tuple[str, str, tuple[np.ndarray, np.ndarray] |
 
 
 def spectra_figure(panels: Sequence[tuple[str, Sequence[tuple[str, np.ndarray, np.ndarray, str]]]],
-                   *, ylabel: str = "PSA [m/s²]", columns: int = 2) -> Figure:
+                   *, ylabel: str = "PSA [m/s²]", columns: int = 2,
+                   shared_legend: bool = False) -> Figure:
     """Response spectra on a logarithmic period axis, one panel per point or component.
 
     Parameters
@@ -232,18 +241,21 @@ def spectra_figure(panels: Sequence[tuple[str, Sequence[tuple[str, np.ndarray, n
     panels : sequence of (title, curves)
         ``curves`` is a sequence of (label, periods [s] (n,), values (n,), kind) with
         ``kind`` one of ``"raw"``, ``"broadened"``, ``"ground"``, ``"target"``,
-        ``"line"``; the kind sets the line style.
+        ``"line"``, ``"envelope"``; the kind sets the line style.
+    shared_legend : bool
+        One legend under the panels (the curves of the first panel) instead of one each.
     """
     n = max(1, len(panels))
     cols = min(columns, n)
     rows = int(np.ceil(n / cols))
-    fig = _figure(9.0 if cols > 1 else 7.0, 0.5 + 3.0 * rows)
+    below = 0.45 if shared_legend else 0.0
+    fig = _figure(9.0 if cols > 1 else 7.0, 0.5 + 3.0 * rows + below)
     axes = fig.subplots(rows, cols, squeeze=False).ravel()
-    _margins(fig, left=0.7, top=0.35, bottom=0.5, hspace=0.45 * 3.0 / 2.6, wspace=0.22)
+    _margins(fig, left=0.7, top=0.35, bottom=0.5 + below, hspace=0.45 * 3.0 / 2.6, wspace=0.22)
     for ax in axes[n:]:
         ax.set_visible(False)
     for ax, (title, curves) in zip(axes, panels):
-        k = g = 0
+        k = g = e = 0
         for label, per, val, kind in curves:
             per, val = _finite(np.asarray(per, float), np.asarray(val, float))
             ok = per > 0
@@ -256,7 +268,8 @@ def spectra_figure(panels: Sequence[tuple[str, Sequence[tuple[str, np.ndarray, n
             elif kind == "target":
                 style = dict(color=PALETTE[0], linewidth=1.6, linestyle="--")
             elif kind == "envelope":
-                style = dict(color=PALETTE[0], linewidth=1.8, linestyle="-")
+                style = dict(color=PALETTE[0], linewidth=1.8, linestyle=("-", "--", ":")[e % 3])
+                e += 1
             elif kind == "raw":
                 style = dict(color=PALETTE[1 + k % 6], linewidth=0.9, alpha=0.55,
                              linestyle=LINESTYLES[k % len(LINESTYLES)])
@@ -271,8 +284,13 @@ def spectra_figure(panels: Sequence[tuple[str, Sequence[tuple[str, np.ndarray, n
         ax.set_ylabel(mpl_text(ylabel), fontsize=8)
         ax.set_title(mpl_text(title), fontsize=9, color=PALETTE[0])
         _style(ax)
-        if ax.get_legend_handles_labels()[0]:
+        if ax.get_legend_handles_labels()[0] and not shared_legend:
             ax.legend(fontsize=6.8, frameon=False, loc="best")
+    if shared_legend and n:
+        handles, labels = axes[0].get_legend_handles_labels()
+        if handles:
+            fig.legend(handles, labels, loc="lower center", ncol=min(4, len(handles)),
+                       fontsize=7, frameon=False)
     return fig
 
 

@@ -267,6 +267,19 @@ table.kv th { background: var(--soft); font-weight: 600; width: 30%; }
 table.kv table.kv th { background: #f6f8f8; }
 td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 tr.over td { background: #f7e0d8; font-weight: 600; }
+table.kv2 td:first-child { white-space: nowrap; }
+table.answers td:nth-child(2) { text-align: right; font-variant-numeric: tabular-nums; }
+b.dc { font-size: 13px; }
+tr.over b.dc { color: #a8432a; }
+ul.exceed li { margin: 4px 0; font-weight: 600; color: #7a2414; }
+ul.exceed li::marker { content: "■ "; color: #a8432a; }
+p.ok { color: #1f5f3f; font-weight: 600; }
+.flag { display: inline-block; margin-left: 8px; padding: 1px 8px; border-radius: 3px;
+        font-size: 12.5px; }
+.flag.over { background: #a8432a; color: #fff; }
+.flag.warn { background: #e9c46a; color: #22303c; }
+span.n { font-variant-numeric: tabular-nums; }
+details summary { cursor: pointer; color: #1f5f7a; }
 .unit { color: #6a7784; font-size: 11.5px; }
 .none { color: #6a7784; font-style: italic; }
 pre { background: #fff; border: 1px solid var(--rule); padding: 10px; font-size: 12px;
@@ -289,6 +302,8 @@ footer { margin-top: 34px; border-top: 1px solid var(--rule); padding-top: 8px; 
   section { break-before: auto; }
   h2 { break-after: avoid; }
   figure { break-inside: avoid; }
+  figure img { max-height: 235mm; width: auto; }
+  section#summary { break-after: page; }
   table { font-size: 9px; }
   tr { break-inside: avoid; }
   td, th { overflow-wrap: anywhere; }

@@ -340,6 +340,16 @@ class _Builder:
             return "—"
         return "(" + ", ".join(self.n(v, "length") for v in xyz) + f") {display_unit('length', self.sys)}"
 
+    def _character(self, dom: str, rot: list[float]) -> str:
+        """Words for a mode: its dominant direction, and the rocking that goes with a sway
+        when a rotation holds 20 % or more."""
+        words = self._direction_words(dom)
+        if dom in ("x", "y"):
+            k = int(np.argmax(rot))
+            if rot[k] >= 0.2 and k < 2:
+                words += f", rocking about {DIRECTIONS[k]}"
+        return words
+
     @staticmethod
     def _direction_words(d: Any) -> str:
         if not d:
@@ -456,7 +466,8 @@ class _Builder:
                            for d in DIRECTIONS),
                          *(self.cell(100 * col(f"rotational participation {d}")[i], "percent",
                                      digits=2) for d in DIRECTIONS),
-                         self._direction_words(dom[i])])
+                         self._character(dom[i], [col(f"rotational participation {d}")[i]
+                                                  for d in DIRECTIONS])])
         self.ref["percent"] = 100.0
         html_ = ['<p class="note">Effective mass in each direction and rotational participation '
                  "(the same ratio for a rigid rotation about axes through the centre of the base), "
@@ -800,9 +811,11 @@ class _Builder:
             if cs:
                 panels.append((f"direction {_DIR_WORDS[d]}", cs))
         if panels:
-            html_.append(self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3),
+            html_.append(self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3,
+                                                            shared_legend=True),
                                    "Broadened floor response spectra (pseudo-spectral acceleration) "
-                                   "at each point and damping, with their envelope (thick black).",
+                                   "at each point and damping, with their envelope over the points (thick black, one "
+                                   "line style per damping).",
                                    fid="fig-floor-spectra"))
         return "".join(html_)
 
@@ -846,6 +859,9 @@ class _Builder:
         kinds = (("acc", "acceleration", "acceleration", "m/s2"), ("vel", "velocity", "velocity", "m/s"),
                  ("disp", "displacement", "displacement", "m"))
         pads = {str(r.get("direction")): _f(r.get("pad_before_s")) or 0.0 for r in self.record_list()}
+        for d, m in (_get(self.s, "motion", "matching") or {}).items():
+            if isinstance(m, Mapping) and _f(m.get("pad_s")):
+                pads[str(d)] = pads.get(str(d), 0.0) + float(m["pad_s"])   # matching pads too
         figs = []
         for d in DIRECTIONS:
             rt = t.get(f"{d} raw time [s]")
@@ -867,11 +883,13 @@ class _Builder:
             if rows:
                 figs.append((d, rows))
         out = []
+        matched = _get(self.s, "motion", "matching") or {}
         for d, rows in figs:
+            what = "corrected and matched to the target" if d in matched else "corrected"
             out.append(self._fig(lambda rows=rows, d=d: F.record_figure(rows, title=f"direction {_DIR_WORDS[d]}"),
                                  f"Direction {_DIR_WORDS[d]}: acceleration, velocity and displacement "
-                                 "as read (grey, dashed) and corrected (blue), on the time of the record "
-                                 "as read.", fid=f"fig-record-{d}"))
+                                 f"as read (grey, dashed) and {what} (blue), on the time of the "
+                                 "record as read.", fid=f"fig-record-{d}"))
         return "".join(out)
 
     def ground_spectra(self) -> str:
@@ -896,30 +914,82 @@ class _Builder:
             for z in dict.fromkeys(damp[dirs == d]):
                 sel = (dirs == d) & (damp == z)
                 cs.append((f"{self.n(z, 'damping')} % damping", per[sel], g * psa[sel], "broadened"))
-            if target is not None and cs:
-                cs.append(("target", target[0], target[1], "target"))
+            if target is not None and cs and d != "z":          # a horizontal target
+                cs.append(("target (horizontal)", target[0], target[1], "target"))
             if cs:
                 panels.append((f"direction {_DIR_WORDS[d]}", cs))
         if not panels:
             return ""
-        return self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3),
+        return self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3,
+                                                  shared_legend=True),
                          "Response spectra (pseudo-spectral acceleration) of the corrected ground "
                          "motion" + (", with the target" if target is not None else "") + ".",
                          fid="fig-ground-spectra")
 
     def matching(self) -> str:
+        """Acceptance of each matched component and its spectra before and after."""
         mt = _get(self.s, "motion", "matching")
         if not isinstance(mt, Mapping) or not mt:
             return ""
-        rows = []
-        for k, v in mt.items():
-            if isinstance(v, (int, float, str, bool)) and not isinstance(v, bool):
-                rows.append([k.replace("_", " "), v if isinstance(v, str) else self.n(v, None)])
-            elif isinstance(v, bool):
-                rows.append([k.replace("_", " "), "yes" if v else "no"])
+        checks_words = {"shortfall": ("largest shortfall below the target", "largest_shortfall",
+                                      "max_shortfall", "percent100"),
+                        "excess": ("largest excess above the target", "largest_excess",
+                                   "max_excess", "percent100"),
+                        "adjacent_below": ("most adjacent periods below the target",
+                                           "longest_run_below", "max_adjacent_below", "count"),
+                        "husid_change": ("largest change of the normalised Husid curve",
+                                         "husid_max_change", "max_husid_change", "ratio")}
+        rows, classes, panels = [], [], []
+        g = to_display(1.0, "acceleration", self.sys)
+        for d, m in mt.items():
+            if not isinstance(m, Mapping):
+                continue
+            acc = m.get("acceptance") if isinstance(m.get("acceptance"), Mapping) else {}
+            crit = acc.get("criteria") if isinstance(acc.get("criteria"), Mapping) else {}
+            its = m.get("iterations")
+            n_it = len(its) if isinstance(its, list) else its
+            rows.append([_DIR_WORDS.get(str(d), str(d)), "match",
+                         f"{m.get('status', '—')} after {n_it if n_it is not None else '—'} iterations; "
+                         f"largest misfit {self.n(100 * (_f(m.get('max_misfit')) or 0), None)} %",
+                         f"misfit within {self.n(100 * (_f(m.get('tolerance')) or 0), None)} %",
+                         "yes" if m.get("converged") else "no"])
+            classes.append("" if m.get("converged") else "over")
+            for key, ok in (acc.get("checks") or {}).items():
+                words, vkey, ckey, how = checks_words.get(key, (key.replace("_", " "), key, key, "ratio"))
+                val, lim = _f(acc.get(vkey)), _f(crit.get(ckey))
+                if how == "percent100":
+                    vtxt = f"{self.n(None if val is None else 100 * val, None)} %"
+                    ltxt = f"at most {self.n(None if lim is None else 100 * lim, None)} %"
+                elif how == "count":
+                    vtxt, ltxt = self.n(val, None), f"at most {self.n(lim, None)}"
+                else:
+                    vtxt, ltxt = self.n(val, None), f"at most {self.n(lim, None)}"
+                rows.append(["", words, vtxt, ltxt, "yes" if ok else "NO"])
+                classes.append("" if ok else "over")
+            per = np.asarray(m.get("periods") or [], float)
+            tgt = np.asarray(m.get("target_psa") or [], float).reshape(-1, per.size) if per.size else None
+            bef = np.asarray(m.get("psa_before") or [], float).reshape(-1, per.size) if per.size else None
+            aft = np.asarray(m.get("psa_after") or [], float).reshape(-1, per.size) if per.size else None
+            if per.size and tgt is not None and tgt.size and bef.size and aft.size:
+                panels.append((f"direction {_DIR_WORDS.get(str(d), d)}",
+                               [("before matching", per, g * bef[0], "raw"),
+                                ("after matching", per, g * aft[0], "broadened"),
+                                (f"target {m.get('target') or ''}".strip(), per, g * tgt[0], "target")]))
         if not rows:
             return ""
-        return "<h3>Spectrum matching</h3>" + table(rows, ["item", "value"])
+        html_ = ["<h3>Spectrum matching</h3>",
+                 '<p class="note">Each horizontal component was adjusted to the target spectrum '
+                 "before the analysis; the acceptance figures compare the matched spectrum with "
+                 "the target over the matching band (limits of common practice, from the "
+                 "matching stage).</p>",
+                 table(rows, ["direction", "check", "value", "limit", "met"], row_classes=classes)]
+        if panels:
+            unit = display_unit("acceleration", self.sys)
+            html_.append(self._fig(lambda: F.spectra_figure(panels, ylabel=f"PSA [{unit}]", columns=3,
+                                                            shared_legend=True),
+                                   "Spectra of each matched component before and after matching, "
+                                   "with the target.", fid="fig-matching"))
+        return "".join(html_)
 
     # ------------------------------------------------------------------ inputs
     def scenario_as_run(self) -> dict:

@@ -171,7 +171,8 @@ def _exceedances(s: dict) -> list[str]:
                               ("interaction_ratio", "tension-shear interaction")):
                 v = b.get(key)
                 if v is not None and v > 1.0:
-                    out.append(f"{nm} bolt {k}: {what} demand/capacity {v:.3g} (above 1)")
+                    ratio = "ratio" if key == "interaction_ratio" else "demand/capacity"
+                    out.append(f"{nm} bolt {k}: {what} {ratio} {v:.3g} (above 1)")
     c = (s.get("base") or {}).get("contact") or {}
     if c.get("uplift"):
         out.append("the base loses contact (uplift): the linear soil-spring model does not hold "
