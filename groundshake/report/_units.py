@@ -39,6 +39,7 @@ SYSTEMS: dict[str, dict[str, tuple[str, float]]] = {
         "area": ("m²", 1.0), "stiffness": ("kN/mm", 1e-6),
         "rotational_stiffness": ("kN·m/rad", 1e-3), "dashpot": ("kN·s/m", 1e-3),
         "rotational_dashpot": ("kN·m·s/rad", 1e-3), "count": ("", 1.0), "number": ("", 1.0),
+        "participation": ("kg^0.5", 1.0),
     },
     "us": {
         "force": ("kip", 1 / _KIP), "weight": ("kip", 1 / _KIP), "moment": ("kip·ft", 1 / (_KIP * _FT)),
@@ -51,7 +52,7 @@ SYSTEMS: dict[str, dict[str, tuple[str, float]]] = {
         "area": ("ft²", 1 / _FT ** 2), "stiffness": ("kip/in", _IN / _KIP),
         "rotational_stiffness": ("kip·ft/rad", 1 / (_KIP * _FT)),
         "dashpot": ("kip·s/in", _IN / _KIP), "rotational_dashpot": ("kip·ft·s/rad", 1 / (_KIP * _FT)),
-        "count": ("", 1.0), "number": ("", 1.0),
+        "count": ("", 1.0), "number": ("", 1.0), "participation": ("lb^0.5", (1 / _LB) ** 0.5),
     },
 }
 
