@@ -597,8 +597,11 @@ class _Builder:
                 continue
             v = _f(e.get("min_safety_factor"))
             extra = f", edge {e['edge']}" if e.get("edge") else ""
-            rows.append([what, self.cell(v, "ratio") if v is not None else
-                         str(e.get("note") or "not evaluated"), self._when(e.get("time")) + extra])
+            if v is None and key == "sliding":
+                shown = "not evaluated (no friction coefficient entered)"
+            else:
+                shown = self.cell(v, "ratio") if v is not None else "not evaluated"
+            rows.append([what, shown, self._when(e.get("time")) + extra])
             classes.append("over" if v is not None and v < 1.0 else "")
         br = st.get("bearing") if isinstance(st.get("bearing"), Mapping) else None
         if br is not None and _f(br.get("peak_pressure")) is not None:
