@@ -302,8 +302,12 @@ footer { margin-top: 34px; border-top: 1px solid var(--rule); padding-top: 8px; 
   section { break-before: auto; }
   h2 { break-after: avoid; }
   figure { break-inside: avoid; }
-  figure img { max-height: 235mm; width: auto; }
-  section#summary { break-after: page; }
+  figure img { max-height: 150mm; width: auto; max-width: 100%; }
+  section#summary table { font-size: 9.5px; }
+  section#summary ul.warn li, section#summary ol.cautions li { margin: 1px 0; font-size: 9.5px; }
+  ol.cautions li { font-weight: normal; }
+  section { margin-top: 14px; }
+  h3 { margin: 10px 0 4px; }
   table { font-size: 9px; }
   tr { break-inside: avoid; }
   td, th { overflow-wrap: anywhere; }
