@@ -17,7 +17,8 @@ from .._cautions import CAUTIONS
 from .._errors import GroundshakeWarning, InputError
 from .._progress import Progress
 from ..dynamics._direct import direct_response, substeps_for
-from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
+from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
+                               residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
 from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
 from ._floor import floor_spectra
@@ -158,7 +159,14 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                                         model.factor().solve,
                                         load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
-        r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt, residual=residual)
+        if getattr(model, "is_classically_damped", True) or not hasattr(model,
+                                                                        "modal_damping_matrix"):
+            r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
+                               residual=residual)
+        else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
+            r = coupled_modal_response(shapes, modes.omega, model.modal_damping_matrix(shapes),
+                                       gam, ag, dt, residual=residual)
+            info["modal_damping"] = "coupled"
         u, v, a = r.recover(output)
         Z = r.coordinates
         node_peak = {}
@@ -319,14 +327,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   warn=False)
     timings["modes"] = _tick()
     # the modes' own notes, except the mass one (ours below also names the correction)
-    # and the modal damping cap, which only modal runs use
+    # and the cap of composite modal damping ratios, which only classically damped modal
+    # runs use (non-classical damping keeps the modal damping matrix whole, uncapped)
+    uses_cap = method == "modal" and getattr(model, "is_classically_damped", True)
     collected.extend(m for m in getattr(modes, "warnings", []) or []
                      if not str(m).startswith("modes capture")
-                     and not (method == "direct" and str(m).startswith("modal damping of mode")))
-    if method == "modal" and not getattr(model, "is_classically_damped", True):
-        collected.append("Non-classical damping (soil radiation and/or equipment dashpots) is "
-                         "represented by modal damping ratios (coupling terms between modes "
-                         "neglected); --method direct keeps the whole damping matrix.")
+                     and not (not uses_cap and str(m).startswith("modal damping of mode")))
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
