@@ -27,6 +27,9 @@ from ._stress import StressPeaks, modal_stress_peaks
 __all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
 RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
+#: Frequency [Hz] above which ground motion drives a structure quasi-statically in design
+#: practice (the zero-period end of USNRC RG 1.60 spectra, from memory).
+RIGID_HZ = 33.0
 
 
 @dataclass
@@ -705,17 +708,21 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                              f"mode (T1 = {T1:.3g} s): its response may not develop.")
         f_hi = float(freq[-1])
         ratio = np.asarray(modes.effective_mass_ratio)
-        # modes holding mass that the record cannot drive: above its usable band
-        above = (freq > f_band) & np.any((ratio >= 0.05) & excited[None, :], axis=1)
+        # modes holding mass that the record cannot drive: above its usable band but below
+        # the frequency from which design practice treats a structure as rigid (33 Hz, the
+        # zero-period end of USNRC RG 1.60 spectra, from memory); stiffer modes respond
+        # quasi-statically to any real ground motion anyway
+        above = ((freq > f_band) & (freq <= RIGID_HZ)
+                 & np.any((ratio >= 0.05) & excited[None, :], axis=1))
         if method == "modal" and np.any(above):
             share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
                                  * excited))
             collected.append(
                 f"Mode(s) at {', '.join(f'{f:.3g}' for f in freq[above][:4])} Hz holding "
                 f"{100 * share:.0f} % of the mass lie above the motion's usable band (up to "
-                f"{band_why}, dt = {dt:g} s): the record carries no motion there, so they "
-                "respond quasi-statically; a record sampled more finely (or filtered less) "
-                "is needed to excite them.")
+                f"{band_why}, dt = {dt:g} s) and below {RIGID_HZ:g} Hz: the record carries no "
+                "motion there, so they respond quasi-statically where real ground motion may "
+                "still drive them; use a record sampled more finely (or filtered less).")
         rigid = np.asarray(getattr(modes, "rigid_mass", None) if getattr(modes, "rigid_mass",
                                                                          None) is not None
                            else np.zeros(3), float)

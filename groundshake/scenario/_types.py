@@ -180,7 +180,7 @@ class SupportSettings:
     radiation_damping: bool = spec("bool", True, doc="add radiation dashpots (soil only)")
     springs: Literal["lumped", "distributed"] = spec(
         "choice", "lumped", choices=("lumped", "distributed"),
-        doc="six springs at a rigid base, or a spring bed with the same totals")
+        doc="six springs at a rigid base, or a uniform spring bed with the same translation totals")
 
 
 @dataclass(frozen=True, kw_only=True)
