@@ -188,7 +188,7 @@ def _toml_value(v: Any) -> str:
             return "nan"
         if math.isinf(v):
             return "inf" if v > 0 else "-inf"
-        return repr(v)
+        return _short_float(v)
     if isinstance(v, str):
         return json.dumps(v, ensure_ascii=False)
     if isinstance(v, Mapping):
@@ -197,6 +197,24 @@ def _toml_value(v: Any) -> str:
     if isinstance(v, (list, tuple)):
         return "[" + ", ".join(_toml_value(x) for x in v if x is not None) + "]"
     return json.dumps(str(v))
+
+
+def _short_float(v: float) -> str:
+    """A float as TOML text a person reads: 12 significant digits at most, and powers of
+    ten for large or small magnitudes (``30e9`` rather than ``30000000000.0``)."""
+    r = float(f"{v:.12g}")
+    if r == 0:
+        return "0.0"
+    if 1e-4 <= abs(r) < 1e6:
+        return repr(r)
+    mant, exp = f"{r:.12e}".split("e")
+    mant = mant.rstrip("0").rstrip(".")
+    e = int(exp)
+    # engineering style: an exponent that is a multiple of 3 (30e9, 118.75e6)
+    shift = e % 3
+    m = float(mant) * 10 ** shift
+    text = f"{m:.12g}"
+    return f"{text}e{e - shift}"
 
 
 def toml_text(d: Mapping[str, Any]) -> str:

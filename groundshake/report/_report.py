@@ -278,7 +278,9 @@ class _Builder:
                            ("overturning", "Least overturning safety factor")):
             v = _f(_get(stab, key, "min_safety_factor"))
             if v is not None:
-                add(label, v, "ratio", self._when(_get(stab, key, "time")), over=v < 1.0)
+                case = _get(stab, key, "case")
+                where = self._when(_get(stab, key, "time"))
+                add(label, v, "ratio", (f"{case} soil, " if case else "") + where, over=v < 1.0)
         q = _f(_get(stab, "bearing", "peak_pressure"))
         if q is not None:
             r = _f(_get(stab, "bearing", "ratio_to_allowable"))
@@ -306,6 +308,11 @@ class _Builder:
                     self._direction_words(md.get("dominant_direction")))
         html_ = [table(rows, ["quantity", "value", "unit", "where, when"], row_classes=classes,
                        cls="grid answers")]
+        cases = [c for c in self.s.get("soil_cases") or [] if isinstance(c, Mapping)]
+        if cases:
+            html_.append('<p class="note">Peaks are the envelope over the soil cases ' + ", ".join(
+                f"{esc(c.get('name'))} (G = {esc(self.q(c.get('shear_modulus'), 'modulus'))})"
+                for c in cases) + ".</p>")
         ex = self.exceedances()
         ws = self.warning_list()
         if ex:
@@ -559,7 +566,8 @@ class _Builder:
             "stress", self.h("peak", "stress"), "at", "local feature there",
             self.h("peak away from features", "stress"), "at"])]
         if st.get("points"):
-            html_.append(f'<p class="note">{esc(_sentence(st["points"]))}</p>')
+            text = _sentence(st["points"])
+            html_.append(f'<p class="note">{esc(text if text.endswith(".") else text + ".")}</p>')
         html_.append(self.stress_figure())
         return "".join(html_)
 
@@ -610,22 +618,29 @@ class _Builder:
                          self._when(br.get("time")) + ("" if r is None else
                                                         f"; {self.n(r, 'ratio')} × allowable entered")])
             classes.append("over" if r is not None and r > 1.0 else "")
+        cases = []
         for case in self.s.get("soil_cases") or []:
             if isinstance(case, Mapping):
-                f1 = _f(_get(case, "modes", 0, "frequency"))
-                sl = _f(_get(case, "stability", "sliding", "min_safety_factor"))
-                ot = _f(_get(case, "stability", "overturning", "min_safety_factor"))
-                rows.append([f"soil case {case.get('name')}: G, first mode, sliding / overturning FS",
-                             f"{self.q(case.get('shear_modulus'), 'modulus')}, {self.q(f1, 'frequency')}",
-                             f"{self.n(sl, 'ratio')} / {self.n(ot, 'ratio')}"])
-                classes.append("")
-        if not rows:
+                cases.append([str(case.get("name", "")),
+                              self.cell(case.get("shear_modulus"), "modulus"),
+                              self.cell(_get(case, "modes", 0, "frequency"), "frequency"),
+                              self.cell(_get(case, "stability", "sliding", "min_safety_factor"), "ratio"),
+                              self.cell(_get(case, "stability", "overturning", "min_safety_factor"), "ratio"),
+                              self.cell(_get(case, "stability", "bearing", "peak_pressure"), "pressure")])
+        if not rows and not cases:
             return ""
         note = ('<p class="note">Rigid-base statics from the base resultants with the weights: '
                 "screening comparisons with the values entered, not a code check.</p>")
-        return ("<h3>Contact and stability</h3>" + note
-                + table(rows, ["quantity", self.h("value", "pressure") + " or factor", "when, where"],
-                        row_classes=classes))
+        html_ = ("<h3>Contact and stability</h3>" + note
+                 + table(rows, ["quantity", self.h("value", "pressure") + " or factor", "when, where"],
+                         row_classes=classes))
+        if cases:
+            html_ += ("<h4>Soil cases</h4>" + table(cases, [
+                "soil case", self.h("shear modulus G", "modulus"), self.h("first mode", "frequency"),
+                "least sliding safety factor", "least overturning safety factor",
+                self.h("peak bearing pressure", "pressure")])
+                + '<p class="note">The peaks of this report are the envelope over these cases.</p>')
+        return html_
 
     def points_table(self) -> str:
         rows = []
