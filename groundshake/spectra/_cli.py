@@ -12,6 +12,7 @@ import numpy as np
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
 from .._cli_common import float_list, print_json, table
+from ._spectrum import SAMPLES_PER_PERIOD
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_spectrum"]
@@ -163,14 +164,16 @@ def _document(records, raws, spectra, rotds, stats, target, target_psa, settings
                  "periods": s.periods, "damping_percent": 100 * s.damping,
                  "sd": s.sd, "sv": s.sv, "sa": s.sa, "psv": s.psv, "psa": s.psa,
                  "sd_time": s.sd_time, "sa_time": s.sa_time,
-                 "interpolated_below_s": 10 * rec.dt if s.interpolated else None,
+                 "interpolated_below_s": SAMPLES_PER_PERIOD * rec.dt if s.interpolated else None,
+                 "pga_band_limited": s.zero_period,
                  "history": list(rec.history)}
         if target_psa is not None:
             entry["ratio_to_target"] = s.psa / target_psa
         out.append(entry)
     doc = {"records": out,
            "units": {"periods": "s", "sd": "m", "sv": "m/s", "sa": "m/s2", "psv": "m/s",
-                     "psa": "m/s2", "pga": "m/s2", "sd_time": "s", "sa_time": "s"},
+                     "psa": "m/s2", "pga": "m/s2", "pga_band_limited": "m/s2",
+                     "sd_time": "s", "sa_time": "s"},
            "processing": {**settings.to_dict(), "description": settings.describe()}}
     if rotds:
         doc["rotd"] = [{"records": label.split("+", 1), "periods": r.periods,
@@ -253,7 +256,10 @@ def _print_text(spectra, rotds, target, target_psa, settings, args):
     rows = [[f"{p[k]:.3g}", *[c[k] for c in cols]] for k in idx]
     print("PSA [g] (pseudo-spectral acceleration; SI values with --json or -o)")
     print(table(rows, header))
-    print("PGA [g]: " + ", ".join(f"{s.name} {s.pga / G:.4g}" for s in spectra))
+    print("PGA [g] over the samples: " + ", ".join(f"{s.name} {s.pga / G:.4g}" for s in spectra))
+    if any(s.interpolated for s in spectra):
+        print("PGA [g] band-limited (the short-period limit of SA here): "
+              + ", ".join(f"{s.name} {s.zero_period / G:.4g}" for s in spectra))
     for s in spectra:
         j, k = np.unravel_index(np.argmax(s.psa), s.psa.shape)
         print(f"{s.name}: peak PSA {s.psa[j, k] / G:.4g} g at {s.periods[k]:.3g} s "
