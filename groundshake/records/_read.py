@@ -17,6 +17,7 @@ import numpy as np
 
 from .._errors import GroundshakeWarning, RecordError
 from ._record import Record
+from ._write import restore_written_pad
 from ._units import UNIT_NAMES, UNITS, canonical_units
 
 __all__ = ["read_record", "MIN_SAMPLES", "STEP_TOLERANCE"]
@@ -103,6 +104,7 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
             records = _records_from_stream(stream, path, user_units, dt)
     if records is None:
         records = _read_text(_decode_text(raw, where), path, user_units, dt, resample)
+    records = [restore_written_pad(rec) for rec in records]   # our own pads, as written
     for rec in records:
         _warn_if_implausible(rec)
     return records
