@@ -156,6 +156,11 @@ def _band_index(damping, target):
     return 0
 
 
+def _pad(rec) -> float:
+    """Leading pad [s] of a corrected record (0 as read)."""
+    return float(rec.metadata.get("pad_before_s", 0.0) or 0.0)
+
+
 def _document(records, raws, spectra, rotds, stats, target, target_psa, settings, found):
     out = []
     for rec, raw, s in zip(records, raws, spectra):
@@ -163,7 +168,8 @@ def _document(records, raws, spectra, rotds, stats, target, target_psa, settings
                  "dt": rec.dt, "n": rec.n, "pga": s.pga,
                  "periods": s.periods, "damping_percent": 100 * s.damping,
                  "sd": s.sd, "sv": s.sv, "sa": s.sa, "psv": s.psv, "psa": s.psa,
-                 "sd_time": s.sd_time, "sa_time": s.sa_time,
+                 # peak times on the as-read axis (the correction's pad at t < 0)
+                 "sd_time": s.sd_time - _pad(rec), "sa_time": s.sa_time - _pad(rec),
                  "interpolated_below_s": SAMPLES_PER_PERIOD * rec.dt if s.interpolated else None,
                  "pga_band_limited": s.zero_period,
                  "history": list(rec.history)}
