@@ -105,3 +105,17 @@ def test_refinement_factors_follow_the_rule():
     # at most 16 (40·dt/T = 40, 4.0, 1.0, 0.4 and 2000 samples short)
     f = refinement_factors([DT, 10 * DT, 40 * DT, 100 * DT, 0.02 * DT], DT)
     assert f.tolist() == [16, 4, 1, 1, 16]
+
+
+def test_rotd_short_period_limit_is_its_band_limited_pga():
+    from groundshake.spectra import rotd
+
+    a1, a2 = _coarse_record(seed=4), _coarse_record(seed=5)
+    r = rotd(a1, a2, DT, [0.002, 0.1], 0.05, (50, 100))
+    # Chopra §6.6 at every angle: a rigid oscillator follows the ground, so RotDnn of SA
+    # (PSA ≈ SA there) tends to RotDnn of the PGA of the same (band-limited) record
+    np.testing.assert_allclose(r.psa[:, 0, 0], r.zero_period, rtol=5e-3)
+    assert np.all(r.zero_period >= r.pga * (1 - 1e-12))   # the samples lie on the signal
+    # issue 14: a period's value does not depend on the other periods (0.1 %)
+    alone = rotd(a1, a2, DT, [0.1], 0.05, (50, 100)).psa[:, 0, 0]
+    np.testing.assert_allclose(r.psa[:, 0, 1], alone, rtol=1e-3)

@@ -187,7 +187,9 @@ def _document(records, raws, spectra, rotds, stats, target, target_psa, settings
                         "psa": {f"{q:g}": r.psa[i] for i, q in enumerate(r.percentiles)},
                         "sd": {f"{q:g}": r.sd[i] for i, q in enumerate(r.percentiles)},
                         "gmrotd50_psa": r.gmrotd50, "angle_of_max_deg": r.angle_of_max,
-                        "pga": {f"{q:g}": r.pga[i] for i, q in enumerate(r.percentiles)}}
+                        "pga": {f"{q:g}": r.pga[i] for i, q in enumerate(r.percentiles)},
+                        "pga_band_limited": {f"{q:g}": r.zero_period[i]
+                                             for i, q in enumerate(r.percentiles)}}
                        for label, r in rotds]
     if stats is not None:
         doc["statistics"] = {"quantity": "psa", "over": [s.name for s in spectra],
