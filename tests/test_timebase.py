@@ -192,3 +192,34 @@ def test_spectrum_peak_times_are_on_the_as_read_axis(capsys):
     # of the file's own time column, although the corrected record is padded in front
     sa_time = np.asarray(doc["records"][0]["sa_time"])
     assert sa_time[0][0] == pytest.approx(t_h1[np.argmax(np.abs(h1))], abs=2 * DT)
+
+
+def test_match_output_and_plot_on_the_as_read_axis(tmp_path, monkeypatch):
+    import groundshake._atomic as atomic
+
+    figures = []
+    real = atomic.atomic_savefig
+
+    def keep(fig, path, **kw):
+        figures.append(fig)
+        return real(fig, path, **kw)
+
+    monkeypatch.setattr(atomic, "atomic_savefig", keep)
+    out, png = tmp_path / "m.csv", tmp_path / "m.png"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GroundshakeWarning)
+        main(["match", H1, "--target", "asce7:sds=0.8,sd1=0.4,tl=8", "--periods",
+              "0.1,0.3,1.0", "--max-iterations", "1", "-o", str(out), "--plot", str(png),
+              "--quiet"])
+    t_h1, h1 = _file_columns(H1)
+    t_pga = t_h1[np.argmax(np.abs(h1))]                       # the file's own time column
+    t_out, _ = _file_columns(out)
+    pad = -t_out[0]
+    assert pad > 30.0              # issue 14: the correction's and the matching's pads, t < 0
+    # the plot's "before" acceleration (the corrected record, scaled) peaks at the file's
+    # PGA time: the plot's time axis is the as-read axis (issue 14)
+    lines = [ln for fig in figures for ax in fig.axes for ln in ax.get_lines()
+             if str(ln.get_label()).startswith("before, scaled")]
+    t, y = lines[0].get_xdata(), lines[0].get_ydata()
+    assert t[0] == pytest.approx(-pad, abs=1e-9)
+    assert t[np.argmax(np.abs(y))] == pytest.approx(t_pga, abs=DT * 1.001)
