@@ -56,11 +56,12 @@ class Motion:
     def time(self) -> np.ndarray:
         """Times [s] counted from the first sample as read (the pad at negative
         times), shape (n_t,)."""
-        return np.arange(self.n) * self.dt - self.pad_before
+        return self.time_of_step(np.arange(self.n))
 
     def time_of_step(self, step):
-        """Time [s] on the as-read axis of a step index (int or int array)."""
-        return np.asarray(step) * self.dt - self.pad_before
+        """Time [s] on the as-read axis of a step index (int or int array), rounded to
+        1 ns (no round-off tails such as 5.585000000000001 in the outputs)."""
+        return np.round(np.asarray(step) * self.dt - self.pad_before, 9)
 
     @property
     def duration(self) -> float:
