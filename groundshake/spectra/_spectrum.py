@@ -185,14 +185,16 @@ def fourier_upsample(acc: np.ndarray, factor: int) -> np.ndarray:
     slope = a[..., -1:] - a[..., :1]
     r = a - trend0 - slope * s
     spec = sfft.rfft(r, axis=-1)
-    big = n * m
-    out = np.zeros(a.shape[:-1] + (big // 2 + 1,), dtype=complex)
-    out[..., : spec.shape[-1]] = spec
+    spec *= m                            # the gain of the longer inverse transform
     if n % 2 == 0:
-        out[..., n // 2] *= 0.5          # split the Nyquist bin between ± frequencies
-    y = sfft.irfft(out, n=big, axis=-1)[..., : (n - 1) * m + 1] * m
-    sf = np.arange((n - 1) * m + 1) / ((n - 1) * m)
-    return y + trend0 + slope * sf
+        spec[..., n // 2] *= 0.5         # split the Nyquist bin between ± frequencies
+    big = n * m
+    # irfft zero-pads the spectrum to big // 2 + 1 bins itself
+    y = sfft.irfft(spec, n=big, axis=-1)[..., : (n - 1) * m + 1]
+    # the line back, in place: trend0 + slope·(k / ((n - 1)·m))
+    y += trend0
+    y += slope * (np.arange((n - 1) * m + 1) / ((n - 1) * m))
+    return y
 
 
 def refinement_factors(periods, dt: float) -> np.ndarray:
