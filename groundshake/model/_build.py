@@ -18,11 +18,12 @@ import numpy as np
 import scipy.sparse as sp
 
 from .._errors import GroundshakeWarning, ScenarioError
-from ._assembly import assemble, assemble_stress, element_keys
+from ._assembly import assemble, element_keys
 from ._elements import brick_matrices, shape_values
 from ._factor import Factor, factorize
 from ._memory import check_memory
 from ._mesh import Box, count_grid, mesh_boxes
+from ._recovery import StressPoints, surface_stress_points
 from ._supports import Impedance, distributed_bed, gazetas_rectangle
 
 __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_model",
@@ -149,6 +150,7 @@ class BlockModel:
     notes: list = field(default_factory=list)
     rayleigh_used_hz: tuple[float, float] | None = None
     mesh: Any = None  # the GridMesh, for plots
+    stress_points: StressPoints | None = None  # where the rows of ``stress`` sit
 
     @property
     def n_dof(self) -> int:
@@ -655,7 +657,11 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         GR = np.zeros((6, 3))
     reaction = ReactionOperators(K=KR, C=CR, M=MR, G=GR)
 
-    stress = sp.csr_matrix(assemble_stress(mesh, key_grid, mats) @ P)
+    held = status.reshape(-1, 3).max(axis=1)            # 1 fixed, 2 slaved (rigid base/mount)
+    constraint = np.where(held > 0, 2, 0)
+    constraint[base_nodes[held[base_nodes] > 0]] = 1      # fixed or rigid base
+    stress_points = surface_stress_points(mesh, key_grid, mats, kmat, constrained=constraint)
+    stress = sp.csr_matrix(stress_points.operator @ P)
     materials = {nm: {"youngs_modulus": p[0], "poisson_ratio": p[1], "density": p[2]}
                  for nm, p in zip(mat_names, mat_props)}
     if kind == "soil":
@@ -664,7 +670,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         nodes=nodes, elements=mesh.elements, element_centres=mesh.element_centres,
         element_part=mesh.element_part, K=K, M=M, influence=iota, total_mass=total_mass,
         weight=weight, sensors=sensors, equipment=equipment, reaction=reaction,
-        stress=stress, base=base, damping_ratio=ratio,
+        stress=stress, stress_points=stress_points, base=base, damping_ratio=ratio,
         rayleigh_hz=None if rayleigh is None else (float(rayleigh[0]), float(rayleigh[1])),
         support_kind=kind, element_kind=element, mass_kind=mass_kind,
         part_names=[b.name for b in boxes], materials=materials, node_map=P,

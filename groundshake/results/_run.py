@@ -21,7 +21,7 @@ from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
 from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
 from ._floor import floor_spectra
-from ._stress import StressPeaks, modal_stress_peaks
+from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_peaks, stress_summary
 
 __all__ = ["RunResults", "analyse", "respond"]
 
@@ -47,6 +47,8 @@ class RunResults:
     floor : dict
         Output of :func:`floor_spectra` plus ``points`` (names).
     stress : StressPeaks
+        Per element: the largest peaks of its corner stress points (NaN for an element
+        with no corner on the surface).
     """
 
     summary: dict
@@ -114,16 +116,16 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     """Response of the model to the motion, for the rows of ``output`` (k, n).
 
     Also gives the peak relative node displacement per direction anywhere in the
-    block and the per-element stress peaks, without ever holding the whole
-    displacement history. ``residual`` (n, 3), the missing-mass shapes of
+    block and the stress peaks at each stress point of the model, without ever
+    holding the whole displacement history. ``residual`` (n, 3), the missing-mass shapes of
     :func:`residual_vectors` for these modes, saves the static solve when given
     (a suite computes it once for all its records).
     """
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
-    n_el = model.elements.shape[0]
     node_map = sp.csr_matrix(model.node_map)
     S = sp.csr_matrix(model.stress)
+    n_el = S.shape[0] // 6          # stress points (rows of six components)
     info: dict = {}
     if method == "modal":
         shapes = np.asarray(modes.shapes)
@@ -212,7 +214,7 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
-        Compute element stress peaks.
+        Compute stress peaks (at the surface stress points).
     residual : ndarray (n, 3), optional
         Missing-mass shapes for ``modes`` (see
         :func:`groundshake.dynamics.residual_vectors`), computed once by a caller
@@ -480,11 +482,14 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         peaks["relative_displacement"][d] = entry
     stress_out = {}
     if resp.stress is not None:
-        stress_out = resp.stress.governing(dt, np.asarray(model.element_centres))
-        for g in stress_out.values():          # step times → the as-read axis
-            g["time"] = float(motion.time_of_step(round(g["time"] / dt)))
-        stress_out["points"] = "element centres"
-        stress_out["units"] = "Pa"
+        stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt,
+                                                  part_names=list(model.part_names))
+        for g in list(stress_out.values()):    # step times → the as-read axis
+            for h in ((g, g.get("away_from_features")) if isinstance(g, dict) else ()):
+                if isinstance(h, dict) and "time" in h:
+                    h["time"] = float(motion.time_of_step(round(h["time"] / dt)))
+        collected.extend(stress_notes)
+        resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
         peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
         peaks["principal_tension"] = stress_out.get("principal_tension", {}).get("value")
         peaks["principal_compression"] = stress_out.get("principal_compression", {}).get("value")
@@ -584,7 +589,9 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     }
     return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
                       histories=hist, ground_spectra=ground_spectra, floor=floor,
-                      stress=resp.stress, target_psa=target_psa, inputs=inputs)
+                      stress=None if resp.stress is None else
+                      element_peaks(resp.stress, model.stress_points.element_points),
+                      target_psa=target_psa, inputs=inputs)
 
 
 def _modes_dict(modes, model) -> dict:
