@@ -176,6 +176,14 @@ match_target = true
     times = [summary["peaks"]["relative_displacement"][d]["time"] for d in "xyz"]
     for e in summary.get("equipment", {}).values():
         times += [b["time_of_peak_tension"] for b in e.get("anchors", [])]
+    times += [v["time"] for v in summary.get("stresses", {}).values()
+              if isinstance(v, dict) and "time" in v]
+    times += [v["time"] for v in summary["base"]["peaks"].values()]
+    assert len(times) >= 12
+    # Newton's second law for a stiff block (modes far above the record's content): the
+    # base axial force follows m·a_z, so it peaks at the vertical's PGA time of the file
+    assert summary["base"]["peaks"]["Fz"]["time"] == pytest.approx(
+        t_up[np.argmax(np.abs(up))], abs=2 * DT)
     assert all(-pad - 1e-9 <= v <= t[-1] + 1e-9 for v in times)
     # the PGA time of the unmatched vertical (summary) is the file's own (to one sample)
     by_dir = {r["direction"]: r for r in summary["records"]}
