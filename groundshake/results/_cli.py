@@ -26,6 +26,9 @@ def register(subparsers, parents) -> None:
                    help="override [analysis] method")
     p.add_argument("--no-report", action="store_true",
                    help="write summary.json and the CSV tables only (no report.html)")
+    p.add_argument("--inventory", metavar="FILE",
+                   help="station inventory (StationXML) of motion records in raw counts "
+                        "(replaces [motion] inventory)")
     p.set_defaults(func=_run)
 
 
@@ -44,6 +47,8 @@ def _run(args) -> int:
     if out.exists() and not out.is_dir():
         raise InputError(f"-o {args.output}: exists and is not a folder")
     scenario = load_scenario(scen_path)
+    if getattr(args, "inventory", None):
+        scenario = _with_inventory(scenario, Path(args.inventory))
     quiet = bool(getattr(args, "quiet", False))
     results = analyse(scenario, progress=not quiet, method=args.method)
     results.summary["provenance"]["command"] = " ".join(["groundshake", *sys.argv[1:]]) \
@@ -55,6 +60,18 @@ def _run(args) -> int:
         return 0
     print(_terminal_summary(s, out))
     return 0
+
+
+def _with_inventory(scenario, inventory: Path):
+    """The scenario with ``[motion] inventory`` set to ``inventory`` (a file that exists)."""
+    import dataclasses
+
+    if scenario.motion is None:
+        raise InputError(f"--inventory {inventory}: the scenario has no [motion] to read it with")
+    if not inventory.is_file():
+        raise InputError(f"--inventory {inventory}: no such file (StationXML expected)")
+    motion = dataclasses.replace(scenario.motion, inventory=inventory.resolve())
+    return dataclasses.replace(scenario, motion=motion)
 
 
 def _terminal_summary(s: dict, out: Path) -> str:

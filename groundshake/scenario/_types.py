@@ -94,6 +94,9 @@ class MotionSettings:
                               doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8` "
                                   "or a CSV of period [s], PSA [g] (relative path)")
     match_target: bool = spec("bool", False, doc="adjust the records to the target first")
+    inventory: Path | None = spec("path", None,
+                                  doc="station inventory (StationXML) of records in raw counts "
+                                      "(MiniSEED, SAC), relative to the scenario file")
 
     def components(self) -> dict[str, MotionComponent]:
         """The given components in x, y, z order, keyed by axis name."""
