@@ -179,6 +179,8 @@ match_target = true
     times += [v["time"] for v in summary.get("stresses", {}).values()
               if isinstance(v, dict) and "time" in v]
     times += [v["time"] for v in summary["base"]["peaks"].values()]
+    times += [v["time"] for v in (summary.get("stability") or {}).values()
+              if isinstance(v, dict) and v.get("time") is not None]
     assert len(times) >= 12
     # Newton's second law for a stiff block (modes far above the record's content): the
     # base axial force follows m·a_z, so it peaks at the vertical's PGA time of the file
