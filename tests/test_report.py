@@ -305,18 +305,13 @@ def test_fp_given_by_the_run_is_shown_beside_the_time_history(tmp_path):
 
 
 def test_corrected_record_is_drawn_on_the_original_time(tmp_path):
-    """A corrected record written from the start of its lead pad is moved back by the
-    pad the run reports (summary records[i].pad_before_s), so both share the time of the
-    record as read."""
-    import json
+    """records.csv holds one as-read time column (the output contract): the raw series
+    starts at 0 s, the corrected one at minus its 1-s lead pad (INVENTED folder)."""
     from unittest import mock
 
     import groundshake.report._figures as F
 
     out = make_output_folder(tmp_path / "run", files=("records",))
-    s = json.loads((out / "summary.json").read_text())
-    s["records"][0]["pad_before_s"] = 2.5
-    (out / "summary.json").write_text(json.dumps(s))
     seen = {}
 
     def spy(rows, title=""):
@@ -326,6 +321,7 @@ def test_corrected_record_is_drawn_on_the_original_time(tmp_path):
     with mock.patch.object(F, "record_figure", spy):
         write_report(out, progress=False)
     rows = seen["direction x"]
-    (t_raw, _), (t_cor, _) = rows[0][2], rows[0][3]
-    assert t_raw[0] == pytest.approx(0.0)
-    assert t_cor[0] == pytest.approx(-2.5)                      # the pad, at negative time
+    (t_raw, a_raw), (t_cor, a_cor) = rows[0][2], rows[0][3]
+    ok = np.isfinite(a_raw)
+    assert t_raw[ok][0] == pytest.approx(0.0)                   # first sample as read
+    assert t_cor[0] == pytest.approx(-1.0)                      # the pad, at negative time

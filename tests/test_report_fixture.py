@@ -180,14 +180,24 @@ def make_output_folder(path, *, hostile: bool = False, capacity: bool = True,
                 + [history_label("shear", name=eq, bolt=k).header for k in range(1, 5)])
         _write_csv(out / "histories.csv", head, np.column_stack(cols))
     if keep("records"):
-        head, cols = ["time [s]"], [t]
+        # one as-read time column (results/_schema.py): the corrected series has a 1-s pad
+        # at each end (negative times and past the end), the raw series is blank there
+        pad = int(round(1.0 / dt))
+        tt = np.arange(-pad, n + pad) * dt
+        head, cols = ["time [s]"], [tt]
         for k, c in enumerate("xyz"):
-            raw = ground[k] + 0.05
-            for state, a in (("raw", raw), ("corrected", ground[k])):
-                v = np.cumsum(a) * dt
-                head += [f"{c} {state} time [s]", f"{c} {state} acc [m/s2]",
-                         f"{c} {state} vel [m/s]", f"{c} {state} disp [m]"]
-                cols += [t, a, v, np.cumsum(v) * dt]
+            raw = np.full(tt.size, np.nan)
+            raw[pad:pad + n] = ground[k] + 0.05
+            cor = np.zeros(tt.size)
+            cor[pad:pad + n] = ground[k]
+            for state, a in (("raw", raw), ("corrected", cor)):
+                v = np.cumsum(np.nan_to_num(a)) * dt
+                d_ = np.cumsum(v) * dt
+                if state == "raw":
+                    v[np.isnan(a)] = np.nan
+                    d_[np.isnan(a)] = np.nan
+                head += [f"{c} {state} acc [m/s2]", f"{c} {state} vel [m/s]", f"{c} {state} disp [m]"]
+                cols += [a, v, d_]
         _write_csv(out / "records.csv", head, np.column_stack(cols))
     periods = np.geomspace(0.02, 5.0, 60)
     shape = 1.0 + 1.5 * np.exp(-np.log(periods / 0.3) ** 2)

@@ -151,7 +151,7 @@ def strip_figure(time: np.ndarray, strips: Sequence[tuple[str, Sequence[tuple[st
     span = _active_span(t_all, [y for _, curves, _ in strips for _, y in curves])
     if span is not None:
         axes[-1].set_xlim(*span)
-    axes[-1].set_xlabel("time [s]", fontsize=8)
+    axes[-1].set_xlabel("time from the first sample as read [s]", fontsize=8)
     if title:
         fig.suptitle(mpl_text(title), fontsize=10, color=PALETTE[0])
     return fig
@@ -225,7 +225,7 @@ def record_figure(rows: Sequence[tuple[str, str, tuple[np.ndarray, np.ndarray] |
     if span is not None and span[1] > span[0]:
         axes[-1].set_xlim(*span)            # the record's own time, as read
     axes[0].legend(fontsize=7.5, loc="upper right", frameon=False, ncol=2)
-    axes[-1].set_xlabel("time [s]", fontsize=8)
+    axes[-1].set_xlabel("time from the first sample as read [s]", fontsize=8)
     if title:
         fig.suptitle(mpl_text(title), fontsize=10, color=PALETTE[0])
     return fig

@@ -874,30 +874,23 @@ class _Builder:
         t = self.f.table("records")
         if t is None or t.n_rows == 0:
             return ""
-        kinds = (("acc", "acceleration", "acceleration", "m/s2"), ("vel", "velocity", "velocity", "m/s"),
-                 ("disp", "displacement", "displacement", "m"))
-        pads = {str(r.get("direction")): _f(r.get("pad_before_s")) or 0.0 for r in self.record_list()}
-        for d, m in (_get(self.s, "motion", "matching") or {}).items():
-            if isinstance(m, Mapping) and _f(m.get("pad_s")):
-                pads[str(d)] = pads.get(str(d), 0.0) + float(m["pad_s"])   # matching pads too
+        time = t.get(header("time", "time"))
+        if time is None:
+            return ""
+        kinds = (("acc", "acceleration", "acceleration"), ("vel", "velocity", "velocity"),
+                 ("disp", "displacement", "displacement"))
         figs = []
         for d in DIRECTIONS:
-            rt = t.get(f"{d} raw time [s]")
-            ct = t.get(f"{d} corrected time [s]")
-            if rt is None or ct is None:
-                continue
-            shift = pads.get(d, 0.0)
-            ok = np.isfinite(ct)
-            if ok.any() and np.isfinite(rt).any() and ct[ok][0] >= np.nanmin(rt) - 1e-9 and shift > 0:
-                ct = ct - shift          # corrected series written from its own pad start
             rows = []
-            for short, kind, word, si in kinds:
+            for short, kind, word in kinds:
+                si = {"acceleration": "m/s2", "velocity": "m/s", "displacement": "m"}[kind]
                 a, b = t.get(f"{d} raw {short} [{si}]"), t.get(f"{d} corrected {short} [{si}]")
                 if a is None and b is None:
                     continue
                 fac = to_display(1.0, kind, self.sys)
                 rows.append((word, display_unit(kind, self.sys),
-                             None if a is None else (rt, fac * a), None if b is None else (ct, fac * b)))
+                             None if a is None else (time, fac * a),
+                             None if b is None else (time, fac * b)))
             if rows:
                 figs.append((d, rows))
         out = []
@@ -907,7 +900,8 @@ class _Builder:
             out.append(self._fig(lambda rows=rows, d=d: F.record_figure(rows, title=f"direction {_DIR_WORDS[d]}"),
                                  f"Direction {_DIR_WORDS[d]}: acceleration, velocity and displacement "
                                  f"as read (grey, dashed) and {what} (blue), on the time of the "
-                                 "record as read.", fid=f"fig-record-{d}"))
+                                 "record as read (pads added by processing lie outside it).",
+                                 fid=f"fig-record-{d}"))
         return "".join(out)
 
     def ground_spectra(self) -> str:

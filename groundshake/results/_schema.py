@@ -108,8 +108,9 @@ COLUMNS: dict[str, tuple[Column, ...]] = {
                       Column("time of von mises peak", "time"), Column("part", "text")),
     # then per mode k: "mode k ux/uy/uz" [m] (mass-normalised shapes, arbitrary scale)
     "mode_shapes": (Column("x", "length"), Column("y", "length"), Column("z", "length")),
-    # per direction d and state s (raw, corrected): "d s time", "d s acc", "d s vel",
-    # "d s disp"; the first column is the time of the longest series
+    # one time column on the as-read axis (0 at the first sample as read, pads at negative
+    # times), then per direction d and state s (raw, corrected): "d s acc" [m/s2],
+    # "d s vel" [m/s], "d s disp" [m]; blank where a series has no sample
     "records": (Column("time", "time"),),
     # first the time, then HISTORY_BASE, then per sensor / equipment / bolt (history_label)
     "histories": (Column("time", "time"),),
