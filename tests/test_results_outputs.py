@@ -209,3 +209,27 @@ def test_records_say_how_long_their_leading_pad_is():
     mot = Motion(acc=acc, dt=out.dt, components=("x",), raw={"x": rec}, corrected={"x": out})
     (entry,) = _records_summary(mot)
     assert entry["pad_before_s"] == pytest.approx(0.5 * 1.5 * 4 / 0.5, rel=0.05)
+
+
+def test_run_prints_engineering_units_and_where_the_report_is(tmp_path, capsys):
+    """`run` prints its answers in display units and says where the report is; with
+    `--report-units us` (or `[report] units = "us"`) in kip, kip·ft and g (NIST SP 811,
+    App. B: 1 kip = 4448.2216152605 N; 1 g = 9.80665 m/s², CGPM 1901)."""
+    scen = write_case(tmp_path)
+    out = tmp_path / "us"
+    assert main(["run", str(scen), "-o", str(out), "--quiet", "--report-units", "us"]) == 0
+    text = capsys.readouterr().out
+    s = json.loads((out / "summary.json").read_text())
+    assert f"report: {out / 'report.html'}" in text
+    assert "kip" in text and "kip·ft" in text
+    assert f"{s['peaks']['base_shear']['x'] / 4448.2216152605:.3g}" in text
+    assert "warnings: " not in text                            # issue 16: warnings in words
+    for w in s["warnings"]:
+        assert w in text
+    assert "[kip]" in (out / "report.html").read_text(encoding="utf-8")
+    # the scenario's own [report] units = "us" does the same without the option
+    (tmp_path / "case2.toml").write_text(scen.read_text() + '\n[report]\nunits = "us"\n')
+    assert main(["run", str(tmp_path / "case2.toml"), "-o", str(tmp_path / "us2"),
+                 "--quiet"]) == 0
+    assert "kip" in capsys.readouterr().out
+    assert "[kip]" in (tmp_path / "us2" / "report.html").read_text(encoding="utf-8")

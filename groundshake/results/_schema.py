@@ -276,6 +276,7 @@ SUMMARY_KINDS: dict[str, str] = {
     "analysis.dt": "time",
     "analysis.n_steps": "count",
     "analysis.duration": "time",
+    "analysis.pad_before_s": "time",
     "analysis.modal_damping_diagonal_ratios": "damping",
     "provenance.solver.modal_damping_diagonal_ratios": "damping",
     "records.*.dt": "time",
