@@ -282,8 +282,9 @@ def test_a_set_past_its_limit_is_reported_failed(monkeypatch):
     assert took < 20
 
 
-def test_dask_time_limit_and_silence(monkeypatch):
+def test_dask_time_limit_and_silence(case, tmp_path, monkeypatch):
     distributed = pytest.importorskip("distributed")
+    root, rec, scen, scenario, shared, sets = case
     items = [{"name": "slow", "sleep": 30.0}, {"name": "quick", "sleep": 0.0}]
     with distributed.LocalCluster(n_workers=1, threads_per_worker=2, processes=False,
                                   dashboard_address=None) as cluster:
@@ -301,9 +302,12 @@ def test_dask_time_limit_and_silence(monkeypatch):
             other = client.submit(_nap, {}, {"name": "other", "sleep": 8.0}, pure=False)
             t0 = time.monotonic()
             with pytest.raises(SuiteStalled, match="gave no result"):
-                list(run_tasks(_nap, {}, items, limits=[0.2, 0.2], scheduler=client))
+                run_suite(scenario, sets, tmp_path / "stalled", shared=shared,
+                          scheduler=client, set_timeout=0.2)
             assert time.monotonic() - t0 < 8
             other.cancel()
+    doc = json.loads((tmp_path / "stalled" / "suite.json").read_text())
+    assert doc["complete"] is False and "gave no result" in doc["engine"]["notes"][0]
     # no worker at all: the shared data finds no taker, a clear error
     monkeypatch.setattr(_engine, "_SCATTER_TIMEOUT_S", 1.0)
     with distributed.LocalCluster(n_workers=0, processes=False,

@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import ctypes
 import logging
+import math
 import multiprocessing
 import multiprocessing.connection as mpc
 import os
@@ -244,8 +245,23 @@ def _pool_context():
     return multiprocessing.get_context("spawn")
 
 
+def _one_compiled_thread() -> None:
+    """Parallel compiled kernels run on one thread in a worker: the workers are the
+    parallelism, and a spinning thread team per worker would oversubscribe the cores."""
+    try:
+        import numba
+
+        numba.set_num_threads(1)
+    except Exception as e:  # noqa: BLE001 - an optional speed setting, never fatal
+        log.debug("suite: numba threads left as they are (%s)", e)
+
+
 def _worker_main(conn, fn: TaskFn, shared: dict) -> None:
-    """A pool worker: one set at a time, until told to stop (None) or the pipe closes."""
+    """A pool worker: one set at a time, until told to stop (None) or the pipe closes.
+
+    Says ``("started", i)`` when it takes set ``i`` and ``("done", i, result)`` at the end.
+    """
+    _one_compiled_thread()
     try:
         while True:
             try:
@@ -255,7 +271,8 @@ def _worker_main(conn, fn: TaskFn, shared: dict) -> None:
             if msg is None:
                 return
             task_id, item, limit = msg
-            conn.send((task_id, _limited(fn, shared, item, limit)))
+            conn.send(("started", task_id))
+            conn.send(("done", task_id, _limited(fn, shared, item, limit)))
     except KeyboardInterrupt:   # the parent handles Ctrl-C
         return
 
@@ -265,7 +282,8 @@ class _Slot:
     proc: Any
     conn: Any
     task: int | None = None
-    started: float = 0.0
+    sent: float = 0.0             # when the set was sent (monotonic)
+    started: float | None = None  # when the worker said it took it
 
 
 def _grace(limit: float) -> float:
@@ -273,6 +291,8 @@ def _grace(limit: float) -> float:
     return max(15.0, 0.25 * limit)
 
 
+#: pool: time [s] a new worker may take to start and take its first set
+_STARTUP_S = 300.0
 #: Dask: silence [s] allowed beyond the longest set's limit and grace before giving up
 _SILENCE_MARGIN_S = 60.0
 #: Dask: time [s] to wait for a worker to take the shared data
@@ -309,15 +329,21 @@ def _run_pool(fn, shared, items, limits, n, retries, report) -> Iterator[dict]:
             slot.proc.join(timeout=2.0)
         slot.conn.close()
 
-    def give(slot: _Slot) -> None:
-        while todo and slot.task is None:
-            i = todo.pop()
-            try:
-                slot.conn.send((i, items[i], limits[i]))
-            except (OSError, ValueError):     # died before taking it: try another worker
-                todo.append(i)
-                raise
-            slot.task, slot.started = i, time.monotonic()
+    def lost(k: int, why: str) -> Iterator[dict]:
+        """Worker k is gone (or stopped) while holding its set: run the set again or fail it."""
+        slot = slots[k]
+        i = slot.task
+        slot.task = None
+        stop(slot, kill=True)
+        slots[k] = start()
+        report.lost_workers += 1
+        tries[i] += 1
+        if tries[i] <= retries:
+            report.retries += 1
+            log.warning("suite: %s on set %s; running it again", why, items[i].get("name"))
+            todo.append(i)
+        else:
+            yield _failed(items[i], f"{why}, {tries[i]} times")
 
     try:
         slots = [start() for _ in range(n)]
@@ -325,55 +351,58 @@ def _run_pool(fn, shared, items, limits, n, retries, report) -> Iterator[dict]:
         while pending:
             for k, slot in enumerate(slots):
                 if slot.task is None and todo:
+                    i = todo.pop()
                     try:
-                        give(slot)
-                    except (OSError, ValueError):
+                        slot.conn.send((i, items[i], limits[i]))
+                    except (OSError, ValueError):   # died before taking it: a new worker
+                        todo.append(i)
                         stop(slot, kill=True)
                         slots[k] = start()
+                        continue
+                    slot.task, slot.sent, slot.started = i, time.monotonic(), None
             busy = [s for s in slots if s.task is not None]
             if not busy:       # cannot happen while sets are pending; never spin
-                raise SuiteStalled("suite: no worker is running a set but "
-                                   f"{pending} set(s) are pending")
+                raise SuiteStalled(f"suite: no worker is running a set but {pending} set(s) "
+                                   "are pending")
             now = time.monotonic()
-            waits = [s.started + limits[s.task] + _grace(limits[s.task]) - now
-                     for s in busy if limits[s.task] is not None]
-            timeout = max(0.05, min(waits)) if waits else None
+            waits = [(s.started + limits[s.task] + _grace(limits[s.task])
+                      if limits[s.task] is not None else math.inf) if s.started is not None
+                     else s.sent + _STARTUP_S for s in busy]
+            timeout = max(0.05, min(waits) - now) if min(waits) < math.inf else None
             ready = mpc.wait([s.conn for s in busy] + [s.proc.sentinel for s in busy],
                              timeout=timeout)
             for k, slot in enumerate(slots):
                 if slot.task is None:
                     continue
                 i = slot.task
-                if slot.conn in ready or (slot.proc.sentinel in ready and slot.conn.poll()):
+                while slot.task is not None and slot.conn.poll():
                     try:
-                        task_id, result = slot.conn.recv()
+                        msg = slot.conn.recv()
                     except (EOFError, OSError):
-                        task_id, result = None, None
-                    if result is not None and task_id == i:
+                        break
+                    if msg[0] == "started" and msg[1] == i:
+                        slot.started = time.monotonic()
+                    elif msg[0] == "done" and msg[1] == i:
                         slot.task = None
                         pending -= 1
-                        report.timed_out += bool(result.get("timed_out"))
-                        yield result
-                        continue
-                if not slot.proc.is_alive():            # lost while running set i
-                    code = slot.proc.exitcode
-                    report.lost_workers += 1
-                    slot.task = None
-                    stop(slot, kill=True)
-                    slots[k] = start()
-                    tries[i] += 1
-                    if tries[i] <= retries:
-                        report.retries += 1
-                        log.warning("suite: worker lost (exit code %s) on set %s; running it "
-                                    "again", code, items[i].get("name"))
-                        todo.append(i)
-                    else:
-                        pending -= 1
-                        yield _failed(items[i], f"its worker process died {tries[i]} times "
-                                                f"(last exit code {code})")
+                        report.timed_out += bool(msg[2].get("timed_out"))
+                        yield msg[2]
+                if slot.task is None:
                     continue
+                if not slot.proc.is_alive():
+                    for r in lost(k, f"its worker process died (exit code "
+                                     f"{slot.proc.exitcode})"):
+                        pending -= 1
+                        yield r
+                    continue
+                now = time.monotonic()
                 limit = limits[i]
-                if limit is not None and time.monotonic() - slot.started > limit + _grace(limit):
+                if slot.started is None and now - slot.sent > _STARTUP_S:
+                    for r in lost(k, f"its worker did not start within {_STARTUP_S:.0f} s"):
+                        pending -= 1
+                        yield r
+                elif (slot.started is not None and limit is not None
+                      and now - slot.started > limit + _grace(limit)):
                     report.timed_out += 1
                     slot.task = None
                     stop(slot, kill=True)              # stuck in compiled code: stop it
@@ -398,6 +427,7 @@ def _dask_task(fn: TaskFn, shared, item, limit, topic: str, index: int) -> dict:
         w.log_event(topic, {"index": index, "worker": w.address})
     except Exception:     # no worker context (e.g. a synchronous scheduler): run anyway
         pass
+    _one_compiled_thread()    # per thread: this task's kernels
     return _limited(fn, shared, item, limit)
 
 

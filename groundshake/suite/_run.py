@@ -24,7 +24,7 @@ from .._cautions import CAUTIONS
 from .._cli_common import json_dumps
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ._discover import RecordSet
-from ._engine import EngineReport, run_tasks
+from ._engine import EngineReport, SuiteStalled, run_tasks
 from ._plain import from_plain, to_plain
 from ._stats import peak_statistics
 
@@ -370,20 +370,25 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
             shared = prepare_suite(scenario, method=method)
         limits = _set_limits(todo, shared, scenario, method, set_timeout)
         last = time.monotonic()
-        for r in run_tasks(run_record_set, shared, [rs.to_dict() for rs in todo],
-                           workers=workers, scheduler=scheduler, retries=retries,
-                           limits=limits, report=report):
-            name = r.get("record") or "record"
-            if name in results:       # never written twice
-                continue
-            results[name] = r
-            atomic_write_text(_record_file(out_dir, name), json_dumps(r, indent=None))
-            if on_result is not None:
-                on_result(r)
-            if time.monotonic() - last > _PROGRESS_EVERY_S:   # a progress copy, not per record
-                _write_suite_json(out_dir, scenario, sets, results, complete=False,
-                                  engine=report)
-                last = time.monotonic()
+        try:
+            for r in run_tasks(run_record_set, shared, [rs.to_dict() for rs in todo],
+                               workers=workers, scheduler=scheduler, retries=retries,
+                               limits=limits, report=report):
+                name = r.get("record") or "record"
+                if name in results:       # never written twice
+                    continue
+                results[name] = r
+                atomic_write_text(_record_file(out_dir, name), json_dumps(r, indent=None))
+                if on_result is not None:
+                    on_result(r)
+                if time.monotonic() - last > _PROGRESS_EVERY_S:   # a progress copy
+                    _write_suite_json(out_dir, scenario, sets, results, complete=False,
+                                      engine=report)
+                    last = time.monotonic()
+        except SuiteStalled as e:       # say so in suite.json, keep what is done
+            report.notes.append(str(e))
+            _write_suite_json(out_dir, scenario, sets, results, complete=False, engine=report)
+            raise
     ordered = [results[n] for n in names if n in results]
     report.failed = sum(1 for r in ordered if r.get("status") != "ok")
     known = [x for x in limits if x is not None]
