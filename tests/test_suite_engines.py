@@ -335,3 +335,28 @@ def test_default_limit_formula_and_option(case, tmp_path):
     status = main(["suite", str(scen), "--records", str(rec), "--set-timeout", "-1",
                    "-o", str(tmp_path / "bad"), "--quiet"])
     assert status == 2                                  # contract: bad option, status 2
+
+
+def test_dask_cluster_that_loses_the_shared_model_scatters_it_again(case, long_sets, tmp_path):
+    # one worker: killing it loses the only copy of the shared model (the scheduler
+    # forgets scattered data it cannot recompute); the suite scatters it again
+    distributed = pytest.importorskip("distributed")
+    root, rec, scen, scenario, shared, sets = case
+    seen = []
+    killed = []
+
+    def kill_the_worker(r):
+        seen.append(r["record"])
+        if not killed:
+            (pid,) = client.run(os.getpid).values()
+            os.kill(pid, signal.SIGKILL)
+            killed.append(pid)
+
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster:
+        with distributed.Client(cluster) as client:
+            res = run_suite(scenario, long_sets[:3], tmp_path / "out", shared=shared,
+                            scheduler=client, on_result=kill_the_worker)
+    _all_ok(res, 3)                                                   # contract: no set lost
+    assert sorted(seen) == sorted(rs.name for rs in long_sets[:3])   # each exactly once
+    assert res.engine.retries >= 1

@@ -505,9 +505,10 @@ def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator
             submit(i)
         while futures:
             try:
-                done, _ = wait(list(futures), timeout=1.0, return_when="FIRST_COMPLETED")
-            except TimeoutError:
-                done = set()
+                wait(list(futures), timeout=1.0, return_when="FIRST_COMPLETED")
+            except Exception:  # noqa: BLE001 - a time-out, or futures cancelled (lost data)
+                pass
+            done = [f for f in futures if f.done()]
             lost = []
             for fut in done:
                 i = futures.pop(fut)
