@@ -3,6 +3,8 @@
 Prints wall times and the ratio to a reference computed in the same process:
 reading CSV vs numpy.loadtxt, reading MiniSEED vs obspy.read, correction vs a bare
 scipy sosfiltfilt of the same length, intensity measures vs one numpy FFT.
+Then reading each strong-motion format of tests/data/strong-motion/, as seconds per MB
+against the delimited-text reader on a CSV of the same record (seconds per MB too).
 Run: python benchmarks/records.py [seconds_of_record]
 """
 from __future__ import annotations
@@ -61,6 +63,36 @@ def main(seconds: float = 600.0) -> None:
     print(f"{'step':36s} {'time [s]':>9s}  {'reference':18s} {'ref [s]':>8s} {'ratio':>7s}")
     for name, tt, rname, rr in rows:
         print(f"{name:36s} {tt:9.4f}  {rname:18s} {rr:8.4f} {tt / rr:7.1f}")
+    formats()
+
+
+def formats() -> None:
+    """Seconds per MB of each strong-motion reader vs the text reader on the same record."""
+    import warnings
+
+    from groundshake.records import read_record, write_record
+    from groundshake.records.io import detect
+
+    folder = Path(__file__).resolve().parent.parent / "tests" / "data" / "strong-motion"
+    files = sorted(p for p in folder.iterdir() if p.suffix.lower() != ".md")
+    print(f"\n{'reading':58s} {'MB':>5s} {'s/MB':>7s} {'text s/MB':>9s} {'ratio':>6s}")
+    with tempfile.TemporaryDirectory() as tmp, warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for path in files:
+            module = detect(path)
+            if module is None or module.__name__.endswith((".text", ".obspy_formats")):
+                continue
+            try:
+                recs = read_record(path)
+            except Exception:  # spectra files (CSMIP V3) are not records
+                continue
+            mb = path.stat().st_size / 1e6
+            t = _best(lambda: read_record(path))
+            csv = Path(tmp) / f"{path.stem}.csv"  # the same samples as delimited text
+            write_record(recs[0] if len({(r.n, r.dt) for r in recs}) > 1 else recs, csv)
+            ref = _best(lambda: read_record(csv)) / (csv.stat().st_size / 1e6)
+            label = f"{module.FORMAT[:26]}: {path.name[:30]}"
+            print(f"{label:58s} {mb:5.2f} {t / mb:7.3f} {ref:9.3f} {t / mb / ref:6.2f}")
 
 
 if __name__ == "__main__":

@@ -1,0 +1,226 @@
+"""Checks and conversions shared by the readers of ``groundshake.records.io``."""
+from __future__ import annotations
+
+import math
+import re
+from pathlib import Path
+
+import numpy as np
+
+from ..._errors import RecordError
+from .._units import UNIT_NAMES, UNITS, canonical_units
+
+__all__ = ["MIN_SAMPLES", "to_si", "resolve_units", "check_samples", "check_dt",
+           "format_error", "user_units", "looks_binary", "fixed_width", "free_numbers",
+           "iso_time", "azimuth_from_code", "orientation_metadata", "unique_names"]
+
+#: Fewest samples a record may have.
+MIN_SAMPLES = 16
+
+
+def to_si(values: np.ndarray, units: str, where: str) -> np.ndarray:
+    """Values in ``units`` → m/s², shape kept; an overflow is the file's fault, said in one line."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        out = np.asarray(values, dtype=float) * UNITS[units]
+    if not np.all(np.isfinite(out)):
+        raise RecordError(f"{where}: values too large to be accelerations in {units} "
+                          "(they overflow when converted to m/s2)")
+    return out
+
+
+def resolve_units(file_units: str | None, user_units: str | None, label: str) -> str:
+    """The units of a trace: the file's, checked against the user's; one of them is needed."""
+    if file_units is not None and user_units is not None and file_units != user_units:
+        raise RecordError(f"{label}: the file states units {file_units} but {user_units} was "
+                          f"given; drop the units option or fix the file")
+    found = file_units or user_units
+    if found is None:
+        raise RecordError(f"{label}: the file does not state its units; give them "
+                          f"(--units, or 'units' in the scenario): {UNIT_NAMES}")
+    return found
+
+
+def user_units(units: str | None, where: str) -> str | None:
+    """The canonical name of a units option (None stays None)."""
+    return None if units is None else canonical_units(units, where=f"{where}: units")
+
+
+def check_samples(data: np.ndarray, label: str) -> None:
+    """Refuse fewer than :data:`MIN_SAMPLES` samples or a NaN/inf among them."""
+    if data.size < MIN_SAMPLES:
+        raise RecordError(f"{label}: {data.size} samples; at least {MIN_SAMPLES} are needed")
+    bad = np.flatnonzero(~np.isfinite(data))
+    if bad.size:
+        raise RecordError(f"{label}: sample {bad[0]} is {data[bad[0]]} (NaN or inf)")
+
+
+def check_dt(given: float | None, header: float, label: str, what: str = "the header") -> None:
+    """A ``dt`` option [s] that contradicts the file's own step is an error (1e-6 relative)."""
+    if given is not None and not math.isclose(float(given), header, rel_tol=1e-6):
+        raise RecordError(f"{label}: dt={float(given):g} s was given but {what} says "
+                          f"{header:g} s; drop the dt option or fix the file")
+
+
+def format_error(fmt: str, path: Path | str, what: str, line: int | None = None,
+                 text: str | None = None, part: str = "line") -> RecordError:
+    """The error for a file that looks like ``fmt`` but does not parse.
+
+    ``"<fmt> file <path>: <what> (<part> <line>: '<text>')"``; ``line`` is 1-based,
+    ``part`` e.g. ``"header line"`` or ``"line"``.
+    """
+    where = f" ({part} {line}: {text.strip()[:60]!r})" if line is not None and text is not None \
+        else (f" ({part} {line})" if line is not None else "")
+    return RecordError(f"{fmt} file {path}: {what}{where}")
+
+
+def looks_binary(head: bytes) -> bool:
+    """True if ``head`` holds NUL bytes or more than 1 % other control characters."""
+    controls = sum(head.count(bytes([c])) for c in range(32) if c not in (9, 10, 12, 13))
+    return b"\x00" in head or controls > 0.01 * max(len(head), 1)
+
+
+def fixed_width(lines: list[str], count: int, width: int, per_line: int, *, fmt: str,
+                path, first_line: int) -> np.ndarray:
+    """Numbers written in a Fortran fixed-width format (``per_line`` fields of ``width``).
+
+    Parameters
+    ----------
+    lines : list of str
+        The data lines, starting with the first one.
+    count : int
+        Number of values to read.
+    width, per_line : int
+        Field width [characters] and fields a line, as in ``(8F10.6)``.
+    fmt, path, first_line
+        Format name, file and 1-based number of ``lines[0]`` in the file, for messages.
+
+    Returns
+    -------
+    ndarray, shape (count,)
+        The values.
+
+    Raises
+    ------
+    RecordError
+        Too few lines, or a field that is not a number (the message names the line).
+    """
+    n_lines = -(-count // per_line)
+    if len(lines) < n_lines:
+        raise format_error(fmt, path, f"{count} values in {n_lines} lines were announced but "
+                           f"the file ends after {len(lines)}", first_line + len(lines) - 1)
+    span = width * per_line
+    block = "".join(ln[:span].ljust(span) for ln in lines[:n_lines])
+    fields = np.frombuffer(block.encode("latin-1", "replace"), dtype=f"S{width}")[:count]
+    try:
+        return fields.astype(float)
+    except ValueError:
+        for i, f in enumerate(fields):  # only on failure: find the field at fault
+            try:
+                float(f)
+            except ValueError:
+                k = i // per_line
+                raise format_error(fmt, path, f"value {i + 1} of {count} ({f.decode('latin-1')!r}) "
+                                   f"is not a number", first_line + k, lines[k]) from None
+        raise
+
+
+def free_numbers(lines: list[str], count: int, *, fmt: str, path, first_line: int) -> np.ndarray:
+    """``count`` numbers separated by blanks, from the start of ``lines``.
+
+    Returns
+    -------
+    ndarray, shape (count,)
+
+    Raises
+    ------
+    RecordError
+        Fewer numbers than ``count`` or a word that is not a number (names the line).
+    """
+    tokens = " ".join(lines).split()
+    if len(tokens) < count:
+        raise format_error(fmt, path, f"{count} values were announced but the file holds "
+                           f"{len(tokens)}", first_line + len(lines) - 1)
+    try:
+        return np.array(tokens[:count], dtype=float)
+    except ValueError:
+        seen = 0
+        for k, ln in enumerate(lines):
+            for tok in ln.split():
+                try:
+                    float(tok)
+                except ValueError:
+                    raise format_error(fmt, path, f"{tok!r} is not a number", first_line + k,
+                                       ln) from None
+                seen += 1
+        raise
+
+
+def iso_time(year: int, month: int, day: int, hour: int = 0, minute: int = 0,
+             second: float = 0.0, offset_hours: float | None = 0.0) -> str:
+    """ISO 8601 text of a date and time; ``offset_hours`` from UTC (None: local, unknown)."""
+    sec = f"{second:06.3f}".rstrip("0").rstrip(".") if second % 1 else f"{int(second):02d}"
+    if len(sec.split(".")[0]) < 2:
+        sec = "0" + sec
+    text = f"{year:04d}-{month:02d}-{day:02d}T{hour:02d}:{minute:02d}:{sec}"
+    if offset_hours is None:
+        return text
+    if offset_hours == 0:
+        return text + "Z"
+    sign = "+" if offset_hours > 0 else "-"
+    h = abs(offset_hours)
+    return f"{text}{sign}{int(h):02d}:{int(round((h % 1) * 60)):02d}"
+
+
+def azimuth_from_code(code: str) -> tuple[float | None, str | None]:
+    """(azimuth_deg from north or None, "horizontal"/"vertical"/None) of a component code.
+
+    Understands degrees ("360", "90 Deg"), compass bearings ("N28W", "S62W", "N", "E"),
+    vertical words ("UP", "Up", "DOWN", "V", "Z") and SEED channel codes ("HNE", "HNZ").
+    """
+    import re
+
+    c = code.strip().upper()
+    if not c:
+        return None, None
+    if c in ("UP", "U", "V", "Z", "DOWN", "DWN", "VER", "VERT", "VERTICAL", "UD") or \
+            re.fullmatch(r"[A-Z][A-Z0-9]Z", c):
+        return None, "vertical"
+    m = re.fullmatch(r"(\d+(?:\.\d*)?)\s*(?:DEG|DEGREES)?", c)
+    if m:
+        return float(m.group(1)) % 360.0, "horizontal"
+    m = re.fullmatch(r"([NS])\s*(\d+(?:\.\d*)?)\s*([EW])", c)
+    if m:
+        a = float(m.group(2))
+        base = {("N", "E"): a, ("N", "W"): 360.0 - a, ("S", "E"): 180.0 - a,
+                ("S", "W"): 180.0 + a}[(m.group(1), m.group(3))]
+        return base % 360.0, "horizontal"
+    last = c[-1] if re.fullmatch(r"[A-Z][A-Z0-9][NE]", c) or len(c) == 1 else ""
+    if last == "N":
+        return 0.0, "horizontal"
+    if last == "E":
+        return 90.0, "horizontal"
+    if c in ("L", "T", "FN", "FP", "H1", "H2") or re.fullmatch(r"[A-Z][A-Z0-9][123]", c):
+        return None, "horizontal"
+    return None, None
+
+
+def orientation_metadata(code: str) -> dict:
+    """Metadata keys ``azimuth_deg`` and ``orientation`` for a component code (absent if unknown)."""
+    az, kind = azimuth_from_code(code)
+    out: dict = {}
+    if kind is not None:
+        out["orientation"] = kind
+    if az is not None:
+        out["azimuth_deg"] = az
+    return out
+
+
+def unique_names(records: list) -> list:
+    """Records whose ``name`` repeats get ``.2``, ``.3`` ... appended (first kept)."""
+    seen: dict[str, int] = {}
+    out = []
+    for rec in records:
+        k = seen.get(rec.name, 0) + 1
+        seen[rec.name] = k
+        out.append(rec if k == 1 else rec.replace(name=f"{rec.name}.{k}"))
+    return out

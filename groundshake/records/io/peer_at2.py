@@ -1,0 +1,135 @@
+"""PEER NGA strong-motion database acceleration files (``.AT2``).
+
+Four header lines, then the samples, several a line::
+
+    PEER NGA STRONG MOTION DATABASE RECORD
+    <event>, <date>, <station>, <component>
+    ACCELERATION TIME SERIES IN UNITS OF G
+    NPTS=   7999, DT=   .0050 SEC,
+
+The older PEER strong-motion database writes line 4 as ``7999   .0050   NPTS, DT``;
+both are read. The header states no peak.
+"""
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+from ..._errors import RecordError
+from .._record import Record
+from .._units import canonical_units
+from ._common import (check_dt, check_samples, format_error, free_numbers,
+                      orientation_metadata, resolve_units, to_si, user_units)
+
+__all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
+
+FORMAT = "PEER NGA (.AT2)"
+EXTENSIONS = (".at2",)
+
+_NPTS = re.compile(r"NPTS\s*=\s*(\d+)", re.I)
+_DT = re.compile(r"\bDT\s*=\s*([0-9.Ee+-]+)", re.I)
+_OLD_NPTS_DT = re.compile(r"^\s*(\d+)\s+([0-9.Ee+-]+)\s+NPTS\s*,\s*DT", re.I)
+_UNITS = re.compile(r"TIME SERIES IN UNITS OF\s+(.+?)\s*$", re.I)
+_KIND = re.compile(r"^\s*(ACCELERATION|VELOCITY|DISPLACEMENT)\b", re.I)
+
+
+def is_format(path: Path, head: bytes) -> bool:
+    """True if the file begins like a PEER database time series (never raises)."""
+    try:
+        lines = head.decode("latin-1").splitlines()[:4]
+        if not lines or not lines[0].lstrip().upper().startswith("PEER"):
+            return False
+        if len(lines) < 4:  # a file cut short: its first line is enough to name it
+            return "STRONG MOTION" in lines[0].upper() or "DATABASE" in lines[0].upper()
+        return ("TIME SERIES" in lines[2].upper()
+                and bool(_NPTS.search(lines[3]) and _DT.search(lines[3])
+                         or _OLD_NPTS_DT.search(lines[3])))
+    except Exception:
+        return False
+
+
+def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
+    """Read a PEER ``.AT2`` acceleration file.
+
+    Parameters
+    ----------
+    path : path-like
+        The file.
+    units : str, optional
+        A check: an error if it differs from the header's units (g).
+    dt : float, optional
+        A check: an error if it differs from the header's ``DT`` [s].
+
+    Returns
+    -------
+    list of Record
+        One Record, ``acc`` in m/s², shape (NPTS,); ``component`` as written at the end
+        of header line 2; metadata ``station``, ``event_name``, ``event_date``,
+        ``azimuth_deg``/``orientation`` where the component says.
+
+    Raises
+    ------
+    RecordError
+        A velocity or displacement file, units other than acceleration, a count of
+        samples other than ``NPTS``, a value that is not a number.
+    """
+    path = Path(path)
+    where = str(path)
+    lines = path.read_text(encoding="latin-1").splitlines()
+    if len(lines) < 5:
+        raise format_error(FORMAT, path, "the four header lines and data are needed; the file "
+                           f"has {len(lines)} lines")
+    kind = _KIND.match(lines[2])
+    if not kind or kind.group(1).upper() != "ACCELERATION":
+        raise format_error(FORMAT, path, "not an acceleration time series (a .VT2 or .DT2 file?)",
+                           3, lines[2], part="header line")
+    m = _UNITS.search(lines[2])
+    if not m:
+        raise format_error(FORMAT, path, "no 'IN UNITS OF ...'", 3, lines[2], part="header line")
+    unit_text = m.group(1).rstrip(". ")
+    try:
+        file_units = canonical_units(unit_text)
+    except RecordError:
+        raise format_error(FORMAT, path, f"units {unit_text!r} are not units of acceleration",
+                           3, lines[2], part="header line") from None
+    rec_units = resolve_units(file_units, user_units(units, where), where)
+    mn, md = _NPTS.search(lines[3]), _DT.search(lines[3])
+    old = _OLD_NPTS_DT.search(lines[3])
+    if mn and md:
+        npts_text, dt_text = mn.group(1), md.group(1)
+    elif old:
+        npts_text, dt_text = old.group(1), old.group(2)
+    else:
+        raise format_error(FORMAT, path, "no NPTS= and DT=", 4, lines[3], part="header line")
+    npts = int(npts_text)
+    try:
+        step = float(dt_text)
+    except ValueError:
+        raise format_error(FORMAT, path, f"DT {dt_text!r} is not a number", 4, lines[3],
+                           part="header line") from None
+    if not step > 0:
+        raise format_error(FORMAT, path, f"DT={step:g} s must be > 0", 4, lines[3],
+                           part="header line")
+    check_dt(dt, step, where, "its DT= header")
+    data = free_numbers(lines[4:], npts, fmt=FORMAT, path=path, first_line=5)
+    extra = " ".join(lines[4:]).split()[npts:]
+    if extra:
+        raise format_error(FORMAT, path, f"NPTS={npts} but the file holds {npts + len(extra)} "
+                           "values", 4, lines[3], part="header line")
+    check_samples(data, where)
+
+    parts = [p.strip() for p in lines[1].split(",")]
+    meta: dict = {"format": FORMAT, "title": lines[0].strip()}
+    component = parts[-1] if len(parts) >= 2 else ""
+    if len(parts) >= 4:
+        meta["event_name"] = parts[0]
+        meta["event_date"] = parts[1]
+        meta["station"] = ", ".join(parts[2:-1])
+    elif parts and parts[0]:
+        meta["station"] = parts[0]
+    meta["channel"] = component
+    meta.update(orientation_metadata(component))
+    station = meta.get("station", path.stem)
+    name = f"{station} {component}".strip()
+    return [Record(acc=to_si(data, rec_units, where), dt=step, name=name, component=component,
+                   source=where, units=rec_units, metadata=meta)]
