@@ -494,6 +494,8 @@ def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator
 
     def submit(i: int) -> None:
         submitted[i] += 1
+        with lock:
+            started.pop(i, None)      # the limit counts from this submission's start
         f = client.submit(_dask_task, fn, shared_future, items[i], limits[i], topic, i,
                           key=f"groundshake-{run_id}-{scatters}-{i}", pure=False)
         futures[f] = i
@@ -555,6 +557,10 @@ def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator
                             client.restart_workers([worker], raise_for_error=False)
                         except Exception as e:  # noqa: BLE001
                             report.notes.append(f"could not restart {worker}: {_one_line(e)}")
+            if futures and client.status in ("closing", "closed", "failed"):
+                raise SuiteStalled(f"suite: lost the connection to the Dask scheduler "
+                                   f"{report.scheduler}; {len(futures)} set(s) not run "
+                                   "(finished sets are kept; use --resume)")
             if silence is not None and futures and now - last_news[0] > silence:
                 raise SuiteStalled(
                     f"suite: the Dask scheduler {report.scheduler} gave no result and started "
