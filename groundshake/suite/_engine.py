@@ -356,6 +356,7 @@ def _run_pool(fn, shared, items, limits, n, retries, report) -> Iterator[dict]:
                         slot.conn.send((i, items[i], limits[i]))
                     except (OSError, ValueError):   # died before taking it: a new worker
                         todo.append(i)
+                        report.lost_workers += 1
                         stop(slot, kill=True)
                         slots[k] = start()
                         continue
