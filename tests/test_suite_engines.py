@@ -126,6 +126,7 @@ def test_relative_records_resolve_from_the_working_directory(case, tmp_path, mon
         assert "engine: in this process, 1 worker; 0 retries, 0 timed out, 0 failed" \
             in capsys.readouterr().out
         assert doc["engine"]["name"] == "in-process" and doc["engine"]["failed"] == 0
+        assert "engine: in this process, 1 worker" in (out / "suite.html").read_text()
         assert all(os.path.isabs(f) and f.startswith(str(work))
                    for r in doc["records"] for f in r["files"].values())
     (work / "lists").mkdir()
