@@ -38,7 +38,7 @@ def register(subparsers, parents) -> None:
     p.add_argument("--set-timeout", type=float, default=None, metavar="S",
                    help="time limit of one record set [s]; a set past it is reported failed "
                         "(default: 120 s + 1e-6 s x DOFs x record samples, x10 on the second "
-                        "term for --method direct; 0: no limit)")
+                        "term for the direct method; 0: no limit)")
     p.add_argument("--retries", type=int, default=2, metavar="N",
                    help="times a set is run again after its worker was lost (default 2)")
     p.add_argument("--resume", action="store_true",
