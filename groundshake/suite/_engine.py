@@ -262,6 +262,7 @@ def _worker_main(conn, fn: TaskFn, shared: dict) -> None:
     Says ``("started", i)`` when it takes set ``i`` and ``("done", i, result)`` at the end.
     """
     _one_compiled_thread()
+    os.environ.setdefault("GROUNDSHAKE_THREADS", "1")   # the oscillator kernel too, unless set
     try:
         while True:
             try:
