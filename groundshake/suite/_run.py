@@ -63,7 +63,8 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
         from ..dynamics._modal import residual_vectors
 
         residual = residual_vectors(model.M, model.influence, np.asarray(modes.shapes),
-                                    np.asarray(modes.participation), model.factor().solve)
+                                    np.asarray(modes.participation), model.factor().solve,
+                                    load=model.ground_load)
     return {"scenario": scenario.to_dict(), "source": str(scenario.source),
             "base_dir": str(scenario.base_dir), "model": to_plain(model),
             "modes": to_plain(modes), "method": method, "residual": residual,
