@@ -198,8 +198,9 @@ def test_reader_sees_words_units_and_no_round_off(rendered, report_file):
         assert unit in " ".join(v.headers) or unit in text, unit
     assert "kN·m" in text and "kPa" in text
     # no round-off shown as a result: no power-of-ten notation below 1e-9
-    tiny = re.findall(r"×10\^?−?-?(\d+)", text)
-    assert not [e for e in tiny if int(e) >= 9], tiny
+    sup = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
+    tiny = re.findall(r"×10\^?[−⁻-]([\d⁰¹²³⁴⁵⁶⁷⁸⁹]+)", text)
+    assert not [e for e in tiny if int(e.translate(sup)) >= 9], tiny
     assert not re.search(r"\de-(?:0*[1-9]\d)", text)         # nor 1e-27 style
     # the first page's summary table: its answers, in words, with units
     first = text.split("Summary", 2)[-1][:4000]

@@ -801,6 +801,10 @@ class _Builder:
         for key in dict.fromkeys(zip(point, dirs, damp)):
             sel = (point == key[0]) & (dirs == key[1]) & (damp == key[2])
             curves[key] = (per[sel], g * psa[sel], g * psab[sel])
+        top = max((float(np.nanmax(b)) for _, _, b in curves.values() if b.size), default=0.0)
+        # a direction without motion holds only round-off: left out of table and figure
+        curves = {k: v for k, v in curves.items()
+                  if v[2].size and float(np.nanmax(np.abs(v[2]))) > 1e-9 * top}
         rows = []
         for (p, d, z), (pp, a, b) in curves.items():
             if p == "envelope":
@@ -921,10 +925,13 @@ class _Builder:
             sel = dirs == "target"
             target = (per[sel], g * psa[sel])
         panels = []
+        top = float(np.nanmax(np.abs(psa))) if psa.size else 0.0
         for d in DIRECTIONS:
             cs = []
             for z in dict.fromkeys(damp[dirs == d]):
                 sel = (dirs == d) & (damp == z)
+                if not np.nanmax(np.abs(psa[sel]), initial=0.0) > 1e-9 * top:
+                    continue                      # no motion in this direction: round-off
                 cs.append((f"{self.n(z, 'damping')} % damping", per[sel], g * psa[sel], "broadened"))
             if target is not None and cs and d != "z":          # a horizontal target
                 cs.append(("target (horizontal)", target[0], target[1], "target"))

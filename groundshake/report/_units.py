@@ -118,15 +118,19 @@ def fmt(value, kind: str | None = None, system: str = "si", *, ref: float | None
     return text
 
 
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
 def _round(v: float, digits: int) -> str:
     if v == 0:
         return "0"
     a = abs(v)
     if a >= 10 ** digits:                      # whole numbers: keep every integer digit
         return f"{v:,.0f}".replace(",", "\u202f")
-    if a < 1e-4:
+    if a < 1e-6:
         mant, exp = f"{v:.{digits - 1}e}".split("e")
-        return f"{mant}×10^{int(exp)}"
+        mant = mant.rstrip("0").rstrip(".") if "." in mant else mant
+        return f"{mant}×10{str(int(exp)).translate(_SUPERSCRIPT)}"
     decimals = max(0, digits - 1 - int(math.floor(math.log10(a))))
     text = f"{v:.{decimals}f}"
     if "." in text:

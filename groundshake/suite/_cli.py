@@ -43,6 +43,9 @@ def register(subparsers, parents) -> None:
                    help="times a set is run again after its worker was lost (default 2)")
     p.add_argument("--resume", action="store_true",
                    help="keep finished records in DIR and run only the rest")
+    p.add_argument("--report-units", choices=("si", "us"), default=None,
+                   help="display units of suite.html: si (kN, mm, MPa, g) or us (kip, in, psi, "
+                        "g); default the scenario's [report] units. Files stay SI")
     p.add_argument("--force", action="store_true", help="write into an existing DIR")
     p.add_argument("-o", "--output", required=True, metavar="DIR", help="output folder")
     p.set_defaults(func=_suite)
@@ -88,7 +91,7 @@ def _suite(args) -> int:
     finally:
         if bar is not None:
             bar.__exit__(None, None, None)
-    write_suite_outputs(result, scenario, target=args.target)
+    write_suite_outputs(result, scenario, target=args.target, units=args.report_units)
     doc_path = out / "suite.json"
     if getattr(args, "json", False):
         import json

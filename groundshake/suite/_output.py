@@ -9,7 +9,6 @@ from typing import Sequence
 import numpy as np
 
 from .._atomic import atomic_write_text
-from .._cautions import CAUTIONS, SCREENING_NOTE
 
 __all__ = ["write_suite_outputs"]
 
@@ -58,24 +57,27 @@ def _band_panels(spec: dict, key: str, names: Sequence[str], target=None) -> lis
     panels = []
     i = len(spec["damping"]) - 1 if 0.05 not in spec["damping"] else list(spec["damping"]).index(0.05)
     dl = f"{100 * spec['damping'][i]:g}%"
+    top = float(np.nanmax(np.abs(spec[key]["max"]))) if np.size(spec[key]["max"]) else 0.0
     for p, name in enumerate(names):
         for j, d in enumerate(DIRECTIONS):
             st = spec[key]
             sel = (j, i) if key == "ground_psa" else (p, j, i)
             med = st["median"][sel]
-            if not np.any(med > 0):
+            # a direction with no motion holds only round-off (below 1e-9 of the largest)
+            if not np.any(np.abs(st["max"][sel]) > 1e-9 * top) or not np.any(med > 0):
                 continue
-            curves = [(f"median {dl}", periods, med, "line"),
-                      ("16th percentile", periods, st["p16"][sel], "raw"),
-                      ("84th percentile", periods, st["p84"][sel], "raw"),
-                      ("envelope", periods, st["max"][sel], "ground")]
+            curves = [(f"median (geometric mean), {dl} damping", periods, med, "line"),
+                      ("16th and 84th percentiles (log-normal)", periods, st["p16"][sel], "raw"),
+                      ("_nolegend_", periods, st["p84"][sel], "raw"),
+                      ("largest", periods, st["max"][sel], "ground")]
             if target is not None and key == "ground_psa" and d != "z":
                 curves.append(("target", periods, target, "target"))
-            panels.append((f"{name} {d}", curves))
+            panels.append((f"{name}, direction {d}", curves))
     return panels
 
 
-def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[Path]:
+def write_suite_outputs(result, scenario, *, target: str | None = None,
+                        units: str | None = None) -> list[Path]:
     """Write the spectra statistics (CSV, PNG) and ``suite.html`` into ``result.out_dir``.
 
     Parameters
@@ -85,16 +87,24 @@ def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[
     target : str, optional
         A target spectrum spec (see :func:`groundshake.spectra.parse_target`) drawn
         over the ground-spectra band; the scenario's ``motion.target`` if not given.
+    units : {"si", "us"}, optional
+        Display units of suite.html; default the scenario's ``[report] units``, else SI.
+        The CSV files stay SI.
     """
     from ..report._figures import data_uri, spectra_figure
-    from ..report._html import CSS, esc, figure, section, table
+    from ..report._html import figure
+    from ..report._suite_page import render_suite_page
+    from ..report._units import display_unit, to_display
 
+    units = units or getattr(getattr(scenario, "report", None), "units", None) or "si"
     out = Path(result.out_dir)
     written: list[Path] = []
     spec = result.spectra_statistics
     figures_html = []
     target_psa = None
     target = target or getattr(getattr(scenario, "motion", None), "target", None)
+    g = to_display(1.0, "acceleration", units)
+    ylabel = f"PSA [{display_unit('acceleration', units)}]"
     if spec:
         for name, text in _spectra_csv(spec).items():
             written.append(atomic_write_text(out / name, text))
@@ -103,46 +113,30 @@ def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[
             target_psa = np.asarray(parse_target(target, base_dir=scenario.base_dir)
                                     .psa(np.asarray(spec["periods"], dtype=float)))
         if "ground_psa" in spec:
-            fig = spectra_figure(_band_panels(spec, "ground_psa", ["ground"], target_psa),
-                                 columns=3)
-            figures_html.append(figure(data_uri(fig), "Ground spectra over the suite: median "
-                                       "(geometric mean), 16th–84th percentile band and envelope",
-                                       fid="fig-ground-band"))
+            panels = _scaled(_band_panels(spec, "ground_psa", ["ground"], target_psa), g)
+            fig = spectra_figure(panels, columns=3, ylabel=ylabel, shared_legend=True)
+            figures_html.append(figure(data_uri(fig), "Ground spectra over the suite: median, "
+                                       "16th and 84th percentiles (log-normal) and the largest "
+                                       "value at each period", fid="fig-ground-band"))
         if "floor_psa_broadened" in spec and spec["points"]:
-            fig = spectra_figure(_band_panels(spec, "floor_psa_broadened", spec["points"]),
-                                 columns=3)
-            figures_html.append(figure(data_uri(fig), "Broadened floor spectra over the suite",
+            panels = _scaled(_band_panels(spec, "floor_psa_broadened", spec["points"]), g)
+            fig = spectra_figure(panels, columns=3, ylabel=ylabel, shared_legend=True)
+            figures_html.append(figure(data_uri(fig), "Broadened floor spectra over the suite: "
+                                       "median, 16th and 84th percentiles and the largest value",
                                        fid="fig-floor-band"))
-    stats_rows = [(k, v.get("count"), v.get("mean"), v.get("median"), v.get("p16"), v.get("p84"),
-                   v.get("max"), v.get("lognormal_median"), v.get("beta"))
-                  for k, v in result.statistics.items()]
-    failures = [(r["record"], r.get("error", "")) for r in result.records if r.get("status") != "ok"]
-    warnings_ = sorted({w for r in result.records for w in r.get("warnings", [])})
     engine = getattr(result, "engine", None)
-    body = [
-        section("suite-engine", "How it ran",
-                f"<p>{esc(engine.line())}</p>" if engine is not None else "<p>—</p>"),
-        section("suite-records", "Record sets",
-                table([(r["record"], r["status"], ", ".join(f"{c}: {Path(f).name}" for c, f in
-                                                           r.get("files", {}).items()))
-                       for r in result.records], ["record set", "status", "files"])),
-        section("suite-statistics", "Statistics of the peaks (SI units)",
-                table(stats_rows, ["quantity", "n", "mean", "median", "16th", "84th", "max",
-                                   "log-normal median", "β (ln)"])),
-        section("suite-spectra", "Spectra", "".join(figures_html) or "<p>No spectra.</p>"),
-        section("suite-failures", "Record failures",
-                table(failures, ["record set", "error"]) if failures
-                else "<p>No record failed.</p>"),
-        section("warnings", "Warnings", "<ul>" + "".join(f"<li>{esc(w)}</li>" for w in warnings_)
-                + "</ul>" if warnings_ else "<p>None.</p>"),
-        section("cautions", "Cautions", "<ul>" + "".join(f"<li>{esc(c)}</li>" for c in CAUTIONS)
-                + "</ul>"),
-    ]
-    title = f"{getattr(scenario, 'title', 'suite')} — suite of {len(result.records)} record sets"
-    page = ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
-            f"<title>{esc(title)}</title><style>{CSS}</style></head><body>"
-            f"<header class=\"top\"><h1>{esc(title)}</h1>"
-            f"<div class=\"banner\">{esc(SCREENING_NOTE)}</div></header><main>"
-            + "".join(body) + "</main></body></html>\n")
+    source = getattr(scenario, "source", None)
+    prov = {"version": None, "scenario": Path(str(source)).name if source else None,
+            "how it ran": engine.line() if engine is not None else None}
+    page = render_suite_page(title=str(getattr(scenario, "title", "suite")),
+                             records=result.records, statistics=result.statistics,
+                             spectra_html="".join(figures_html), units=units,
+                             provenance={k: v for k, v in prov.items() if v is not None})
     written.append(atomic_write_text(out / "suite.html", page))
     return written
+
+
+def _scaled(panels: list, factor: float) -> list:
+    """Spectra panels with every curve's values multiplied by ``factor`` (display units)."""
+    return [(title, [(lab, per, np.asarray(val, float) * factor, kind)
+                     for lab, per, val, kind in curves]) for title, curves in panels]

@@ -234,6 +234,7 @@ def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
         "record": rs.name, "status": "ok", "files": dict(rs.files),
         "scale": {c: float(rs.scale.get(c, 1.0)) for c in rs.files},
         "peaks": scalar_peaks(s),
+        "worst_dc": s.get("worst_dc"),
         "warnings": list(s.get("warnings", [])),
         "records": s.get("records", []),
         "spectra": {
