@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 
 import numpy as np
 import pytest
@@ -136,6 +137,13 @@ def test_bad_record_is_reported_not_fatal(suite_case, tmp_path):
     assert by["a"]["status"] == "ok" and by["z"]["status"] == "failed"
     assert "z-" in by["z"]["error"] or "line" in by["z"]["error"]
     assert doc["cautions"] and (out / "suite.html").is_file()
+    # issue 16: suite.html names quantities in words with engineering units, numbers bolts
+    # from 1 and shows the failed set and why
+    page = (out / "suite.html").read_text(encoding="utf-8")
+    text = re.sub(r"<style>.*?</style>|<[^>]+>", " ", page, flags=re.S)
+    assert "anchors[" not in text and "peak_tension" not in text and "base_shear" not in text
+    assert "box, bolt 1: peak tension" in text and "box, bolt 4: peak shear" in text
+    assert "kN" in text and "licensed engineer" in text and "FAILED" in text
 
 
 def test_resume_runs_only_the_rest(suite_case, tmp_path):
