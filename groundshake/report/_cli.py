@@ -3,7 +3,6 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .._cautions import SCREENING_NOTE
 from .._cli_common import print_json
 from .._errors import InputError
 

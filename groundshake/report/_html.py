@@ -12,8 +12,7 @@ import math
 import re
 from typing import Any, Iterable, Mapping, Sequence
 
-__all__ = ["esc", "num", "raw", "table", "key_values", "value_html", "figure", "section",
-           "toml_text", "CSS", "unit_of_key"]
+__all__ = ["esc", "num", "raw", "table", "figure", "section", "toml_text", "CSS"]
 
 
 def esc(value: Any) -> str:
@@ -49,85 +48,6 @@ def num(value: Any, digits: int = 4) -> str:
     return f"{mant}×10<sup>{int(exp)}</sup>"
 
 
-_UNIT_RULES = (
-    (re.compile(r"^k_?[xyz]$|^k_?(h|v|horizontal|vertical)$"), "N/m"),
-    (re.compile(r"^k_?r[xyz]$|^k_?(t|rocking|torsion)$"), "N·m/rad"),
-    (re.compile(r"^c_?[xyz]$"), "N·s/m"),
-    (re.compile(r"^c_?r[xyz]$"), "N·m·s/rad"),
-    (re.compile(r"(^|_)ratios?($|_)|_over_|(^|_)dc($|_)|percent|factor|count|index|^n_|number"),
-     ""),
-    (re.compile(r"(^|_)time$|^time_of|_time_|period|duration|d5_|^t$|^dt$|_s$"), "s"),
-    (re.compile(r"frequency|_hz$|cutoff"), "Hz"),
-    (re.compile(r"acceleration|pga|psa|^sa$|zpa|abs_acc"), "m/s²"),
-    (re.compile(r"velocity|pgv|cav"), "m/s"),
-    (re.compile(r"arias"), "m/s"),
-    (re.compile(r"displacement|pgd|disp"), "m"),
-    (re.compile(r"moment|torque|_m[xyz]$"), "N·m"),
-    (re.compile(r"stress|mises|modulus|pressure"), "Pa"),
-    (re.compile(r"shear|tension|force|reaction|weight|_f[xyz]$|^f[xyzpv]$|fp"), "N"),
-    (re.compile(r"mass"), "kg"),
-    (re.compile(r"density"), "kg/m³"),
-)
-
-
-def unit_of_key(key: str) -> str:
-    """The SI unit implied by a summary.json key name (``""`` if none or unknown)."""
-    k = key.lower()
-    for rx, unit in _UNIT_RULES:
-        if rx.search(k):
-            return unit
-    return ""
-
-
-def _is_scalar(v: Any) -> bool:
-    return v is None or isinstance(v, (str, int, float, bool))
-
-
-def value_html(v: Any, *, depth: int = 0) -> str:
-    """Any JSON value as HTML: scalars as text, lists of scalars inline, lists of
-    objects as tables, objects as key/value tables (nested to a few levels)."""
-    if isinstance(v, str):
-        return esc(v)
-    if _is_scalar(v):
-        return num(v)
-    if isinstance(v, Mapping):
-        if depth > 4:
-            return f"<code>{esc(json.dumps(v, ensure_ascii=False)[:400])}</code>"
-        return key_values(v, depth=depth + 1)
-    if isinstance(v, (list, tuple)):
-        if all(_is_scalar(x) for x in v):
-            if len(v) > 24:
-                return ", ".join(value_html(x) for x in v[:24]) + f", … ({len(v)} values)"
-            return ", ".join(value_html(x) for x in v) if v else "—"
-        if all(isinstance(x, Mapping) for x in v):
-            keys: list[str] = []
-            for x in v:
-                keys += [k for k in x if k not in keys]
-            return table([[x.get(k) for k in keys] for x in v], keys, depth=depth + 1)
-        return "<br>".join(value_html(x, depth=depth + 1) for x in v)
-    return esc(v)
-
-
-def key_values(d: Mapping[str, Any], *, depth: int = 0, units: bool = True,
-               cls: str = "kv", force_unit: str | None = None) -> str:
-    """A two-column table of a mapping; units implied by key names are shown
-    (``force_unit`` for every number, e.g. the children of a ``..._s`` key)."""
-    rows = []
-    for k, v in d.items():
-        u = unit_of_key(str(k)) if units and isinstance(v, (int, float)) and not isinstance(v, bool) else ""
-        if force_unit is not None and isinstance(v, (int, float)) and not isinstance(v, bool):
-            u = force_unit
-        unit = f' <span class="unit">{esc(u)}</span>' if u else ""
-        if isinstance(v, Mapping) and str(k).endswith("_s") and depth <= 4:
-            inner = key_values(v, depth=depth + 1, units=units, force_unit="s")
-        else:
-            inner = value_html(v, depth=depth)
-        rows.append(f"<tr><th>{esc(k)}</th><td>{inner}{unit}</td></tr>")
-    if not rows:
-        return '<p class="none">—</p>'
-    return f'<table class="{esc(cls)}">' + "".join(rows) + "</table>"
-
-
 def table(rows: Iterable[Sequence[Any]], header: Sequence[Any], *, depth: int = 0,
           cls: str = "grid", row_classes: Sequence[str] | None = None) -> str:
     """A table with a header row. Cells are escaped (numbers formatted); only cells
@@ -141,8 +61,10 @@ def table(rows: Iterable[Sequence[Any]], header: Sequence[Any], *, depth: int = 
                 cells.append(f"<td>{c}</td>")
             elif isinstance(c, (int, float)) and not isinstance(c, bool) or c is None:
                 cells.append(f'<td class="n">{num(c)}</td>')
+            elif isinstance(c, bool):
+                cells.append(f"<td>{'yes' if c else 'no'}</td>")
             else:
-                cells.append(f"<td>{value_html(c, depth=depth)}</td>")
+                cells.append(f"<td>{esc(c)}</td>")
         rc = f' class="{esc(row_classes[n])}"' if row_classes and row_classes[n] else ""
         body.append(f"<tr{rc}>" + "".join(cells) + "</tr>")
     return (f'<table class="{esc(cls)}"><thead><tr>{head}</tr></thead><tbody>'

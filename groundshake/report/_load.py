@@ -1,10 +1,10 @@
 """Reading a run's output folder back: summary.json and the CSV tables.
 
-The report depends only on the files a run writes (see docs/INTERNALS.md), never on
-the objects that produced them, so it can be rebuilt from an output folder at any
-time. Columns are found by the words in their headers (``words [unit]``), matched
-case-insensitively, so small differences in naming do not break a figure; a file or
-column that is missing leaves its figure out and adds a note, never an error.
+The report depends only on the files a run writes, never on the objects that produced
+them, so it can be rebuilt from an output folder at any time. File names and column
+headers are those of the output contract (``groundshake/results/_schema.py``); columns
+are looked up by their exact header. A file that is missing leaves its figure out and
+adds a note, never an error.
 """
 from __future__ import annotations
 
@@ -14,19 +14,16 @@ import json
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Iterable
+from typing import Any
 
 import numpy as np
 
 from .._errors import InputError
 from ..results._schema import FILES
 
-__all__ = ["Table", "OutputFolder", "load_output", "split_header", "label_words",
-           "damping_of"]
+__all__ = ["Table", "OutputFolder", "load_output", "split_header"]
 
 _UNIT = re.compile(r"\s*[\[(]([^\])]*)[\])]\s*$")
-_SPLIT = re.compile(r"[\s_:/,;|=]+")
-_DAMPING = re.compile(r"(\d+(?:\.\d+)?)\s*(?:%|pct|percent)")
 
 #: The files a run writes (INTERNALS.md "Files in DIR").
 CSV_FILES = tuple(k for k, v in FILES.items() if v.endswith(".csv"))
@@ -38,18 +35,6 @@ def split_header(header: str) -> tuple[str, str]:
     if m:
         return header[:m.start()].strip(), m.group(1).strip()
     return header.strip(), ""
-
-
-def label_words(label: str) -> list[str]:
-    """Lower-case words of a header (unit removed), split on blanks and ``_:/,;|=``."""
-    text, _ = split_header(label)
-    return [w for w in _SPLIT.split(text.lower()) if w]
-
-
-def damping_of(label: str) -> float | None:
-    """The damping in percent named in a header (``"5%"``, ``"5 pct"``), else None."""
-    m = _DAMPING.search(label.lower())
-    return float(m.group(1)) if m else None
 
 
 @dataclass(frozen=True, eq=False)
@@ -102,30 +87,6 @@ class Table:
         if self.text:
             return [r[j] for r in self.text]
         return [f"{v:g}" for v in self.data[:, j]]
-
-    def find(self, *words: str, exclude: Iterable[str] = (), start: int = 0) -> list[int]:
-        """Indices of the columns whose header holds every one of ``words``.
-
-        A word may hold blanks (``"von mises"``): it must then appear as a run of
-        words. ``exclude`` drops columns holding any of those words.
-        """
-        out = []
-        for i in range(start, len(self.header)):
-            ws = label_words(self.header[i])
-            joined = " " + " ".join(ws) + " "
-            if all(_has(joined, w) for w in words) and not any(_has(joined, w) for w in exclude):
-                out.append(i)
-        return out
-
-    def first(self, *words: str, exclude: Iterable[str] = ()) -> int | None:
-        found = self.find(*words, exclude=exclude)
-        return found[0] if found else None
-
-
-def _has(joined: str, word: str) -> bool:
-    w = " ".join(_SPLIT.split(word.lower().strip()))
-    return f" {w} " in joined
-
 
 _EMPTY_CELL = re.compile(r"(?:(?<=,)|^)(?=,|$)", re.M)
 

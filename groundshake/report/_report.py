@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import datetime as _dt
 import hashlib
-import re
 from pathlib import Path
 from typing import Any, Callable, Mapping
 
@@ -1134,4 +1133,3 @@ def _sha256(path: Path) -> str:
     return h.hexdigest()
 
 
-_ = re  # kept for callers that patch module attributes
