@@ -1,0 +1,158 @@
+"""The first page: the summary table, every exceedance and warning in words, the cautions."""
+from __future__ import annotations
+
+from typing import Any, Mapping
+
+from .._cautions import CAUTIONS
+from ._html import esc, table
+from ._units import display_unit
+from ._context import Context, as_float as _f, get as _get, named as _named
+from ._context import sentence as _sentence
+
+__all__ = ["AnswersPart"]
+
+
+class AnswersPart(Context):
+    """One part of the report (see the module docstring)."""
+
+    def exceedances(self) -> list[str]:
+        """Every comparison above 1 (or a safety factor below 1) and lost contact, in words."""
+        out = []
+        for name, eq in _named(self.s.get("equipment")):
+            for k, a in enumerate(_get(eq, "anchors") or [], start=1):
+                for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
+                                  ("interaction_ratio", "tension–shear interaction")):
+                    v = _f(_get(a, key))
+                    if v is not None and v > 1.0:
+                        out.append(f"Bolt {k} of {name}: {what} demand is {self.n(v, 'ratio')} "
+                                   f"times the capacity entered (above 1).")
+        st = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
+        for key, what in (("sliding", "sliding"), ("overturning", "overturning")):
+            v = _f(_get(st, key, "min_safety_factor"))
+            if v is not None and v < 1.0:
+                out.append(f"Least {what} safety factor {self.n(v, 'ratio')} is below 1.")
+        v = _f(_get(st, "bearing", "ratio_to_allowable"))
+        if v is not None and v > 1.0:
+            out.append(f"Peak bearing pressure is {self.n(v, 'ratio')} times the allowable entered.")
+        c = _get(self.s, "base", "contact")
+        if isinstance(c, Mapping) and c.get("uplift"):
+            out.append(f"The base loses contact: the linear contact pressure falls to "
+                       f"{self.q(c.get('min_pressure'), 'pressure')} at "
+                       f"{self.q(c.get('time_of_min_pressure'), 'time')}; the bonded-spring "
+                       f"model does not hold there.")
+        return out
+
+    def warning_list(self) -> list[str]:
+        w = self.s.get("warnings") or []
+        if isinstance(w, (str, Mapping)):
+            w = [w]
+        return [str(x.get("message") or x) if isinstance(x, Mapping) else str(x) for x in w]
+
+    def summary(self) -> str:
+        rows: list[list[Any]] = []
+        classes: list[str] = []
+
+        def add(label, value, kind, where="", over=False):
+            rows.append([label, self.cell(value, kind), display_unit(kind, self.sys) if kind else "",
+                         where])
+            classes.append("over" if over else "")
+
+        pk = self.s.get("peaks") or {}
+        bp = _get(self.s, "base", "peaks") or {}
+        for d, key in (("x", "Fx"), ("y", "Fy")):
+            add(f"Peak base shear, {d}", _get(pk, "base_shear", d), "force",
+                self._when(_get(bp, key, "time")))
+        add("Peak vertical base force (dynamic part)", _get(pk, "base_axial"), "force",
+            self._when(_get(bp, "Fz", "time")))
+        for d, key in (("x", "Mx"), ("y", "My")):
+            add(f"Peak overturning moment about {d}", _get(pk, "overturning_moment", d),
+                "moment", self._when(_get(bp, key, "time")))
+        rd = _get(pk, "relative_displacement") or {}
+        if isinstance(rd, Mapping) and rd:
+            d = max(rd, key=lambda k: _f(_get(rd, k, "value")) or 0.0)
+            add("Peak displacement relative to the ground", _get(rd, d, "value"), "displacement",
+                f"{d}, at {self._at(_get(rd, d, 'at'))}, {self._when(_get(rd, d, 'time'))}")
+        st = self.s.get("stresses") or {}
+        vm = _get(st, "von_mises")
+        if isinstance(vm, Mapping):
+            away = _get(vm, "away_from_features", "value")
+            if _f(away) is not None:
+                add("Peak von Mises stress (away from local features)", away, "stress",
+                    f"at {self._at(_get(vm, 'away_from_features', 'at'))}")
+            add("Peak von Mises stress (anywhere)", vm.get("value"), "stress",
+                f"at {self._at(vm.get('at'))}" + (f", {vm['feature']}" if vm.get("feature") else ""))
+        elif _f(pk.get("von_mises")) is not None:
+            add("Peak von Mises stress", pk.get("von_mises"), "stress")
+        pt = _get(st, "principal_tension")
+        if isinstance(pt, Mapping):
+            add("Peak principal tension", pt.get("value"), "stress", f"at {self._at(pt.get('at'))}")
+        c = _get(self.s, "base", "contact")
+        if isinstance(c, Mapping):
+            add("Peak contact pressure under the base", c.get("peak_pressure"), "pressure",
+                self._when(c.get("time_of_peak_pressure")))
+            add("Least contact pressure (negative: uplift)", c.get("min_pressure"), "pressure",
+                self._when(c.get("time_of_min_pressure")), over=bool(c.get("uplift")))
+        stab = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
+        for key, label in (("sliding", "Least sliding safety factor"),
+                           ("overturning", "Least overturning safety factor")):
+            v = _f(_get(stab, key, "min_safety_factor"))
+            if v is not None:
+                case = _get(stab, key, "case")
+                where = self._when(_get(stab, key, "time"))
+                add(label, v, "ratio", (f"{case} soil, " if case else "") + where, over=v < 1.0)
+        q = _f(_get(stab, "bearing", "peak_pressure"))
+        if q is not None:
+            r = _f(_get(stab, "bearing", "ratio_to_allowable"))
+            add("Peak bearing pressure (no-tension base)", q, "pressure",
+                "" if r is None else f"{self.n(r, 'ratio')} × allowable entered",
+                over=r is not None and r > 1.0)
+        for name, eq in _named(self.s.get("equipment")):
+            pa = _get(eq, "peak_absolute_acceleration") or {}
+            if isinstance(pa, Mapping) and pa:
+                d = max(pa, key=lambda k: _f(pa[k]) or 0.0)
+                add(f"Peak acceleration of {name} (centre of mass)", pa[d], "acceleration", d)
+        w = self.s.get("worst_dc")
+        if isinstance(w, Mapping) and _f(w.get("value")) is not None:
+            v = float(w["value"])
+            add("Largest bolt demand / entered capacity", v, "ratio",
+                f"{w.get('equipment')}, bolt {w.get('bolt')}", over=v > 1.0)
+        wi = self.s.get("worst_interaction")
+        if isinstance(wi, Mapping) and _f(wi.get("value")) is not None:
+            v = float(wi["value"])
+            add("Largest bolt tension–shear interaction", v, "ratio",
+                f"{wi.get('equipment')}, bolt {wi.get('bolt')}", over=v > 1.0)
+        for md in (_get(self.s, "modes", "modes") or [])[:3]:
+            if isinstance(md, Mapping):
+                add(f"Mode {md.get('mode')} frequency", md.get("frequency"), "frequency",
+                    self._direction_words(md.get("dominant_direction")))
+        html_ = [table(rows, ["quantity", "value", "unit", "where, when"], row_classes=classes,
+                       cls="grid answers")]
+        cases = [c for c in self.s.get("soil_cases") or [] if isinstance(c, Mapping)]
+        if cases:
+            html_.append('<p class="note">Peaks are the envelope over the soil cases ' + ", ".join(
+                f"{esc(c.get('name'))} (G = {esc(self.q(c.get('shear_modulus'), 'modulus'))})"
+                for c in cases) + ".</p>")
+        ex = self.exceedances()
+        ws = self.warning_list()
+        if ex:
+            html_.append('<h3>Exceedances</h3><ul class="exceed">'
+                         + "".join(f"<li>{esc(x)}</li>" for x in ex) + "</ul>")
+        else:
+            html_.append('<p class="ok">No entered capacity or safety factor is exceeded.</p>')
+        if ws:
+            html_.append(f'<h3>Warnings of this run ({len(ws)})</h3><ul class="warn">'
+                         + "".join(f"<li>{esc(_sentence(x))}</li>" for x in ws) + "</ul>")
+        else:
+            html_.append('<p class="none">No automatic warnings for this run.</p>')
+        html_.append('<h3>Cautions</h3><ol class="cautions">'
+                     + "".join(f"<li>{esc(c)}</li>" for c in self.caution_list()) + "</ol>")
+        return "".join(html_)
+
+    def caution_list(self) -> list[str]:
+        items = list(CAUTIONS)
+        extra = self.s.get("cautions") or []
+        for c in extra if isinstance(extra, list) else [extra]:
+            if str(c) not in items:
+                items.append(str(c))
+        return items
+
