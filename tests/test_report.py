@@ -325,3 +325,21 @@ def test_corrected_record_is_drawn_on_the_original_time(tmp_path):
     ok = np.isfinite(a_raw)
     assert t_raw[ok][0] == pytest.approx(0.0)                   # first sample as read
     assert t_cor[0] == pytest.approx(-1.0)                      # the pad, at negative time
+
+
+def test_report_command_in_us_units(tmp_path, capsys):
+    """`groundshake report DIR --report-units us` rewrites the report in kip, kip·ft, in and
+    psi (NIST SP 811, App. B: 1 kip = 4448.2216152605 N) from the same SI files."""
+    from groundshake.cli import main
+
+    out = make_output_folder(tmp_path / "run")
+    assert main(["report", str(out), "--quiet"]) == 0
+    si = (out / "report.html").read_text(encoding="utf-8")
+    assert main(["report", str(out), "--force", "--quiet", "--report-units", "us"]) == 0
+    us = (out / "report.html").read_text(encoding="utf-8")
+    assert "[kN]" in si and "[kip]" not in si
+    assert "[kip]" in us and "[kN]" not in us and "kip·ft" in html.unescape(us)
+    body = html.unescape(re.sub(r"<[^>]+>", " ", us))
+    assert f"{3.1e5 / 4448.2216152605:.3g}" in body                # base shear x, kip
+    assert main(["report", str(out), "--force", "--report-units", "metric"]) == 2  # argparse
+    capsys.readouterr()
