@@ -128,3 +128,28 @@ def test_every_number_of_the_demo_summary_has_a_kind():
     # each node sits on the grid lines mesh.json names for it (structured grid)
     np.testing.assert_allclose(np.column_stack([xs[idx[:, 0]], ys[idx[:, 1]], zs[idx[:, 2]]]),
                                nodes, atol=1e-9)
+
+
+def test_every_display_factor_agrees_with_pint():
+    """Each display unit's factor equals pint's own conversion of the contract's SI unit
+    (pint as an independent units library)."""
+    pint = pytest.importorskip("pint")
+    ureg = pint.UnitRegistry()
+    spell = {"kN·m": "kN*m", "kip·ft": "kip*ft", "rad/s²": "rad/s**2", "kg/m³": "kg/m**3",
+             "lb/ft³": "lb/ft**3", "m²": "m**2", "ft²": "ft**2", "kN·m/rad": "kN*m/rad",
+             "kip·ft/rad": "kip*ft/rad", "kN·s/m": "kN*s/m", "kip·s/in": "kip*s/inch",
+             "kN·m·s/rad": "kN*m*s/rad", "kip·ft·s/rad": "kip*ft*s/rad", "in": "inch",
+             "in/s": "inch/s", "g": "standard_gravity", "t": "tonne", "kN/mm": "kN/mm",
+             "kip/in": "kip/inch", "ksf": "kip/ft**2", "lb": "lb", "psi": "psi", "ksi": "ksi"}
+    si_spell = {"N*m": "N*m", "m/s2": "m/s**2", "rad/s2": "rad/s**2", "kg/m3": "kg/m**3",
+                "m2": "m**2", "N*m/rad": "N*m/rad", "N*s/m": "N*s/m", "N*m*s/rad": "N*m*s/rad"}
+    checked = 0
+    for system, table in SYSTEMS.items():
+        for kind, (unit, factor) in table.items():
+            si = UNITS.get(kind, "")
+            if not unit or not si or unit in ("%",) or "^" in unit or si == "ratio":
+                continue
+            q = ureg.Quantity(1.0, si_spell.get(si, si)).to(spell.get(unit, unit))
+            assert q.magnitude == pytest.approx(factor, rel=1e-12), (system, kind, unit)
+            checked += 1
+    assert checked >= 30

@@ -26,7 +26,7 @@ import pytest
 from groundshake._errors import InputError
 from groundshake.report import CAUTIONS, SECTIONS, write_report
 from groundshake.results._anchorage import fp_comparison
-from groundshake.report._figures import exterior_faces, voxel_grid
+from groundshake.report._figures import exterior_faces
 from groundshake.report._html import esc, toml_text
 
 from test_report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
@@ -274,17 +274,6 @@ def test_exterior_face_counts():
     assert cube[tuple(cell.T)].all()                            # each face belongs to a filled cell
     # outward normals: as many faces look +x as −x (closed surface; Gauss)
     assert (normal == 0).sum() == (normal == 3).sum()
-
-
-def test_voxel_grid_recovers_a_box_grid():
-    xs, ys, zs = np.array([0, 1.0, 2.5]), np.array([0, 2.0]), np.array([0, 0.4, 1.2])
-    cx, cy, cz = (0.5 * (a[1:] + a[:-1]) for a in (xs, ys, zs))
-    C = np.stack(np.meshgrid(cx, cy, cz, indexing="ij"), -1).reshape(-1, 3)
-    N = np.stack(np.meshgrid(xs, ys, zs, indexing="ij"), -1).reshape(-1, 3)
-    g = voxel_grid(C, N)
-    # the grid is the node coordinates by construction
-    assert np.allclose(g.xs, xs) and np.allclose(g.zs, zs) and g.filled.all()
-    assert voxel_grid(C + [0.3, 0, 0], N) is None               # centres off the cell middles
 
 
 def test_fp_given_by_the_run_is_shown_beside_the_time_history(tmp_path):

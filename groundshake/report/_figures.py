@@ -17,7 +17,8 @@ from matplotlib.colors import LinearSegmentedColormap, Normalize
 from matplotlib.cm import ScalarMappable
 from matplotlib.figure import Figure
 
-__all__ = ["PALETTE", "LINESTYLES", "plain_log_axis", "STRESS_MAP", "SHAPE_MAP", "VoxelGrid", "voxel_grid", "data_uri",
+__all__ = ["PALETTE", "LINESTYLES", "plain_log_axis", "STRESS_MAP", "SHAPE_MAP", "VoxelGrid",
+           "data_uri",
            "mpl_text", "strip_figure", "record_figure", "spectra_figure", "model_figure",
            "stress_figure", "mode_shapes_figure", "exterior_faces"]
 
@@ -336,53 +337,6 @@ class VoxelGrid:
                 return None
             idx.append(i)
         return np.stack(idx, axis=1)
-
-
-def _unique(values: np.ndarray, scale: float) -> np.ndarray:
-    v = np.sort(np.asarray(values, float))
-    if v.size == 0:
-        return v
-    keep = np.concatenate([[True], np.diff(v) > 1e-6 * max(scale, 1.0)])
-    return v[keep]
-
-
-def voxel_grid(centres: np.ndarray, nodes: np.ndarray | None = None) -> VoxelGrid | None:
-    """Place element centres (n_el, 3) [m] on the grid of the node coordinates.
-
-    With ``nodes`` (n_nodes, 3) the grid lines are the distinct node coordinates
-    (exact for boxes on one grid). Without, they are guessed halfway between distinct
-    centres (exact for uniform spacing). Returns None if the centres do not sit in
-    the middle of grid cells, i.e. the mesh is not a box grid.
-    """
-    centres = np.asarray(centres, float)
-    if centres.ndim != 2 or centres.shape[1] != 3 or centres.shape[0] == 0:
-        return None
-    scale = float(np.max(np.ptp(centres, axis=0))) if centres.shape[0] > 1 else 1.0
-    lines = []
-    for axis in range(3):
-        if nodes is not None and len(nodes):
-            g = _unique(np.asarray(nodes, float)[:, axis], scale)
-        else:
-            c = _unique(centres[:, axis], scale)
-            if c.size == 1:
-                return None
-            mids = 0.5 * (c[1:] + c[:-1])
-            g = np.concatenate([[c[0] - (mids[0] - c[0])], mids, [c[-1] + (c[-1] - mids[-1])]])
-        if g.size < 2:
-            return None
-        lines.append(g)
-    index = np.empty(centres.shape, dtype=int)
-    for axis, g in enumerate(lines):
-        i = np.searchsorted(g, centres[:, axis]) - 1
-        if np.any(i < 0) or np.any(i >= g.size - 1):
-            return None
-        mid = 0.5 * (g[i] + g[i + 1])
-        if np.any(np.abs(mid - centres[:, axis]) > 1e-3 * (g[i + 1] - g[i])):
-            return None
-        index[:, axis] = i
-    filled = np.zeros((lines[0].size - 1, lines[1].size - 1, lines[2].size - 1), bool)
-    filled[tuple(index.T)] = True
-    return VoxelGrid(*lines, index=index, filled=filled)
 
 
 def _aspect(ax, lo: np.ndarray, hi: np.ndarray) -> None:
