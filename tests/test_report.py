@@ -332,3 +332,37 @@ def test_report_command_in_us_units(tmp_path, capsys):
     assert f"{3.1e5 / 4448.2216152605:.3g}" in body                # base shear x, kip
     assert main(["report", str(out), "--force", "--report-units", "metric"]) == 2  # argparse
     capsys.readouterr()
+
+
+def test_matching_results_are_shown_when_a_target_was_matched(tmp_path):
+    """With summary motion.matching (the matching stage's report), the Ground motion part
+    shows the acceptance checks in words with their limits and a before/after figure
+    (INVENTED folder; values as the matching stage writes them, fractions of the target)."""
+    import json
+
+    out = make_output_folder(tmp_path / "run", files=())
+    s = json.loads((out / "summary.json").read_text())
+    per = list(np.geomspace(0.05, 4.0, 12))
+    s["motion"] = {"matching": {"x": {
+        "status": "converged", "converged": True, "tolerance": 0.05, "max_misfit": 0.049,
+        "iterations": [{"iteration": k} for k in range(9)], "target": "invented target",
+        "periods": per, "target_psa": [[2.0] * 12], "psa_before": [[1.0] * 12],
+        "psa_after": [[2.05] * 12],
+        "acceptance": {"largest_shortfall": 0.034, "largest_excess": 0.35, "longest_run_below": 3,
+                       "husid_max_change": 0.11,
+                       "checks": {"shortfall": True, "excess": False, "adjacent_below": True,
+                                  "husid_change": True},
+                       "criteria": {"max_shortfall": 0.1, "max_excess": 0.3,
+                                    "max_adjacent_below": 9, "max_husid_change": 0.15}}}}}
+    (out / "summary.json").write_text(json.dumps(s))
+    text = write_report(out, progress=False).read_text(encoding="utf-8")
+    body = html.unescape(re.sub(r"<[^>]+>", " ", re.search(
+        r'<section id="motion">(.*?)</section>', text, re.S).group(1)))
+    body = " ".join(body.split())
+    assert "converged after 9 iterations" in body
+    # fractions of the target shown in percent (×100, definition): 3.4 % and 35 %
+    assert "largest shortfall below the target 3.4 % at most 10 % yes" in body
+    assert "largest excess above the target 35 % at most 30 % NO" in body
+    assert 'id="fig-matching"' in text
+    over = re.findall(r'<tr class="over">(.*?)</tr>', text, re.S)
+    assert any("excess" in o for o in over)                     # the failed check is marked
