@@ -63,7 +63,7 @@ def test_offset_group_shifts_moments_to_centroid():
 def test_fp_formula_and_bounds():
     W = 18000.0 * G
     r = fp_comparison(weight=W, sds=1.0, ap=2.5, rp=2.5, ip=1.5, z_over_h=1.0, anchors=BOLTS,
-                      mass=18000.0, cg_height=1.6)
+                      mass=18000.0, cg_height=1.6, dead_load_factor=1.0)   # the whole weight
     # ASCE 7-16 §13.3.1: 0.4·2.5·1.0·W·(1 + 2)/(2.5/1.5) = 1.8 W, capped at 1.6·SDS·Ip·W = 2.4 W
     assert r["fp_unbounded"] == pytest.approx(1.8 * W, rel=1e-12)
     assert r["fp"] == pytest.approx(1.8 * W, rel=1e-12)

@@ -7,9 +7,9 @@ Public names: :func:`analyse`, :class:`RunResults`, :func:`write_outputs`,
 from ._anchorage import BoltForces, bolt_forces, fp_comparison, plate_loads
 from ._floor import broaden, floor_spectra
 from ._outputs import OUTPUT_FILES, write_outputs
-from ._run import RunResults, analyse, respond
+from ._run import RunResults, analyse, base_resultants, respond
 from ._stress import StressPeaks, modal_stress_peaks, principal_stresses, von_mises
 
-__all__ = ["analyse", "RunResults", "respond", "write_outputs", "OUTPUT_FILES", "BoltForces",
+__all__ = ["analyse", "RunResults", "respond", "base_resultants", "write_outputs", "OUTPUT_FILES", "BoltForces",
            "bolt_forces", "plate_loads", "fp_comparison", "broaden", "floor_spectra",
            "StressPeaks", "modal_stress_peaks", "principal_stresses", "von_mises"]

@@ -10,7 +10,8 @@ base plate. From the absolute acceleration of its CG (translations a, rotations
     F = m a + (0, 0, f_d·m·g),      M = I α + h ẑ × (m a),
 
 where f_d is the ``dead_load_factor`` (the share of the weight counted as
-resisting uplift). Moved to the bolt-group centroid, F_z and the overturning
+resisting uplift; default 0.9, the 0.9·D of the combination with E in ASCE 7-16
+§2.3.6, from memory). Moved to the bolt-group centroid, F_z and the overturning
 moments are shared by the bolts in proportion to their distance from the
 centroid (rigid plate, equal elastic bolts), and the horizontal forces equally
 plus the torsion in proportion to the polar distance. Compression is assumed to
@@ -50,7 +51,7 @@ class BoltForces:
 
 
 def plate_loads(acc6: np.ndarray, *, mass: float, inertia, cg_height: float,
-                dead_load_factor: float = 1.0, g: float = STANDARD_GRAVITY) -> np.ndarray:
+                dead_load_factor: float = 0.9, g: float = STANDARD_GRAVITY) -> np.ndarray:
     """Forces and moments the foundation applies to the equipment at its plate centre.
 
     Parameters
@@ -85,7 +86,7 @@ def plate_loads(acc6: np.ndarray, *, mass: float, inertia, cg_height: float,
 
 
 def bolt_forces(acc6: np.ndarray, anchors: np.ndarray, *, mass: float, inertia,
-                cg_height: float, dead_load_factor: float = 1.0,
+                cg_height: float, dead_load_factor: float = 0.9,
                 g: float = STANDARD_GRAVITY) -> BoltForces:
     """Per-bolt tension and shear histories (rigid plate, elastic bolt group).
 
@@ -134,7 +135,7 @@ def bolt_forces(acc6: np.ndarray, anchors: np.ndarray, *, mass: float, inertia,
 
 def fp_comparison(*, weight: float, sds: float, ap: float, rp: float, ip: float,
                   z_over_h: float, anchors: np.ndarray, mass: float, cg_height: float,
-                  dead_load_factor: float = 1.0, g: float = STANDARD_GRAVITY) -> dict:
+                  dead_load_factor: float = 0.9, g: float = STANDARD_GRAVITY) -> dict:
     """Static equivalent-force demands for a side-by-side screening comparison.
 
     ASCE 7-16 §13.3.1: Fp = 0.4 ap SDS Wp (1 + 2 z/h)/(Rp/Ip), bounded by

@@ -180,7 +180,7 @@ class SupportSettings:
     radiation_damping: bool = spec("bool", True, doc="add radiation dashpots (soil only)")
     springs: Literal["lumped", "distributed"] = spec(
         "choice", "lumped", choices=("lumped", "distributed"),
-        doc="six springs at a rigid base, or a spring bed with the same totals")
+        doc="six springs at a rigid base, or a uniform spring bed with the same translation totals")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -240,8 +240,9 @@ class Equipment:
         doc="rotary inertia about the CG, axes x, y, z")
     anchors: tuple[tuple[float, float], ...] = spec(
         "points", (), unit="m", doc="bolt positions [[x, y], ...] from the mount")
-    dead_load_factor: float = spec("number", 1.0, ge=0.0, le=1.0,
-                                   doc="share of the weight that resists uplift")
+    dead_load_factor: float = spec("number", 0.9, ge=0.0, le=1.0,
+                                   doc="share of the weight that resists uplift (default 0.9: "
+                                       "0.9D with E, ASCE 7-16 §2.3.6, from memory)")
     capacity: AnchorCapacity | None = spec("table", None, cls=AnchorCapacity,
                                            doc="bolt capacities {tension, shear}, user supplied")
     fp: FpParameters | None = spec("table", None, cls=FpParameters,
