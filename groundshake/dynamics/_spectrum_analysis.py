@@ -18,6 +18,13 @@ acceleration-type r_d = (G_d − A Φ Γ_d) ZPA_d), added by SRSS,
 Y_d = √(y_d² + r_d²) (USNRC RG 1.92 Rev. 3, from memory), and the three directions by
 SRSS or by the 100-40-40 rule (RG 1.92 Rev. 3; ASCE 4). Every result is a peak
 magnitude: signs and simultaneity are lost.
+
+Stiff modes respond partly in phase with the ground: their rigid share αₙ = ZPA/Saₙ
+(Lindley & Yow 1980, for modes stiffer than the spectrum's peak) is summed
+algebraically with the missing mass and only the periodic share √(1 − αₙ²) enters the
+CQC (the treatment of RG 1.92 Rev. 3, from memory). A rigid structure then carries
+exactly its mass times the ZPA, which whole-mode CQC plus SRSS of the missing mass
+would underestimate.
 """
 from __future__ import annotations
 
@@ -31,6 +38,7 @@ import scipy.sparse as sp
 from .._errors import InputError
 
 __all__ = ["cqc_correlation", "damping_factor", "spectral_accelerations", "combine_modes",
+           "rigid_fractions", "zero_period_acceleration",
            "combine_directions", "ModalSpectrum", "modal_spectrum", "DIRECTION_RULES",
            "DEFAULT_VERTICAL_FRACTION"]
 
@@ -196,8 +204,8 @@ def zero_period_acceleration(target, *, scale: float = 1.0) -> tuple[float, list
     return float(v) * float(scale), notes
 
 
-def combine_modes(peaks: np.ndarray, rho: np.ndarray, residual: np.ndarray | None = None
-                  ) -> np.ndarray:
+def combine_modes(peaks: np.ndarray, rho: np.ndarray, residual: np.ndarray | None = None,
+                  *, rigid_fraction: np.ndarray | None = None) -> np.ndarray:
     """CQC of modal peaks, plus a rigid (missing-mass) part by SRSS.
 
     Parameters
@@ -207,21 +215,70 @@ def combine_modes(peaks: np.ndarray, rho: np.ndarray, residual: np.ndarray | Non
     rho : ndarray (m, m)
         Correlation coefficients (:func:`cqc_correlation`; the identity gives SRSS).
     residual : ndarray (k,), optional
-        Rigid response at the zero-period acceleration.
+        Signed rigid response of the modes left out at the zero-period acceleration
+        (same sign convention as ``peaks``).
+    rigid_fraction : ndarray (m,), optional
+        αₙ in [0, 1], the share of each mode's peak that is in phase with the ground
+        (rigid); 0 when omitted.
 
     Returns
     -------
     ndarray (k,)
-        √(yᵀρy + r²), ≥ 0.
+        √(y_pᵀ ρ y_p + y_r²) ≥ 0 with the periodic parts y_p,n = √(1 − αₙ²)·yₙ and the
+        rigid part y_r = Σₙ αₙ yₙ + r summed algebraically (USNRC RG 1.92 Rev. 3, from
+        memory). With α = 0: √(yᵀρy + r²).
     """
     Y = np.asarray(peaks, dtype=float)
     if Y.ndim == 1:
         Y = Y[None, :]
+    rigid = np.zeros(Y.shape[0])
+    if rigid_fraction is not None and Y.shape[1]:
+        a = np.clip(np.asarray(rigid_fraction, dtype=float).reshape(-1), 0.0, 1.0)
+        rigid = Y @ a
+        Y = Y * np.sqrt(1.0 - a * a)[None, :]
     q = np.einsum("km,km->k", Y @ np.asarray(rho, dtype=float), Y) if Y.shape[1] else \
         np.zeros(Y.shape[0])
     if residual is not None:
-        q = q + np.asarray(residual, dtype=float) ** 2
-    return np.sqrt(np.maximum(q, 0.0))
+        rigid = rigid + np.asarray(residual, dtype=float)
+    return np.sqrt(np.maximum(q + rigid * rigid, 0.0))
+
+
+def rigid_fractions(target, periods: np.ndarray, sa: np.ndarray, zpa: float) -> np.ndarray:
+    """Rigid-response fractions of modes (Lindley & Yow 1980).
+
+    Parameters
+    ----------
+    target : TargetSpectrum
+    periods : ndarray (m,)
+        Modal periods [s].
+    sa : ndarray (m,)
+        The modes' spectral accelerations [m/s²] (damping corrected, scaled).
+    zpa : float
+        Zero-period acceleration [m/s²] on the same scale as ``sa``.
+
+    Returns
+    -------
+    ndarray (m,)
+        αₙ = ZPA / Saₙ (≤ 1) for modes stiffer than the spectrum's peak (period below the
+        shortest period where the target reaches its maximum), 0 for the others.
+
+    References
+    ----------
+    Lindley, D.W. and Yow, T.R. (1980), "Modal response summation for seismic
+    qualification", ASCE Second Conference on Civil Engineering and Nuclear Power; adopted
+    in USNRC RG 1.92 Rev. 3 (from memory).
+    """
+    T = np.asarray(periods, dtype=float).reshape(-1)
+    grid = np.geomspace(0.005, 10.0, 1200)
+    vals = np.asarray(target.psa(grid), dtype=float)
+    ok = np.isfinite(vals)
+    if not np.any(ok) or zpa <= 0:
+        return np.zeros(T.size)
+    top = np.max(vals[ok])
+    t_peak = grid[ok][np.argmax(vals[ok] >= top * (1.0 - 1e-9))]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        a = np.where(np.asarray(sa) > 0, zpa / np.asarray(sa), 1.0)
+    return np.where(T < t_peak, np.clip(a, 0.0, 1.0), 0.0)
 
 
 def combine_directions(per_direction: np.ndarray,
@@ -273,6 +330,8 @@ class ModalSpectrum:
         Zero-period accelerations [m/s²].
     rho : ndarray (m, m)
         CQC correlation.
+    rigid : ndarray (3, m) or None
+        Rigid-response fraction αₙ of each mode per direction (:func:`rigid_fractions`).
     residual : ndarray (n, 3) or None
         Static residual shapes R (u_res = R·(−a_g)), None without missing mass.
     rule : str
@@ -289,6 +348,7 @@ class ModalSpectrum:
     rho: np.ndarray
     residual: np.ndarray | None
     rule: str = "srss"
+    rigid: np.ndarray | None = None
     notes: list = field(default_factory=list)
 
     @property
@@ -332,7 +392,8 @@ class ModalSpectrum:
                 continue
             Y = A * (self.participation[:, d] * spec[d])[None, :]
             r = None if res is None else res[:, d] * self.zpa[d]
-            out[d] = combine_modes(Y, self.rho, r)
+            out[d] = combine_modes(Y, self.rho, r,
+                                   rigid_fraction=None if self.rigid is None else self.rigid[d])
         return out
 
     def peak(self, op, *, kind: Literal["displacement", "acceleration"],
@@ -344,7 +405,8 @@ class ModalSpectrum:
 def modal_spectrum(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
                    participation: np.ndarray, targets, *, scales=(1.0, 1.0, 1.0),
                    residual: np.ndarray | None = None,
-                   rule: Literal["srss", "100-40-40"] = "srss") -> ModalSpectrum:
+                   rule: Literal["srss", "100-40-40"] = "srss",
+                   rigid_modes: bool = True) -> ModalSpectrum:
     """Spectral values of every mode for each ground direction.
 
     Parameters
@@ -365,6 +427,9 @@ def modal_spectrum(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
         Missing-mass shapes (:func:`groundshake.dynamics.residual_vectors`).
     rule : {"srss", "100-40-40"}
         Direction combination.
+    rigid_modes : bool
+        Separate the rigid part of stiff modes (:func:`rigid_fractions`) and add it
+        algebraically to the missing mass; False combines whole modes by CQC.
 
     Returns
     -------
@@ -377,6 +442,7 @@ def modal_spectrum(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
     T = 2.0 * math.pi / w if w.size else np.zeros(0)
     sa = np.zeros((3, w.size))
     zpa = np.zeros(3)
+    alpha = np.zeros((3, w.size))
     notes: list[str] = []
     for d in range(3):
         tgt = targets[d]
@@ -384,8 +450,11 @@ def modal_spectrum(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
             continue
         sa[d], nt = spectral_accelerations(tgt, T, z, scale=float(scales[d]))
         zpa[d], nz = zero_period_acceleration(tgt, scale=float(scales[d]))
+        if rigid_modes:
+            alpha[d] = rigid_fractions(tgt, T, sa[d], zpa[d])
         notes.extend(m for m in nt + nz if m not in notes)
     rho = cqc_correlation(w, z) if w.size else np.zeros((0, 0))
     return ModalSpectrum(shapes=np.asarray(shapes, dtype=float), omega=w, damping=z,
                          participation=np.asarray(participation, float).reshape(-1, 3),
-                         sa=sa, zpa=zpa, rho=rho, residual=residual, rule=rule, notes=notes)
+                         sa=sa, zpa=zpa, rho=rho, residual=residual, rule=rule, notes=notes,
+                        rigid=alpha)

@@ -1,0 +1,148 @@
+"""The spectrum method end to end: Newton for a rigid block, an oscillator reads the target.
+
+Sources: Newton's second law (a rigid body on a moving base carries m times the ground's
+acceleration; at the zero-period end every mode is rigid); the design spectrum formulas of
+ASCE 7-16 §11.4.6 (computed in the tests from the formula, REFERENCES.md §5); the damping
+factor η = √(10/(5+ξ%)) of EN 1998-1 §3.2.2.2; a single-degree-of-freedom oscillator's
+peak absolute acceleration is its spectral acceleration (definition of the response
+spectrum; Chopra, Dynamics of Structures, ch. 6). The blocks, targets and equipment are
+invented for the tests.
+"""
+from __future__ import annotations
+
+import json
+import math
+import warnings
+
+import numpy as np
+import pytest
+
+from groundshake._errors import GroundshakeWarning, InputError
+from groundshake.results import analyse
+from groundshake.scenario import Scenario
+
+G = 9.80665
+CONCRETE = {"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0}}
+STIFF = {"c": {"youngs_modulus": 30e12, "poisson_ratio": 0.2, "density": 2400.0}}
+
+
+def _scenario(*, motion, materials=CONCRETE, equipment=(), analysis=None, base_dir=None,
+              support=None):
+    d = {"title": "block (invented)", "materials": materials,
+         "parts": [{"name": "b", "material": "c", "origin": [0, 0, 0], "size": [2.0, 2.0, 1.0]}],
+         "mesh": {"element_size": 0.5},
+         "support": support or {"kind": "fixed"},
+         "sensors": [{"name": "top", "at": [1.0, 1.0, 1.0]}],
+         "equipment": list(equipment),
+         "motion": motion,
+         "analysis": {"method": "spectrum", "cutoff_hz": 50.0, **(analysis or {})},
+         "floor_spectra": {"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0,
+                                                                "count": 8}}}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GroundshakeWarning)
+        return Scenario.from_dict(d, base_dir=base_dir)
+
+
+def _run(scen):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GroundshakeWarning)
+        return analyse(scen, progress=False)
+
+
+def _flat_zpa_table(tmp_path, zpa_g=0.5):
+    # an invented design spectrum with the usual rigid end: flat at the ZPA up to 33 Hz
+    p = tmp_path / "design.csv"
+    p.write_text(f"0,{zpa_g}\n0.03,{zpa_g}\n0.1,1.2\n0.5,1.2\n2.0,0.3\n", encoding="utf-8")
+    return p
+
+
+@pytest.mark.parametrize("rule", ["srss", "100-40-40"])
+def test_rigid_block_base_shear_is_mass_times_zpa(tmp_path, rule):
+    table = _flat_zpa_table(tmp_path, 0.5)
+    eq = {"name": "box", "mass": 3000.0, "mount": [1.0, 1.0], "footprint": [0.8, 0.8],
+          "cg_height": 0.5}
+    scen = _scenario(motion={"target": table.name}, base_dir=tmp_path, equipment=[eq],
+                     analysis={"direction_combination": rule})
+    res = _run(scen)
+    f1 = res.summary["modes"]["modes"][0]["frequency"]
+    assert f1 > 40.0          # precondition: every mode on the flat (rigid) end of the table
+    m = 2.0 * 2.0 * 1.0 * 2400.0 + 3000.0
+    pk = res.summary["peaks"]
+    zpa = 0.5 * G
+    # Newton: a rigid body carries m × ZPA (x, y full; z at the default 2/3 fraction,
+    # USNRC RG 1.60 / ASCE 4 long-period ratio, from memory); nothing couples the directions
+    # of a symmetric block, so SRSS and 100-40-40 agree
+    assert pk["base_shear"]["x"] == pytest.approx(m * zpa, rel=1e-6)
+    assert pk["base_shear"]["y"] == pytest.approx(m * zpa, rel=1e-6)
+    assert pk["base_axial"] == pytest.approx(m * zpa * 2.0 / 3.0, rel=1e-6)
+    # the equipment moves with the ground: its acceleration is the ZPA (rigid body)
+    a = res.summary["equipment"]["box"]["peak_absolute_acceleration"]
+    assert a["x"] == pytest.approx(zpa, rel=1e-6)
+    assert a["z"] == pytest.approx(zpa * 2.0 / 3.0, rel=1e-6)
+
+
+@pytest.mark.parametrize("f_hz, xi_pct", [(5.0, 5.0), (1.0 / 1.2, 5.0), (5.0, 2.0), (12.0, 5.0)])
+def test_flexible_equipment_on_rigid_base_reads_the_target(f_hz, xi_pct):
+    sds, sd1, tl = 1.0, 0.6, 8.0
+    eq = {"name": "unit", "mass": 500.0, "mount": [1.0, 1.0], "footprint": [0.6, 0.6],
+          "cg_height": 0.6, "frequency_hz": [f_hz, f_hz, 30.0], "damping_percent": xi_pct}
+    scen = _scenario(motion={"target": f"asce7:sds={sds},sd1={sd1},tl={tl}",
+                             "vertical_fraction": 0.0},
+                     materials=STIFF, equipment=[eq])
+    res = _run(scen)
+    T = 1.0 / f_hz
+    t0, ts = 0.2 * sd1 / sds, sd1 / sds
+    # ASCE 7-16 §11.4.6, written out here: ramp, plateau, SD1/T, SD1·TL/T²
+    sa = (sds * (0.4 + 0.6 * T / t0) if T < t0 else sds if T <= ts
+          else sd1 / T if T <= tl else sd1 * tl / T ** 2)
+    eta = math.sqrt(10.0 / (5.0 + xi_pct))         # EN 1998-1 §3.2.2.2 damping factor
+    a = res.summary["equipment"]["unit"]["peak_absolute_acceleration"]
+    # (below T0 the mode is stiffer than the spectrum's peak: rigid share α = ZPA/Sa and
+    # periodic share √(1 − α²) (Lindley & Yow 1980) add up to √((α·Sa)² + (1 − α²)·Sa²) = Sa)
+    # definition of the response spectrum: an oscillator on the ground reads Sa(T, ξ)
+    assert a["x"] == pytest.approx(sa * eta * G, rel=1e-5)
+    assert a["y"] == pytest.approx(sa * eta * G, rel=1e-5)
+
+
+def test_spectrum_method_needs_a_target():
+    from groundshake._errors import ScenarioError
+    with pytest.raises(ScenarioError, match="motion.target"):
+        _scenario(motion={"vertical_fraction": 0.5})
+
+
+def test_spectrum_method_refuses_a_given_motion():
+    from groundshake.dynamics import motion_from_arrays
+    scen = _scenario(motion={"target": "asce7:sds=1.0,sd1=0.6,tl=8"})
+    with pytest.raises(InputError, match="spectrum"):
+        analyse(scen, motion=motion_from_arrays({"x": np.zeros(10)}, 0.01), progress=False)
+
+
+def test_summary_keys_and_notes(tmp_path):
+    from groundshake.results._outputs import write_outputs
+    eq = {"name": "unit", "mass": 500.0, "mount": [1.0, 1.0], "footprint": [0.6, 0.6],
+          "cg_height": 0.6, "frequency_hz": [8.0, 8.0, 30.0],
+          "anchors": [[-0.2, -0.2], [0.2, -0.2], [0.2, 0.2], [-0.2, 0.2]],
+          "capacity": {"tension": 1e4, "shear": 1e4}}
+    scen = _scenario(motion={"target": "en1998:type=1,ground=C,ag=0.3",
+                             "target_z": "en1998:type=2,ground=C,ag=0.2"}, equipment=[eq],
+                     support={"kind": "soil", "shear_wave_velocity": 250.0,
+                              "poisson_ratio": 0.33, "density": 1900.0})
+    res = _run(scen)
+    s = res.summary
+    # the keys of the output contract (DESIGN.md) that a peak can fill
+    for k in ("x", "y"):
+        assert s["peaks"]["base_shear"][k] > 0 and s["peaks"]["overturning_moment"][k] > 0
+    assert s["peaks"]["base_axial"] > 0 and s["peaks"]["von_mises"] > 0
+    assert s["sensors"]["top"]["peak_relative_displacement"]["x"] > 0
+    b = s["equipment"]["unit"]["anchors"][0]
+    assert b["peak_tension"] >= 0 and b["peak_shear"] > 0
+    assert any("signs" in a and "simultaneity" in a for a in s["analysis"]["assumptions"])
+    # EN 1998-1 §3.2.2.2: S·ag for type 1 ground C, 1.15 × 0.3 g; type 2 ground C 1.5 × 0.2 g
+    assert s["analysis"]["zero_period_acceleration"]["x"] == pytest.approx(1.15 * 0.3 * G)
+    assert s["analysis"]["zero_period_acceleration"]["z"] == pytest.approx(1.5 * 0.2 * G)
+    out = write_outputs(res, tmp_path / "run", report=True)
+    names = {p.name for p in out.iterdir()}
+    assert "summary.json" in names and "report.html" in names
+    assert "histories.csv" not in names          # no time histories in a spectrum run
+    back = json.loads((out / "summary.json").read_text(encoding="utf-8"))
+    assert back["analysis"]["method"] == "spectrum"
