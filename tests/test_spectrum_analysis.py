@@ -109,3 +109,16 @@ def test_single_mode_reads_the_target():
     # ASCE 7-16 §11.4.6: Sa(1.2 s) = SD1/T = 0.5 g; Sd = Sa/ω² (pseudo-spectral relation)
     disp = ms.peak(np.ones((1, 1)), kind="displacement")
     assert disp[0] == pytest.approx(0.5 * 9.80665 / w ** 2, rel=1e-12)
+
+
+@pytest.mark.parametrize("xi", [0.02, 0.10, 0.20])
+def test_asce7_rising_branch_corrected_in_the_en1998_form(xi):
+    tgt = parse_target("asce7:sds=1.0,sd1=0.6,tl=8")
+    T = np.array([0.0, 0.03, 0.06, 0.1199])
+    sa, _ = spectral_accelerations(tgt, T, np.full(T.size, xi))
+    t0, eta = 0.12, math.sqrt(10.0 / (5.0 + 100 * xi))
+    # ASCE 7-16 §11.4.6: Sa = 0.4·SDS(1 + 1.5 T/T0) below T0 is EN 1998-1 eq. (3.2)'s
+    # ag·S(1 + T/TB(2.5η − 1)) at η = 1 with ag·S = 0.4 SDS, TB = T0; at another damping
+    # EN 1998-1 §3.2.2.2 gives 0.4·SDS(1 + T/T0(2.5η − 1)), the ZPA unchanged at T = 0
+    ref = 0.4 * (1 + T / t0 * (2.5 * eta - 1)) * 9.80665
+    np.testing.assert_allclose(sa, ref, rtol=1e-9)

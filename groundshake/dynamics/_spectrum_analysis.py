@@ -140,10 +140,12 @@ def spectral_accelerations(target, periods: np.ndarray, damping: np.ndarray, *,
     Notes
     -----
     An EN 1998-1 target is evaluated again at each mode's damping (its own η). Any other
-    target is multiplied by η(ξₙ)/η(ξ_target) with η of EN 1998-1 §3.2.2.2; the ratio is
-    applied over the whole curve, also at short periods where the spectrum tends to the
-    damping-independent ZPA (a simplification, conservative for ξₙ below the target's).
-    A table is held at its end values outside its periods.
+    target takes the EN 1998-1 §3.2.2.2 form of the correction, with e = η(ξₙ)/η(ξ_target):
+    from the spectrum's peak on (T ≥ T_peak) Sa·e; below it only the amplification over
+    the zero-period acceleration is corrected, Sa_ξ = ZPA + (Sa − ZPA)(β e − 1)/(β − 1)
+    with β = Sa_peak/ZPA, so the curve stays continuous at T_peak and tends to the
+    damping-independent ZPA at T → 0 (for β = 2.5 this is EN 1998-1's own
+    1 + T/T_B(2.5η − 1) branch). A table is held at its end values outside its periods.
     """
     T = np.asarray(periods, dtype=float).reshape(-1)
     z = np.broadcast_to(np.asarray(damping, dtype=float), T.shape)
@@ -167,11 +169,30 @@ def spectral_accelerations(target, periods: np.ndarray, damping: np.ndarray, *,
         ref = float(damping_factor(target.damping))
         eta = damping_factor(z) / ref
         if np.any(np.abs(eta - 1.0) > 1e-12):
-            sa = sa * eta
-            notes.append(f"Target for {100 * target.damping:g} % damping scaled to each mode's "
-                         "damping by η(ξ)/η(ξ_target), η = √(10/(5+ξ%)) ≥ 0.55 (EN 1998-1 "
-                         "§3.2.2.2), over the whole curve.")
+            t_peak, peak, zpa = _peak_of(target)
+            beta = peak / zpa if zpa > 0 else np.inf
+            if np.isfinite(beta) and beta > 1.0:
+                rising = zpa + (sa - zpa) * (beta * eta - 1.0) / (beta - 1.0)
+                sa = np.where(T < t_peak, rising, sa * eta)
+            else:
+                sa = sa * eta
+            notes.append(f"Target for {100 * target.damping:g} % damping corrected to each "
+                         "mode's damping in the form of EN 1998-1 §3.2.2.2 (η = √(10/(5+ξ%)) "
+                         "≥ 0.55): × η(ξ)/η(ξ_target) from the spectrum's peak on, only the "
+                         "amplification over the ZPA below it.")
     return sa * float(scale), notes
+
+
+def _peak_of(target) -> tuple[float, float, float]:
+    """(shortest period of the maximum [s], maximum, ZPA) of a target [m/s²]."""
+    grid = np.geomspace(0.005, 10.0, 1200)
+    vals = np.asarray(target.psa(grid), dtype=float)
+    ok = np.isfinite(vals)
+    zpa = float(_psa_held(target, np.array([0.0]), [])[0])
+    if not np.any(ok):
+        return 0.0, zpa, zpa
+    top = float(np.max(vals[ok]))
+    return float(grid[ok][np.argmax(vals[ok] >= top * (1.0 - 1e-9))]), top, zpa
 
 
 def _psa_held(target, T: np.ndarray, notes: list[str]) -> np.ndarray:
@@ -269,13 +290,9 @@ def rigid_fractions(target, periods: np.ndarray, sa: np.ndarray, zpa: float) -> 
     in USNRC RG 1.92 Rev. 3 (from memory).
     """
     T = np.asarray(periods, dtype=float).reshape(-1)
-    grid = np.geomspace(0.005, 10.0, 1200)
-    vals = np.asarray(target.psa(grid), dtype=float)
-    ok = np.isfinite(vals)
-    if not np.any(ok) or zpa <= 0:
+    t_peak, _, _ = _peak_of(target)
+    if zpa <= 0:
         return np.zeros(T.size)
-    top = np.max(vals[ok])
-    t_peak = grid[ok][np.argmax(vals[ok] >= top * (1.0 - 1e-9))]
     with np.errstate(divide="ignore", invalid="ignore"):
         a = np.where(np.asarray(sa) > 0, zpa / np.asarray(sa), 1.0)
     return np.where(T < t_peak, np.clip(a, 0.0, 1.0), 0.0)

@@ -643,7 +643,7 @@ class _Builder:
 
     # ----------------------------------------------------------------- results
     def results(self) -> str:
-        html_ = ["<h3>Governing peaks</h3>"]
+        html_ = [self.spectrum_note(), "<h3>Governing peaks</h3>"]
         peaks = self.s.get("peaks")
         html_.append(key_values(peaks) if isinstance(peaks, Mapping) and peaks
                      else '<p class="none">No peaks in summary.json.</p>')
@@ -674,6 +674,17 @@ class _Builder:
             html_.append(key_values(base))
         html_.append(self.history_figures())
         return "".join(html_)
+
+    def spectrum_note(self) -> str:
+        """For a response-spectrum run: what its peaks are (signs and times lost)."""
+        an = self.s.get("analysis")
+        if not (isinstance(an, Mapping) and an.get("method") == "spectrum"):
+            return ""
+        items = "".join(f"<li>{esc(str(a))}</li>" for a in an.get("assumptions") or [])
+        return ('<p class="note">Response-spectrum analysis of the design spectrum: every '
+                "value below is a peak magnitude estimated on its own, without sign or time; "
+                "peaks of different quantities need not occur together.</p>"
+                f"<ul>{items}</ul>")
 
     def stress_figure(self) -> str:
         e = self.f.table("element_peaks")
