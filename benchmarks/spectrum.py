@@ -131,6 +131,11 @@ def agreement(r_rs, r_th, n, dt, duration):
     t0 = time.perf_counter()
     motions = matched_motions(target, n, dt, duration, frac)
     print(f"  matching took {time.perf_counter() - t0:.1f} s")
+    pga = np.array([np.max(np.abs(mo.acc), axis=1) for mo, _ in motions])     # (n, 3)
+    zpa = float(target.psa(np.array([0.0]))[0])
+    print(f"  mean PGA of the matched motions x, y, z: "
+          + ", ".join(f"{v:.3g}" for v in pga.mean(axis=0))
+          + f" m/s2; the target's ZPA {zpa:.3g} (horizontal), {frac * zpa:.3g} (vertical)")
     rows = []
     for mo, _ in motions:
         r = _quiet(analyse, th_scen, progress=False, motion=mo, model=r_th.model,
