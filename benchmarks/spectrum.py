@@ -68,6 +68,8 @@ def _quiet(fn, *a, **k):
 def timing():
     th = _quiet(load_scenario, ROOT / "examples" / "transformer-pad.toml")
     rs = _quiet(load_scenario, ROOT / "examples" / "transformer-pad-spectrum.toml")
+    _quiet(analyse, th, progress=False)          # warm-up: compiled kernels, caches
+    _quiet(analyse, rs, progress=False)
     t0 = time.perf_counter()
     r_th = _quiet(analyse, th, progress=False)
     t_th = time.perf_counter() - t0

@@ -146,3 +146,37 @@ def test_summary_keys_and_notes(tmp_path):
     assert "histories.csv" not in names          # no time histories in a spectrum run
     back = json.loads((out / "summary.json").read_text(encoding="utf-8"))
     assert back["analysis"]["method"] == "spectrum"
+
+
+def test_bad_vertical_target_names_its_key():
+    from groundshake._errors import ScenarioError
+    # ASCE 7-16 §11.4.6 needs SD1 > 0 (the formula divides by SDS and uses SD1/T)
+    with pytest.raises(ScenarioError, match="motion.target_z"):
+        _scenario(motion={"target": "asce7:sds=1.0,sd1=0.6,tl=8",
+                          "target_z": "asce7:sds=1.0,sd1=0,tl=8"})
+
+
+def test_run_command_with_method_spectrum(tmp_path):
+    from groundshake.cli import main
+    src = tmp_path / "s.toml"
+    src.write_text(
+        'title = "block (invented)"\n[motion]\ntarget = "asce7:sds=0.5,sd1=0.3,tl=8"\n'
+        '[materials.c]\nyoungs_modulus = 30e9\npoisson_ratio = 0.2\ndensity = 2400\n'
+        '[[parts]]\nname = "b"\nmaterial = "c"\norigin = [0, 0, 0]\nsize = [2.0, 2.0, 1.0]\n'
+        '[mesh]\nelement_size = 0.5\n[support]\nkind = "fixed"\n', encoding="utf-8")
+    out = tmp_path / "out"
+    assert main(["run", str(src), "-o", str(out), "--method", "spectrum", "--quiet",
+                 "--no-report"]) == 0
+    s = json.loads((out / "summary.json").read_text(encoding="utf-8"))
+    assert s["analysis"]["method"] == "spectrum"
+    # ASCE 7-16 §11.4.6: ZPA = 0.4·SDS; a concrete block this small is rigid on a fixed
+    # base, so its base shear is close to m·ZPA (Newton); the ramp above T = 0 adds a little
+    m = 2.0 * 2.0 * 1.0 * 2400.0
+    assert s["peaks"]["base_shear"]["x"] == pytest.approx(m * 0.4 * 0.5 * G, rel=0.02)
+
+
+def test_time_history_of_a_target_only_motion_says_what_to_do():
+    scen = _scenario(motion={"target": "asce7:sds=1.0,sd1=0.6,tl=8"},
+                     analysis={"method": "modal"})
+    with pytest.raises(InputError, match="spectrum"):
+        analyse(scen, progress=False)

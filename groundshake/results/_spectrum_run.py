@@ -72,6 +72,14 @@ def stress_bounds(peaks: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray
     return vm, t, -t
 
 
+def _drop_times(d) -> None:
+    """Remove every ``time`` key of a nested summary dict (a spectrum run has no times)."""
+    if isinstance(d, dict):
+        d.pop("time", None)
+        for v in d.values():
+            _drop_times(v)
+
+
 def _targets(scenario):
     """(horizontal target, vertical target or None, vertical scale, description)."""
     from ..spectra import parse_target
@@ -301,20 +309,27 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
             comp = ms.peak(S, kind="displacement")                    # (6·n_pts,)
         n_pts = S.shape[0] // 6
         vm, t1, t3 = stress_bounds(comp.reshape(n_pts, 6).T)
-        per = max(1, n_pts // n_el)                                   # points per element
-        vm_e = vm.reshape(n_el, per).max(axis=1)
-        t1_e = t1.reshape(n_el, per).max(axis=1)
-        t3_e = t3.reshape(n_el, per).min(axis=1)
-        zero = np.zeros(n_el, dtype=np.int64)
-        speaks = StressPeaks(vm_e, zero, t1_e, zero.copy(), t3_e, zero.copy())
-        centres = np.asarray(model.element_centres)
-        for key, arr, pick in (("von_mises", vm_e, np.argmax), ("principal_tension", t1_e, np.argmax),
-                               ("principal_compression", t3_e, np.argmin)):
-            e = int(pick(arr))
-            stress_out[key] = {"value": float(arr[e]), "element": e,
-                               "at": [float(v) for v in centres[e]]}
-        stress_out["points"] = "element centres" if per == 1 else f"{per} points per element"
-        stress_out["units"] = "Pa"
+        zero = np.zeros(n_pts, dtype=np.int64)
+        point_peaks = StressPeaks(vm, zero, t1, zero.copy(), t3, zero.copy())
+        pts = getattr(model, "stress_points", None)
+        if pts is not None:            # stress points on the surface (nodal recovery)
+            from . import _stress as _st
+            stress_out, notes = _st.stress_summary(point_peaks, pts, 0.0,
+                                                   part_names=list(model.part_names))
+            collected.extend(notes)
+            _drop_times(stress_out)
+            speaks = _st.element_peaks(point_peaks, pts.element_points)
+        else:                          # one point per element (its centre)
+            speaks = point_peaks
+            stress_out = {}
+            centres = np.asarray(model.element_centres)
+            for key, arr, pick in (("von_mises", vm, np.argmax), ("principal_tension", t1, np.argmax),
+                                   ("principal_compression", t3, np.argmin)):
+                e = int(pick(arr))
+                stress_out[key] = {"value": float(arr[e]), "element": e,
+                                   "at": [float(v) for v in centres[e]]}
+            stress_out["points"] = "element centres"
+            stress_out["units"] = "Pa"
         stress_out["combination"] = (
             "each of the six stress components combined on its own (CQC over modes, missing "
             "mass by SRSS, directions by the run's rule); von Mises and principal stresses are "

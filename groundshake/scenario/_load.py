@@ -506,6 +506,8 @@ def _check_plausible(values, ctx):
     m = values.get("motion")
     if m is not None and m.target is not None:
         _check_target(m.target, ("motion", "target"), ctx)
+    if m is not None and m.target_z is not None:
+        _check_target(m.target_z, ("motion", "target_z"), ctx)
 
 
 def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
@@ -542,10 +544,10 @@ def _check_motion(values, ctx):
     if spectrum and m.target is None:
         raise ctx.error(("motion", "target"), "nothing (the key is missing)",
                         'a design spectrum (required by [analysis] method = "spectrum")')
-    if not m.components() and not spectrum:
+    if not m.components() and m.target is None:
         raise ctx.error(("motion",), "a [motion] table without components",
                         "at least one of x, y, z (or leave [motion] out for modes only; "
-                        'only a target with [analysis] method = "spectrum")')
+                        'only a target for method = "spectrum")')
     if m.match_target and m.target is None:
         raise ctx.bad(("motion", "match_target"), True, "true only with a target")
     if m.target_z is not None and m.target is None:
