@@ -681,10 +681,22 @@ class _Builder:
         if not (isinstance(an, Mapping) and an.get("method") == "spectrum"):
             return ""
         items = "".join(f"<li>{esc(str(a))}</li>" for a in an.get("assumptions") or [])
-        return ('<p class="note">Response-spectrum analysis of the design spectrum: every '
-                "value below is a peak magnitude estimated on its own, without sign or time; "
-                "peaks of different quantities need not occur together.</p>"
-                f"<ul>{items}</ul>")
+        out = ('<p class="note">Response-spectrum analysis of the design spectrum: every '
+               "value below is a peak magnitude estimated on its own, without sign or time; "
+               "peaks of different quantities need not occur together.</p>"
+               f"<ul>{items}</ul>")
+        side = an.get("spectrum_motions")
+        if isinstance(side, Mapping) and side.get("comparison"):
+            rows = [[r.get("quantity"), _as_float(r.get("spectrum")),
+                     _as_float(r.get("time_history_mean")), _as_float(r.get("time_history_sd")),
+                     _as_float(r.get("ratio"))]
+                    for r in side["comparison"] if isinstance(r, Mapping)]
+            out += (f"<h3>Side by side: spectrum method and {esc(str(side.get('n')))} "
+                    "spectrum-compatible motions</h3>"
+                    + table(rows, ["quantity", "spectrum method", "time-history mean",
+                                   "standard deviation", "ratio"])
+                    + f'<p class="note">{esc(str(side.get("note", "")))}</p>')
+        return out
 
     def stress_figure(self) -> str:
         e = self.f.table("element_peaks")

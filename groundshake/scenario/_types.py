@@ -278,6 +278,10 @@ class AnalysisSettings:
     direction_combination: Literal["srss", "100-40-40"] = spec(
         "choice", "srss", choices=("srss", "100-40-40"),
         doc="spectrum method: how the peaks of ground x, y, z are combined")
+    spectrum_motions: int = spec("integer", 0, ge=0, le=30,
+                                 doc="spectrum method: invented motions matched to the design "
+                                     "spectra and run by modal time history, for floor spectra "
+                                     "(their mean) and a side-by-side table; 0 = none")
     cutoff_hz: float = spec("number", 50.0, gt=0.0, unit="Hz", doc="modes up to this frequency")
     modes: int | None = spec("integer", None, ge=1, le=10000,
                              doc="a fixed number of modes instead of the cutoff")
