@@ -2,6 +2,9 @@
 
 Prints each stage's wall time and the process's peak resident memory after it, and
 the direct method's time as a ratio to the modal one (measured in the same process).
+The stress stage (surface points recovered from Gauss points) is also timed against
+the former element-centre stresses on the same model and modal histories, in the same
+process, and the two readings of the peak principal tension are printed side by side.
 
     python benchmarks/response.py            # demo + 150k-DOF block
     python benchmarks/response.py --quick    # demo only, and a ~40k-DOF block
@@ -107,10 +110,59 @@ def show(label: str, res, wall: float) -> None:
     print(f"  {'time history + stress peaks':<28} {th:8.2f} s")
     if t.get("stress_peaks"):
         r = res.summary["analysis"]["n_modes"] + 3
-        flops = 2 * 6 * m["n_elements"] * r * res.summary["analysis"]["n_steps"]
+        n_pts = res.summary["stresses"].get("n_points", m["n_elements"])
+        flops = 2 * 6 * n_pts * r * res.summary["analysis"]["n_steps"]
         print(f"  stress stage: {flops / t['stress_peaks'] / 1e9:.2f} GFLOP/s effective "
               f"(dense product reference now: {machine_reference():.1f} GFLOP/s)")
     print(f"  {'end to end':<28} {wall:8.2f} s   peak RSS {peak_rss_gib():.2f} GiB")
+
+
+def stress_stage_vs_centres(res, scen) -> None:
+    """Stress stage at the surface points against element centres, same process and Z."""
+    import scipy.sparse as sp
+
+    from groundshake.dynamics._modal import modal_response, residual_vectors
+    from groundshake.model._assembly import assemble_stress, element_keys
+    from groundshake.model._elements import brick_matrices
+    from groundshake.model._recovery import surface_stress_points
+    from groundshake.results._stress import modal_stress_peaks
+
+    model, modes, motion = res.model, res.modes, res.motion
+    get = lambda o, k: o[k] if isinstance(o, dict) else getattr(o, k)   # noqa: E731
+    names = list(model.materials)
+    parts = [names.index(get(p, "material")) for p in get(scen, "parts")]
+    mesh = model.mesh
+    t0 = time.perf_counter()
+    kg, sizes, kmat = element_keys(mesh, parts)
+    props = np.array([[model.materials[nm][k] for k in ("youngs_modulus", "poisson_ratio",
+                                                        "density")] for nm in names])[kmat]
+    mats = brick_matrices(sizes, props[:, 0], props[:, 1], props[:, 2],
+                          element=model.element_kind)
+    t1 = time.perf_counter()
+    S_old = sp.csr_matrix(assemble_stress(mesh, kg, mats) @ model.node_map)
+    t2 = time.perf_counter()
+    pts = surface_stress_points(mesh, kg, mats, kmat)
+    S_new = sp.csr_matrix(pts.operator @ model.node_map)
+    t3 = time.perf_counter()
+    shapes = np.asarray(modes.shapes)
+    gam = np.asarray(modes.participation)
+    residual = residual_vectors(model.M, model.influence, shapes, gam, model.factor().solve)
+    r = modal_response(shapes, modes.omega, modes.damping, gam, np.asarray(motion.acc),
+                       motion.dt, residual=residual)
+    Z = r.coordinates
+    out = {}
+    for label, S in (("element centres", S_old), ("surface points", S_new)):
+        n_rows = S.shape[0] // 6
+        a = time.perf_counter()
+        pk = modal_stress_peaks(r.coefficients(S), Z, n_rows)
+        out[label] = (time.perf_counter() - a, n_rows, float(pk.tension.max()), S.nnz)
+    (to, no, vo, zo), (tn, nn, vn, zn) = out["element centres"], out["surface points"]
+    print(f"  stress operator: element centres {t2 - t1:.2f} s ({zo:,} non-zeros), surface "
+          f"points {t3 - t2:.2f} s ({zn:,} non-zeros); element matrices {t1 - t0:.2f} s")
+    print(f"  stress stage, same modal histories: element centres {to:.2f} s ({no:,} points), "
+          f"surface points {tn:.2f} s ({nn:,} points): ratio {tn / to:.2f}")
+    print(f"  peak principal tension: element centres {vo / 1e3:.1f} kPa, surface points "
+          f"{vn / 1e3:.1f} kPa ({vn / vo:.2f}×)")
 
 
 def main() -> None:
@@ -138,6 +190,7 @@ def main() -> None:
         modal = analyse(scen, progress=False)
         wm = time.perf_counter() - t0
         show("demo scenario (examples/transformer-pad.toml)", modal, wm)
+        stress_stage_vs_centres(modal, scen)
         direct_slice("demo scenario", scen, modal, args.demo_direct_steps)
     except Exception as exc:  # noqa: BLE001 - a benchmark reports and goes on
         print(f"demo scenario skipped: {exc}")
@@ -148,6 +201,7 @@ def main() -> None:
     big = analyse(scen, motion=motion, progress=False)
     wall = time.perf_counter() - t0
     show("large block" + (" (quick: smaller)" if args.quick else ""), big, wall)
+    stress_stage_vs_centres(big, scen)
     direct_slice("large block", scen, big, args.direct_steps)
     print(f"  peak RSS {peak_rss_gib():.2f} GiB")
 

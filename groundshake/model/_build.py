@@ -10,6 +10,8 @@ All displacements are relative to the ground.
 """
 from __future__ import annotations
 
+import math
+
 import warnings
 from dataclasses import dataclass, field
 from typing import Any, Literal
@@ -18,11 +20,13 @@ import numpy as np
 import scipy.sparse as sp
 
 from .._errors import GroundshakeWarning, ScenarioError
-from ._assembly import assemble, assemble_stress, element_keys
+from ._assembly import assemble, element_keys
 from ._elements import brick_matrices, shape_values
 from ._factor import Factor, factorize
 from ._memory import check_memory
 from ._mesh import Box, count_grid, mesh_boxes
+from ._impedance import adjust_impedance, modulus_ratio_of
+from ._recovery import StressPoints, surface_stress_points
 from ._supports import Impedance, distributed_bed, gazetas_rectangle
 
 __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_model",
@@ -184,6 +188,7 @@ class BlockModel:
     _equipment_mass: sp.csr_matrix | None = None       # masses on flexible supports (n, n)
     rayleigh_choice: str = ""
     _radiation_lowrank: tuple | None = None            # (U (n, r), d (r,))
+    stress_points: StressPoints | None = None  # where the rows of ``stress`` sit
 
     @property
     def n_dof(self) -> int:
@@ -411,7 +416,7 @@ def _materials(scenario):
 
 
 def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None = None,
-                check_memory_first: bool = True) -> BlockModel:
+                check_memory_first: bool = True, soil_frequency_hz=None) -> BlockModel:
     """Build the :class:`BlockModel` of a scenario.
 
     Parameters
@@ -421,6 +426,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         ``equipment``, ``sensors``, ``analysis``).
     solver : factorization for :meth:`BlockModel.factor` (default from
         ``analysis.solver``).
+    soil_frequency_hz : array (6,), optional
+        On soil: the frequency [Hz] at which each base spring x, y, z, rx, ry, t is
+        evaluated (frequency-dependent impedance, model/_impedance.py); None = static.
 
     Raises
     ------
@@ -511,12 +519,16 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     if kind == "fixed":
         status[base_dofs] = 1
     elif kind == "soil":
-        vs = float(_get(support, "shear_wave_velocity"))
+        # strain-compatible modulus G = (G/G0)·ρVs², as an effective Vs (model/_impedance.py)
+        vs = float(_get(support, "shear_wave_velocity")) * math.sqrt(modulus_ratio_of(support)[0])
         nus = float(_get(support, "poisson_ratio"))
         rhos = float(_get(support, "density"))
         impedance = gazetas_rectangle(lx, ly, shear_wave_velocity=vs, poisson_ratio=nus,
                                       density=rhos,
                                       radiation_damping=bool(_get(support, "radiation_damping", True)))
+        # embedment and frequency dependence (model/_impedance.py)
+        impedance = adjust_impedance(impedance, lx, ly, support=support,
+                                     frequency_hz=soil_frequency_hz)
         if springs == "distributed":
             # consistent Winkler bed: ∫N_A N_B dA over the bottom faces of the bottom cells
             jj, ii = np.nonzero(bottom)
@@ -819,7 +831,11 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         GT = GT + GR
     inertia_reaction = ReactionOperators(K=np.zeros((6, n)), C=np.zeros((6, n)), M=MT, G=GT)
 
-    stress = sp.csr_matrix(assemble_stress(mesh, key_grid, mats) @ P)
+    held = status.reshape(-1, 3).max(axis=1)            # 1 fixed, 2 slaved (rigid base/mount)
+    constraint = np.where(held > 0, 2, 0)
+    constraint[base_nodes[held[base_nodes] > 0]] = 1      # fixed or rigid base
+    stress_points = surface_stress_points(mesh, key_grid, mats, kmat, constrained=constraint)
+    stress = sp.csr_matrix(stress_points.operator @ P)
     materials = {nm: {"youngs_modulus": p[0], "poisson_ratio": p[1], "density": p[2]}
                  for nm, p in zip(mat_names, mat_props)}
     if kind == "soil":
@@ -829,7 +845,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         element_part=mesh.element_part, K=K, M=M, influence=iota, total_mass=total_mass,
         ground_load=ground_load, rigid_mass=rigid_mass,
         weight=weight, sensors=sensors, equipment=equipment, reaction=reaction,
-        stress=stress, base=base, damping_ratio=ratio,
+        stress=stress, stress_points=stress_points, base=base, damping_ratio=ratio,
         rayleigh_hz=None if rayleigh is None else (float(rayleigh[0]), float(rayleigh[1])),
         support_kind=kind, element_kind=element, mass_kind=mass_kind,
         part_names=[b.name for b in boxes], materials=materials, node_map=P,

@@ -17,15 +17,18 @@ from typing import Literal
 
 import numpy as np
 
-__all__ = ["NODE_SIGNS", "ElementMatrices", "elasticity_matrix", "brick_matrices"]
+__all__ = ["NODE_SIGNS", "GAUSS_POINTS", "GAUSS_TO_CORNERS", "ElementMatrices",
+           "elasticity_matrix", "brick_matrices"]
 
 #: Sign of ξ, η, ζ at each local node, shape (8, 3).
 NODE_SIGNS = np.array([[-1, -1, -1], [1, -1, -1], [1, 1, -1], [-1, 1, -1],
                        [-1, -1, 1], [1, -1, 1], [1, 1, 1], [-1, 1, 1]], dtype=float)
 
 _G = 1.0 / np.sqrt(3.0)
-#: 2×2×2 Gauss points in natural coordinates (weights all 1), shape (8, 3).
-_GAUSS = NODE_SIGNS * _G
+#: 2×2×2 Gauss points in natural coordinates (weights all 1), shape (8, 3); point g sits
+#: next to local node g (same signs).
+GAUSS_POINTS = NODE_SIGNS * _G
+_GAUSS = GAUSS_POINTS
 
 
 @dataclass(frozen=True)
@@ -39,11 +42,19 @@ class ElementMatrices:
         is this times δij).
     centre_stress : (k, 6, 24) Pa/m, D·B at the element centre (incompatible-mode
         strains vanish there, so it serves both element kinds).
+    gauss_stress : (k, 8, 6, 24) Pa/m, stress at the 2×2×2 Gauss points
+        (:data:`GAUSS_POINTS`) per unit node displacement; for hex8-incompatible the
+        internal modes are recovered from the node displacements,
+        D·(B_g − B_i,g K_ii⁻¹ K_ic).
+    corner_stress : (k, 8, 6, 24) Pa/m, the Gauss-point stresses extrapolated to the
+        eight corners (:data:`GAUSS_TO_CORNERS`), local node order.
     """
 
     stiffness: np.ndarray
     mass: np.ndarray
     centre_stress: np.ndarray
+    gauss_stress: np.ndarray | None = None
+    corner_stress: np.ndarray | None = None
 
 
 def elasticity_matrix(youngs_modulus, poisson_ratio) -> np.ndarray:
@@ -97,6 +108,14 @@ def shape_values(points: np.ndarray) -> np.ndarray:
     return f.prod(axis=-1) / 8
 
 
+#: Extrapolation of values at the 2×2×2 Gauss points to the corners, shape (8 corners,
+#: 8 points): the trilinear interpolant through the Gauss points (natural coordinates
+#: scaled by √3 so that the points sit at ±1) evaluated at the corners (±√3). It
+#: reproduces any field in span{1, ξ, η, ζ, ξη, ηζ, ζξ, ξηζ}, which holds every strain
+#: of a box-shaped hex8 or hex8-incompatible element.
+GAUSS_TO_CORNERS = shape_values(np.sqrt(3.0) * NODE_SIGNS)
+
+
 def brick_matrices(size, youngs_modulus, poisson_ratio, density, *,
                    element: Literal["hex8", "hex8-incompatible"] = "hex8-incompatible",
                    ) -> ElementMatrices:
@@ -118,6 +137,10 @@ def brick_matrices(size, youngs_modulus, poisson_ratio, density, *,
     K = Σ_g Bᵀ D B det J; with incompatible modes K = Kcc − Kci Kii⁻¹ Kic. For a box the
     Jacobian is constant, so the modes pass the patch test as they stand (Taylor,
     Beresford & Wilson 1976 correct the mode derivatives for distorted elements).
+    Stresses: the internal mode amplitudes follow from the node displacements,
+    α = −Kii⁻¹ Kic u (no load acts on them), so σ_g = D (B_g − B_i,g Kii⁻¹ Kic) u at each
+    Gauss point; corner values are these extrapolated with :data:`GAUSS_TO_CORNERS`
+    (nodal extrapolation; Zienkiewicz & Zhu 1992 on recovery from Gauss points).
 
     References
     ----------
@@ -137,6 +160,7 @@ def brick_matrices(size, youngs_modulus, poisson_ratio, density, *,
     B = _strain_matrix(grad)  # (k, g, 6, 24)
     DB = np.einsum("kij,kgjn->kgin", D, B)
     K = np.einsum("kgim,kgin->kmn", B, DB) * detj[:, None, None]
+    gauss_stress = DB  # (k, g, 6, 24)
     if element == "hex8-incompatible":
         # gradients of the bubbles P_i = 1 - ξ_i²: only dP_i/dx_i = -2 ξ_i / h_i
         gi = np.zeros((k, 8, 3, 3))
@@ -146,7 +170,9 @@ def brick_matrices(size, youngs_modulus, poisson_ratio, density, *,
         DBi = np.einsum("kij,kgjn->kgin", D, Bi)
         Kci = np.einsum("kgim,kgin->kmn", B, DBi) * detj[:, None, None]
         Kii = np.einsum("kgim,kgin->kmn", Bi, DBi) * detj[:, None, None]
-        K = K - Kci @ np.linalg.solve(Kii, np.swapaxes(Kci, 1, 2))
+        alpha = np.linalg.solve(Kii, np.swapaxes(Kci, 1, 2))  # (k, 9, 24): −α per unit u
+        K = K - Kci @ alpha
+        gauss_stress = DB - np.einsum("kgin,knm->kgim", DBi, alpha)
     elif element != "hex8":
         raise ValueError(f"element={element!r}; allowed 'hex8', 'hex8-incompatible'")
     K = 0.5 * (K + np.swapaxes(K, 1, 2))
@@ -157,4 +183,6 @@ def brick_matrices(size, youngs_modulus, poisson_ratio, density, *,
     gc = _shape_gradients(np.zeros((1, 3)), half)[:, 0]  # (k, 8, 3)
     Bc = _strain_matrix(gc)  # (k, 6, 24)
     S = D @ Bc
-    return ElementMatrices(stiffness=K, mass=m, centre_stress=S)
+    corner = np.einsum("ag,kgim->kaim", GAUSS_TO_CORNERS, gauss_stress)
+    return ElementMatrices(stiffness=K, mass=m, centre_stress=S, gauss_stress=gauss_stress,
+                           corner_stress=corner)

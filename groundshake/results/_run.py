@@ -20,9 +20,11 @@ from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
-from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
+                         fp_comparison)
+from ._stability import base_stability
 from ._floor import floor_spectra
-from ._stress import StressPeaks, modal_stress_peaks
+from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_peaks, stress_summary
 
 __all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
@@ -51,6 +53,8 @@ class RunResults:
     floor : dict
         Output of :func:`floor_spectra` plus ``points`` (names).
     stress : StressPeaks
+        Per element: the largest peaks of its corner stress points (NaN for an element
+        with no corner on the surface).
     """
 
     summary: dict
@@ -141,16 +145,16 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     """Response of the model to the motion, for the rows of ``output`` (k, n).
 
     Also gives the peak relative node displacement per direction anywhere in the
-    block and the per-element stress peaks, without ever holding the whole
-    displacement history. ``residual`` (n, 3), the missing-mass shapes of
+    block and the stress peaks at each stress point of the model, without ever
+    holding the whole displacement history. ``residual`` (n, 3), the missing-mass shapes of
     :func:`residual_vectors` for these modes, saves the static solve when given
     (a suite computes it once for all its records).
     """
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
-    n_el = model.elements.shape[0]
     node_map = sp.csr_matrix(model.node_map)
     S = sp.csr_matrix(model.stress)
+    n_el = S.shape[0] // 6          # stress points (rows of six components)
     info: dict = {}
     if method == "modal":
         shapes = np.asarray(modes.shapes)
@@ -258,7 +262,7 @@ def analyse(scenario, *, progress: bool = True,
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
-        Compute element stress peaks.
+        Compute stress peaks (at the surface stress points).
     residual : ndarray (n, 3), optional
         Missing-mass shapes for ``modes`` (see
         :func:`groundshake.dynamics.residual_vectors`), computed once by a caller
@@ -275,7 +279,15 @@ def analyse(scenario, *, progress: bool = True,
     acceleration = relative + ground. Each method's assumptions are listed in
     ``summary["analysis"]["assumptions"]``.
     """
+    from ._cases import analyse_cases, needs_soil_cases
+    if model is None and modes is None and needs_soil_cases(scenario):
+        # lower/best/upper soil cases, one model each, envelope governs (results/_cases.py)
+        return analyse_cases(scenario, analyse=analyse, progress=progress, method=method,
+                             motion=motion, stresses=stresses)
     collected: list[str] = []
+    if _get(_get(scenario, "support"), "variation", None) is not None:
+        collected.append("support.variation: the soil cases run only when the run builds its "
+                         "own model; this run (model given, e.g. a suite) is the best estimate")
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         out = _analyse(scenario, progress=progress, method=method, motion=motion, model=model,
@@ -418,6 +430,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     # ---- equipment and anchorage
     equip_out: dict[str, Any] = {}
     worst_dc = None
+    worst_ir = None
     for e in model.equipment:
         sl = rows[("equipment", e.name)]
         rel = resp.disp[sl]
@@ -456,6 +469,15 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 if cap is not None:
                     b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
                     b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
+                    ir = bolt_interaction(t, v, tension_capacity=float(_get(cap, "tension")),
+                                          shear_capacity=float(_get(cap, "shear")),
+                                          form=_get(cap, "interaction", "5/3-power"))
+                    ii = int(np.argmax(ir))
+                    b["interaction_ratio"] = float(ir[ii])
+                    b["time_of_peak_interaction"] = float(ii * dt)
+                    if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
+                        worst_ir = (b["interaction_ratio"], e.name, i + 1,
+                                    _get(cap, "interaction", "5/3-power"))
                     dc = max(b["dc_tension"], b["dc_shear"])
                     if worst_dc is None or dc > worst_dc[0]:
                         worst_dc = (dc, e.name, i + 1)
@@ -470,8 +492,11 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                       "§2.3.6, from memory); vertical motion included; "
                                       f"{SCREENING_WORDING}")
             if cap is not None:
+                form = _get(cap, "interaction", "5/3-power")
                 d_["capacity"] = {"tension": float(_get(cap, "tension")),
                                   "shear": float(_get(cap, "shear")),
+                                  "interaction": form,
+                                  "interaction_formula": INTERACTION_FORMS[form],
                                   "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
@@ -522,6 +547,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                              f"to {pmin[i_min]:.3g} Pa at t = {i_min * dt:.3f} s; the linear model "
                              "(bonded soil springs) no longer holds there.")
 
+    # ---- stability of the base (results/_stability.py): screening with user values
+    stab = base_stability(base, weight=float(model.weight),
+                          lx=float(model.base.get("lx", 1.0)), ly=float(model.base.get("ly", 1.0)),
+                          support=_get(scenario, "support"))
+    stability_out = stab.summary(dt)
+
     peaks: dict[str, Any] = {
         "base_shear": {"x": base_out["peaks"]["Fx"]["value"], "y": base_out["peaks"]["Fy"]["value"]},
         "base_axial": base_out["peaks"]["Fz"]["value"],
@@ -538,9 +569,10 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         peaks["relative_displacement"][d] = entry
     stress_out = {}
     if resp.stress is not None:
-        stress_out = resp.stress.governing(dt, np.asarray(model.element_centres))
-        stress_out["points"] = "element centres"
-        stress_out["units"] = "Pa"
+        stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt,
+                                                  part_names=list(model.part_names))
+        collected.extend(stress_notes)
+        resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
         peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
         peaks["principal_tension"] = stress_out.get("principal_tension", {}).get("value")
         peaks["principal_compression"] = stress_out.get("principal_compression", {}).get("value")
@@ -613,8 +645,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         "worst_dc": None if worst_dc is None else
         {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
          "note": SCREENING_WORDING},
+        "worst_interaction": None if worst_ir is None else
+        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
+         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
         "stresses": stress_out,
         "base": base_out,
+        "stability": stability_out,
         "floor_spectra": floor_out,
         "modes": _modes_dict(modes, model),
         "model": model.describe(),
@@ -643,7 +679,9 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     }
     return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
                       histories=hist, ground_spectra=ground_spectra, floor=floor,
-                      stress=resp.stress, target_psa=target_psa, inputs=inputs, base=base)
+                      stress=None if resp.stress is None else
+                      element_peaks(resp.stress, model.stress_points.element_points),
+                      target_psa=target_psa, inputs=inputs, base=base)
 
 
 def _modes_dict(modes, model) -> dict:

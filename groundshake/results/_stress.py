@@ -1,9 +1,13 @@
-"""Element stress peaks computed block by block, so that memory stays bounded.
+"""Stress peaks computed block by block, so that memory stays bounded.
 
-Stresses are the six components [σxx, σyy, σzz, τyz, τxz, τxy] (Pa) at element
-centres. For every element the tracker keeps the peak von Mises stress, the
-largest principal stress (tension positive) and the most negative one
-(compression), each with the record step where it occurred.
+Stresses are the six components [σxx, σyy, σzz, τyz, τxz, τxy] (Pa) at the stress
+recovery points of the model (nodes on the block's surface, see
+:mod:`groundshake.model._recovery`). For every point the tracker keeps the peak von
+Mises stress, the largest principal stress (tension positive) and the most negative one
+(compression), each with the record step where it occurred. :func:`element_peaks`
+gives each element the largest peaks of its corner points; :func:`stress_summary` the
+governing peaks, how they were recovered and a caution where a peak sits on a feature
+that concentrates stress.
 """
 from __future__ import annotations
 
@@ -12,7 +16,19 @@ from typing import Literal
 
 import numpy as np
 
-__all__ = ["StressPeaks", "principal_stresses", "von_mises", "modal_stress_peaks"]
+__all__ = ["StressPeaks", "principal_stresses", "von_mises", "modal_stress_peaks",
+           "element_peaks", "stress_summary", "RECOVERY_NOTE"]
+
+#: How stresses are recovered (written to summary.json and the run's assumptions).
+RECOVERY_NOTE = (
+    "Stresses are computed at each element's 2x2x2 Gauss points (for hex8-incompatible with "
+    "the internal mode amplitudes recovered from the element's node displacements), "
+    "extrapolated to the element's corners and averaged at each node over the elements of "
+    "one part (nodal averaging, Zienkiewicz & Zhu 1992; where parts meet, each keeps its "
+    "own value); peaks are searched at every node on the block's outer surface, not inside "
+    "it. At re-entrant corners and at the "
+    "edge of a fixed base, rigid base or rigid mount the linear-elastic stress is "
+    "concentrated and grows as the mesh is refined.")
 
 
 _JIT = []
@@ -63,7 +79,7 @@ def principal_stresses(s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 class StressPeaks:
     """Running per-element peaks.
 
-    Attributes (all shaped (n_el,))
+    Attributes (all shaped (n,), one entry per stress point or element)
     ----------
     von_mises, von_mises_step : peak von Mises [Pa] and its record step.
     tension, tension_step : largest principal stress [Pa] (0 if never in tension).
@@ -133,7 +149,11 @@ class StressPeaks:
         best_step[elements] = np.where(better, step, cur_step)
 
     def governing(self, dt: float, centres: np.ndarray | None = None) -> dict:
-        """The three governing peaks with element, location [m] and time [s]."""
+        """The three governing peaks with index (``element``), location [m] and time [s].
+
+        ``centres`` (n, 3) [m] gives ``at``; ``element`` is the index of the entry (a
+        stress point for the tracker of a run).
+        """
         out = {}
         for key, arr, steps, pick in (("von_mises", self.von_mises, self.von_mises_step, np.argmax),
                                       ("principal_tension", self.tension, self.tension_step, np.argmax),
@@ -251,3 +271,110 @@ def modal_stress_peaks(coefficients: np.ndarray, coordinates: np.ndarray, n_el: 
     peaks.evaluated_fraction = float((first * n_el + np.sum(np.maximum(k[todo], first) - first))
                                      / (n_el * n_t)) if todo.size else first / n_t
     return peaks
+
+
+def element_peaks(points: StressPeaks, element_points: np.ndarray) -> StressPeaks:
+    """Each element's largest peaks over its corner points.
+
+    Parameters
+    ----------
+    points : StressPeaks
+        Peaks of the n_p stress points.
+    element_points : (n_el, 8) int
+        Point of each element corner, −1 where the corner is not a stress point.
+
+    Returns
+    -------
+    StressPeaks
+        Shaped (n_el,); NaN (step 0) for an element with no stress point.
+    """
+    ep = np.asarray(element_points, dtype=np.int64)
+    has = ep >= 0
+    safe = np.where(has, ep, 0)
+    rows = np.arange(ep.shape[0])
+    none = ~has.any(axis=1)
+    out = []
+    for val, step, pick, fill in ((points.von_mises, points.von_mises_step, np.argmax, -np.inf),
+                                  (points.tension, points.tension_step, np.argmax, -np.inf),
+                                  (points.compression, points.compression_step, np.argmin,
+                                   np.inf)):
+        v = np.where(has, np.asarray(val)[safe], fill) if val.size else np.full(ep.shape, fill)
+        k = pick(v, axis=1)
+        best = v[rows, k]
+        st = np.asarray(step)[safe[rows, k]] if val.size else np.zeros(ep.shape[0], np.int64)
+        out += [np.where(none, np.nan, best), np.where(none, 0, st).astype(np.int64)]
+    return StressPeaks(*out)
+
+
+def _join(items: list[str]) -> str:
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
+
+
+_FEATURE_WORDS = {"re-entrant corner": "a re-entrant corner or edge",
+                  "base edge": "the edge of the fixed or rigid base",
+                  "mount edge": "the edge of a rigid equipment mount"}
+
+
+def stress_summary(peaks: StressPeaks, points, dt: float, *,
+                   part_names: list[str] | None = None) -> tuple[dict, list[str]]:
+    """Governing stress peaks for the summary, and the cautions they call for.
+
+    Parameters
+    ----------
+    peaks : StressPeaks
+        Peaks of the model's stress points.
+    points : StressPoints
+        The model's stress points (``position``, ``feature(p)``).
+    dt : float
+        Record step [s].
+    part_names : list of str, optional
+        Names of the parts, to say which part a peak is in (``part``).
+
+    Returns
+    -------
+    summary : dict
+        ``von_mises``, ``principal_tension``, ``principal_compression`` each with
+        ``value`` [Pa], ``point``, ``at`` [m], ``time`` [s], ``part`` (with
+        ``part_names``) and ``feature`` (None,
+        ``"re-entrant corner"``, ``"base edge"`` or ``"mount edge"``), and where the peak sits on
+        a feature, ``away_from_features``: the largest peak among the other points;
+        ``points``, ``n_points``, ``recovery``, ``units``.
+    cautions : list of str
+        One sentence for each governing peak that sits on a feature.
+    """
+    out = peaks.governing(dt, np.asarray(points.position))
+    found: dict[str, list[str]] = {}
+    for key, d in out.items():
+        p = d.pop("element")
+        d["point"] = p
+        if part_names is not None:
+            d["part"] = str(part_names[int(points.part[p])])
+        feat = points.feature(p)
+        d["feature"] = feat
+        if feat is not None and d["value"] != 0.0:
+            at = ", ".join(f"{v:.3g}" for v in d["at"])
+            words = {"von_mises": "von Mises"}.get(key, key.replace("_", " "))
+            found.setdefault(feat, []).append(f"{words} ({d['value'] / 1e6:.3g} MPa at ({at}) m)")
+    plain = np.flatnonzero(~points.flagged)
+    if plain.size:
+        sub = StressPeaks(*(np.asarray(getattr(peaks, f))[plain] for f in (
+            "von_mises", "von_mises_step", "tension", "tension_step", "compression",
+            "compression_step")))
+        for key, d in sub.governing(dt, np.asarray(points.position)[plain]).items():
+            if key in out and out[key]["feature"] is not None:
+                d["point"] = int(plain[d.pop("element")])
+                if part_names is not None:
+                    d["part"] = str(part_names[int(points.part[d["point"]])])
+                out[key]["away_from_features"] = d
+    notes = [f"The peak {_join(items)} sit{'s' if len(items) == 1 else ''} on "
+             f"{_FEATURE_WORDS[feat]}, where the constraint or the geometry concentrates "
+             "stress: the linear-elastic value there grows as the mesh is refined, so read it "
+             "as a local indication, judge the stresses a short distance away and verify "
+             "such details with a licensed engineer."
+             for feat, items in found.items()]
+    out["points"] = "nodes on the block's outer surface (Gauss-point stresses extrapolated " \
+                    "to element corners, averaged per part)"
+    out["n_points"] = int(points.n_points)
+    out["recovery"] = RECOVERY_NOTE
+    out["units"] = "Pa"
+    return out, notes

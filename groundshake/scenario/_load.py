@@ -454,10 +454,21 @@ def _check_names(values, section, ctx):
 def _check_support(values, ctx):
     s = values.get("support")
     if s is None or s.kind != "soil":
-        if s is not None and any(v is not None for v in (s.shear_wave_velocity, s.poisson_ratio, s.density)):
+        if s is not None and (any(v is not None for v in (s.shear_wave_velocity, s.poisson_ratio,
+                                                          s.density, s.variation,
+                                                          s.modulus_ratio, s.strain_compatible))
+                              or s.embedment_depth or s.frequency_dependent):
             ctx.notes.append(f"{ctx.where(('support',))}: support: soil properties given with "
                              f'kind = "fixed" are not used')
         return
+    if s.sidewall_contact_depth is not None and s.sidewall_contact_depth > s.embedment_depth:
+        raise ctx.bad(("support", "sidewall_contact_depth"), s.sidewall_contact_depth,
+                      f"a number in [0, embedment_depth = {_fmt(s.embedment_depth)}] [m]")
+    if s.modulus_ratio is not None and s.strain_compatible is not None:
+        raise ctx.bad(("support", "modulus_ratio"), s.modulus_ratio,
+                      "either modulus_ratio or strain_compatible, not both")
+    if s.sidewall_contact_depth is None:
+        values["support"] = dataclasses.replace(s, sidewall_contact_depth=s.embedment_depth)
     from ._types import SupportSettings
     meta = {f.name: f.metadata for f in _schema_fields(SupportSettings)}
     for key in ("shear_wave_velocity", "poisson_ratio", "density"):
@@ -755,6 +766,8 @@ def replace_motion(scenario: Scenario, components: dict, target, match_target) -
         if old.target_z is not None:
             data["target_z"] = old.target_z
         data["vertical_fraction"] = old.vertical_fraction
+    if old is not None and old.inventory is not None:  # the station inventory stays
+        data["inventory"] = os.fspath(old.inventory)
     motion = _parse_obj(MotionSettings, data, ("motion",), ctx)
     values = {"motion": motion, "analysis": scenario.analysis}
     _check_motion(values, ctx)
