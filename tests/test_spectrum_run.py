@@ -208,3 +208,35 @@ def test_spectrum_compatible_motions_give_floor_spectra_and_a_side_by_side(tmp_p
     header = (out / "floor_spectra.csv").read_text(encoding="utf-8").splitlines()[0]
     assert "unit mount x psa 5% broadened [m/s2]" in header
     assert "Side by side" in (out / "report.html").read_text(encoding="utf-8")
+
+
+def test_soil_cases_stability_and_interaction_by_the_spectrum_method():
+    eq = {"name": "unit", "mass": 500.0, "mount": [1.0, 1.0], "footprint": [0.6, 0.6],
+          "cg_height": 0.6, "frequency_hz": [8.0, 8.0, 30.0],
+          "anchors": [[-0.2, -0.2], [0.2, -0.2], [0.2, 0.2], [-0.2, 0.2]],
+          "capacity": {"tension": 1e4, "shear": 1e4}}
+    soil = {"kind": "soil", "shear_wave_velocity": 250.0, "poisson_ratio": 0.33,
+            "density": 1900.0, "variation": 0.5, "friction_coefficient": 0.5}
+    res = _run(_scenario(motion={"target": "asce7:sds=1.0,sd1=0.6,tl=8"}, equipment=[eq],
+                         support=soil))
+    s = res.summary
+    assert [c["name"] for c in s["soil_cases"]] == ["lower", "best", "upper"]
+    # the envelope over the cases governs (ASCE 4-16 §5.1.7 practice, from memory)
+    assert s["peaks"]["base_shear"]["x"] == pytest.approx(
+        max(c["peaks"]["base_shear"]["x"] for c in s["soil_cases"]))
+    st = s["stability"]
+    # sliding FS = μ·N/|V| of rigid-block statics (common practice); with the peaks taken
+    # together at their worst signs: N = W − Fz, |V| = √(Vx² + Vy²) for each case
+    best = next(c for c in s["soil_cases"] if c["name"] == "best")
+    pk = best["peaks"]
+    W = (2.0 * 2.0 * 1.0 * 2400.0 + 500.0) * G
+    fs = 0.5 * (W - pk["base_axial"]) / math.hypot(pk["base_shear"]["x"], pk["base_shear"]["y"])
+    assert best["stability"]["sliding"]["min_safety_factor"] == pytest.approx(fs, rel=1e-9)
+    assert st["sliding"]["min_safety_factor"] <= best["stability"]["sliding"]["min_safety_factor"]
+    b = s["equipment"]["unit"]["anchors"][0]
+    # 5/3-power interaction (T/Tc)^(5/3) + (V/Vc)^(5/3) (ACI 318-19 R17.8, REFERENCES.md):
+    # at least that of the peak tension alone and at most the sum at both peaks
+    lo = (b["peak_tension"] / 1e4) ** (5 / 3)
+    hi = lo + (b["peak_shear"] / 1e4) ** (5 / 3)
+    assert lo - 1e-12 <= b["interaction_ratio"] <= hi + 1e-12
+    assert "time_of_peak_tension" not in b

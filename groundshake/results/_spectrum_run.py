@@ -20,6 +20,15 @@ from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, combine_di
                                            modal_spectrum, spectral_accelerations,
                                            zero_period_acceleration)
 from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+
+try:                                    # stages that arrived later; optional here
+    from ._anchorage import INTERACTION_FORMS, bolt_interaction
+except ImportError:  # pragma: no cover
+    INTERACTION_FORMS, bolt_interaction = None, None
+try:
+    from ._stability import base_stability
+except ImportError:  # pragma: no cover
+    base_stability = None
 from ._stress import StressPeaks
 
 __all__ = ["spectrum_analyse", "stress_bounds", "SIGNS_LOST"]
@@ -33,6 +42,8 @@ RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
 
 #: All sign combinations of six peak accelerations, (6, 64).
 _SIGNS = np.array(list(itertools.product((1.0, -1.0), repeat=6))).T
+#: All sign combinations of five peak base resultants Fx, Fy, Fz, Mx, My, (5, 32).
+_SIGNS5 = np.array(list(itertools.product((1.0, -1.0), repeat=5))).T
 
 
 def _get(obj, key, default=None):
@@ -73,9 +84,11 @@ def stress_bounds(peaks: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray
 
 
 def _drop_times(d) -> None:
-    """Remove every ``time`` key of a nested summary dict (a spectrum run has no times)."""
+    """Remove every ``time`` and ``time_of_…`` key of a nested summary dict (a spectrum run
+    has no times)."""
     if isinstance(d, dict):
-        d.pop("time", None)
+        for k in [k for k in d if k == "time" or str(k).startswith("time_of_")]:
+            del d[k]
         for v in d.values():
             _drop_times(v)
 
@@ -199,6 +212,7 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     # ---- equipment and anchorage
     equip_out: dict[str, Any] = {}
     worst_dc = None
+    worst_ir = None
     for e in model.equipment:
         a6, u6 = acc(e.operator), disp(e.operator)
         d_ = {"mass": float(e.mass), "cg": [float(v) for v in e.cg],
@@ -224,6 +238,15 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
                 if cap is not None:
                     b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
                     b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
+                    if bolt_interaction is not None:
+                        form = _get(cap, "interaction", "5/3-power") or "5/3-power"
+                        ir = bolt_interaction(bf.tension[i], bf.shear[i],
+                                              tension_capacity=float(_get(cap, "tension")),
+                                              shear_capacity=float(_get(cap, "shear")),
+                                              form=form)
+                        b["interaction_ratio"] = float(np.max(ir))
+                        if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
+                            worst_ir = (b["interaction_ratio"], e.name, i + 1, form)
                     dc = max(b["dc_tension"], b["dc_shear"])
                     if worst_dc is None or dc > worst_dc[0]:
                         worst_dc = (dc, e.name, i + 1)
@@ -240,6 +263,10 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
                 d_["capacity"] = {"tension": float(_get(cap, "tension")),
                                   "shear": float(_get(cap, "shear")),
                                   "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
+                if INTERACTION_FORMS is not None:
+                    form = _get(cap, "interaction", "5/3-power") or "5/3-power"
+                    d_["capacity"].update(interaction=form,
+                                          interaction_formula=INTERACTION_FORMS[form])
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
             d_["fp"] = fp_comparison(weight=e.mass * 9.80665, sds=float(_get(fp, "sds")),
@@ -280,6 +307,21 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
             collected.append(f"Possible uplift / loss of contact: the linear contact pressure "
                              f"envelope falls to {pmin:.3g} Pa; the linear model (bonded soil "
                              "springs) no longer holds there.")
+
+    stability_out = None
+    if base_stability is not None:
+        # the five peak resultants together at every sign: an envelope (32 combinations)
+        combos = np.vstack([base_pk[:5, None] * _SIGNS5, np.zeros((1, _SIGNS5.shape[1]))])
+        stab = base_stability(combos, weight=float(model.weight),
+                              lx=float(model.base.get("lx", 1.0)),
+                              ly=float(model.base.get("ly", 1.0)),
+                              support=_get(scenario, "support"))
+        stability_out = stab.summary(1.0)
+        _drop_times(stability_out)
+        stability_out["spectrum_method"] = (
+            "the peak base resultants Fx, Fy, Fz, Mx, My taken together at every sign "
+            "(32 combinations) and the least safety factor / largest pressure kept: an "
+            "envelope, conservative because the peaks do not occur together")
 
     peaks: dict[str, Any] = {
         "base_shear": {"x": float(base_pk[0]), "y": float(base_pk[1])},
@@ -446,8 +488,12 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         "worst_dc": None if worst_dc is None else
         {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
          "note": SCREENING_WORDING},
+        "worst_interaction": None if worst_ir is None else
+        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
+         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
         "stresses": stress_out,
         "base": base_out,
+        **({"stability": stability_out} if stability_out is not None else {}),
         "floor_spectra": floor_out,
         "modes": _modes_dict(modes, model),
         "model": model.describe(),
