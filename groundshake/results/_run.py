@@ -174,6 +174,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             r = coupled_modal_response(shapes, modes.omega, model.modal_damping_matrix(shapes),
                                        gam, ag, dt, residual=residual)
             info["modal_damping"] = "coupled"
+            info["modal_damping_diagonal_ratios"] = [float(v) for v in r.damping]
         u, v, a = r.recover(output)
         Z = r.coordinates
         node_peak = {}
