@@ -122,3 +122,40 @@ def test_asce7_rising_branch_corrected_in_the_en1998_form(xi):
     # EN 1998-1 §3.2.2.2 gives 0.4·SDS(1 + T/T0(2.5η − 1)), the ZPA unchanged at T = 0
     ref = 0.4 * (1 + T / t0 * (2.5 * eta - 1)) * 9.80665
     np.testing.assert_allclose(sa, ref, rtol=1e-9)
+
+
+def test_ellipsoid_of_one_mode_is_its_segment():
+    from groundshake.dynamics._spectrum_analysis import VON_MISES_FORM, ellipsoid_quadratic_max
+    from groundshake.results._stress import von_mises
+    y = np.array([3.0, -1.0, 0.5, 2.0, -0.7, 1.2])
+    vm = np.sqrt(ellipsoid_quadratic_max(np.outer(y, y)[None], VON_MISES_FORM))
+    # a rank-one covariance: the ellipsoid is the segment ±y (Menun & Der Kiureghian 2000),
+    # so its largest von Mises is that of y itself, √(3 J2) (textbook invariant)
+    assert vm[0] == pytest.approx(float(von_mises(y[:, None])[0]), rel=1e-9)
+
+
+def test_ellipsoid_of_two_uncorrelated_components():
+    from groundshake.dynamics._spectrum_analysis import VON_MISES_FORM, ellipsoid_quadratic_max
+    a, b = 4.0, 3.0
+    cov = np.zeros((1, 6, 6))
+    cov[0, 0, 0], cov[0, 5, 5] = a * a, b * b        # σxx and τxy, uncorrelated
+    vm2 = ellipsoid_quadratic_max(cov, VON_MISES_FORM)[0]
+    # max of σ² + 3τ² on the ellipse (σ/a)² + (τ/b)² ≤ 1 is max(a², 3b²) (Lagrange, by hand)
+    assert vm2 == pytest.approx(max(a * a, 3 * b * b), rel=1e-12)
+
+
+def test_stress_envelope_never_exceeds_the_sign_bound():
+    from groundshake.results._spectrum_run import stress_bounds, stress_envelope
+    rng = np.random.default_rng(3)
+    Y = rng.normal(size=(50, 6, 4))                  # 50 points, 4 modes (invented numbers)
+    cov = np.einsum("pim,pjm->pij", Y, Y)            # SRSS of the modes
+    peaks = np.sqrt(np.einsum("pii->pi", cov)).T
+    vm, t1, _ = stress_envelope(peaks, cov)
+    vm_box, t_box, _ = stress_bounds(peaks)
+    # the ellipsoid lies inside the box of the component peaks (its axis extents are the
+    # peaks), so its maxima cannot exceed the box's (common sense of the construction)
+    assert np.all(vm <= vm_box * (1 + 1e-12)) and np.all(t1 <= t_box * (1 + 1e-12))
+    # and each mode's own state lies inside it: von Mises at least each mode's (Y[:, :, m])
+    from groundshake.results._stress import von_mises
+    per_mode = np.max(von_mises(np.transpose(Y, (1, 0, 2))), axis=1)
+    assert np.all(vm >= per_mode * (1 - 1e-9))

@@ -38,7 +38,8 @@ import scipy.sparse as sp
 from .._errors import InputError
 
 __all__ = ["cqc_correlation", "damping_factor", "spectral_accelerations", "combine_modes",
-           "rigid_fractions", "zero_period_acceleration",
+           "rigid_fractions", "zero_period_acceleration", "ellipsoid_quadratic_max",
+           "VON_MISES_FORM",
            "combine_directions", "ModalSpectrum", "modal_spectrum", "DIRECTION_RULES",
            "DEFAULT_VERTICAL_FRACTION"]
 
@@ -328,6 +329,42 @@ def _dense(a) -> np.ndarray:
     return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
 
 
+#: von Mises² = sᵀ P s for s = [σxx, σyy, σzz, τyz, τxz, τxy].
+VON_MISES_FORM = np.array([[1.0, -0.5, -0.5, 0, 0, 0], [-0.5, 1.0, -0.5, 0, 0, 0],
+                           [-0.5, -0.5, 1.0, 0, 0, 0], [0, 0, 0, 3.0, 0, 0],
+                           [0, 0, 0, 0, 3.0, 0], [0, 0, 0, 0, 0, 3.0]])
+
+
+def ellipsoid_quadratic_max(cov: np.ndarray, form: np.ndarray) -> np.ndarray:
+    """Largest value of a quadratic form over the response ellipsoid.
+
+    Parameters
+    ----------
+    cov : ndarray (k, g, g)
+        Response covariances Σ (positive semi-definite), e.g. from
+        :meth:`ModalSpectrum.covariance`.
+    form : ndarray (g, g)
+        Symmetric positive semi-definite Q.
+
+    Returns
+    -------
+    ndarray (k,)
+        max sᵀQs over the ellipsoid {s = Σ^½ u : |u| ≤ 1} = λ_max(Σ^½ Q Σ^½).
+
+    Notes
+    -----
+    Every point of the ellipsoid is a response state whose projections on the axes do
+    not exceed the CQC peaks of the components, and the ellipsoid's extent along any
+    direction c is the CQC peak √(cᵀΣc) of that combination (Menun & Der Kiureghian
+    2000, "Envelopes for seismic response vectors", J. Struct. Eng. 126(4), from memory).
+    """
+    C = 0.5 * (cov + np.swapaxes(cov, 1, 2))
+    w, V = np.linalg.eigh(C)
+    half = (V * np.sqrt(np.maximum(w, 0.0))[:, None, :]) @ np.swapaxes(V, 1, 2)
+    M = half @ form @ half
+    return np.maximum(np.linalg.eigvalsh(0.5 * (M + np.swapaxes(M, 1, 2)))[:, -1], 0.0)
+
+
 @dataclass(frozen=True, eq=False)
 class ModalSpectrum:
     """Modal spectral quantities of one model under one set of design spectra.
@@ -411,6 +448,58 @@ class ModalSpectrum:
             r = None if res is None else res[:, d] * self.zpa[d]
             out[d] = combine_modes(Y, self.rho, r,
                                    rigid_fraction=None if self.rigid is None else self.rigid[d])
+        return out
+
+    def covariance(self, op, *, kind: Literal["displacement", "acceleration"] = "displacement",
+                   group: int = 6, chunk: int = 4096) -> np.ndarray:
+        """Response covariance of groups of rows (e.g. the six stress components of a point).
+
+        Parameters
+        ----------
+        op : sparse or ndarray (g·k, n)
+            Rows in groups of ``group`` (row ``g·p + i`` is component i of point p).
+        kind : {"displacement", "acceleration"}
+            As :meth:`per_direction` (acceleration type without ground terms).
+        group : int
+            Rows per point.
+        chunk : int
+            Points per block (memory bound).
+
+        Returns
+        -------
+        ndarray (k, group, group)
+            Σ = Σ_d [Y_p,d ρ Y_p,dᵀ + r_d r_dᵀ] with the periodic modal peaks Y_p and the
+            rigid part r (rigid shares of the modes plus missing mass) of each direction
+            d: the covariance whose diagonal holds the squared SRSS-over-directions peaks
+            of :meth:`per_direction`, and for which the peak of any combination cᵀy of
+            the group is √(cᵀΣc) (the CQC of that combination).
+        """
+        op = sp.csr_matrix(op) if sp.issparse(op) else np.asarray(op, dtype=float)
+        n_rows = op.shape[0]
+        k = n_rows // group
+        out = np.zeros((k, group, group))
+        spec = self.sd if kind == "displacement" else self.sa
+        for p0 in range(0, k, chunk):                     # blocks of points, not a loop
+            rows = slice(group * p0, group * min(k, p0 + chunk))
+            A = _dense(op[rows] @ self.shapes)                          # (g·c, m)
+            res = None
+            if self.residual is not None:
+                res = (_dense(op[rows] @ self.residual) if kind == "displacement"
+                       else -A @ self.participation)
+            c = A.shape[0] // group
+            for d in range(3):                                          # three directions
+                if self.zpa[d] == 0 and not np.any(spec[d]):
+                    continue
+                Y = A * (self.participation[:, d] * spec[d])[None, :]
+                a = (np.zeros(Y.shape[1]) if self.rigid is None
+                     else np.clip(self.rigid[d], 0.0, 1.0))
+                r = Y @ a
+                if res is not None:
+                    r = r + res[:, d] * self.zpa[d]
+                Yp = (Y * np.sqrt(1.0 - a * a)[None, :]).reshape(c, group, -1)
+                out[p0:p0 + c] += np.einsum("pim,mn,pjn->pij", Yp, self.rho, Yp)
+                rr = r.reshape(c, group)
+                out[p0:p0 + c] += rr[:, :, None] * rr[:, None, :]
         return out
 
     def peak(self, op, *, kind: Literal["displacement", "acceleration"],

@@ -16,9 +16,9 @@ from .._errors import InputError
 from .._progress import Progress
 from ..dynamics._modal import residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion
-from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, combine_directions,
-                                           modal_spectrum, spectral_accelerations,
-                                           zero_period_acceleration)
+from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, VON_MISES_FORM,
+                                           ellipsoid_quadratic_max, modal_spectrum,
+                                           spectral_accelerations, zero_period_acceleration)
 from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
 
 try:                                    # stages that arrived later; optional here
@@ -31,7 +31,7 @@ except ImportError:  # pragma: no cover
     base_stability = None
 from ._stress import StressPeaks
 
-__all__ = ["spectrum_analyse", "stress_bounds", "SIGNS_LOST"]
+__all__ = ["spectrum_analyse", "stress_bounds", "stress_envelope", "SIGNS_LOST", "STRESS_RULE"]
 
 #: The note every spectrum run carries.
 SIGNS_LOST = ("Response-spectrum results are peak magnitudes: the signs and the simultaneity "
@@ -81,6 +81,50 @@ def stress_bounds(peaks: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray
                  + 3.0 * (tyz ** 2 + txz ** 2 + txy ** 2))
     t = np.max(np.stack([sx + txy + txz, sy + txy + tyz, sz + txz + tyz]), axis=0)
     return vm, t, -t
+
+
+STRESS_RULE = (
+    "the six stress components of each point form a response vector whose CQC covariance "
+    "(modes, rigid part and missing mass, directions by SRSS) defines a response ellipsoid; "
+    "von Mises is its largest value over that ellipsoid (Menun & Der Kiureghian 2000, from "
+    "memory), with the ellipsoid widened by the 100-40-40 rule's excess over SRSS where "
+    "that rule is chosen; principal tension is the smaller of mean stress peak + 2/3 × that "
+    "von Mises and the Gershgorin bound over every sign of the component peaks, principal "
+    "compression its negative: upper estimates of stress states that need not occur; von "
+    "Mises of the combined components would not be one")
+
+
+def stress_envelope(peaks: np.ndarray, cov: np.ndarray) -> tuple[np.ndarray, np.ndarray,
+                                                                   np.ndarray]:
+    """Envelope von Mises and principal stresses of stress points from the spectrum method.
+
+    Parameters
+    ----------
+    peaks : ndarray (6, k)
+        Peak magnitudes of [σxx, σyy, σzz, τyz, τxz, τxy] [Pa] by the run's direction rule.
+    cov : ndarray (k, 6, 6)
+        Their covariance (SRSS over directions), :meth:`ModalSpectrum.covariance` [Pa²].
+
+    Returns
+    -------
+    von_mises, tension, compression : ndarray (k,)
+        [Pa]; see :data:`STRESS_RULE`. The ellipsoid is scaled at each point by the
+        largest ratio² of ``peaks`` to the ellipsoid's own component extents √Σᵢᵢ (1 for
+        SRSS), so that it reaches every component peak.
+    """
+    P = np.abs(np.asarray(peaks, dtype=float))
+    C = np.asarray(cov, dtype=float)
+    ext = np.sqrt(np.maximum(np.einsum("kii->ki", C), 0.0))                 # (k, 6)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(ext > 0, P.T / np.where(ext > 0, ext, 1.0), 1.0)
+    f = np.maximum(np.max(ratio, axis=1), 1.0) ** 2
+    C = C * f[:, None, None]
+    vm = np.sqrt(ellipsoid_quadratic_max(C, VON_MISES_FORM))
+    c = np.array([1.0, 1.0, 1.0, 0.0, 0.0, 0.0]) / 3.0
+    p_peak = np.sqrt(np.maximum(np.einsum("i,kij,j->k", c, C, c), 0.0))
+    _, t_box, _ = stress_bounds(P)
+    t1 = np.minimum(t_box, p_peak + 2.0 / 3.0 * vm)
+    return vm, t1, -t1
 
 
 def _drop_times(d) -> None:
@@ -347,10 +391,11 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     n_el = int(np.asarray(model.elements).shape[0])
     S = sp.csr_matrix(model.stress)
     if stresses and n_el and S.shape[0]:
-        with Progress("stress peaks", total=None, enabled=progress):
-            comp = ms.peak(S, kind="displacement")                    # (6·n_pts,)
         n_pts = S.shape[0] // 6
-        vm, t1, t3 = stress_bounds(comp.reshape(n_pts, 6).T)
+        with Progress("stress peaks", total=None, enabled=progress):
+            comp = ms.peak(S, kind="displacement").reshape(n_pts, 6)     # component peaks
+            cov = ms.covariance(S, kind="displacement")                   # (n_pts, 6, 6)
+        vm, t1, t3 = stress_envelope(comp.T, cov)
         zero = np.zeros(n_pts, dtype=np.int64)
         point_peaks = StressPeaks(vm, zero, t1, zero.copy(), t3, zero.copy())
         pts = getattr(model, "stress_points", None)
@@ -372,12 +417,7 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
                                    "at": [float(v) for v in centres[e]]}
             stress_out["points"] = "element centres"
             stress_out["units"] = "Pa"
-        stress_out["combination"] = (
-            "each of the six stress components combined on its own (CQC over modes, missing "
-            "mass by SRSS, directions by the run's rule); von Mises and principal stresses are "
-            "then bounded over every sign of those component peaks (von Mises with each normal "
-            "difference at its worst, principal stresses by Gershgorin's theorem): an upper "
-            "estimate, since the component peaks do not occur together")
+        stress_out["combination"] = STRESS_RULE
         peaks["von_mises"] = stress_out["von_mises"]["value"]
         peaks["principal_tension"] = stress_out["principal_tension"]["value"]
         peaks["principal_compression"] = stress_out["principal_compression"]["value"]
@@ -439,6 +479,10 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         + " (capped as the modal method does).",
         *[n for n in ms.notes if n not in collected],
     ]
+    given = _get(_get(scenario, "motion"), "components")
+    if callable(given) and given():
+        assumptions.append("The record components of [motion] are not used by the spectrum "
+                           "method (only its target); run method = \"modal\" for them.")
     rigid = np.asarray(getattr(modes, "rigid_mass", None)
                        if getattr(modes, "rigid_mass", None) is not None else np.zeros(3), float)
     total = np.asarray(modes.total_mass, float)
