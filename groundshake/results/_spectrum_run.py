@@ -18,7 +18,7 @@ from ..dynamics._modal import residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion
 from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, VON_MISES_FORM,
                                            ellipsoid_quadratic_max, modal_spectrum,
-                                           spectral_accelerations, zero_period_acceleration)
+                                           spectral_accelerations)
 from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
 
 try:                                    # stages that arrived later; optional here
@@ -261,7 +261,8 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         a6, u6 = acc(e.operator), disp(e.operator)
         d_ = {"mass": float(e.mass), "cg": [float(v) for v in e.cg],
               "support": "rigid" if e.frequency_hz is None else "flexible",
-              "frequency_hz": None if e.frequency_hz is None else [float(v) for v in e.frequency_hz],
+              "frequency_hz": (None if e.frequency_hz is None
+                               else [float(v) for v in e.frequency_hz]),
               "damping": float(e.damping),
               "peak_absolute_acceleration": {d: float(a6[j]) for j, d in enumerate(DIRECTIONS)},
               "peak_relative_displacement": {d: float(u6[j]) for j, d in enumerate(DIRECTIONS)},
@@ -410,7 +411,8 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
             speaks = point_peaks
             stress_out = {}
             centres = np.asarray(model.element_centres)
-            for key, arr, pick in (("von_mises", vm, np.argmax), ("principal_tension", t1, np.argmax),
+            for key, arr, pick in (("von_mises", vm, np.argmax),
+                                   ("principal_tension", t1, np.argmax),
                                    ("principal_compression", t3, np.argmin)):
                 e = int(pick(arr))
                 stress_out[key] = {"value": float(arr[e]), "element": e,
