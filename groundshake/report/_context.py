@@ -71,6 +71,11 @@ class Context:
         scen = self.s.get("scenario")
         self.scenario = scen if isinstance(scen, Mapping) else {}
         self.notes: list[str] = list(folder.notes)
+        an = self.s.get("analysis")
+        if isinstance(an, Mapping) and an.get("method") == "spectrum":
+            # a response-spectrum run has no histories and reads no records: not a loss
+            self.notes = [n for n in self.notes
+                          if not n.startswith(("histories.csv", "records.csv"))]
         self.ref: dict[str, float] = {}
         for path, v in iter_values(self.s):
             k = kind_of(path)

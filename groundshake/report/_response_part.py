@@ -6,7 +6,7 @@ from typing import Mapping
 
 import numpy as np
 
-from ..results._schema import COLUMNS, DIRECTIONS, HISTORY_BASE, header, history_label
+from ..results._schema import COLUMNS, DIRECTIONS, HISTORY_BASE, header, history_label, kind_of
 from . import _figures as F
 from ._html import esc, raw, table
 from ._units import display_unit, fmt, to_display
@@ -18,8 +18,38 @@ __all__ = ["ResponsePart"]
 class ResponsePart(Context):
     """One part of the report (see the module docstring)."""
 
+    def spectrum_note(self) -> str:
+        """For a response-spectrum run: what its peaks are (no signs, no times) and the
+        side-by-side table with spectrum-compatible motions, in display units."""
+        an = self.s.get("analysis")
+        if not (isinstance(an, Mapping) and an.get("method") == "spectrum"):
+            return ""
+        out = ('<p class="note">Response-spectrum analysis of the design spectrum: every '
+               "value below is a peak magnitude estimated on its own, without sign or time; "
+               "peaks of different quantities need not occur together.</p>")
+        side = an.get("spectrum_motions")
+        if isinstance(side, Mapping) and side.get("comparison"):
+            rows = []
+            for r in side["comparison"]:
+                if not isinstance(r, Mapping):
+                    continue
+                key = [str(k) for k in r.get("key") or []]
+                kind = kind_of(key) or kind_of(key + ["value"]) if key else None
+                unit = display_unit(kind, self.sys) if kind else ""
+                rows.append([str(r.get("quantity", "")), unit,
+                             self.cell(r.get("spectrum"), kind),
+                             self.cell(r.get("time_history_mean"), kind),
+                             self.cell(r.get("time_history_sd"), kind),
+                             self.cell(r.get("ratio"), "ratio")])
+            out += (f"<h3>Side by side: the spectrum method and {esc(str(side.get('n')))} "
+                    "spectrum-compatible motions</h3>"
+                    + table(rows, ["quantity", "unit", "spectrum method", "time-history mean",
+                                   "standard deviation", "ratio"])
+                    + f'<p class="note">{esc(_sentence(str(side.get("note", ""))))}.</p>')
+        return out
+
     def response(self) -> str:
-        html_ = []
+        html_ = [self.spectrum_note()]
         bp = _get(self.s, "base", "peaks") or {}
         if isinstance(bp, Mapping) and bp:
             rows = []

@@ -22,7 +22,7 @@ def register(subparsers, parents) -> None:
     p.add_argument("-o", "--output", metavar="DIR", required=True,
                    help="output folder to create")
     p.add_argument("--force", action="store_true", help="replace DIR if it exists")
-    p.add_argument("--method", choices=("modal", "direct"), default=None,
+    p.add_argument("--method", choices=("modal", "direct", "spectrum"), default=None,
                    help="override [analysis] method")
     p.add_argument("--report-units", choices=("si", "us"), default=None,
                    help="display units of report.html and of the table printed here: si (kN, "
@@ -138,8 +138,10 @@ def _terminal_summary(s: dict, out: Path, *, units: str = "si", report: bool = T
     if modes:
         add("first mode", modes[0]["frequency"], "frequency", str(modes[0].get("dominant_direction", "")))
     an = s.get("analysis") or {}
-    lines = [f"{s.get('title', 'run')} — {an.get('method', '')} "
-             f"({an.get('n_modes', '—')} modes, {an.get('n_steps', '—')} steps)",
+    how = (f"{an.get('n_modes', '—')} modes, {an.get('n_steps', '—')} steps"
+           if an.get("method") != "spectrum" else
+           f"{an.get('n_modes', '—')} modes, design spectrum; peaks without signs or times")
+    lines = [f"{s.get('title', 'run')} — {an.get('method', '')} ({how})",
              table(rows, ("result", "value", "unit", "where"))]
     if s.get("soil_cases"):
         lines.append("soil cases: " + ", ".join(

@@ -82,8 +82,9 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
     with atomic_directory(out_dir, overwrite=overwrite) as tmp:
         _write(tmp, FILES["summary"], json_dumps(summary) + "\n")
         h = results.histories
-        _write(tmp, FILES["histories"], _csv_text(list(h), list(h.values())))
-        _write(tmp, FILES["records"], _records_csv(results.motion))
+        if h:           # a response-spectrum run has no histories and reads no records
+            _write(tmp, FILES["histories"], _csv_text(list(h), list(h.values())))
+            _write(tmp, FILES["records"], _records_csv(results.motion))
         _write(tmp, FILES["ground_spectra"], _ground_csv(results))
         _write(tmp, FILES["floor_spectra"], _floor_csv(results))
         _write(tmp, FILES["modes"], _modes_csv(results.modes, rot))
@@ -357,17 +358,21 @@ def dominant_direction(effective_mass_ratio: np.ndarray, rotational: np.ndarray)
 
 
 def _elements_csv(results) -> str:
+    """element_peaks.csv (COLUMNS["element_peaks"]); a response-spectrum run has no
+    times, so its ``time of von mises peak`` column is left out."""
     c = np.asarray(results.model.element_centres, float)
-    header = ["x [m]", "y [m]", "z [m]"]
+    spec = COLUMNS["element_peaks"]
     cols = [c[:, 0], c[:, 1], c[:, 2]]
+    keep = list(spec[:3])
     s = results.stress
     if s is not None:
-        header += ["von mises [Pa]", "principal tension [Pa]", "principal compression [Pa]",
-                   "time of von mises peak [s]", "part"]
-        cols += [s.von_mises, s.tension, s.compression,
-                 results.motion.time_of_step(s.von_mises_step),
-                 np.asarray(results.model.element_part)]
-    return _csv_text(header, cols)
+        timed = bool(results.histories)
+        keep += [col for col in spec[3:] if timed or col.label != "time of von mises peak"]
+        cols += [s.von_mises, s.tension, s.compression]
+        if timed:
+            cols.append(results.motion.time_of_step(s.von_mises_step))
+        cols.append(np.asarray(results.model.element_part))
+    return _csv_text([col.header for col in keep], cols)
 
 
 def _shapes_csv(results, n_shapes: int) -> str:

@@ -101,7 +101,8 @@ COLUMNS: dict[str, tuple[Column, ...]] = {
               *(Column(f"cumulative mass ratio {d}", "ratio") for d in DIRECTIONS),
               *(Column(f"rotational participation {d}", "ratio") for d in DIRECTIONS),
               Column("dominant direction", "text")),
-    # rows in the element order of mesh.json "cells"; NaN where an element has no value
+    # rows in the element order of mesh.json "cells"; NaN where an element has no value;
+    # a response-spectrum run (no times) has no "time of von mises peak" column
     "element_peaks": (Column("x", "length"), Column("y", "length"), Column("z", "length"),
                       Column("von mises", "stress"), Column("principal tension", "stress"),
                       Column("principal compression", "stress"),
@@ -278,6 +279,11 @@ SUMMARY_KINDS: dict[str, str] = {
     "analysis.duration": "time",
     "analysis.pad_before_s": "time",
     "analysis.modal_damping_diagonal_ratios": "damping",
+    "analysis.spectrum_motions.n": "count",
+    "analysis.spectrum_motions.dt": "time",
+    "analysis.spectrum_motions.duration": "time",
+    "analysis.spectrum_motions.largest_match_misfit": "ratio",
+    "analysis.spectrum_motions.pga_mean.*": "acceleration",
     "provenance.solver.modal_damping_diagonal_ratios": "damping",
     "records.*.dt": "time",
     "records.*.n": "count",
