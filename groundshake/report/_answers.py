@@ -9,7 +9,24 @@ from ._units import display_unit
 from ._context import Context, as_float as _f, get as _get, named as _named
 from ._context import sentence as _sentence
 
-__all__ = ["AnswersPart"]
+__all__ = ["AnswersPart", "bolt_exceedances"]
+
+
+def bolt_exceedances(summary: Mapping[str, Any]) -> list[tuple[str, str, list[int], float, int]]:
+    """Bolt comparisons above 1, grouped: (equipment, what, bolts numbered from 1, the
+    largest ratio, the bolt where it is) for each equipment and each of tension, shear and
+    tension–shear interaction (ratios from summary.json; none is computed here)."""
+    out = []
+    for name, eq in _named(summary.get("equipment")):
+        anchors = _get(eq, "anchors") or []
+        for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
+                          ("interaction_ratio", "tension–shear interaction")):
+            over = [(k, v) for k, a in enumerate(anchors, start=1)
+                    if (v := _f(_get(a, key))) is not None and v > 1.0]
+            if over:
+                at, top = max(over, key=lambda t: t[1])
+                out.append((name, what, [k for k, _ in over], top, at))
+    return out
 
 
 class AnswersPart(Context):
@@ -18,14 +35,14 @@ class AnswersPart(Context):
     def exceedances(self) -> list[str]:
         """Every comparison above 1 (or a safety factor below 1) and lost contact, in words."""
         out = []
-        for name, eq in _named(self.s.get("equipment")):
-            for k, a in enumerate(_get(eq, "anchors") or [], start=1):
-                for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
-                                  ("interaction_ratio", "tension–shear interaction")):
-                    v = _f(_get(a, key))
-                    if v is not None and v > 1.0:
-                        out.append(f"Bolt {k} of {name}: {what} demand is {self.n(v, 'ratio')} "
-                                   f"times the capacity entered (above 1).")
+        for name, what, bolts, top, at in bolt_exceedances(self.s):
+            if len(bolts) == 1:
+                out.append(f"Bolt {bolts[0]} of {name}: {what} demand is {self.n(top, 'ratio')} "
+                           f"times the capacity entered (above 1).")
+            else:
+                listed = ", ".join(map(str, bolts[:-1])) + f" and {bolts[-1]}"
+                out.append(f"Bolts {listed} of {name}: {what} demand above the capacity "
+                           f"entered, up to {self.n(top, 'ratio')} times (bolt {at}).")
         st = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
         for key, what in (("sliding", "sliding"), ("overturning", "overturning")):
             v = _f(_get(st, key, "min_safety_factor"))
@@ -36,10 +53,11 @@ class AnswersPart(Context):
             out.append(f"Peak bearing pressure is {self.n(v, 'ratio')} times the allowable entered.")
         c = _get(self.s, "base", "contact")
         if isinstance(c, Mapping) and c.get("uplift"):
+            when = self._when(c.get("time_of_min_pressure"))
             out.append(f"The base loses contact: the linear contact pressure falls to "
-                       f"{self.q(c.get('min_pressure'), 'pressure')} at "
-                       f"{self.q(c.get('time_of_min_pressure'), 'time')}; the bonded-spring "
-                       f"model does not hold there.")
+                       f"{self.q(c.get('min_pressure'), 'pressure')}"
+                       + (f" at {when}" if when else "")
+                       + "; the bonded-spring model does not hold there.")
         return out
 
     def warning_list(self) -> list[str]:

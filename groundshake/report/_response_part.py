@@ -6,7 +6,8 @@ from typing import Mapping
 
 import numpy as np
 
-from ..results._schema import COLUMNS, DIRECTIONS, HISTORY_BASE, header, history_label, kind_of
+from ..results._schema import (COLUMNS, DIRECTIONS, HISTORY_BASE, KIND_OF_UNIT, header,
+                               history_label, kind_of, parse_header)
 from . import _figures as F
 from ._html import esc, raw, table
 from ._units import display_unit, fmt, to_display
@@ -34,9 +35,11 @@ class ResponsePart(Context):
                 if not isinstance(r, Mapping):
                     continue
                 key = [str(k) for k in r.get("key") or []]
-                kind = kind_of(key) or kind_of(key + ["value"]) if key else None
+                label, si = parse_header(str(r.get("quantity", "")))
+                kind = (kind_of(key) or kind_of(key + ["value"]) if key else None) \
+                    or KIND_OF_UNIT.get(si)
                 unit = display_unit(kind, self.sys) if kind else ""
-                rows.append([str(r.get("quantity", "")), unit,
+                rows.append([label, unit,
                              self.cell(r.get("spectrum"), kind),
                              self.cell(r.get("time_history_mean"), kind),
                              self.cell(r.get("time_history_sd"), kind),

@@ -166,15 +166,14 @@ def _at_time(p) -> str:
 
 def _exceedances(s: dict) -> list[str]:
     """Comparisons above 1 and lost contact, in words."""
+    from ..report._answers import bolt_exceedances
+
     out = []
-    for nm, e in (s.get("equipment") or {}).items():
-        for k, b in enumerate(e.get("anchors") or [], start=1):
-            for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
-                              ("interaction_ratio", "tension-shear interaction")):
-                v = b.get(key)
-                if v is not None and v > 1.0:
-                    ratio = "ratio" if key == "interaction_ratio" else "demand/capacity"
-                    out.append(f"{nm} bolt {k}: {what} {ratio} {v:.3g} (above 1)")
+    for nm, what, bolts, top, at in bolt_exceedances(s):
+        ratio = "ratio" if "interaction" in what else "demand/capacity"
+        which = f"bolt {bolts[0]}" if len(bolts) == 1 else \
+            "bolts " + ", ".join(map(str, bolts)) + f" (largest at bolt {at})"
+        out.append(f"{nm} {which}: {what} {ratio} {top:.3g} (above 1)")
     c = (s.get("base") or {}).get("contact") or {}
     if c.get("uplift"):
         out.append("the base loses contact (uplift): the linear soil-spring model does not hold "

@@ -16,7 +16,7 @@ import re
 from dataclasses import dataclass
 from typing import Any, Iterator, Mapping
 
-__all__ = ["SCHEMA_VERSION", "FILES", "UNITS", "Column", "COLUMNS", "SUMMARY_KINDS",
+__all__ = ["SCHEMA_VERSION", "FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
            "kind_of", "header", "parse_header", "history_label", "HISTORY_BASE",
            "iter_values", "DIRECTIONS"]
 
@@ -67,6 +67,13 @@ class Column:
     @property
     def header(self) -> str:
         return header(self.label, self.kind)
+
+
+#: The kind a value has when only its SI unit is stated (``"label [N]"``), by unit.
+KIND_OF_UNIT: dict[str, str] = {"N": "force", "N*m": "moment", "Pa": "stress",
+                                "m/s2": "acceleration", "m": "displacement", "s": "time",
+                                "Hz": "frequency", "m/s": "velocity", "kg": "mass",
+                                "rad/s2": "angular_acceleration"}
 
 
 def header(label: str, kind: str) -> str:
