@@ -23,7 +23,7 @@ import numpy as np
 from ..._errors import RecordError
 from .._record import STANDARD_GRAVITY, Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, fixed_width, format_error, free_numbers,
+from ._common import (check_dt, check_samples, fixed_width, FormatError, free_numbers,
                       iso_time, orientation_metadata, resolve_units, to_si, unique_names,
                       user_units)
 
@@ -123,14 +123,14 @@ def _split_channels(lines: list[str], path: Path) -> list[_Channel]:
                 out.append(_channel(chunk, start + 1, path))
             start = i + 1
     if not out:
-        raise format_error(FORMAT, path, "no channel found")
+        raise FormatError(FORMAT, path, "no channel found")
     return out
 
 
 def _channel(chunk: list[str], first: int, path: Path) -> _Channel:
     m = _FIRST.match(chunk[0]) if chunk else None
     if not m:
-        raise format_error(FORMAT, path, "a channel must start with 'Corrected accelerogram', "
+        raise FormatError(FORMAT, path, "a channel must start with 'Corrected accelerogram', "
                            "'Uncorrected Accelerogram' or 'Response and Fourier ...'", first,
                            chunk[0] if chunk else "", part="line")
     word = m.group(1).lower()
@@ -181,7 +181,7 @@ def _blocks(chunk: list[str], first: int, path: Path) -> list[_Block]:
             if mr and float(mr.group(1)) > 0:
                 step = 1.0 / float(mr.group(1))
         if not step or not step > 0:
-            raise format_error(FORMAT, path, "no time step ('spaced at ... sec' or "
+            raise FormatError(FORMAT, path, "no time step ('spaced at ... sec' or "
                                "'at ... pts/sec')", number, line)
         mu = _UNITS.search(line)
         unit_text = mu.group(1).rstrip(".") if mu else ""
@@ -333,20 +333,20 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     lines = path.read_text(encoding="latin-1").splitlines()
     channels = _split_channels(lines, path)
     if all(ch.volume == 3 for ch in channels):
-        raise format_error(FORMAT, path, "a Volume 3 file holds response spectra, not an "
+        raise FormatError(FORMAT, path, "a Volume 3 file holds response spectra, not an "
                            "acceleration record; read it with read_csmip_spectra", 1, lines[0])
     given = user_units(units, where)
     records = []
     for ch in channels:
         acc = next((b for b in ch.blocks if b.kind == "accel"), None)
         if acc is None:
-            raise format_error(FORMAT, path, "the channel has no acceleration data block",
+            raise FormatError(FORMAT, path, "the channel has no acceleration data block",
                                ch.first_line, ch.lines[0])
         label = f"{where} (channel starting at line {ch.first_line})"
         try:
             file_units = canonical_units(acc.unit_text)
         except RecordError:
-            raise format_error(FORMAT, path, f"units {acc.unit_text!r} are not units of "
+            raise FormatError(FORMAT, path, f"units {acc.unit_text!r} are not units of "
                                "acceleration", acc.line, ch.lines[acc.line - ch.first_line]) from None
         rec_units = resolve_units(file_units, given, label)
         check_dt(dt, acc.dt, label, "its data block")
@@ -407,7 +407,7 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
     out = []
     for ch in _split_channels(lines, path):
         if ch.volume != 2:
-            raise format_error(FORMAT, path, "not a Volume 2 (corrected) channel", ch.first_line,
+            raise FormatError(FORMAT, path, "not a Volume 2 (corrected) channel", ch.first_line,
                                ch.lines[0])
         meta, component, _ = _meta(ch, path)
         series = {}
@@ -418,7 +418,7 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
                 series[{"veloc": "vel", "displ": "disp"}[b.kind]] = \
                     b.values * _si_factor(b.unit_text, b.kind, path, b.line)
         if "acc" not in series:
-            raise format_error(FORMAT, path, "the channel has no acceleration data block",
+            raise FormatError(FORMAT, path, "the channel has no acceleration data block",
                                ch.first_line, ch.lines[0])
         dt = next(b.dt for b in ch.blocks if b.kind == "accel")
         out.append(CsmipSeries(component, dt, series["acc"], series.get("vel", np.empty(0)),
@@ -430,7 +430,7 @@ def _si_factor(unit_text: str, what: str, path: Path, line: int) -> float:
     """Factor from a data block's units to SI (m/s², m/s or m)."""
     f = _factor(unit_text, what)
     if f is None:
-        raise format_error(FORMAT, path, f"unknown units {unit_text!r}", line)
+        raise FormatError(FORMAT, path, f"unknown units {unit_text!r}", line)
     return f
 
 
@@ -531,26 +531,26 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
     out = []
     for ch in _split_channels(lines, path):
         if ch.volume != 3:
-            raise format_error(FORMAT, path, "not a Volume 3 (spectra) channel", ch.first_line,
+            raise FormatError(FORMAT, path, "not a Volume 3 (spectra) channel", ch.first_line,
                                ch.lines[0])
         m = _NPER.search(ch.lines[0])
         if not m:
-            raise format_error(FORMAT, path, "no '(N periods' in the first line", ch.first_line,
+            raise FormatError(FORMAT, path, "no '(N periods' in the first line", ch.first_line,
                                ch.lines[0])
         n = int(m.group(1))
         text = "\n".join(ch.lines).lower()
         inches = "inches" in text and "fraction of g" in text
         if not inches:
-            raise format_error(FORMAT, path, "the spectra's units are not stated as inches and "
+            raise FormatError(FORMAT, path, "the spectra's units are not stated as inches and "
                                "seconds, Sa in fraction of g", ch.first_line, ch.lines[0])
         four = next((k for k, ln in enumerate(ch.lines) if ln.lower().startswith("fourier")), None)
         if four is None:
-            raise format_error(FORMAT, path, "no 'Fourier amplitude spectra' line", ch.first_line)
+            raise FormatError(FORMAT, path, "no 'Fourier amplitude spectra' line", ch.first_line)
         n_lines = -(-100 // 8)  # periods: 100 values, 8 a line, just before the Fourier block
         periods = fixed_width(ch.lines[four - n_lines:four], n, 10, 8, fmt=FORMAT, path=path,
                               first_line=ch.first_line + four - n_lines)
         if np.any(periods <= 0) or np.any(np.diff(periods) <= 0):
-            raise format_error(FORMAT, path, "periods must be > 0 and increasing",
+            raise FormatError(FORMAT, path, "periods must be > 0 and increasing",
                                ch.first_line + four - n_lines)
         damp, sd, sv, sa, psv = [], [], [], [], []
         for k, line in enumerate(ch.lines):
@@ -566,7 +566,7 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
             sa.append(per[2] * STANDARD_GRAVITY)
             psv.append(per[3] * 0.0254)
         if not damp:
-            raise format_error(FORMAT, path, "no 'Damping = ... Data of Sd,Sv,Sa,...' line",
+            raise FormatError(FORMAT, path, "no 'Damping = ... Data of Sd,Sv,Sa,...' line",
                                ch.first_line)
         meta, component, _ = _meta(ch, path)
         meta["source"] = where
