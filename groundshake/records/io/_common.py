@@ -200,7 +200,7 @@ def free_numbers(lines: list[str], count: int, *, fmt: str, path, first_line: in
     tokens = " ".join(lines).split()
     if len(tokens) < count:
         raise FormatError(fmt, path, f"{count} values were announced but the file holds "
-                           f"{len(tokens)}", first_line + len(lines) - 1)
+                          f"{len(tokens)}", first_line + len(lines) - 1)
     try:
         return np.array(tokens[:count], dtype=float)
     except ValueError:
@@ -211,7 +211,7 @@ def free_numbers(lines: list[str], count: int, *, fmt: str, path, first_line: in
                     float(tok)
                 except ValueError:
                     raise FormatError(fmt, path, f"{tok!r} is not a number", first_line + k,
-                                       ln) from None
+                                      ln) from None
                 seen += 1
         raise
 

@@ -79,7 +79,7 @@ def _channels(lines: list[str], path: Path):
         m = _FIRST.search(lines[i])
         if not m:
             raise FormatError(FORMAT, path, "expected the first line of a channel, '... (Format "
-                               "v01.20 with 13 text lines)'", i + 1, lines[i])
+                              "v01.20 with 13 text lines)'", i + 1, lines[i])
         first = i
         ntext = int(m.group(2))
         text = lines[i:i + ntext]
@@ -91,7 +91,7 @@ def _channels(lines: list[str], path: Path):
             mh = _HEADER.match(lines[i])
             if not mh or mh.group(2).lower() != what.lower():
                 raise FormatError(FORMAT, path, f"expected '... {what}-header values follow on "
-                                   "... lines, Format= (...)'", i + 1, lines[i])
+                                  "... lines, Format= (...)'", i + 1, lines[i])
             count, nl, per, width = (int(mh.group(1)), int(mh.group(3)), int(mh.group(4)),
                                      int(mh.group(5)))
             headers[what] = fixed_width(lines[i + 1:i + 1 + nl], count, width, per, fmt=FORMAT,
@@ -106,8 +106,8 @@ def _channels(lines: list[str], path: Path):
         md = _DATA.match(lines[i]) if i < n else None
         if not md:
             raise FormatError(FORMAT, path, "expected the data line '<n> ... pts, approx ... "
-                               "secs, units=...(code), Format=(...)'", i + 1,
-                               lines[i] if i < n else "")
+                              "secs, units=...(code), Format=(...)'", i + 1,
+                              lines[i] if i < n else "")
         npts, per, width = int(md.group(1)), int(md.group(5)), int(md.group(6))
         data = fixed_width(lines[i + 1:], npts, width, per, fmt=FORMAT, path=path,
                            first_line=i + 2)
@@ -164,7 +164,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         step = ms / 1000.0 if ms is not None and ms > 0 else _value(reals, 34)
         if step is None or not step > 0:
             raise FormatError(FORMAT, path, "no sampling interval (real header value 62 [ms] "
-                               "or 34 [s])", ch["first"], ch["text"][0])
+                              "or 34 [s])", ch["first"], ch["text"][0])
         step = float(step)
         check_dt(dt, step, label, "its real header (value 62)")
         data = ch["data"]
@@ -176,9 +176,9 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
             lsb, sens = _value(reals, 22), _value(reals, 42)
             if not lsb or not sens or lsb <= 0 or sens <= 0:
                 raise FormatError(FORMAT, path, "raw counts, but the real header lacks the "
-                                   "recorder LSB (value 22, µV/count) or the sensor sensitivity "
-                                   "(value 42, V/g) needed to convert them",
-                                   ch["data_line_no"], ch["data_line"])
+                                  "recorder LSB (value 22, µV/count) or the sensor sensitivity "
+                                  "(value 42, V/g) needed to convert them",
+                                  ch["data_line_no"], ch["data_line"])
             scale = lsb * 1e-6 / sens  # counts -> volts -> g
             file_units = "g"
             meta["units_from"] = ("counts x recorder LSB (real header 22, µV/count) / sensor "
@@ -194,8 +194,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                     _UNIT_CODES[code]
             except (RecordError, KeyError):
                 raise FormatError(FORMAT, path, f"units {ch['unit_text']!r} (code {code}) are "
-                                   "not units of acceleration", ch["data_line_no"],
-                                   ch["data_line"]) from None
+                                  "not units of acceleration", ch["data_line_no"],
+                                  ch["data_line"]) from None
         rec_units = resolve_units(file_units, given, label)
         text = "\n".join(ch["text"])
         mc = _CHAN.search(text)

@@ -131,8 +131,8 @@ def _channel(chunk: list[str], first: int, path: Path) -> _Channel:
     m = _FIRST.match(chunk[0]) if chunk else None
     if not m:
         raise FormatError(FORMAT, path, "a channel must start with 'Corrected accelerogram', "
-                           "'Uncorrected Accelerogram' or 'Response and Fourier ...'", first,
-                           chunk[0] if chunk else "", part="line")
+                          "'Uncorrected Accelerogram' or 'Response and Fourier ...'", first,
+                          chunk[0] if chunk else "", part="line")
     word = m.group(1).lower()
     volume = 1 if word.startswith("uncorrected") else 2 if word.startswith("corrected") else 3
     # the text header ends where the first line of 16 integers begins
@@ -182,7 +182,7 @@ def _blocks(chunk: list[str], first: int, path: Path) -> list[_Block]:
                 step = 1.0 / float(mr.group(1))
         if not step or not step > 0:
             raise FormatError(FORMAT, path, "no time step ('spaced at ... sec' or "
-                               "'at ... pts/sec')", number, line)
+                              "'at ... pts/sec')", number, line)
         mu = _UNITS.search(line)
         unit_text = mu.group(1).rstrip(".") if mu else ""
         mf = _FORTRAN.search(line)
@@ -334,20 +334,20 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     channels = _split_channels(lines, path)
     if all(ch.volume == 3 for ch in channels):
         raise FormatError(FORMAT, path, "a Volume 3 file holds response spectra, not an "
-                           "acceleration record; read it with read_csmip_spectra", 1, lines[0])
+                          "acceleration record; read it with read_csmip_spectra", 1, lines[0])
     given = user_units(units, where)
     records = []
     for ch in channels:
         acc = next((b for b in ch.blocks if b.kind == "accel"), None)
         if acc is None:
             raise FormatError(FORMAT, path, "the channel has no acceleration data block",
-                               ch.first_line, ch.lines[0])
+                              ch.first_line, ch.lines[0])
         label = f"{where} (channel starting at line {ch.first_line})"
         try:
             file_units = canonical_units(acc.unit_text)
         except RecordError:
             raise FormatError(FORMAT, path, f"units {acc.unit_text!r} are not units of "
-                               "acceleration", acc.line, ch.lines[acc.line - ch.first_line]) from None
+                              "acceleration", acc.line, ch.lines[acc.line - ch.first_line]) from None
         rec_units = resolve_units(file_units, given, label)
         check_dt(dt, acc.dt, label, "its data block")
         check_samples(acc.values, label)
@@ -408,7 +408,7 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
     for ch in _split_channels(lines, path):
         if ch.volume != 2:
             raise FormatError(FORMAT, path, "not a Volume 2 (corrected) channel", ch.first_line,
-                               ch.lines[0])
+                              ch.lines[0])
         meta, component, _ = _meta(ch, path)
         series = {}
         for b in ch.blocks:
@@ -419,7 +419,7 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
                     b.values * _si_factor(b.unit_text, b.kind, path, b.line)
         if "acc" not in series:
             raise FormatError(FORMAT, path, "the channel has no acceleration data block",
-                               ch.first_line, ch.lines[0])
+                              ch.first_line, ch.lines[0])
         dt = next(b.dt for b in ch.blocks if b.kind == "accel")
         out.append(CsmipSeries(component, dt, series["acc"], series.get("vel", np.empty(0)),
                                series.get("disp", np.empty(0)), meta))
@@ -532,17 +532,17 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
     for ch in _split_channels(lines, path):
         if ch.volume != 3:
             raise FormatError(FORMAT, path, "not a Volume 3 (spectra) channel", ch.first_line,
-                               ch.lines[0])
+                              ch.lines[0])
         m = _NPER.search(ch.lines[0])
         if not m:
             raise FormatError(FORMAT, path, "no '(N periods' in the first line", ch.first_line,
-                               ch.lines[0])
+                              ch.lines[0])
         n = int(m.group(1))
         text = "\n".join(ch.lines).lower()
         inches = "inches" in text and "fraction of g" in text
         if not inches:
             raise FormatError(FORMAT, path, "the spectra's units are not stated as inches and "
-                               "seconds, Sa in fraction of g", ch.first_line, ch.lines[0])
+                              "seconds, Sa in fraction of g", ch.first_line, ch.lines[0])
         four = next((k for k, ln in enumerate(ch.lines) if ln.lower().startswith("fourier")), None)
         if four is None:
             raise FormatError(FORMAT, path, "no 'Fourier amplitude spectra' line", ch.first_line)
@@ -551,7 +551,7 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
                               first_line=ch.first_line + four - n_lines)
         if np.any(periods <= 0) or np.any(np.diff(periods) <= 0):
             raise FormatError(FORMAT, path, "periods must be > 0 and increasing",
-                               ch.first_line + four - n_lines)
+                              ch.first_line + four - n_lines)
         damp, sd, sv, sa, psv = [], [], [], [], []
         for k, line in enumerate(ch.lines):
             ms = _SPEC_LINE.match(line)
@@ -559,7 +559,7 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
                 continue
             # 100 values an array take 12.5 lines; each array starts on a new line (13 lines)
             per = [fixed_width(ch.lines[k + 1 + 13 * j:], n, 10, 8, fmt=FORMAT, path=path,
-                               first_line=ch.first_line + k + 1 + 13 * j) for j in range(4)]
+                              first_line=ch.first_line + k + 1 + 13 * j) for j in range(4)]
             damp.append(float(ms.group(1)))
             sd.append(per[0] * 0.0254)
             sv.append(per[1] * 0.0254)
@@ -567,7 +567,7 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
             psv.append(per[3] * 0.0254)
         if not damp:
             raise FormatError(FORMAT, path, "no 'Damping = ... Data of Sd,Sv,Sa,...' line",
-                               ch.first_line)
+                              ch.first_line)
         meta, component, _ = _meta(ch, path)
         meta["source"] = where
         out.append(PublishedSpectrum(component, periods, np.array(damp), np.array(sd),

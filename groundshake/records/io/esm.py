@@ -62,7 +62,7 @@ def _header(lines: list[str], path: Path) -> tuple[dict, dict, int]:
             float(s.split()[0])
         except ValueError:
             raise FormatError(FORMAT, path, "neither a 'KEY: value' line nor a number", i + 1,
-                               line, part="header line") from None
+                              line, part="header line") from None
         return values, where, i
     raise FormatError(FORMAT, path, "the header is not followed by any data")
 
@@ -75,10 +75,10 @@ def _number(values, where, key, path, *, positive=True) -> float | None:
         v = float(text)
     except ValueError:
         raise FormatError(FORMAT, path, f"{key} {text!r} is not a number", where[key],
-                           f"{key}: {text}", part="header line") from None
+                          f"{key}: {text}", part="header line") from None
     if not math.isfinite(v) or (positive and v <= 0):
         raise FormatError(FORMAT, path, f"{key} must be a number > 0", where[key],
-                           f"{key}: {text}", part="header line")
+                          f"{key}: {text}", part="header line")
     return v
 
 
@@ -119,28 +119,28 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     kind = values.get("DATA_TYPE", "ACCELERATION").upper()
     if kind and "ACCELERATION" not in kind:
         raise FormatError(FORMAT, path, f"DATA_TYPE {kind}: only acceleration files are "
-                           "records", where["DATA_TYPE"], f"DATA_TYPE: {kind}", part="header line")
+                          "records", where["DATA_TYPE"], f"DATA_TYPE: {kind}", part="header line")
     step = _number(values, where, "SAMPLING_INTERVAL_S", path)
     check_dt(dt, step, label, "its SAMPLING_INTERVAL_S header")
     npts = _number(values, where, "NDATA", path)
     if npts != int(npts):
         raise FormatError(FORMAT, path, "NDATA must be a whole number", where["NDATA"],
-                           f"NDATA: {values['NDATA']}", part="header line")
+                          f"NDATA: {values['NDATA']}", part="header line")
     npts = int(npts)
     try:
         file_units = canonical_units(values["UNITS"])
     except RecordError:
         raise FormatError(FORMAT, path, f"UNITS {values['UNITS']!r} are not units of "
-                           "acceleration", where["UNITS"], f"UNITS: {values['UNITS']}",
-                           part="header line") from None
+                          "acceleration", where["UNITS"], f"UNITS: {values['UNITS']}",
+                          part="header line") from None
     rec_units = resolve_units(file_units, user_units(units, label), label)
     body = [ln for ln in lines[first:]]
     data = free_numbers(body, npts, fmt=FORMAT, path=path, first_line=first + 1)
     extra = len(" ".join(body).split()) - npts
     if extra:
         raise FormatError(FORMAT, path, f"NDATA={npts} but the file holds {npts + extra} "
-                           "samples", where["NDATA"], f"NDATA: {values['NDATA']}",
-                           part="header line")
+                          "samples", where["NDATA"], f"NDATA: {values['NDATA']}",
+                          part="header line")
     check_samples(data, label)
 
     stream = values.get("STREAM", "")

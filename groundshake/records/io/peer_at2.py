@@ -78,11 +78,11 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     lines = path.read_text(encoding="latin-1").splitlines()
     if len(lines) < 5:
         raise FormatError(FORMAT, path, "the four header lines and data are needed; the file "
-                           f"has {len(lines)} lines")
+                          f"has {len(lines)} lines")
     kind = _KIND.match(lines[2])
     if not kind or kind.group(1).upper() != "ACCELERATION":
         raise FormatError(FORMAT, path, "not an acceleration time series (a .VT2 or .DT2 file?)",
-                           3, lines[2], part="header line")
+                          3, lines[2], part="header line")
     m = _UNITS.search(lines[2])
     if not m:
         raise FormatError(FORMAT, path, "no 'IN UNITS OF ...'", 3, lines[2], part="header line")
@@ -91,7 +91,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         file_units = canonical_units(unit_text)
     except RecordError:
         raise FormatError(FORMAT, path, f"units {unit_text!r} are not units of acceleration",
-                           3, lines[2], part="header line") from None
+                          3, lines[2], part="header line") from None
     rec_units = resolve_units(file_units, user_units(units, where), where)
     mn, md = _NPTS.search(lines[3]), _DT.search(lines[3])
     old = _OLD_NPTS_DT.search(lines[3])
@@ -106,16 +106,16 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         step = float(dt_text)
     except ValueError:
         raise FormatError(FORMAT, path, f"DT {dt_text!r} is not a number", 4, lines[3],
-                           part="header line") from None
+                          part="header line") from None
     if not step > 0:
         raise FormatError(FORMAT, path, f"DT={step:g} s must be > 0", 4, lines[3],
-                           part="header line")
+                          part="header line")
     check_dt(dt, step, where, "its DT= header")
     data = free_numbers(lines[4:], npts, fmt=FORMAT, path=path, first_line=5)
     extra = " ".join(lines[4:]).split()[npts:]
     if extra:
         raise FormatError(FORMAT, path, f"NPTS={npts} but the file holds {npts + len(extra)} "
-                           "values", 4, lines[3], part="header line")
+                          "values", 4, lines[3], part="header line")
     check_samples(data, where)
 
     parts = [p.strip() for p in lines[1].split(",")]
