@@ -92,8 +92,9 @@ class MotionSettings:
     z: MotionComponent | None = spec("table", None, cls=MotionComponent,
                                      doc="vertical component")
     target: str | None = spec("target", None,
-                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8` "
-                                  "or a CSV of period [s], PSA [g] (relative path)")
+                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8`, "
+                                  "a CSV of period [s], PSA [g], or a CSMIP Volume 3 file "
+                                  "`FILE.V3:channel=N` (relative paths)")
     match_target: bool = spec("bool", False, doc="adjust the records to the target first")
     inventory: Path | None = spec("path", None,
                                   doc="station inventory (StationXML) of records in raw counts "

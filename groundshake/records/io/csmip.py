@@ -27,7 +27,7 @@ from ._common import (check_dt, check_samples, fixed_width, FormatError, free_nu
                       iso_time, orientation_metadata, resolve_units, to_si, unique_names,
                       user_units)
 
-__all__ = ["FORMAT", "EXTENSIONS", "is_format", "read", "read_csmip_v2_series",
+__all__ = ["FORMAT", "EXTENSIONS", "is_format", "is_volume3", "read", "read_csmip_v2_series",
            "read_csmip_spectra", "CsmipSeries", "PublishedSpectrum"]
 
 FORMAT = "CSMIP/CDMG Volume 1/2 (and Volume 3 spectra)"
@@ -65,8 +65,8 @@ def is_format(path: Path, head: bytes) -> bool:
         # a CSMIP channel names its channel ("Chan  1: 360 Deg"), has an integer header of
         # 16 fields of 5 characters, and announces its data ("12000 points of accel data
         # ...", "13200 Accelerogram points ...") or, in Volume 3, its spectra
-        if lines[0].lower().lstrip().startswith("response and fourier amplitude spectra"):
-            return True  # Volume 3
+        if is_volume3(head):
+            return True
         if not any(_CHAN.match(ln) for ln in lines[1:30]):
             return False
         if any(_announces_data(ln) for ln in lines[1:100]):
@@ -76,6 +76,16 @@ def is_format(path: Path, head: bytes) -> bool:
         return len(head) < 8192 and len(lines) < 46
     except Exception:
         return False
+
+
+def is_volume3(head: bytes) -> bool:
+    """True if ``head`` (a file's first bytes) starts like a CSMIP Volume 3 file (never raises)."""
+    try:
+        first = head.decode("latin-1").splitlines()[:1]
+    except Exception:  # noqa: BLE001 - a detector never raises
+        return False
+    return bool(first) and first[0].lower().lstrip().startswith(
+        "response and fourier amplitude spectra")
 
 
 _INT_FIELD = re.compile(r"\s*-?\d+")
@@ -468,7 +478,7 @@ class PublishedSpectrum:
         return self.psv * (2.0 * np.pi / self.periods)
 
     def as_target(self, damping: float = 0.05):
-        """This spectrum as a target PSA curve (log-log interpolation between periods).
+        """This spectrum's PSA as a target curve (log-log interpolation between periods).
 
         Parameters
         ----------
@@ -478,27 +488,12 @@ class PublishedSpectrum:
         Returns
         -------
         groundshake.spectra.TargetSpectrum
-            Undefined (NaN) outside the published periods.
+            Undefined (NaN) outside the published periods; see
+            :func:`groundshake.spectra.published_target`.
         """
-        from ...spectra._targets import G, TargetSpectrum  # later stage, imported on use
+        from ...spectra._targets import published_target  # later stage, imported on use
 
-        k = np.flatnonzero(np.isclose(self.damping, damping, atol=1e-9))
-        if not k.size:
-            raise RecordError(f"published spectrum {self.component}: no {100 * damping:g} % "
-                              f"damping; it has {', '.join(f'{100 * d:g} %' for d in self.damping)}")
-        tt, vv = self.periods, self.psa[k[0]] / G
-
-        def fn(t):
-            t = np.asarray(t, dtype=float)
-            out = np.full(t.shape, np.nan)
-            inside = (t >= tt[0]) & (t <= tt[-1])
-            out[inside] = np.exp(np.interp(np.log(t[inside]), np.log(tt), np.log(vv)))
-            return out
-
-        label = f"published spectrum {self.metadata.get('station', '')} {self.component}".strip()
-        return TargetSpectrum(label=label, damping=float(damping), kind="table",
-                              parameters={"source": self.metadata.get("source", ""),
-                                          "rows": int(tt.size)}, _fn=fn)
+        return published_target(self, damping)
 
 
 _SPEC_LINE = re.compile(r"^\s*damping\s*=\s*([0-9]*\.?[0-9]+)\s*\.?\s*data of\s*(.*?)\s*:?\s*$", re.I)
