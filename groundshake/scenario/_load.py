@@ -552,11 +552,47 @@ def _check_motion(values, ctx):
     m = values.get("motion")
     if m is None:
         return
+    if m.file is not None:
+        m = values["motion"] = _components_of_file(m, ctx)
     if not m.components():
         raise ctx.error(("motion",), "a [motion] table without components",
                         "at least one of x, y, z (or leave [motion] out for modes only)")
     if m.match_target and m.target is None:
         raise ctx.bad(("motion", "match_target"), True, "true only with a target")
+
+
+def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
+    """``[motion] file = ...`` written out as x, y, z by the channels' orientation."""
+    from .._errors import InputError
+    from ..records import read_record
+    from ..records._components import components_by_orientation
+
+    path = ("motion", "file")
+    given = [k for k in m.components()]
+    if given:
+        raise ctx.error(path, f"a file together with {', '.join(given)}",
+                        "either file (its channels picked by orientation) or x, y, z")
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", GroundshakeWarning)
+            records = read_record(m.file, inventory=m.inventory)
+            picked = components_by_orientation(records, where="motion.file")
+    except InputError as e:
+        err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
+        err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
+        raise err from None
+    for w in caught:
+        if issubclass(w.category, GroundshakeWarning):
+            ctx.warn(path, str(w.message))
+    comps = {}
+    for axis, rec in picked.items():
+        same = sum(str(r.component) == str(rec.component) for r in records)
+        code = str(rec.component) if rec.component and same == 1 else rec.name
+        comps[axis] = MotionComponent(file=m.file, channel=code)
+    ctx.notes.append(f"{ctx.where(path)}: motion.file: "
+                     + ", ".join(f"{a} = channel {c.channel!r}" for a, c in comps.items())
+                     + " (by orientation: vertical to z, horizontals to x, y in file order)")
+    return dataclasses.replace(m, file=None, **comps)
 
 
 def _check_floor_spectra(values, ctx):

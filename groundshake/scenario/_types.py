@@ -79,6 +79,13 @@ class MotionComponent:
                             doc="time step, for one-column text files")
     trace: int | str | None = spec("trace", None,
                                    doc="trace index (from 0) or channel code in a multi-trace file")
+    channel: str | None = spec("string", None,
+                               doc="the channel of a multi-channel file by its code as written "
+                                   "(`360`, `HNZ`, `UP`) or the record's name")
+    azimuth: float | None = spec("number", None, ge=0.0, le=360.0, unit="deg",
+                                 doc="the horizontal channel of a multi-channel file whose "
+                                     "azimuth (clockwise from north, from its header) is this, "
+                                     "within 1°")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -91,6 +98,10 @@ class MotionSettings:
                                      doc="horizontal component along y")
     z: MotionComponent | None = spec("table", None, cls=MotionComponent,
                                      doc="vertical component")
+    file: Path | None = spec("path", None,
+                             doc="one station file holding the components, instead of x, y, z: "
+                                 "its vertical channel goes to z, its horizontals to x and y in "
+                                 "the file's order (written out as x, y, z with their channels)")
     target: str | None = spec("target", None,
                               doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8`, "
                                   "a CSV of period [s], PSA [g], or a CSMIP Volume 3 file "
