@@ -504,8 +504,16 @@ def _check_plausible(values, ctx):
     s = values.get("support")
     if s is not None and s.kind == "soil":
         for key, quantity in (("shear_wave_velocity", "shear_wave_velocity"),
-                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio")):
+                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio"),
+                              ("variation", "variation"), ("embedment_depth", "embedment_depth"),
+                              ("modulus_ratio", "modulus_ratio")):
             _plausible(quantity, getattr(s, key), ("support", key), ctx)
+        if s.strain_compatible is not None:
+            _plausible("shaking_g", s.strain_compatible.shaking_g,
+                       ("support", "strain_compatible", "shaking_g"), ctx)
+    if s is not None:
+        for key in ("friction_coefficient", "allowable_bearing_pressure"):
+            _plausible(key, getattr(s, key), ("support", key), ctx)
     d = values.get("damping")
     if d is not None:
         _plausible("damping_percent", d.ratio_percent, ("damping", "ratio_percent"), ctx)
