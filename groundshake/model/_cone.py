@@ -27,7 +27,7 @@ import numpy as np
 import scipy.sparse as sp
 
 __all__ = ["RotationCones", "rotation_cones", "cone_network_stiffness", "cone_stiffness",
-           "with_cones"]
+           "with_cones", "cone_run"]
 
 
 @dataclass(frozen=True)
@@ -209,3 +209,48 @@ def with_cones(K, M, C, influence, load, base_rotations, cones: RotationCones):
     pad = np.zeros((3, 3))
     return (K2, M2, C2, np.vstack([np.asarray(influence, float), pad]),
             np.vstack([np.asarray(load, float), pad]))
+
+
+def cone_run(model, C, output, peak_operator, on_block, damping_update):
+    """The inputs of a step-by-step run of ``model`` with its cones' extra rotations.
+
+    Parameters
+    ----------
+    model : BlockModel
+        With ``cones`` and ``base_rotation_dofs`` (``build_model(..., cones=True)``).
+    C : sparse (n, n) or None
+        The model's damping matrix [N·s/m].
+    output, peak_operator : sparse or ndarray (k, n) or None
+        Rows kept by the run; given zero columns for the extra rotations.
+    on_block : callable or None
+        Receives blocks of displacements; the extra rotations are cut off first.
+    damping_update : (U (n, r), d (r,)) or None
+        A low-rank damping part; U gets zero rows for the extra rotations.
+
+    Returns
+    -------
+    tuple
+        ``K, M, C, influence, load, output, peak_operator, on_block, damping_update`` for
+        :func:`groundshake.dynamics._direct.direct_response`, with n + 3 DOFs.
+    """
+    n = model.K.shape[0]
+    load = getattr(model, "ground_load", None)
+    if load is None:
+        load = np.asarray(model.M @ model.influence)
+    K, M, C, iota, load = with_cones(model.K, model.M, C, model.influence, load,
+                                     model.base_rotation_dofs, model.cones)
+
+    def pad(A):
+        if A is None:
+            return None
+        if sp.issparse(A):
+            return sp.hstack([A, sp.csr_matrix((A.shape[0], 3))], format="csr")
+        return np.hstack([np.asarray(A), np.zeros((np.shape(A)[0], 3))])
+
+    block = None if on_block is None else (lambda ub, steps: on_block(ub[:n], steps))
+    update = None
+    if damping_update is not None:
+        U, d = damping_update
+        U = U.toarray() if sp.issparse(U) else np.asarray(U)
+        update = (np.vstack([U, np.zeros((3, U.shape[1]))]), d)
+    return K, M, C, iota, load, pad(output), pad(peak_operator), block, update
