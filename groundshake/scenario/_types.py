@@ -219,7 +219,8 @@ class SupportSettings:
         doc="height of the side walls in good contact with the soil (soil only)")
     frequency_dependent: bool = spec(
         "bool", False, doc="evaluate each base spring at the frequency of the modes that "
-                           "load it (Gazetas 1991 k(a0), iterated; soil only)")
+                           "load it (Gazetas 1991 k(a0), iterated; soil only); in direct "
+                           "runs rocking and torsion as rotational cones (Wolf 1994)")
     variation: float | None = spec("number", None, ge=0.0, le=10.0,
                                    doc="Cv of the shear modulus: lower, best and upper cases "
                                        "G/(1+Cv), G, G(1+Cv); none = best estimate only")
