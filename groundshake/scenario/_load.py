@@ -6,6 +6,7 @@ Every check runs up front and the first failure raises one
 """
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import difflib
 import functools
@@ -533,13 +534,22 @@ def _check_plausible(values, ctx):
 
 def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
     """Parse the target now, so its unit slips (sds=9.81) name the file and line."""
-    from .._errors import InputError
     from ..spectra._targets import parse_target
+
+    with _keyed(path, ctx):
+        parse_target(spec, base_dir=ctx.base_dir)
+
+
+@contextlib.contextmanager
+def _keyed(path: tuple, ctx: _Context):
+    """Run a check of one key: its InputError becomes that key's ScenarioError (file and
+    line), its GroundshakeWarnings that key's warnings and notes."""
+    from .._errors import InputError
 
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         try:
-            parse_target(spec, base_dir=ctx.base_dir)
+            yield
         except InputError as e:
             err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
             err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
@@ -571,7 +581,6 @@ def _check_motion(values, ctx):
 
 def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
     """``[motion] file = ...`` written out as x, y, z by the channels' orientation."""
-    from .._errors import InputError
     from ..records import read_record
     from ..records._components import components_by_orientation
 
@@ -580,18 +589,9 @@ def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
     if given:
         raise ctx.error(path, f"a file together with {', '.join(given)}",
                         "either file (its channels picked by orientation) or x, y, z")
-    try:
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", GroundshakeWarning)
-            records = read_record(m.file, inventory=m.inventory)
-            picked = components_by_orientation(records, where="motion.file")
-    except InputError as e:
-        err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
-        err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
-        raise err from None
-    for w in caught:
-        if issubclass(w.category, GroundshakeWarning):
-            ctx.warn(path, str(w.message))
+    with _keyed(path, ctx):
+        records = read_record(m.file, inventory=m.inventory)
+        picked = components_by_orientation(records, where="motion.file")
     comps = {}
     for axis, rec in picked.items():
         same = sum(str(r.component) == str(rec.component) for r in records)
