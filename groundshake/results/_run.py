@@ -257,7 +257,8 @@ def _get(obj, key, default=None):
 
 
 # --------------------------------------------------------------------------- the run
-def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct"] | None = None,
+def analyse(scenario, *, progress: bool = True,
+            method: Literal["modal", "direct", "spectrum"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario: motion, model, modes, response and every result.
@@ -269,8 +270,9 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
         unless ``motion`` is given).
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
-    method : {"modal", "direct"}, optional
-        Overrides ``analysis.method``.
+    method : {"modal", "direct", "spectrum"}, optional
+        Overrides ``analysis.method``. ``"spectrum"`` is response-spectrum analysis of
+        ``[motion] target`` (records are not read; ``time`` and ``histories`` stay empty).
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
@@ -333,8 +335,18 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
 
     analysis = _get(scenario, "analysis")
     method = method or _get(analysis, "method", "modal") or "modal"
+    if method == "spectrum":            # the design spectrum, no records
+        if motion is not None:
+            raise InputError("analysis.method: 'spectrum' takes the design spectrum of "
+                             "[motion] target, not records; allowed 'modal' or 'direct' with "
+                             "a given motion")
+        from ._spectrum_run import spectrum_analyse
+        return spectrum_analyse(scenario, progress=progress, model=model, modes=modes,
+                                stresses=stresses, collected=collected, residual=residual,
+                                timings=timings)
     if method not in ("modal", "direct"):
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct', "
+                         "'spectrum'")
     cutoff = _get(analysis, "cutoff_hz", 50.0)
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)

@@ -530,6 +530,8 @@ def _check_plausible(values, ctx):
     m = values.get("motion")
     if m is not None and m.target is not None:
         _check_target(m.target, ("motion", "target"), ctx)
+    if m is not None and m.target_z is not None:
+        _check_target(m.target_z, ("motion", "target_z"), ctx)
 
 
 def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
@@ -572,11 +574,20 @@ def _check_motion(values, ctx):
         return
     if m.file is not None:
         m = values["motion"] = _components_of_file(m, ctx)
-    if not m.components():
+    analysis = values.get("analysis")
+    spectrum = analysis is not None and analysis.method == "spectrum"
+    if spectrum and m.target is None:
+        raise ctx.error(("motion", "target"), "nothing (the key is missing)",
+                        'a design spectrum (required by [analysis] method = "spectrum")')
+    if not m.components() and m.target is None:
         raise ctx.error(("motion",), "a [motion] table without components",
-                        "at least one of x, y, z (or leave [motion] out for modes only)")
+                        "at least one of x, y, z (or leave [motion] out for modes only; "
+                        'only a target for method = "spectrum")')
     if m.match_target and m.target is None:
         raise ctx.bad(("motion", "match_target"), True, "true only with a target")
+    if m.target_z is not None and m.target is None:
+        raise ctx.bad(("motion", "target_z"), m.target_z, "a vertical target only beside a "
+                      "horizontal target")
 
 
 def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
@@ -799,10 +810,14 @@ def replace_motion(scenario: Scenario, components: dict, target, match_target) -
     if tgt is not None:
         data["target"] = tgt
     data["match_target"] = mt
+    if old is not None:               # the spectrum method's vertical stays as it was
+        if old.target_z is not None:
+            data["target_z"] = old.target_z
+        data["vertical_fraction"] = old.vertical_fraction
     if old is not None and old.inventory is not None:  # the station inventory stays
         data["inventory"] = os.fspath(old.inventory)
     motion = _parse_obj(MotionSettings, data, ("motion",), ctx)
-    values = {"motion": motion}
+    values = {"motion": motion, "analysis": scenario.analysis}
     _check_motion(values, ctx)
     keep = [n for n in scenario.notes if "motion." not in n]
     return dataclasses.replace(scenario, motion=motion, notes=tuple(keep + ctx.notes))
