@@ -136,7 +136,10 @@ def _terminal_summary(s: dict, out: Path, *, units: str = "si", report: bool = T
         add("largest bolt interaction", wi["value"], "ratio", f"{wi['equipment']}, bolt {wi['bolt']}")
     modes = (s.get("modes") or {}).get("modes") or []
     if modes:
-        add("first mode", modes[0]["frequency"], "frequency", str(modes[0].get("dominant_direction", "")))
+        dom = str(modes[0].get("dominant_direction", ""))
+        add("first mode", modes[0]["frequency"], "frequency",
+            {"x": "sways in x", "y": "sways in y", "z": "vertical",
+             "rotation about z": "torsion"}.get(dom, dom))
     an = s.get("analysis") or {}
     how = (f"{an.get('n_modes', '—')} modes, {an.get('n_steps', '—')} steps"
            if an.get("method") != "spectrum" else
