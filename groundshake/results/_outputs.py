@@ -90,7 +90,7 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         _write(tmp, FILES["modes"], _modes_csv(results.modes, rot))
         _write(tmp, FILES["element_peaks"], _elements_csv(results))
         _write(tmp, FILES["mode_shapes"], _shapes_csv(results, n_shapes))
-        _write(tmp, FILES["mesh"], json_dumps(mesh_description(results.model)) + "\n")
+        _write(tmp, FILES["mesh"], json_dumps(mesh_description(results.model), indent=None) + "\n")
         if report:
             from ..report import write_report
 
