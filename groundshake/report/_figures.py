@@ -339,7 +339,7 @@ class VoxelGrid:
         return np.stack(idx, axis=1)
 
 
-def _aspect(ax, lo: np.ndarray, hi: np.ndarray) -> None:
+def _aspect(ax, lo: np.ndarray, hi: np.ndarray, unit: str = "m") -> None:
     span = np.maximum(hi - lo, 1e-9)
     span = np.maximum(span, 0.12 * span.max())
     mid = 0.5 * (lo + hi)
@@ -347,9 +347,9 @@ def _aspect(ax, lo: np.ndarray, hi: np.ndarray) -> None:
     ax.set_ylim(mid[1] - span[1] / 2, mid[1] + span[1] / 2)
     ax.set_zlim(mid[2] - span[2] / 2, mid[2] + span[2] / 2)
     ax.set_box_aspect(tuple(span))
-    ax.set_xlabel("x [m]", fontsize=7.5)
-    ax.set_ylabel("y [m]", fontsize=7.5)
-    ax.set_zlabel("z [m]", fontsize=7.5)
+    ax.set_xlabel(f"x [{unit}]", fontsize=7.5)
+    ax.set_ylabel(f"y [{unit}]", fontsize=7.5)
+    ax.set_zlabel(f"z [{unit}]", fontsize=7.5)
     ax.tick_params(labelsize=6.5)
 
 
@@ -435,8 +435,10 @@ def model_figure(grid: VoxelGrid | None, *, cell_part: np.ndarray | None = None,
                  part_boxes: Sequence[tuple[np.ndarray, np.ndarray]] = (),
                  equipment: Sequence[tuple[str, np.ndarray, np.ndarray]] = (),
                  anchors: np.ndarray | None = None,
-                 sensors: Sequence[tuple[str, np.ndarray]] = ()) -> Figure:
-    """The block: parts coloured, mesh lines, equipment boxes, anchor bolts, sensors.
+                 sensors: Sequence[tuple[str, np.ndarray]] = (),
+                 length_unit: str = "m") -> Figure:
+    """The block: parts coloured, mesh lines, equipment boxes, anchor bolts, sensors
+    (coordinates in ``length_unit``, the unit named on the axes).
 
     Parameters
     ----------
@@ -498,7 +500,7 @@ def model_figure(grid: VoxelGrid | None, *, cell_part: np.ndarray | None = None,
         pts.append(at)
     if pts:
         p = np.array(pts)
-        _aspect(ax, p.min(axis=0), p.max(axis=0))
+        _aspect(ax, p.min(axis=0), p.max(axis=0), length_unit)
     ax.view_init(elev=24, azim=-58)
     if ax.get_legend_handles_labels()[0]:
         ax.legend(fontsize=7, loc="upper left", frameon=False)
@@ -506,7 +508,7 @@ def model_figure(grid: VoxelGrid | None, *, cell_part: np.ndarray | None = None,
 
 
 def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von Mises stress",
-                  unit: str = "MPa", factor: float = 1e-6) -> Figure:
+                  unit: str = "MPa", factor: float = 1e-6, length_unit: str = "m") -> Figure:
     """Peak stress of each element drawn on the outer faces of the block, two views.
 
     Parameters
@@ -529,7 +531,7 @@ def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von
                                             (-26, 122, "from below, −x/+y side"))):
         ax = fig.add_subplot(1, 2, k + 1, projection="3d")
         _bricks(ax, grid, colours, edges=grid.filled.sum() <= 1500)
-        _aspect(ax, lo, hi)
+        _aspect(ax, lo, hi, length_unit)
         ax.view_init(elev=elev, azim=azim)
         ax.set_title(name, fontsize=8.5, color=PALETTE[0])
         axes.append(ax)
@@ -542,7 +544,8 @@ def stress_figure(grid: VoxelGrid, values: np.ndarray, *, label: str = "peak von
 
 
 def mode_shapes_figure(grid: VoxelGrid, node_index: np.ndarray,
-                       shapes: Sequence[tuple[str, np.ndarray]], *, columns: int = 2) -> Figure:
+                       shapes: Sequence[tuple[str, np.ndarray]], *, columns: int = 2,
+                       length_unit: str = "m") -> Figure:
     """Deformed shapes of the first modes drawn on the block's outer faces.
 
     Parameters
@@ -594,7 +597,7 @@ def mode_shapes_figure(grid: VoxelGrid, node_index: np.ndarray,
                             linewidth=0.6, linestyle="--")
         lo = np.array([c.min() for c in corners])
         hi = np.array([c.max() for c in corners])
-        _aspect(ax, lo, hi)
+        _aspect(ax, lo, hi, length_unit)
         ax.view_init(elev=24, azim=-58)
         ax.set_title(mpl_text(title), fontsize=8.5, color=PALETTE[0])
     return fig

@@ -8,7 +8,7 @@ import numpy as np
 from ..results._schema import COLUMNS, DIRECTIONS, header
 from . import _figures as F
 from ._html import esc, table
-from ._units import display_unit
+from ._units import display_unit, to_display
 from ._context import Context, as_float as _f, get as _get, named as _named
 
 __all__ = ["ModelPart"]
@@ -23,7 +23,8 @@ class ModelPart(Context):
         self._grid = None
         m = self.f.mesh
         if isinstance(m, Mapping) and isinstance(m.get("lines"), Mapping) and m.get("cells"):
-            xs, ys, zs = (np.asarray(m["lines"][a], float) for a in "xyz")
+            lf = to_display(1.0, "length", self.sys)       # figures in display lengths
+            xs, ys, zs = (lf * np.asarray(m["lines"][a], float) for a in "xyz")
             idx = np.asarray(m["cells"], int).reshape(-1, 3)
             filled = np.zeros((xs.size - 1, ys.size - 1, zs.size - 1), bool)
             filled[tuple(idx.T)] = True
@@ -40,18 +41,22 @@ class ModelPart(Context):
             cell_part = np.full(grid.filled.shape, -1)
             cp = np.asarray(m.get("cell_part", np.zeros(grid.index.shape[0])), int)
             cell_part[tuple(grid.index.T)] = cp
-            boxes = [(e["name"], np.asarray(e["footprint_lo"], float),
-                      np.asarray(e["footprint_hi"], float)
-                      + [0, 0, 2.0 * (float(e["cg"][2]) - float(e["footprint_lo"][2]))])
+            lf = to_display(1.0, "length", self.sys)
+            lu = display_unit("length", self.sys)
+            boxes = [(e["name"], lf * np.asarray(e["footprint_lo"], float),
+                      lf * (np.asarray(e["footprint_hi"], float)
+                            + [0, 0, 2.0 * (float(e["cg"][2]) - float(e["footprint_lo"][2]))]))
                      for e in m.get("equipment", [])]
-            anchors = [a for e in m.get("equipment", []) for a in e.get("anchors", [])]
-            sensors = [(s["name"], np.asarray(s["at"], float)) for s in m.get("sensors", [])]
+            anchors = [lf * np.asarray(a, float) for e in m.get("equipment", [])
+                       for a in e.get("anchors", [])]
+            sensors = [(s["name"], lf * np.asarray(s["at"], float)) for s in m.get("sensors", [])]
             html_.append(self._fig(lambda: F.model_figure(
                 grid, cell_part=cell_part, part_names=parts, equipment=boxes,
-                anchors=np.asarray(anchors, float) if anchors else None, sensors=sensors),
+                anchors=np.asarray(anchors, float) if anchors else None, sensors=sensors,
+                length_unit=lu),
                 f"The block as modelled: {int(grid.filled.sum())} hexahedral elements, the "
                 "equipment envelope (footprint × twice the height of its centre of mass), anchor "
-                "bolts (triangles) and sensors (stars). Lengths in m.", fid="fig-model"))
+                f"bolts (triangles) and sensors (stars). Lengths in {lu}.", fid="fig-model"))
         rows = []
         mats = _named(md.get("materials"))
         for name, mat in mats:
@@ -164,7 +169,8 @@ class ModelPart(Context):
                            np.nan_to_num(np.column_stack(cs))))
         if not shapes:
             return ""
-        return self._fig(lambda: F.mode_shapes_figure(grid, index, shapes),
+        lu = display_unit("length", self.sys)
+        return self._fig(lambda: F.mode_shapes_figure(grid, index, shapes, length_unit=lu),
                          "The first mode shapes, exaggerated (largest displacement drawn as 12 % of "
                          "the block's size); shade runs from the smallest displacement (light) to "
                          "the largest (dark); the dashed box is the undeformed block.",

@@ -111,7 +111,8 @@ class ResponsePart(Context):
             return ""
         unit = display_unit("stress", self.sys)
         top = float(np.nanmax(v))
-        return self._fig(lambda: F.stress_figure(grid, v, unit=unit,
+        lu = display_unit("length", self.sys)
+        return self._fig(lambda: F.stress_figure(grid, v, unit=unit, length_unit=lu,
                                                  factor=to_display(1.0, "stress", self.sys)),
                          "Peak von Mises stress of each element over the record on the block's "
                          f"outer faces; the largest element value is {self.q(top, 'stress')}.",
