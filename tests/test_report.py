@@ -366,3 +366,20 @@ def test_matching_results_are_shown_when_a_target_was_matched(tmp_path):
     assert 'id="fig-matching"' in text
     over = re.findall(r'<tr class="over">(.*?)</tr>', text, re.S)
     assert any("excess" in o for o in over)                     # the failed check is marked
+
+
+def test_an_older_output_folder_is_said_so_on_the_first_page(tmp_path):
+    """A folder without the contract's version (written before it) still gives a report,
+    which says on its first page that tables and figures may be missing (INVENTED folder)."""
+    import json
+
+    out = make_output_folder(tmp_path / "run")
+    s = json.loads((out / "summary.json").read_text())
+    del s["schema"]
+    (out / "summary.json").write_text(json.dumps(s))
+    (out / "modes.csv").write_text("mode,frequency [Hz]\n1,7.9\n")   # an old, short table
+    text = write_report(out, progress=False).read_text(encoding="utf-8")
+    first = html.unescape(re.search(r'<section id="summary">(.*?)</section>', text, re.S).group(1))
+    assert "older output contract" in first and "run the scenario again" in first
+    ids = [a.get("id") for t, a in _dom(text).tags if t == "section"]
+    assert ids == SECTION_IDS                                   # every part still there

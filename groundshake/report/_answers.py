@@ -143,8 +143,10 @@ class AnswersPart(Context):
             if isinstance(md, Mapping):
                 add(f"Mode {md.get('mode')} frequency", md.get("frequency"), "frequency",
                     self._direction_words(md.get("dominant_direction")))
-        html_ = [table(rows, ["quantity", "value", "unit", "where, when"], row_classes=classes,
-                       cls="grid answers")]
+        html_ = [f'<p class="exceed-note">{esc(n)}</p>' for n in self.notes
+                 if n.startswith("This output folder was written under an older")]
+        html_.append(table(rows, ["quantity", "value", "unit", "where, when"],
+                           row_classes=classes, cls="grid answers"))
         cases = [c for c in self.s.get("soil_cases") or [] if isinstance(c, Mapping)]
         if cases:
             html_.append('<p class="note">Peaks are the envelope over the soil cases ' + ", ".join(

@@ -11,7 +11,7 @@ from typing import Any, Callable, Mapping
 
 import numpy as np
 
-from ..results._schema import DIRECTIONS, iter_values, kind_of
+from ..results._schema import DIRECTIONS, SCHEMA_VERSION, iter_values, kind_of
 from . import _figures as F
 from ._html import esc, figure, raw
 from ._load import OutputFolder
@@ -71,6 +71,12 @@ class Context:
         scen = self.s.get("scenario")
         self.scenario = scen if isinstance(scen, Mapping) else {}
         self.notes: list[str] = list(folder.notes)
+        version = get(self.s, "schema", "version")
+        if not isinstance(version, int) or version < SCHEMA_VERSION:
+            self.notes.insert(0, f"This output folder was written under an older output "
+                                 f"contract (version {version or 1}, now {SCHEMA_VERSION}); "
+                                 "tables and figures it lacks are left out: run the scenario "
+                                 "again for the full report.")
         an = self.s.get("analysis")
         if isinstance(an, Mapping) and an.get("method") == "spectrum":
             # a response-spectrum run has no histories and reads no records: not a loss

@@ -214,6 +214,7 @@ tr.over b.dc { color: #a8432a; }
 ul.exceed li { margin: 4px 0; font-weight: 600; color: #7a2414; }
 ul.exceed li::marker { content: "■ "; color: #a8432a; }
 p.ok { color: #1f5f3f; font-weight: 600; }
+p.exceed-note { border-left: 5px solid #e9c46a; background: #fbf3dc; padding: 6px 10px; }
 .flag { display: inline-block; margin-left: 8px; padding: 1px 8px; border-radius: 3px;
         font-size: 12.5px; }
 .flag.over { background: #a8432a; color: #fff; }

@@ -116,7 +116,8 @@ class ModelPart(Context):
         cols = {c.label: c for c in COLUMNS["modes"]}
 
         def col(label):
-            return t.get(cols[label].header)
+            v = t.get(cols[label].header)
+            return np.full(t.n_rows, np.nan) if v is None else v
 
         dom = t.strings(cols["dominant direction"].header) or [""] * t.n_rows
         rows = []

@@ -92,13 +92,18 @@ def render_report(out_dir: str | Path, *, progress: bool = True, units: str | No
     steps: list[tuple[str, Callable[[], str]]] = [
         ("model", b.model), ("modes", b.modes), ("response", b.response),
         ("anchorage", b.anchorage), ("floor-spectra", b.floor_spectra), ("motion", b.motion),
-        ("inputs", b.inputs), ("provenance", b.provenance), ("summary", b.summary)]
+        ("inputs", b.inputs), ("summary", b.summary), ("provenance", b.provenance)]
     bodies: dict[str, str] = {}
     with Progress("report", total=len(steps)) as bar:
         if not progress:
             bar.enabled = False
         for sid, make in steps:
-            bodies[sid] = make()
+            try:
+                bodies[sid] = make()
+            except Exception as e:  # one part must never sink the report; say what failed
+                b.notes.append(f"The part '{sid}' could not be built ({type(e).__name__}: {e}).")
+                bodies[sid] = ('<p class="none">This part could not be built from the output '
+                               "folder; see the notes under Provenance.</p>")
             bar.advance()
     return b.page(bodies)
 
