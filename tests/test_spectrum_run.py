@@ -205,8 +205,10 @@ def test_spectrum_compatible_motions_give_floor_spectra_and_a_side_by_side(tmp_p
     # (ASCE 7-16 §11.4.6) within the match tolerance and the 15 % broadening's envelope
     assert fl["peak_psa"] == pytest.approx(1.0 * G, rel=0.15)
     out = write_outputs(res, tmp_path / "run", report=True)
-    header = (out / "floor_spectra.csv").read_text(encoding="utf-8").splitlines()[0]
-    assert "unit mount x psa 5% broadened [m/s2]" in header
+    lines = (out / "floor_spectra.csv").read_text(encoding="utf-8").splitlines()
+    # long format of the output contract: point, direction, damping [ratio], period, psa...
+    assert lines[0] == "point,direction,damping [ratio],period [s],psa [m/s2],psa broadened [m/s2]"
+    assert any(ln.startswith("unit mount,x,0.05,") for ln in lines[1:])
     assert "Side by side" in (out / "report.html").read_text(encoding="utf-8")
 
 
