@@ -14,10 +14,17 @@ y, h2, n, ns, north   y
 z, up, v, ud, vert    z
 ====================  =========
 
+Any other component code the readers recognise also works: a vertical one (``hnz``,
+``ud1``) is z; a horizontal azimuth goes to the nearer axis, x east and y north
+(``360`` → y, ``090`` → x, ``n28w`` → y); ``hn1``/``hn2`` are x/y.
+
 Files whose stems agree once that word is removed form one set, named by the
 remaining stem (``rec07-h1.mseed``, ``rec07-h2.mseed``, ``rec07-up.mseed`` →
 set ``rec07``). When the scenario's ``[motion]`` has a single component, every
 file is a set of its own applied to that component, whatever its name.
+
+A relative folder or pattern is taken from the current working directory (as a
+shell would), never from the scenario's folder; the sets hold absolute paths.
 
 Manifest (CSV with a header row): ``set`` (or ``name``), ``x``, ``y``, ``z``
 (file paths, relative to the manifest; blank where absent), and optionally
@@ -29,6 +36,7 @@ from __future__ import annotations
 import csv
 import glob
 import math
+import os
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -85,15 +93,39 @@ class RecordSet:
 
 
 def _component_of(path: Path) -> tuple[str, str] | None:
+    """(set stem, axis) of a file named ``STEM-WORD.ext``, or None.
+
+    WORD is one of :data:`COMPONENT_WORDS`, or any component code the readers know
+    (:func:`groundshake.records._components.describe`: ``hnz``, ``ud1``, ``360``,
+    ``n28w``): vertical → z; a horizontal with an azimuth → the nearer axis, x east
+    (90°, 270°) and y north (0°, 180°), as ``e`` → x and ``n`` → y; a horizontal without
+    one → x if it ends in 1 and y if in 2 (``hn1``, ``hn2``, like ``h1``, ``h2``). A bare
+    number needs two digits (``rec-1`` is a set number, not 1°); a diagonal (45°) is
+    not guessed.
+    """
+    from ..records._components import describe
+
     m = _SPLIT.match(path.stem)
     if not m:
         return None
-    comp = COMPONENT_WORDS.get(m.group("word").lower())
+    word = m.group("word")
+    comp = COMPONENT_WORDS.get(word.lower())
+    if comp is None and not (word.isdigit() and len(word) < 2):
+        kind, az = describe(word)
+        if kind == "vertical":
+            comp = "z"
+        elif kind == "horizontal" and az is not None:
+            east, north = abs(math.sin(math.radians(az))), abs(math.cos(math.radians(az)))
+            comp = None if math.isclose(east, north, rel_tol=1e-9) else (
+                "x" if east > north else "y")
+        elif kind == "horizontal":
+            comp = {"1": "x", "2": "y"}.get(word[-1:])
     return None if comp is None else (m.group("stem"), comp)
 
 
 def _candidate_files(spec: str) -> list[Path]:
-    p = Path(spec)
+    """Record files of a folder, a pattern or one file, as absolute paths (from the cwd)."""
+    p = Path(os.path.abspath(spec))
     if p.is_dir():
         files = [q for q in sorted(p.iterdir()) if q.is_file() and not q.name.startswith(".")
                  and q.suffix.lower() in _RECORD_SUFFIXES and q.name.lower() != "readme.md"]
@@ -101,7 +133,7 @@ def _candidate_files(spec: str) -> list[Path]:
             raise InputError(f"{spec}: folder holds no record files")
         return files
     if any(ch in spec for ch in "*?["):
-        files = [Path(f) for f in sorted(glob.glob(spec)) if Path(f).is_file()]
+        files = [Path(os.path.abspath(f)) for f in sorted(glob.glob(spec)) if Path(f).is_file()]
         if not files:
             raise InputError(f"{spec}: pattern matches no files")
         return files
