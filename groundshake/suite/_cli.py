@@ -158,10 +158,11 @@ def scaling_lines(doc: dict) -> list[str]:
     lo, hi = doc["range"]
     rows = [(f["record"], f"{f['factor']:.4g}", f"{f['own']:.4g}",
              "" if f["in_range"] else f"outside {lo:g}-{hi:g}") for f in doc["factors"]]
-    lines = [f"scaled to {doc['target_label']} by {doc['rule']} ({doc['source']}): mean "
-             f"{doc['spectrum'].split(' (')[0]} >= {100 * doc['share']:g} % of the target over "
-             f"{doc['band'][0]:.3g}-{doc['band'][1]:.3g} s (T = {doc['period_s']:.3g} s, "
-             f"{doc['period_from']}); mode {doc['mode']}, common factor {doc['set_factor']:.4g}",
+    lines = [f"scaled to {doc['target_label']} by {doc['rule']} ({doc['source']}):",
+             f"  mean {doc['spectrum'].split(' (')[0]} >= {100 * doc['share']:g} % of the target "
+             f"over {doc['band'][0]:.3g}-{doc['band'][1]:.3g} s (T = {doc['period_s']:.3g} s, "
+             f"{doc['period_from']});",
+             f"  mode {doc['mode']}, common factor {doc['set_factor']:.4g}",
              table(rows, ["record set", "factor", "own fit", "note"])]
     if "combination" in doc:
         lines.append(f"results combined by the {doc['combination']}: {doc['combination_note']}")
