@@ -318,3 +318,19 @@ def test_scenario_suite_table_errors(case, table, word):
         warnings.simplefilter("ignore", GroundshakeWarning)
         with pytest.raises(ScenarioError, match=word):
             _scenario(root, extra=f"[suite]\n{table}\n")
+
+
+def test_resume_keeps_sets_scaled_alike(case, tmp_path):
+    # a set is "done" only for the same files and the same total scale (README, Resilience)
+    root, rec, targets = case
+    scen = _scenario(root)
+    same = SuiteScaling(target=targets["en1998"], rule="en1998", period=PERIOD)
+    run_suite(scen, _sets(rec), tmp_path / "o", workers=1, scaling=same)
+    seen = []
+    run_suite(scen, _sets(rec), tmp_path / "o", workers=1, scaling=same, resume=True,
+              on_result=seen.append)
+    assert seen == []                      # nothing ran again
+    other = SuiteScaling(target=targets["en1998"], rule="en1998", mode="set", period=PERIOD)
+    run_suite(scen, _sets(rec), tmp_path / "o", workers=1, scaling=other, resume=True,
+              on_result=seen.append)
+    assert sorted(r["record"] for r in seen) == ["p", "q"]   # new factors: both ran again

@@ -283,6 +283,6 @@ def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling
            "damping": float(target.damping), "range": [lo, hi],
            "set_factor": float(sf.set_factor), "least_ratio": float(sf.least_ratio),
            "factors": rows, "warnings": warns,
-           "note": "each set's factor multiplies all of its components (the vertical too); "
+           "note": "Each set's factor multiplies all of its components (the vertical too); "
                    "factors are computed over the sets that could be read"}
     return scaled, failed, doc
