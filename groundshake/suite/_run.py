@@ -427,8 +427,9 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
     result = SuiteResult(records=ordered, statistics=stats, spectra_statistics=spec,
                          out_dir=out_dir, engine=report, scaling=scale_doc)
     _write_suite_json(out_dir, scenario, sets, results, complete=True, stats=stats,
-                      engine=report, scaling=scale_doc, set_timeout_s=({"min": min(known), "max": max(known)}
-                                                    if known else None),
+                      engine=report, scaling=scale_doc,
+                      set_timeout_s=({"min": min(known), "max": max(known)}
+                                     if known else None),
                       resumed=sorted(done), method=method, workers=workers,
                       scheduler=None if scheduler is None else str(scheduler))
     return result

@@ -149,7 +149,8 @@ def set_spectrum(acc: Mapping[str, np.ndarray], dt: float, periods: np.ndarray, 
     if len(comps) == 1:
         return np.asarray(response_spectrum(comps[0], dt, periods, damping).psa)[0]
     if rule == "asce7-16":
-        return np.asarray(rotd(comps[0], comps[1], dt, periods, damping, percentiles=(100,)).psa)[0, 0]
+        pair = rotd(comps[0], comps[1], dt, periods, damping, percentiles=(100,))
+        return np.asarray(pair.psa)[0, 0]
     psa = np.asarray(response_spectrum(np.stack(comps), dt, periods, damping).psa)[:, 0, :]
     if rule == "asce7-10":
         return np.sqrt(np.sum(psa ** 2, axis=0))
