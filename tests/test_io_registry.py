@@ -56,6 +56,12 @@ FILES = {  # file -> reader module, per tests/data/strong-motion/SOURCES.md
     "esm_us60004wsq_HI.ARS1..HNE.D.20190728.160908.C.ACC.ASC": "esm",
     "geonet_us1000778i_20161113_110259_WTMC_20.V1A": "geonet",
     "smc_nc216859_0111a.smc": "usgs_smc",
+    "usc_ci3144585_017m30bt.s0a": "usc",
+    "nsmn_us20009ynd_20170720223109_0921.txt": "afad",
+    "unam_usp000cgtd_CUP50401.012": "unam",
+    "renadic_usp000h401_cuya0911131.v1": "renadic",
+    "bhrc_usp000jq5p_5522-1.V1": "bhrc",
+    "cwb_us1000chhc_1-EAS.dat": "cwb",
 }
 
 

@@ -35,7 +35,8 @@ def _knet() -> Path:
 def test_info_json_contract(capsys):
     assert main(["info", *DEMO, "--units", "m/s2", "--json"]) == 0
     doc = json.loads(capsys.readouterr().out)
-    assert [r["name"] for r in doc["records"]] == ["demo-h1", "demo-h2", "demo-up"]
+    # "<station> <channel>" from the files' own MiniSEED headers (XX.DEMO..HN1, ..HN2, ..HNZ)
+    assert [r["name"] for r in doc["records"]] == ["DEMO HN1", "DEMO HN2", "DEMO HNZ"]
     for r in doc["records"]:
         # DESIGN.md: info --json → records with these keys, SI units
         for key in ("name", "pga", "pgv", "pgd", "arias_intensity", "d5_95", "cav"):

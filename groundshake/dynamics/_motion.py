@@ -158,7 +158,8 @@ def build_motion(scenario: Any) -> Motion:
             continue
         where = f"motion.{d}"
         path = _get(spec, "file")
-        recs = read_record(path, units=_get(spec, "units"), dt=_get(spec, "dt"))
+        recs = read_record(path, units=_get(spec, "units"), dt=_get(spec, "dt"),
+                           inventory=_get(motion, "inventory"))
         rec = _pick_trace(recs, _get(spec, "trace"), where)
         scale = float(_get(spec, "scale", 1.0) or 1.0)
         if scale != 1.0:

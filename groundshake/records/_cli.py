@@ -21,13 +21,14 @@ from ._record import STANDARD_GRAVITY, Record
 from ._units import UNIT_NAMES
 
 __all__ = ["register", "add_reading_options", "add_processing_options", "settings_from_args",
+           "distinct_names",
            "read_records_from_args", "cmd_info", "cmd_correct"]
 
 
 # -- shared options -------------------------------------------------------------------
 
 def add_reading_options(p: argparse.ArgumentParser) -> None:
-    """Add ``--units``, ``--dt`` and ``--resample`` (how files are read)."""
+    """Add ``--units``, ``--dt``, ``--resample`` and ``--inventory`` (how files are read)."""
     g = p.add_argument_group("reading")
     g.add_argument("--units", metavar="U",
                    help=f"units of files that do not state them: {UNIT_NAMES}")
@@ -36,6 +37,10 @@ def add_reading_options(p: argparse.ArgumentParser) -> None:
     g.add_argument("--resample", action="store_true",
                    help="put text files with uneven time steps on a uniform step "
                         "(linear interpolation at the median step)")
+    g.add_argument("--inventory", metavar="FILE",
+                   help="station inventory (StationXML) of records in raw counts (MiniSEED, "
+                        "SAC): the instrument sensitivity (accelerometers) or full response "
+                        "is removed")
 
 
 def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> None:
@@ -114,7 +119,29 @@ def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
     for path in paths:
         out.extend(read_record(path, units=getattr(args, "units", None),
                                dt=getattr(args, "dt", None),
-                               resample=getattr(args, "resample", False)))
+                               resample=getattr(args, "resample", False),
+                               inventory=getattr(args, "inventory", None)))
+    return distinct_names(out)
+
+
+def distinct_names(records: list[Record]) -> list[Record]:
+    """Records whose names repeat across files get their file name added, then ``.2``, ...
+
+    Names are ``"<station> <component>"``; the same station and channel from two
+    events would otherwise be two rows that cannot be told apart.
+    """
+    from collections import Counter
+
+    count = Counter(r.name for r in records)
+    if all(c == 1 for c in count.values()):
+        return records
+    renamed = [r.replace(name=f"{r.name} ({Path(r.source).name})")
+               if count[r.name] > 1 and r.source else r for r in records]
+    seen: Counter = Counter()
+    out = []
+    for r in renamed:
+        seen[r.name] += 1
+        out.append(r if seen[r.name] == 1 else r.replace(name=f"{r.name}.{seen[r.name]}"))
     return out
 
 

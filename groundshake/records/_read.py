@@ -27,7 +27,7 @@ PLAUSIBLE_PEAK = 5 * 9.80665
 
 
 def read_record(path, *, units: str | None = None, dt: float | None = None,
-                resample: bool = False) -> list[Record]:
+                resample: bool = False, inventory=None) -> list[Record]:
     """Read every trace of an acceleration record file.
 
     Parameters
@@ -50,6 +50,11 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         For text with uneven time steps (more than 1 % spread): interpolate
         linearly onto a uniform step equal to the median step, instead of
         refusing the file.
+    inventory : str or path-like, optional
+        Station inventory (StationXML) of a file in raw counts (MiniSEED, SAC,
+        ...): the instrument sensitivity is removed (accelerometers), or the
+        full response with output acceleration (other sensors). Without one,
+        integer samples that look like counts are an error.
 
     Returns
     -------
@@ -95,10 +100,26 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         dt = float(dt)
         if not (math.isfinite(dt) and dt > 0):
             raise RecordError(f"{where}: dt={dt!r} must be a finite number > 0")
-    records = _read_with_registry(path, units=user_units, dt=dt, resample=resample)
+    if inventory is not None:
+        _check_inventory_applies(path)
+    records = _read_with_registry(path, units=user_units, dt=dt, resample=resample,
+                                  inventory=inventory)
     for rec in records:
         _warn_if_implausible(rec)
     return records
+
+
+def _check_inventory_applies(path: Path) -> None:
+    """An inventory only goes with a format whose reader takes one (ObsPy's, in counts)."""
+    import inspect
+
+    from .io import detect
+
+    module = detect(path)
+    if module is not None and "inventory" not in inspect.signature(module.read).parameters:
+        raise RecordError(f"{path}: an inventory was given but this {module.FORMAT} file holds "
+                          f"accelerations already; an inventory goes with raw counts (MiniSEED, "
+                          f"SAC, ...)")
 
 
 def _warn_if_implausible(rec: Record) -> None:

@@ -26,6 +26,9 @@ def register(subparsers, parents) -> None:
                    help="override [analysis] method")
     p.add_argument("--no-report", action="store_true",
                    help="write summary.json and the CSV tables only (no report.html)")
+    p.add_argument("--inventory", metavar="FILE",
+                   help="station inventory (StationXML) of motion records in raw counts "
+                        "(replaces [motion] inventory)")
     p.set_defaults(func=_run)
 
 
@@ -44,6 +47,8 @@ def _run(args) -> int:
     if out.exists() and not out.is_dir():
         raise InputError(f"-o {args.output}: exists and is not a folder")
     scenario = load_scenario(scen_path)
+    if getattr(args, "inventory", None):
+        scenario = _with_inventory(scenario, Path(args.inventory))
     quiet = bool(getattr(args, "quiet", False))
     results = analyse(scenario, progress=not quiet, method=args.method)
     results.summary["provenance"]["command"] = " ".join(["groundshake", *sys.argv[1:]]) \
@@ -55,6 +60,18 @@ def _run(args) -> int:
         return 0
     print(_terminal_summary(s, out))
     return 0
+
+
+def _with_inventory(scenario, inventory: Path):
+    """The scenario with ``[motion] inventory`` set to ``inventory`` (a file that exists)."""
+    import dataclasses
+
+    if scenario.motion is None:
+        raise InputError(f"--inventory {inventory}: the scenario has no [motion] to read it with")
+    if not inventory.is_file():
+        raise InputError(f"--inventory {inventory}: no such file (StationXML expected)")
+    motion = dataclasses.replace(scenario.motion, inventory=inventory.resolve())
+    return dataclasses.replace(scenario, motion=motion)
 
 
 def _terminal_summary(s: dict, out: Path) -> str:
@@ -83,6 +100,18 @@ def _terminal_summary(s: dict, out: Path) -> str:
     contact = s["base"].get("contact")
     if contact:
         rows.append(("min contact pressure", contact["min_pressure"], "Pa"))
+    st = s.get("stability") or {}
+    for key, label in (("sliding", "least sliding FS"), ("overturning", "least overturning FS")):
+        v = (st.get(key) or {}).get("min_safety_factor")
+        if v is not None:
+            case = (st.get(key) or {}).get("case")
+            rows.append((label + (f" ({case} soil)" if case else ""), v, "-"))
+    q = (st.get("bearing") or {}).get("peak_pressure")
+    if q is not None:
+        rows.append(("peak bearing pressure", q / 1e3, "kPa"))
+    wi = s.get("worst_interaction")
+    if wi:
+        rows.append((f"bolt interaction ({wi['equipment']}, bolt {wi['bolt']})", wi["value"], "-"))
     lines = [f"{s['title']} — {s['analysis']['method']} "
              f"({s['analysis']['n_modes']} modes, {s['analysis']['n_steps']} steps)",
              table(rows, ("peak", "value", "unit"))]
@@ -90,6 +119,12 @@ def _terminal_summary(s: dict, out: Path) -> str:
     if w:
         lines.append(f"worst demand/capacity: {w['value']:.3g} ({w['equipment']}, bolt {w['bolt']}) "
                      f"— {w['note']}")
+    if s.get("soil_cases"):
+        lines.append("soil cases: " + ", ".join(
+            f"{c['name']} G = {c['shear_modulus'] / 1e6:.4g} MPa" for c in s["soil_cases"])
+            + " (peaks above: envelope)")
+    if st:
+        lines.append(f"stability: {st.get('note', '')}")
     lines.append(f"warnings: {len(s['warnings'])}" + (" (see summary.json)" if s["warnings"] else ""))
     lines.append(f"written: {out}")
     lines.append(SCREENING_NOTE)

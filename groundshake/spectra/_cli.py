@@ -11,7 +11,7 @@ import numpy as np
 
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import float_list, print_json, table
+from .._cli_common import check_damping_percent, float_list, print_json, table
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_spectrum"]
@@ -19,23 +19,45 @@ __all__ = ["register", "cmd_spectrum"]
 G = 9.80665
 _PLOT_SUFFIXES = (".png", ".pdf", ".svg")
 _SHOWN_PERIODS = (0.01, 0.02, 0.05, 0.1, 0.2, 0.3, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0)
-_VERTICAL = {"UP", "U", "V", "VERT", "VERTICAL", "Z"}
+#: Largest departure from a right angle between two paired horizontals [deg] before a warning.
+_SKEW_DEG = 10.0
 
 
 def _is_vertical(rec) -> bool:
-    comp = (rec.component or "").strip().upper()
-    return comp in _VERTICAL or (len(comp) == 3 and comp.endswith("Z"))
+    """Vertical by its component code or header (records/_components.py)."""
+    from ..records._components import orientation
+
+    return orientation(rec.component, rec.metadata) == "vertical"
+
+
+def _station(rec) -> str:
+    return str(rec.metadata.get("station") or "").strip()
 
 
 def _horizontal_pairs(records):
-    """Pairs of horizontal records in the order given (verticals skipped)."""
+    """Pairs of horizontal records for RotD, and the names of the verticals left out.
+
+    Verticals (UD, UP, Z, HNZ, ... or a header saying so) are left out. When every
+    horizontal names its station and each station has exactly two, the two of a
+    station pair up; otherwise they pair in the order given (1st with 2nd, ...).
+    """
     hor = [r for r in records if not _is_vertical(r)]
+    left_out = [r.name for r in records if _is_vertical(r)]
     if len(hor) < 2 or len(hor) % 2:
         raise InputError(f"--rotd needs horizontal records in pairs (1st with 2nd, 3rd with "
                          f"4th, ...); got {len(hor)} horizontal record(s): "
-                         + ", ".join(r.name for r in hor))
+                         + ", ".join(r.name for r in hor)
+                         + (f" (left out as vertical: {', '.join(left_out)})" if left_out else ""))
+    stations = [_station(r) for r in hor]
+    groups: dict[str, list] = {}
+    for st, r in zip(stations, hor):
+        groups.setdefault(st, []).append(r)
+    if all(stations) and all(len(g) == 2 for g in groups.values()):
+        couples = [tuple(g) for g in groups.values()]
+    else:
+        couples = list(zip(hor[0::2], hor[1::2]))
     pairs = []
-    for a, b in zip(hor[0::2], hor[1::2]):
+    for a, b in couples:
         if abs(a.dt - b.dt) > 1e-9 * a.dt:
             raise InputError(f"--rotd: {a.name} (dt {a.dt:g} s) and {b.name} (dt {b.dt:g} s) "
                              "have different time steps; resample one first")
@@ -43,8 +65,22 @@ def _horizontal_pairs(records):
         if abs(a.n - b.n) > 1:
             warnings.warn(f"--rotd: {a.name} ({a.n} samples) and {b.name} ({b.n}) differ in "
                           f"length; both are cut to {n} samples", GroundshakeWarning)
+        _warn_if_not_orthogonal(a, b)
         pairs.append((a, b, n))
-    return pairs
+    return pairs, left_out
+
+
+def _warn_if_not_orthogonal(a, b) -> None:
+    from ..records._components import azimuth_deg
+
+    za, zb = azimuth_deg(a.component, a.metadata), azimuth_deg(b.component, b.metadata)
+    if za is None or zb is None:
+        return
+    angle = abs((za - zb) % 180.0)
+    if abs(angle - 90.0) > _SKEW_DEG:
+        warnings.warn(f"--rotd: {a.name} (azimuth {za:g}°) and {b.name} (azimuth {zb:g}°) are "
+                      f"{angle:g}° apart, not at right angles; RotD assumes two orthogonal "
+                      "components", GroundshakeWarning)
 
 
 def _collect(found):
@@ -98,6 +134,7 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
     damping_pct = float_list(args.damping, name="--damping", minimum=0.0)
     if any(d >= 100 for d in damping_pct):
         raise InputError(f"--damping: {max(damping_pct):g} %; allowed: percent in [0, 100)")
+    check_damping_percent(damping_pct)
     damping = check_damping(np.array(damping_pct) / 100.0, name="--damping")
     periods = (check_periods(float_list(args.periods, name="--periods"), name="--periods")
                if args.periods else default_periods())
@@ -115,8 +152,10 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
         spectra = [response_spectrum(r.acc, r.dt, periods, damping, name=r.name,
                                      interpolate=not args.no_interpolation) for r in records]
         rotds = []
+        left_out: list[str] = []
         if percentiles is not None:
-            for a, b, n in _horizontal_pairs(records):
+            pairs, left_out = _horizontal_pairs(records)
+            for a, b, n in pairs:
                 rotds.append((f"{a.name}+{b.name}",
                               rotd(a.acc[:n], b.acc[:n], a.dt, periods, damping, percentiles,
                                    interpolate=not args.no_interpolation)))
@@ -140,10 +179,12 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
                          band_damping=float(damping[jb]),
                          title="Response spectra" + (" (as read)" if not settings.enabled else ""))
     doc = _document(records, raws, spectra, rotds, stats, target, target_psa, settings, found)
+    if left_out:
+        doc["rotd_left_out"] = left_out
     if getattr(args, "json", False):
         print_json(doc)
         return 0
-    _print_text(spectra, rotds, target, target_psa, settings, args)
+    _print_text(spectra, rotds, target, target_psa, settings, args, left_out=left_out)
     return 0
 
 
@@ -229,7 +270,7 @@ def _csv_text(spectra, rotds, target_psa) -> str:
     return buf.getvalue()
 
 
-def _print_text(spectra, rotds, target, target_psa, settings, args):
+def _print_text(spectra, rotds, target, target_psa, settings, args, *, left_out=()):
     p = spectra[0].periods
     if p.size <= 20:
         idx = np.arange(p.size)
@@ -260,6 +301,10 @@ def _print_text(spectra, rotds, target, target_psa, settings, args):
               f"({100 * s.damping[j]:g} %)")
     if target is not None:
         print(f"target: {target.label}")
+    for label, _ in rotds:
+        print(f"RotD pair: {label.replace('+', ' with ')}")
+    if left_out:
+        print(f"RotD: left out {', '.join(left_out)} (vertical)")
     print(f"processing: {settings.describe() if settings.enabled else 'none (records as read)'}")
     if args.output:
         print(f"wrote {args.output}")

@@ -29,6 +29,12 @@ __all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read"]
 READERS: tuple[str, ...] = (
     "peer_at2",
     "esm",
+    "usc",
+    "afad",
+    "unam",
+    "renadic",
+    "bhrc",
+    "cwb",
     "csmip",
     "cosmos",
     "geonet",

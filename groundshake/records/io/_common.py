@@ -175,33 +175,13 @@ def azimuth_from_code(code: str) -> tuple[float | None, str | None]:
     """(azimuth_deg from north or None, "horizontal"/"vertical"/None) of a component code.
 
     Understands degrees ("360", "90 Deg"), compass bearings ("N28W", "S62W", "N", "E"),
-    vertical words ("UP", "Up", "DOWN", "V", "Z") and SEED channel codes ("HNE", "HNZ").
+    vertical words ("UP", "Up", "DOWN", "V", "Z") and SEED channel codes ("HNE", "HNZ");
+    one rule for every reader: :func:`groundshake.records._components.describe`.
     """
-    import re
+    from .._components import describe
 
-    c = code.strip().upper()
-    if not c:
-        return None, None
-    if c in ("UP", "U", "V", "Z", "DOWN", "DWN", "VER", "VERT", "VERTICAL", "UD") or \
-            re.fullmatch(r"[A-Z][A-Z0-9]Z", c):
-        return None, "vertical"
-    m = re.fullmatch(r"(\d+(?:\.\d*)?)\s*(?:DEG|DEGREES)?", c)
-    if m:
-        return float(m.group(1)) % 360.0, "horizontal"
-    m = re.fullmatch(r"([NS])\s*(\d+(?:\.\d*)?)\s*([EW])", c)
-    if m:
-        a = float(m.group(2))
-        base = {("N", "E"): a, ("N", "W"): 360.0 - a, ("S", "E"): 180.0 - a,
-                ("S", "W"): 180.0 + a}[(m.group(1), m.group(3))]
-        return base % 360.0, "horizontal"
-    last = c[-1] if re.fullmatch(r"[A-Z][A-Z0-9][NE]", c) or len(c) == 1 else ""
-    if last == "N":
-        return 0.0, "horizontal"
-    if last == "E":
-        return 90.0, "horizontal"
-    if c in ("L", "T", "FN", "FP", "H1", "H2") or re.fullmatch(r"[A-Z][A-Z0-9][123]", c):
-        return None, "horizontal"
-    return None, None
+    kind, az = describe(code)
+    return az, (None if kind == "unknown" else kind)
 
 
 def orientation_metadata(code: str) -> dict:

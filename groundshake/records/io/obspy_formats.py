@@ -14,8 +14,10 @@ from typing import Any
 import numpy as np
 
 from ..._errors import RecordError
+from .._components import describe
+from .._inventory import check_not_counts
 from .._record import Record
-from .._units import canonical_units
+from .._units import UNITS, canonical_units
 from ._common import check_samples, resolve_units, to_si, user_units
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -57,7 +59,8 @@ def is_format(path: Path, head: bytes) -> bool:
         return False
 
 
-def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
+def read(path: Path, *, units: str | None = None, dt: float | None = None,
+         inventory=None) -> list[Record]:
     """Read every trace of a file in one of ObsPy's formats.
 
     Parameters
@@ -69,16 +72,34 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         the file states others.
     dt : float, optional
         Time step [s], a check only: an error if it differs from the file's.
+    inventory : str or path-like or obspy.Inventory, optional
+        The station inventory (StationXML) of a file in raw counts: its
+        sensitivity (accelerometers) or full response (other sensors) is
+        removed, giving m/s² (see ``records/_inventory.py``).
 
     Returns
     -------
     list of Record
-        One per trace, ``acc`` in m/s², shape (n,).
+        One per trace, ``acc`` in m/s², shape (n,); ``name`` is
+        ``"<station> <channel>"``.
+
+    Raises
+    ------
+    RecordError
+        Besides unreadable files: integer samples that look like raw counts
+        (peak beyond 5 g in the units given, or no units at all) when no
+        inventory is given.
     """
     path = Path(path)
     where = str(path)
     units = user_units(units, where)
     stream = _read_stream(path)
+    if inventory is not None:
+        from .._inventory import apply_inventory, load_inventory
+
+        label = str(inventory) if isinstance(inventory, (str, Path)) else "the inventory given"
+        stream = apply_inventory(stream, load_inventory(inventory), where=where,
+                                 inventory_name=label)
     return _records_from_stream(stream, path, units, None if dt is None else float(dt))
 
 
@@ -126,6 +147,8 @@ def _plain(value: Any) -> Any:
 def _file_units_and_scale(tr) -> tuple[str | None, float, str]:
     """(units the file states or None, factor from stored values to those units, note)."""
     fmt = getattr(tr.stats, "_format", "") or ""
+    if tr.stats.get("groundshake_units"):  # counts turned into m/s² with an inventory
+        return str(tr.stats.groundshake_units), 1.0, str(tr.stats.get("groundshake_note", ""))
     if fmt == "KNET":
         # obspy turns the header's "Scale Factor N(gal)/D" into calib in m/s² per count;
         # the file's own unit is the gal
@@ -175,11 +198,19 @@ def _records_from_stream(stream, path: Path, user_units: str | None,
             raise RecordError(f"{label}: the trace has gaps; fill or split it first")
         if data.dtype.kind not in "iuf":
             raise RecordError(f"{label}: samples are {data.dtype}, not numbers")
+        raw_dtype = data.dtype
         data = np.asarray(data, dtype=float)
         check_samples(data, label)
         fmt = getattr(tr.stats, "_format", "") or ""
         file_units, scale, note = _file_units_and_scale(tr)
+        if file_units is None and user_units is None and raw_dtype.kind in "iu":
+            raise RecordError(f"{label}: integer samples and no units in the file: raw counts, "
+                              f"most likely; give the station's inventory (--inventory "
+                              f"FILE.xml, StationXML) or, if they are accelerations, their "
+                              f"units (--units)")
         rec_units = resolve_units(file_units, user_units, label)
+        if file_units is None:
+            check_not_counts(data, raw_dtype, UNITS[rec_units], label=label, units=rec_units)
         if file_units is not None:
             data = data * scale
         step = float(tr.stats.delta)
@@ -198,7 +229,13 @@ def _records_from_stream(stream, path: Path, user_units: str | None,
             v = _plain(value)
             if v is not None:
                 meta[f"{fmt.lower()}.{key}"] = v
-        name = path.stem if len(stream) == 1 else f"{path.stem}.{tr.stats.channel or index}"
+        meta.update(_orientation(tr, fmt))
+        station = str(tr.stats.station or "").strip()
+        channel = str(tr.stats.channel or "").strip()
+        if station:  # "<station> <channel>", as every reader names its records
+            name = f"{station} {channel}".strip()
+        else:
+            name = path.stem if len(stream) == 1 else f"{path.stem}.{channel or index}"
         if name in names:
             name = f"{name}.{index}"
         names.add(name)
@@ -206,3 +243,29 @@ def _records_from_stream(stream, path: Path, user_units: str | None,
                               component=tr.stats.channel, source=where, units=rec_units,
                               start_time=start_text, metadata=meta))
     return records
+
+
+def _orientation(tr, fmt: str) -> dict[str, Any]:
+    """``orientation`` and ``azimuth_deg`` of a trace: inventory, SAC cmpaz/cmpinc, else code."""
+    given: dict[str, Any] = {}
+    if tr.stats.get("groundshake_dip") is not None:
+        given["dip_deg"] = float(tr.stats.groundshake_dip)
+    if tr.stats.get("groundshake_azimuth") is not None:
+        given["azimuth_deg"] = float(tr.stats.groundshake_azimuth)
+    if fmt == "SAC":
+        # -12345 is SAC's "undefined"; some writers leave cmpinc/cmpaz at 0 for every
+        # trace, so these headers only fill what the channel code leaves open
+        sac = tr.stats.get("sac", {}) or {}
+        inc, az = sac.get("cmpinc"), sac.get("cmpaz")
+        code = describe(str(tr.stats.channel or ""))
+        if inc is not None and -12345 != inc and code.kind == "unknown":
+            given["dip_deg"] = float(inc) - 90.0  # incidence from up (0) → dip from horizontal
+        if az is not None and -12345 != az and code.azimuth_deg is None:
+            given["azimuth_deg"] = float(az)
+    kind, azimuth = describe(str(tr.stats.channel or ""), given)
+    out: dict[str, Any] = {}
+    if kind != "unknown":
+        out["orientation"] = kind
+    if azimuth is not None:
+        out["azimuth_deg"] = azimuth
+    return out

@@ -1,0 +1,275 @@
+"""Pieces shared by the readers of agency text formats (USC, AFAD, UNAM, RENADIC, BHRC, CWB).
+
+Decoding, numbers in fixed-width Fortran fields, the checks of ``units``/``dt``
+given by the user against the header, and the building of a :class:`Record`
+with the metadata keys every reader fills (station, channel, azimuth_deg,
+orientation, event_*, header_pga ...).
+"""
+from __future__ import annotations
+
+import math
+import re
+import warnings
+from pathlib import Path
+from typing import Any, Mapping, Sequence
+
+import numpy as np
+
+from ..._errors import GroundshakeWarning, RecordError
+from .._components import describe
+from .._record import STANDARD_GRAVITY, Record
+from .._units import UNITS, canonical_units
+from ._common import MIN_SAMPLES
+
+__all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
+           "units_factor", "warn", "volume1_data", "check_units",
+           "check_dt", "G10"]
+
+#: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
+G10 = 0.1 * STANDARD_GRAVITY
+
+_FLOAT = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[EeDd][-+]?\d+)?")
+
+
+class FormatError(RecordError):
+    """A file that looks like a known format but does not parse.
+
+    The message reads ``"FORMAT file: what is wrong (header line N: ...)"``.
+    """
+
+    def __init__(self, fmt: str, path: Path | str, what: str, *, line: int | None = None,
+                 text: str | None = None):
+        where = "" if line is None else f" (line {line}" + (
+            f": {text.strip()[:60]!r})" if text is not None else ")")
+        super().__init__(f"{fmt} file {path}: {what}{where}")
+
+
+def read_lines(path: Path, *, fallback: str = "latin-1") -> list[str]:
+    """The file's lines, decoded as UTF-8 or else ``fallback``, line ends removed."""
+    raw = Path(path).read_bytes()
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        text = raw.decode(fallback, errors="replace")
+    return text.splitlines()
+
+
+def head_lines(head: bytes, n: int = 60) -> list[str]:
+    """The first ``n`` lines of ``head`` (bytes), decoded leniently; never raises."""
+    try:
+        return head.decode("latin-1", errors="replace").splitlines()[:n]
+    except Exception:  # noqa: BLE001 - is_format must never raise
+        return []
+
+
+def numbers(text: str) -> list[float]:
+    """Every number written in ``text``, in order (Fortran ``D`` exponents accepted)."""
+    return [float(s.replace("D", "E").replace("d", "e")) for s in _FLOAT.findall(text)]
+
+
+def fixed_width(lines: Sequence[str], *, count: int, width: int, fmt: str, path: Path,
+                first_line: int, per_line: int | None = None) -> np.ndarray:
+    """``count`` numbers from a block of lines written with a Fortran ``nFw.d`` format.
+
+    Fast path: split on white space and convert in C. When neighbouring values
+    touch (``-123.456-789.012``), each line is cut into fields of ``width``.
+
+    Parameters
+    ----------
+    lines : sequence of str
+        The block's lines (no line ends), the first one being file line ``first_line``.
+    count : int
+        Numbers wanted.
+    width : int
+        Field width of the Fortran format.
+    per_line : int, optional
+        Fields per line; only used to name the line at fault.
+
+    Returns
+    -------
+    ndarray, shape (count,)
+    """
+    joined = " ".join(lines).replace("D", "E").replace("d", "e")
+    try:
+        values = np.array(joined.split(), dtype=float)
+    except ValueError:
+        values = None
+    if values is None or values.size < count:
+        cells: list[str] = []
+        for ln in lines:  # file lines, not samples; only when fields touch
+            body = ln.rstrip()
+            cells.extend(body[k:k + width] for k in range(0, len(body), width))
+        cells = [c for c in cells if c.strip()]
+        try:
+            values = np.array([c.replace("D", "E") for c in cells], dtype=float)
+        except ValueError:
+            bad = next(c for c in cells if not _is_number(c))
+            k = cells.index(bad)
+            line = first_line + (k // per_line if per_line else 0)
+            raise FormatError(fmt, path, f"{bad.strip()!r} is not a number in the data block",
+                              line=line) from None
+    if values.size < count:
+        raise FormatError(fmt, path, f"the data block holds {values.size} values; the header "
+                          f"announces {count}", line=first_line)
+    return values[:count]
+
+
+def _is_number(text: str) -> bool:
+    try:
+        float(text.replace("D", "E"))
+    except ValueError:
+        return False
+    return True
+
+
+def check_dt(header_dt: float, user_dt: float | None, path: Path, fmt: str) -> float:
+    """The header's time step [s]; an error if ``user_dt`` says otherwise (beyond 1e-6)."""
+    if not (math.isfinite(header_dt) and header_dt > 0):
+        raise FormatError(fmt, path, f"time step {header_dt!r} s in the header must be > 0")
+    if user_dt is not None and not math.isclose(float(user_dt), header_dt, rel_tol=1e-6):
+        raise RecordError(f"{path}: dt={float(user_dt):g} s was given but the {fmt} header "
+                          f"says {header_dt:g} s; drop --dt or fix the file")
+    return float(header_dt)
+
+
+def check_units(file_units: str, user_units: str | None, path: Path, fmt: str) -> None:
+    if user_units is None:
+        return
+    given = canonical_units(user_units, where=f"{path}: units")
+    if given != file_units:
+        raise RecordError(f"{path}: units {given} were given but the {fmt} header says "
+                          f"{file_units}; drop --units or fix the file")
+
+
+def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float, path: Path,
+                fmt: str, station: str, component: str, user_units: str | None = None,
+                start_time: str = "", metadata: Mapping[str, Any] | None = None) -> Record:
+    """One :class:`Record` in m/s², with the interface's metadata keys filled.
+
+    Parameters
+    ----------
+    values : ndarray, shape (n,)
+        Samples as written in the file.
+    factor : float
+        Factor from the file's values to m/s² (e.g. 0.01 for gal, ``G10`` for g/10).
+    file_units : str
+        The units the header states, as the user would write them (``"cm/s2"``,
+        ``"g/10"``, ``"g"``); compared with ``user_units``.
+    dt : float
+        Time step [s] (already checked with :func:`check_dt`).
+    station, component : str
+        Station code and the channel code as written; the name is
+        ``"<station> <component>"``.
+    metadata : mapping, optional
+        Further header fields; ``azimuth_deg``/``orientation`` here override what
+        the component code says.
+    """
+    check_units(file_units, user_units, path, fmt)
+    meta: dict[str, Any] = {"format": fmt, "station": station, "channel": component}
+    meta.update(metadata or {})
+    kind, az = describe(component, meta)
+    meta["orientation"] = kind if kind != "unknown" else meta.get("orientation")
+    if meta["orientation"] is None:
+        del meta["orientation"]
+    if kind == "horizontal" and az is not None:
+        meta["azimuth_deg"] = az
+    elif kind == "vertical":
+        meta.pop("azimuth_deg", None)
+    values = np.asarray(values, dtype=float)
+    if values.size < MIN_SAMPLES:
+        raise FormatError(fmt, path, f"channel {component!r} holds {values.size} samples; at "
+                          f"least {MIN_SAMPLES} are needed")
+    bad = np.flatnonzero(~np.isfinite(values))
+    if bad.size:
+        raise FormatError(fmt, path, f"channel {component!r}: sample {bad[0]} is not finite")
+    with np.errstate(over="ignore", invalid="ignore"):
+        acc = values * float(factor)
+    if not np.all(np.isfinite(acc)):
+        raise FormatError(fmt, path, f"channel {component!r}: values overflow in m/s2")
+    canon = file_units if file_units in UNITS else ("g" if file_units == "g/10" else "m/s2")
+    if file_units not in UNITS:
+        meta["file_units"] = file_units
+    name = f"{station} {component}".strip() or Path(path).stem
+    return Record(acc=acc, dt=dt, name=name, component=component, source=str(path),
+                  units=canon, start_time=start_time, metadata=meta)
+
+
+def warn(message: str) -> None:
+    """A :class:`GroundshakeWarning` from a reader (doubtful but readable header)."""
+    warnings.warn(message, GroundshakeWarning, stacklevel=3)
+
+
+def units_factor(text: str, *, fmt: str, path: Path, line: int | None = None) -> tuple[str, float]:
+    """(units as the header states them, factor to m/s²) for a header's unit word.
+
+    Accepts every spelling of :func:`canonical_units` plus the older ones of
+    agency headers: ``G/10``, ``CMS/SEC/SEC``, ``CM/S/S``, ``GAL``, ``Gal (cm/s/s)``.
+    """
+    word = str(text).strip()
+    squashed = word.upper().replace(" ", "")
+    if squashed in ("G/10", "G/10.", "0.1G", "G*0.1"):
+        return "g/10", G10
+    squashed = re.sub(r"\(.*\)$", "", squashed)  # "GAL(CM/S/S)"
+    squashed = squashed.replace("CMS/", "CM/").rstrip(".")
+    try:
+        canon = canonical_units(squashed, where=f"{path}")
+    except RecordError:
+        raise FormatError(fmt, path, f"units {word!r} are not units of acceleration this "
+                          f"reader knows", line=line) from None
+    return canon, UNITS[canon]
+
+
+#: Lines of the real-valued header of Volume-1 style files: 50 values, 8 a line (CDMG layout).
+REAL_HEADER_LINES = 7
+_INT_LINE = re.compile(r"^[\s\d-]+$")
+
+
+def volume1_data(lines: Sequence[str], start: int, end: int, total: int, *, fmt: str,
+                 path: Path, width: int | None = None) -> tuple[np.ndarray, int]:
+    """The ``total`` numbers of a Volume-1 style channel between its headers and line ``end``.
+
+    A channel is a text header, an integer header (lines of whole numbers), a
+    real header of :data:`REAL_HEADER_LINES` lines, then the data up to the
+    end marker (index ``end``, excluded). ``start`` is the first line after the
+    text header. ``width``: the data's Fortran field width, used when values
+    touch (``-1.0E-01-2.0E-01``).
+
+    Returns
+    -------
+    values : ndarray, shape (total,)
+    first : int
+        Index (0-based) of the data's first line.
+
+    Raises
+    ------
+    RecordError
+        No integer header, or a data block that does not hold ``total`` values.
+    """
+    k = start
+    while k < end and not (lines[k].strip() and _INT_LINE.match(lines[k])):
+        k += 1
+    if k >= end:
+        raise FormatError(fmt, path, "the channel has no integer header (lines of whole numbers)",
+                          line=start + 1)
+    while k < end and lines[k].strip() and _INT_LINE.match(lines[k]):
+        k += 1
+    first = k + REAL_HEADER_LINES
+    body = lines[first:end]
+    try:
+        values = np.array(" ".join(body).replace("D", "E").split(), dtype=float)
+    except ValueError:
+        values = None
+    if values is None and width:
+        cells = [ln[j:j + width] for ln in body for j in range(0, len(ln.rstrip()), width)]
+        try:
+            values = np.array([c.replace("D", "E") for c in cells if c.strip()], dtype=float)
+        except ValueError:
+            values = None
+    if values is None:
+        bad = next(j for j, ln in enumerate(body) if not all(_is_number(c) for c in ln.split()))
+        raise FormatError(fmt, path, "a data line holds something that is not a number",
+                          line=first + bad + 1, text=body[bad]) from None
+    if values.size != total:
+        raise FormatError(fmt, path, f"the data block holds {values.size} values; the header "
+                          f"announces {total}", line=first + 1)
+    return values, first

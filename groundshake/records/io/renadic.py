@@ -1,0 +1,154 @@
+"""RENADIC files (Chilean national accelerograph network, Universidad de Chile), Volume 1.
+
+Layout, as the files state it: for each channel a 13-line text header
+(``UNCORRECTED ACCELEROGRAM DATA``, station line, ``CHAN  1: L``,
+``UNIVERSIDAD DE CHILE - RENADIC``, ``HYPOCENTER``, ``NO. OF POINTS = n  RECORD
+LENGTH = s SEC``, ``UNITS OF UNCOR ACCEL ARE SEC AND G/10.  MAX = a G, AT t SEC``),
+an integer and a real header, then ``n`` pairs (time [s], acceleration), five
+pairs a line, closed by a line starting ``/&``.
+"""
+from __future__ import annotations
+
+import math
+import re
+from pathlib import Path
+
+import numpy as np
+
+from .._record import STANDARD_GRAVITY
+from ._agency import (FormatError, check_dt, head_lines, make_record, numbers, read_lines,
+                      units_factor, volume1_data)
+
+__all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
+
+FORMAT = "RENADIC (Chile) Volume 1"
+EXTENSIONS = (".v1", ".txt")
+
+_POINTS = re.compile(r"NO\.\s*OF\s+POINTS\s*=\s*(\d+)(?:.*?LENGTH\s*=\s*([\d.]+))?", re.I)
+_UNITS = re.compile(r"UNITS\s+OF\s+.*?ARE\s+SEC\w*\s+AND\s+(\S+?)\.?(?:\s|$)", re.I)
+_MAX = re.compile(r"MAX\s*=\s*([-+\d.Ee]+)\s*(\S+?),?\s+AT\s+([-+\d.Ee]+)\s*SEC", re.I)
+_CHAN = re.compile(r"^\s*CHAN\s*(\d+)\s*:\s*(\S+)", re.I)
+_TIME_TOLERANCE = 0.01  # largest relative spread of the time steps read as uniform
+
+
+def is_format(path: Path, head: bytes) -> bool:
+    """True for a RENADIC file: ``ACCELEROGRAM`` title and a ``RENADIC`` line. Never raises."""
+    try:
+        lines = head_lines(head, 20)
+        return (bool(lines) and "ACCELEROGRAM" in lines[0].upper()
+                and any("RENADIC" in ln.upper() for ln in lines[:14])
+                and any(_CHAN.match(ln) for ln in lines[:14]))
+    except Exception:  # noqa: BLE001
+        return False
+
+
+def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
+    """Read every channel of a RENADIC Volume-1 file.
+
+    Parameters
+    ----------
+    path : Path
+    units : str, optional
+        A check against the header's units (usually g/10, which no option
+        names: giving any units for such a file is an error).
+    dt : float, optional
+        A check [s] against the time column.
+
+    Returns
+    -------
+    list of Record
+        One per channel (``L``, ``V``, ``T``), ``acc`` in m/s²; metadata
+        ``header_pga`` [m/s²] and ``header_pga_time`` [s] from ``MAX = ... AT``.
+
+    Raises
+    ------
+    RecordError
+        A header that does not parse, a data block of the wrong size, uneven
+        time, ``units``/``dt`` contradicting the header.
+    """
+    path = Path(path)
+    lines = read_lines(path)
+    starts = [i for i, ln in enumerate(lines) if "ACCELEROGRAM" in ln.upper()
+              and i + 12 < len(lines) and _CHAN.match(lines[i + 6])]
+    if not starts:
+        raise FormatError(FORMAT, path, "no channel header ('... ACCELEROGRAM ...' then "
+                          "'CHAN  n: X' six lines below)")
+    ends = [i for i, ln in enumerate(lines) if ln.lstrip().startswith("/&")]
+    records = []
+    for c, s in enumerate(starts):
+        stop = starts[c + 1] if c + 1 < len(starts) else len(lines)
+        end = next((e for e in ends if s < e < stop), None)
+        if end is None:
+            end = stop
+            while end > s and not lines[end - 1].strip():
+                end -= 1
+        records.append(_channel(lines, s, end, path, units, dt))
+    return records
+
+
+def _channel(lines, s, end, path, units, dt):
+    head = lines[s:s + 13]
+    text = "\n".join(head)
+    chan = _CHAN.match(lines[s + 6])
+    component = chan.group(2).upper()
+    pm = _POINTS.search(text)
+    if not pm:
+        raise FormatError(FORMAT, path, "no 'NO. OF POINTS = n' line", line=s + 11)
+    n = int(pm.group(1))
+    um = _UNITS.search(text)
+    if not um:
+        raise FormatError(FORMAT, path, "no 'UNITS OF ... ARE SEC AND ...' line", line=s + 12)
+    file_units, factor = units_factor(um.group(1), fmt=FORMAT, path=path, line=s + 12)
+    after_units = s + 1 + next(j for j, ln in enumerate(head) if _UNITS.search(ln))
+    values, first = volume1_data(lines, after_units, end, 2 * n, fmt=FORMAT, path=path,
+                                 width=7)
+    pairs = values.reshape(n, 2)
+    time, acc = pairs[:, 0], pairs[:, 1]
+    steps = np.diff(time)
+    if n < 2 or np.any(steps <= 0):
+        bad = int(np.flatnonzero(steps <= 0)[0]) if n >= 2 else 0
+        raise FormatError(FORMAT, path, f"channel {component}: time {time[bad + 1]:g} s repeats or "
+                          "runs backwards", line=first + 1 + (bad + 1) // 5)
+    step = (time[-1] - time[0]) / (n - 1)
+    spread = float(np.max(np.abs(steps - step)) / step)
+    if spread > _TIME_TOLERANCE:
+        raise FormatError(FORMAT, path, f"channel {component}: time steps vary by "
+                          f"{100 * spread:.1f} % (uneven sampling is not read)", line=first + 1)
+    if pm.group(2):  # RECORD LENGTH = n·dt: the step to the printed digits
+        length_step = float(pm.group(2)) / n
+        if math.isclose(length_step, step, rel_tol=1e-3):
+            step = length_step
+    step = float(f"{step:.6g}")
+    step = check_dt(step, dt, path, FORMAT)
+    meta: dict = {"channel_number": int(_CHAN.match(lines[s + 6]).group(1))}
+    station = lines[s + 5].split()[0] if lines[s + 5].split() else path.stem
+    meta["station_line"] = lines[s + 5].strip()
+    mm = _MAX.search(text)
+    if mm:
+        peak_factor = STANDARD_GRAVITY if mm.group(2).upper().rstrip(",") == "G" else \
+            units_factor(mm.group(2).rstrip(","), fmt=FORMAT, path=path, line=s + 12)[1]
+        meta["header_pga"] = abs(float(mm.group(1))) * peak_factor
+        meta["header_pga_time"] = float(mm.group(3))
+    hyp = next((ln for ln in head if ln.upper().lstrip().startswith("HYPOCENTER")), "")
+    vals = numbers(hyp)
+    if len(vals) >= 4 and any(vals):
+        meta["event_location"] = hyp.split(":", 1)[1].strip()
+        meta["event_magnitude"] = vals[-1]
+    trig = next((ln for ln in head if "TRIGGER TIME" in ln.upper()), "")
+    start = _iso(trig)
+    if time[0] != 0:
+        meta["first_time_s"] = float(time[0])
+    return make_record(acc, factor=factor, file_units=file_units, dt=step, path=path, fmt=FORMAT,
+                       station=station, component=component, user_units=units, start_time=start,
+                       metadata=meta)
+
+
+def _iso(text: str) -> str:
+    """``"TRIGGER TIME: 1/1/1980 0:00:00.000 GMT"`` → ISO 8601 ("" if none)."""
+    m = re.search(r"(\d{1,2})/(\d{1,2})/(\d{4})\s+(\d{1,2}):(\d{2}):(\d{2}(?:\.\d+)?)", text)
+    if not m:
+        return ""
+    mo, d, y, h, mi, sec = m.groups()  # month/day/year, as the PROCESSED date is written
+    whole, _, frac = sec.partition(".")
+    return (f"{y}-{int(mo):02d}-{int(d):02d}T{int(h):02d}:{mi}:{int(whole):02d}"
+            + (f".{frac}" if frac else "") + ("Z" if "GMT" in text.upper() else ""))
