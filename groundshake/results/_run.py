@@ -16,6 +16,7 @@ import scipy.sparse as sp
 from .._cautions import CAUTIONS
 from .._errors import GroundshakeWarning, InputError
 from .._progress import Progress
+from ..dynamics._coupled import coupled_response
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
@@ -139,7 +140,8 @@ class _Response:
 
 
 def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
-            method: Literal["modal", "direct"] = "modal", cutoff_hz: float | None = None,
+            method: Literal["modal", "coupled", "direct"] = "modal",
+            cutoff_hz: float | None = None,
             hht_alpha: float = 0.0, missing_mass: bool = True, stresses: bool = True,
             progress: bool = False, residual: np.ndarray | None = None) -> _Response:
     """Response of the model to the motion, for the rows of ``output`` (k, n).
@@ -156,7 +158,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     S = sp.csr_matrix(model.stress)
     n_el = S.shape[0] // 6          # stress points (rows of six components)
     info: dict = {}
-    if method == "modal":
+    if method in ("modal", "coupled"):
         shapes = np.asarray(modes.shapes)
         gam = np.asarray(modes.participation)
         if not missing_mass:
@@ -166,8 +168,21 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                                         model.factor().solve,
                                         load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
-        if getattr(model, "is_classically_damped", True) or not hasattr(model,
-                                                                        "modal_damping_matrix"):
+        if method == "coupled":   # the whole damping matrix on modes + missing-mass vectors
+            load = getattr(model, "ground_load", None)
+            if load is None:
+                load = model.M @ model.influence
+            r = coupled_response(model.K, model.M, model.damping_matrix(modes=modes), shapes,
+                                 residual, load, ag, dt,
+                                 damping_update=model.damping_update()
+                                 if hasattr(model, "damping_update") else None)
+            info["modal_damping"] = "whole damping matrix on the reduced basis"
+            info["reduced_basis"] = {"modes": int(shapes.shape[1]),
+                                     "missing_mass_vectors": int(r.shapes.shape[1]
+                                                                 - shapes.shape[1])}
+            info["rayleigh_hz"] = getattr(model, "rayleigh_used_hz", None)
+        elif getattr(model, "is_classically_damped", True) or not hasattr(model,
+                                                                          "modal_damping_matrix"):
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
         else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
@@ -189,9 +204,10 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                 peaks = modal_stress_peaks(r.coefficients(S), Z, n_el, progress=bar)
         info.update(n_modes=int(shapes.shape[1]), missing_mass=residual is not None,
                     timings={"time_history": t1 - t0, "stress_peaks": _time.perf_counter() - t1})
-        return _Response("modal", u, v, a, node_peak, peaks, r.assumptions, info)
+        return _Response(method, u, v, a, node_peak, peaks, r.assumptions, info)
     if method != "direct":
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'coupled', "
+                         "'direct'")
     n_sub = substeps_for(dt, cutoff_hz)
     peaks = StressPeaks.empty(n_el) if (stresses and n_el) else None
 
@@ -244,7 +260,8 @@ def _get(obj, key, default=None):
 
 
 # --------------------------------------------------------------------------- the run
-def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct"] | None = None,
+def analyse(scenario, *, progress: bool = True,
+            method: Literal["auto", "modal", "coupled", "direct"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario: motion, model, modes, response and every result.
@@ -256,7 +273,7 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
         unless ``motion`` is given).
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
-    method : {"modal", "direct"}, optional
+    method : {"auto", "modal", "coupled", "direct"}, optional
         Overrides ``analysis.method``.
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
@@ -319,9 +336,10 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         return dt_
 
     analysis = _get(scenario, "analysis")
-    method = method or _get(analysis, "method", "modal") or "modal"
-    if method not in ("modal", "direct"):
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+    method = method or _get(analysis, "method", "auto") or "auto"
+    if method not in ("auto", "modal", "coupled", "direct"):
+        raise InputError(f"analysis.method: given {method!r}; allowed 'auto', 'modal', "
+                         "'coupled', 'direct'")
     cutoff = _get(analysis, "cutoff_hz", 50.0)
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
@@ -335,6 +353,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     if model is None:
         model = build_model(scenario)
     timings["model"] = _tick()
+    if method == "auto":    # non-classical damping: the whole damping matrix, modal cost
+        method = "modal" if getattr(model, "is_classically_damped", True) else "coupled"
     if modes is None:
         with Progress("modes", total=None, enabled=progress):
             modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,

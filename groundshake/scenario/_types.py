@@ -310,9 +310,11 @@ class Sensor:
 class AnalysisSettings:
     """The ``[analysis]`` table."""
 
-    method: Literal["modal", "direct"] = spec(
-        "choice", "modal", choices=("modal", "direct"),
-        doc="modal superposition with missing mass, or direct integration")
+    method: Literal["auto", "modal", "coupled", "direct"] = spec(
+        "choice", "auto", choices=("auto", "modal", "coupled", "direct"),
+        doc="auto: coupled where damping is non-classical (soil or equipment dashpots), "
+            "else modal; modal superposition with missing mass; coupled: the whole damping "
+            "matrix on the modes and missing-mass vectors; direct integration")
     cutoff_hz: float = spec("number", 50.0, gt=0.0, unit="Hz", doc="modes up to this frequency")
     modes: int | None = spec("integer", None, ge=1, le=10000,
                              doc="a fixed number of modes instead of the cutoff")
