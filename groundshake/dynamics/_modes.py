@@ -204,7 +204,8 @@ def _block_krylov(K, M, k, factor, shift, tol, *, block=None, max_dim=None,
     M-orthonormal columns span the Krylov space of A; each step is one solve with b
     right-hand sides (a direct solver does that faster per column than b single solves:
     the factor is read once, BLAS-3 uses every core), then A Q_j is M-orthogonalised
-    against the basis V twice. The projection T = Vᵀ M A V is built from the
+    against the basis V: first against the last two blocks (in exact arithmetic the only
+    components), then once against the whole basis (rounding). The projection T = Vᵀ M A V is built from the
     orthogonalisation coefficients, so no product with the whole basis is repeated.
     With W_{j+1} the orthogonalised remainder of A Q_j (Gram matrix G = Wᵀ M W), a Ritz
     pair (θ, y = V c) has the residual ‖A y − θ y‖_M = ‖G^½ c_j‖ (c_j: the entries of c
@@ -233,6 +234,7 @@ def _block_krylov(K, M, k, factor, shift, tol, *, block=None, max_dim=None,
     T = np.zeros((max_dim, max_dim))
     tol_r = max(tol, 1e-12) * 1e2
     d = 0                                  # columns in the basis
+    p0 = 0                                 # first column of the previous block
     t0 = time.perf_counter()
     MW = M @ W
     G = W.T @ MW
@@ -254,13 +256,16 @@ def _block_krylov(K, M, k, factor, shift, tol, *, block=None, max_dim=None,
         st["solves"] += 1
         st["columns"] += nb
         t0 = time.perf_counter()
-        H = MV[:, :d].T @ AQ                 # (d, nb): column block of T = Vᵀ M A V
-        W = AQ - V[:, :d] @ H
-        H2 = MV[:, :d].T @ W                 # second pass (loss of orthogonality)
-        W -= V[:, :d] @ H2
-        H += H2
+        # first pass against the last two blocks only (in exact arithmetic A Q_j has no
+        # other component), then one pass against the whole basis for rounding
+        H1 = MV[:, p0:d].T @ AQ
+        W = AQ - V[:, p0:d] @ H1
+        H = MV[:, :d].T @ W                  # (d, nb): column block of T = Vᵀ M A V
+        W -= V[:, :d] @ H
+        H[p0:d] += H1
         T[:d, j0:d] = H
         T[j0:d, :d] = H.T
+        p0 = j0
         del AQ
         MW = M @ W
         G = W.T @ MW

@@ -453,10 +453,12 @@ def rotated_peaks(u1, u2, cs, sn, out):
             fill[c] += 1
     bnd2 = np.zeros(_NSEC)
     state = np.array([-2.0, np.nan, 0.0])
+    low2 = 0.0
     for c in range(_NCLASS):
-        _sector_bounds(out, reach, bnd2)
-        state[2] = 0
-        low2 = _lowest(bnd2)
+        if state[2] > 0:                         # peaks raised since the last refresh
+            _sector_bounds(out, reach, bnd2)
+            state[2] = 0
+            low2 = _lowest(bnd2)
         if rmax2 - c / scale <= low2:            # the whole class is no longer than L
             break
         for m in range(count[c], count[c + 1]):
@@ -498,6 +500,27 @@ def _history_tm(row, S, H):
             H[i + 1, j] = xn
 
 
+@njit(cache=True, nogil=True, fastmath={"contract"})
+def _history_om(row, S, H):
+    """Displacement histories of NB oscillators, one row each of H (NB, n_t), packed S
+    (the same steps as :func:`_history_tm`, stored oscillator by oscillator)."""
+    for j in range(NB):
+        H[j, 0] = 0.0
+        S[_RX * NB + j] = 0.0
+        S[_RV * NB + j] = 0.0
+    for i in range(row.size - 1):
+        f0 = row[i]
+        f1 = row[i + 1]
+        for j in range(NB):
+            xo = S[_RX * NB + j]
+            vo = S[_RV * NB + j]
+            xn = S[j] * xo + S[NB + j] * vo + S[4 * NB + j] * f0 + S[5 * NB + j] * f1
+            S[_RV * NB + j] = S[2 * NB + j] * xo + S[3 * NB + j] * vo + S[6 * NB + j] * f0 \
+                + S[7 * NB + j] * f1
+            S[_RX * NB + j] = xn
+            H[j, i + 1] = xn
+
+
 @njit(cache=True, nogil=True)
 def _rotd_block(acc1, acc2, coef, k0, k1, cs, sn, out):
     n = acc1.size
@@ -505,17 +528,12 @@ def _rotd_block(acc1, acc2, coef, k0, k1, cs, sn, out):
     for r in range(8):
         for j in range(k1 - k0):
             S[r * NB + j] = coef[r, k0 + j]
-    H1 = np.empty((n, NB))
-    H2 = np.empty((n, NB))
-    _history_tm(acc1, S, H1)
-    _history_tm(acc2, S, H2)
-    u1 = np.empty(n)
-    u2 = np.empty(n)
+    H1 = np.empty((NB, n))
+    H2 = np.empty((NB, n))
+    _history_om(acc1, S, H1)
+    _history_om(acc2, S, H2)
     for j in range(k1 - k0):
-        for i in range(n):
-            u1[i] = H1[i, j]
-            u2[i] = H2[i, j]
-        rotated_peaks(u1, u2, cs, sn, out[k0 + j])
+        rotated_peaks(H1[j], H2[j], cs, sn, out[k0 + j])
 
 
 @njit(cache=True, nogil=True)
