@@ -58,7 +58,7 @@ def _peaks(summary: dict) -> dict[str, float]:
 
 
 def _timings(summary: dict) -> dict:
-    t = summary.get("timings_s")
+    t = (summary.get("provenance") or {}).get("timings_s")
     if not isinstance(t, dict):
         t = (summary.get("analysis") or {}).get("timings") or {}
     return t
