@@ -773,7 +773,7 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
         # quasi-statically to any real ground motion anyway
         above = ((freq > f_band) & (freq <= RIGID_HZ)
                  & np.any((ratio >= 0.05) & excited[None, :], axis=1))
-        if method == "modal" and np.any(above):
+        if method in ("modal", "coupled") and np.any(above):
             share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
                                  * excited))
             collected.append(
@@ -791,19 +791,19 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                            / (total - rigid), 1.0)
         low = [f"{d} {100 * cum[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
                if excited[j] and cum[j] < 0.9]
-        if low and method == "modal" and f_hi < f_band:
+        if low and method in ("modal", "coupled") and f_hi < f_band:
             collected.append("Retained modal mass below 90 % of the mass free to move ("
                              + ", ".join(low) + ") while the modes left out start within the "
                              f"motion's band (the highest kept is {f_hi:.3g} Hz, the band reaches "
                              f"{f_band:.3g} Hz): the missing-mass correction treats them "
                              "statically; raise cutoff_hz or modes (ASCE 7-16 §12.9.1.1 asks "
                              "for 90 %).")
-        f_model = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+        f_model = f_hi if method in ("modal", "coupled") else max(f_hi, float(cutoff or 0.0))
         f_use = min(f_model, f_band)
     else:
         f_use = min(float(cutoff or 0.0), f_band)
         collected.append("No mode below the cutoff: the block responds quasi-statically "
-                         "(missing mass only)." if method == "modal" else
+                         "(missing mass only)." if method in ("modal", "coupled") else
                          "No mode below the cutoff.")
     # elements per shear wavelength at the highest frequency retained
     try:
