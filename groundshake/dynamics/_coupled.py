@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import numpy as np
 import scipy.linalg as sla
-import scipy.sparse as sp
 
 from ._modal import ModalResponse, coupled_modal_response
 
@@ -58,7 +57,7 @@ def ritz_basis(K, M, shapes: np.ndarray, residual: np.ndarray | None, *,
         lam = np.einsum("im,im->m", phi, K @ phi)
         return phi, np.sqrt(np.maximum(lam, 0.0)), 0
     R = np.asarray(residual, dtype=float).reshape(phi.shape[0], -1)
-    keep = []
+    keep: list[int] = []
     for _ in range(2):                        # M-orthogonalise against Φ, twice
         R = R - phi @ (phi.T @ (M @ R))
     Q = np.zeros_like(R)
@@ -122,7 +121,7 @@ def coupled_response(K, M, C, shapes: np.ndarray, residual: np.ndarray | None,
     Cr = psi.T @ (C @ psi) if C is not None else np.zeros((psi.shape[1],) * 2)
     if damping_update is not None and np.size(damping_update[1]):
         U, d = damping_update
-        W = np.asarray(U.T @ psi) if not sp.issparse(U) else np.asarray((U.T @ psi))
+        W = np.asarray(U.T @ psi)                 # (q, m + r); U dense or sparse
         Cr = Cr + W.T @ (np.asarray(d, dtype=float)[:, None] * W)
     Cr = 0.5 * (Cr + Cr.T)
     gam = psi.T @ np.asarray(load, dtype=float)
