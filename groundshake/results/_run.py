@@ -217,13 +217,17 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
 
     C = model.damping_matrix(modes=modes)
     update = model.damping_update() if hasattr(model, "damping_update") else None
+    K, M, iota, load = model.K, model.M, model.influence, getattr(model, "ground_load", None)
+    block_fn, rows, peak_rows = (on_block if peaks is not None else None), output, node_map
+    if getattr(model, "cones", None) is not None:   # the soil's rotational cones (model/_cone.py)
+        from ..model._cone import cone_run
+        K, M, C, iota, load, rows, peak_rows, block_fn, update = cone_run(
+            model, C, output, node_map, block_fn, update)
     t0 = _time.perf_counter()
-    res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
-                          hht_alpha=hht_alpha, substeps=n_sub,
-                          on_block=on_block if peaks is not None else None,
-                          peak_operator=node_map, solver=getattr(model, "solver", "auto"),
-                          progress=progress, load=getattr(model, "ground_load", None),
-                          damping_update=update)
+    res = direct_response(K, M, C, iota, ag, dt, output=rows,
+                          hht_alpha=hht_alpha, substeps=n_sub, on_block=block_fn,
+                          peak_operator=peak_rows, solver=getattr(model, "solver", "auto"),
+                          progress=progress, load=load, damping_update=update)
     node_peak = {}
     for j, d in enumerate(DIRECTIONS):
         vals = res.dof_peak[j::3]
@@ -250,6 +254,13 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         "soil radiation dashpots as modelled. Non-classical damping is kept whole (no modal "
         "uncoupling); the Rayleigh ratio differs from the target between and beyond the two "
         "frequencies.")
+    if getattr(model, "cones", None) is not None:
+        assumptions.append(
+            "Soil rocking and torsion frequency-dependent in time: rotational cones (Wolf "
+            "1994, from memory) fitted to the static springs, each an extra rotation of "
+            "inertia rho*I*z0 tied to the base by the dashpot rho*c*I (stiffness K at rest, "
+            "2/3 K and full radiation at high frequency).")
+        info["soil_cones"] = model.cones.to_dict()
     return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
 
 
@@ -263,7 +274,7 @@ def _get(obj, key, default=None):
 
 # --------------------------------------------------------------------------- the run
 def analyse(scenario, *, progress: bool = True,
-            method: Literal["auto", "modal", "coupled", "direct"] | None = None,
+            method: Literal["auto", "modal", "coupled", "direct", "spectrum"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario: motion, model, modes, response and every result.
@@ -275,8 +286,9 @@ def analyse(scenario, *, progress: bool = True,
         unless ``motion`` is given).
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
-    method : {"auto", "modal", "coupled", "direct"}, optional
-        Overrides ``analysis.method``.
+    method : {"auto", "modal", "coupled", "direct", "spectrum"}, optional
+        Overrides ``analysis.method``. ``"spectrum"`` is response-spectrum analysis of
+        ``[motion] target`` (records are not read; ``time`` and ``histories`` stay empty).
     motion, model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
@@ -339,9 +351,18 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
 
     analysis = _get(scenario, "analysis")
     method = method or _get(analysis, "method", "auto") or "auto"
+    if method == "spectrum":            # the design spectrum, no records
+        if motion is not None:
+            raise InputError("analysis.method: 'spectrum' takes the design spectrum of "
+                             "[motion] target, not records; allowed 'auto', 'modal', "
+                             "'coupled' or 'direct' with a given motion")
+        from ._spectrum_run import spectrum_analyse
+        return spectrum_analyse(scenario, progress=progress, model=model, modes=modes,
+                                stresses=stresses, collected=collected, residual=residual,
+                                timings=timings)
     if method not in ("auto", "modal", "coupled", "direct"):
         raise InputError(f"analysis.method: given {method!r}; allowed 'auto', 'modal', "
-                         "'coupled', 'direct'")
+                         "'coupled', 'direct', 'spectrum'")
     cutoff = _get(analysis, "cutoff_hz", 50.0)
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)

@@ -6,6 +6,7 @@ Every check runs up front and the first failure raises one
 """
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import difflib
 import functools
@@ -176,7 +177,7 @@ def _allowed_text(meta: dict) -> str:
     if kind == "trace":
         return "an integer ≥ 0 or a channel code"
     if kind == "target":
-        return "a target spec (asce7:..., en1998:...) or a path to a CSV file"
+        return "a target spec (asce7:..., en1998:...), a CSV file or a CSMIP Volume 3 file"
     if kind == "table":
         names = [f.name for f in _schema_fields(meta["cls"])]
         return "a table with keys " + ", ".join(names)
@@ -307,6 +308,10 @@ def _convert(f: dataclasses.Field, v: Any, path: tuple, ctx: _Context) -> Any:
             raise ctx.bad(path, v, allowed)
         if _SPEC_RE.match(v.strip()):
             return v.strip()
+        head, sep, options = v.strip().rpartition(":")
+        if sep and "=" in options and head.strip() and not (ctx.base_dir / v.strip()).exists():
+            # FILE:key=value,... (a CSMIP Volume 3 file with its damping and channel)
+            return f"{_existing_file(head.strip(), path, ctx, allowed)}:{options}"
         return str(_existing_file(v, path, ctx, allowed))
     if kind == "table":
         return _parse_obj(meta["cls"], v, path, ctx)
@@ -500,8 +505,16 @@ def _check_plausible(values, ctx):
     s = values.get("support")
     if s is not None and s.kind == "soil":
         for key, quantity in (("shear_wave_velocity", "shear_wave_velocity"),
-                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio")):
+                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio"),
+                              ("variation", "variation"), ("embedment_depth", "embedment_depth"),
+                              ("modulus_ratio", "modulus_ratio")):
             _plausible(quantity, getattr(s, key), ("support", key), ctx)
+        if s.strain_compatible is not None:
+            _plausible("shaking_g", s.strain_compatible.shaking_g,
+                       ("support", "strain_compatible", "shaking_g"), ctx)
+    if s is not None:
+        for key in ("friction_coefficient", "allowable_bearing_pressure"):
+            _plausible(key, getattr(s, key), ("support", key), ctx)
     d = values.get("damping")
     if d is not None:
         _plausible("damping_percent", d.ratio_percent, ("damping", "ratio_percent"), ctx)
@@ -517,17 +530,28 @@ def _check_plausible(values, ctx):
     m = values.get("motion")
     if m is not None and m.target is not None:
         _check_target(m.target, ("motion", "target"), ctx)
+    if m is not None and m.target_z is not None:
+        _check_target(m.target_z, ("motion", "target_z"), ctx)
 
 
 def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
     """Parse the target now, so its unit slips (sds=9.81) name the file and line."""
-    from .._errors import InputError
     from ..spectra._targets import parse_target
+
+    with _keyed(path, ctx):
+        parse_target(spec, base_dir=ctx.base_dir)
+
+
+@contextlib.contextmanager
+def _keyed(path: tuple, ctx: _Context):
+    """Run a check of one key: its InputError becomes that key's ScenarioError (file and
+    line), its GroundshakeWarnings that key's warnings and notes."""
+    from .._errors import InputError
 
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         try:
-            parse_target(spec, base_dir=ctx.base_dir)
+            yield
         except InputError as e:
             err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
             err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
@@ -548,11 +572,46 @@ def _check_motion(values, ctx):
     m = values.get("motion")
     if m is None:
         return
-    if not m.components():
+    if m.file is not None:
+        m = values["motion"] = _components_of_file(m, ctx)
+    analysis = values.get("analysis")
+    spectrum = analysis is not None and analysis.method == "spectrum"
+    if spectrum and m.target is None:
+        raise ctx.error(("motion", "target"), "nothing (the key is missing)",
+                        'a design spectrum (required by [analysis] method = "spectrum")')
+    if not m.components() and m.target is None:
         raise ctx.error(("motion",), "a [motion] table without components",
-                        "at least one of x, y, z (or leave [motion] out for modes only)")
+                        "at least one of x, y, z (or leave [motion] out for modes only; "
+                        'only a target for method = "spectrum")')
     if m.match_target and m.target is None:
         raise ctx.bad(("motion", "match_target"), True, "true only with a target")
+    if m.target_z is not None and m.target is None:
+        raise ctx.bad(("motion", "target_z"), m.target_z, "a vertical target only beside a "
+                      "horizontal target")
+
+
+def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
+    """``[motion] file = ...`` written out as x, y, z by the channels' orientation."""
+    from ..records import read_record
+    from ..records._components import components_by_orientation
+
+    path = ("motion", "file")
+    given = [k for k in m.components()]
+    if given:
+        raise ctx.error(path, f"a file together with {', '.join(given)}",
+                        "either file (its channels picked by orientation) or x, y, z")
+    with _keyed(path, ctx):
+        records = read_record(m.file, inventory=m.inventory)
+        picked = components_by_orientation(records, where="motion.file")
+    comps = {}
+    for axis, rec in picked.items():
+        same = sum(str(r.component) == str(rec.component) for r in records)
+        code = str(rec.component) if rec.component and same == 1 else rec.name
+        comps[axis] = MotionComponent(file=m.file, channel=code)
+    ctx.notes.append(f"{ctx.where(path)}: motion.file: "
+                     + ", ".join(f"{a} = channel {c.channel!r}" for a, c in comps.items())
+                     + " (by orientation: vertical to z, horizontals to x, y in file order)")
+    return dataclasses.replace(m, file=None, **comps)
 
 
 def _check_floor_spectra(values, ctx):
@@ -751,10 +810,14 @@ def replace_motion(scenario: Scenario, components: dict, target, match_target) -
     if tgt is not None:
         data["target"] = tgt
     data["match_target"] = mt
+    if old is not None:               # the spectrum method's vertical stays as it was
+        if old.target_z is not None:
+            data["target_z"] = old.target_z
+        data["vertical_fraction"] = old.vertical_fraction
     if old is not None and old.inventory is not None:  # the station inventory stays
         data["inventory"] = os.fspath(old.inventory)
     motion = _parse_obj(MotionSettings, data, ("motion",), ctx)
-    values = {"motion": motion}
+    values = {"motion": motion, "analysis": scenario.analysis}
     _check_motion(values, ctx)
     keep = [n for n in scenario.notes if "motion." not in n]
     return dataclasses.replace(scenario, motion=motion, notes=tuple(keep + ctx.notes))

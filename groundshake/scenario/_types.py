@@ -79,6 +79,13 @@ class MotionComponent:
                             doc="time step, for one-column text files")
     trace: int | str | None = spec("trace", None,
                                    doc="trace index (from 0) or channel code in a multi-trace file")
+    channel: str | None = spec("string", None,
+                               doc="the channel of a multi-channel file by its code as written "
+                                   "(`360`, `HNZ`, `UP`) or the record's name")
+    azimuth: float | None = spec("number", None, ge=0.0, le=360.0, unit="deg",
+                                 doc="the horizontal channel of a multi-channel file whose "
+                                     "azimuth (clockwise from north, from its header) is this, "
+                                     "within 1°")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -91,10 +98,22 @@ class MotionSettings:
                                      doc="horizontal component along y")
     z: MotionComponent | None = spec("table", None, cls=MotionComponent,
                                      doc="vertical component")
+    file: Path | None = spec("path", None,
+                             doc="one station file holding the components, instead of x, y, z: "
+                                 "its vertical channel goes to z, its horizontals to x and y in "
+                                 "the file's order (written out as x, y, z with their channels)")
     target: str | None = spec("target", None,
-                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8` "
-                                  "or a CSV of period [s], PSA [g] (relative path)")
+                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8`, "
+                                  "a CSV of period [s], PSA [g], or a CSMIP Volume 3 file "
+                                  "`FILE.V3:channel=N` (relative paths)")
     match_target: bool = spec("bool", False, doc="adjust the records to the target first")
+    target_z: str | None = spec("target", None,
+                                doc="vertical design spectrum of the spectrum method (same forms "
+                                    "as target); none = vertical_fraction × target")
+    vertical_fraction: float = spec("number", 2.0 / 3.0, ge=0.0, le=2.0,
+                                    doc="vertical spectrum as a share of the horizontal target "
+                                        "when target_z is not given (2/3: USNRC RG 1.60 and "
+                                        "ASCE 4 long-period ratio, from memory); 0 = no vertical")
     inventory: Path | None = spec("path", None,
                                   doc="station inventory (StationXML) of records in raw counts "
                                       "(MiniSEED, SAC), relative to the scenario file")
@@ -207,7 +226,8 @@ class SupportSettings:
         doc="height of the side walls in good contact with the soil (soil only)")
     frequency_dependent: bool = spec(
         "bool", False, doc="evaluate each base spring at the frequency of the modes that "
-                           "load it (Gazetas 1991 k(a0), iterated; soil only)")
+                           "load it (Gazetas 1991 k(a0), iterated; soil only); in direct "
+                           "runs rocking and torsion as rotational cones (Wolf 1994)")
     variation: float | None = spec("number", None, ge=0.0, le=10.0,
                                    doc="Cv of the shear modulus: lower, best and upper cases "
                                        "G/(1+Cv), G, G(1+Cv); none = best estimate only")
@@ -310,11 +330,19 @@ class Sensor:
 class AnalysisSettings:
     """The ``[analysis]`` table."""
 
-    method: Literal["auto", "modal", "coupled", "direct"] = spec(
-        "choice", "auto", choices=("auto", "modal", "coupled", "direct"),
+    method: Literal["auto", "modal", "coupled", "direct", "spectrum"] = spec(
+        "choice", "auto", choices=("auto", "modal", "coupled", "direct", "spectrum"),
         doc="auto: coupled where damping is non-classical (soil or equipment dashpots), "
             "else modal; modal superposition with missing mass; coupled: the whole damping "
-            "matrix on the modes and missing-mass vectors; direct integration")
+            "matrix on the modes and missing-mass vectors; direct integration; or "
+            "response-spectrum analysis of [motion] target (CQC, missing mass at the ZPA)")
+    direction_combination: Literal["srss", "100-40-40"] = spec(
+        "choice", "srss", choices=("srss", "100-40-40"),
+        doc="spectrum method: how the peaks of ground x, y, z are combined")
+    spectrum_motions: int = spec("integer", 0, ge=0, le=30,
+                                 doc="spectrum method: invented motions matched to the design "
+                                     "spectra and run by modal time history, for floor spectra "
+                                     "(their mean) and a side-by-side table; 0 = none")
     cutoff_hz: float = spec("number", 50.0, gt=0.0, unit="Hz", doc="modes up to this frequency")
     modes: int | None = spec("integer", None, ge=1, le=10000,
                              doc="a fixed number of modes instead of the cutoff")
