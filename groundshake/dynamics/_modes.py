@@ -335,12 +335,13 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     fac = None if method == "amg" else model.factor()
     t_factor = time.perf_counter() - t0
     n = model.n_dof
+    st: dict = {}               # the block solver's own times (its last call)
     K, M = model.K, model.M
     if n_modes is not None:
         if int(n_modes) < 1:
             raise InputError(f"analysis.modes: given {n_modes}; allowed >= 1")
         k = min(int(n_modes), n if n <= 200 else n - 1)  # all modes only by dense eigh
-        lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method)
+        lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method, stats=st)
     else:
         fc = cutoff_hz if cutoff_hz is not None else (model.cutoff_hz or 50.0)
         if not fc > 0:
@@ -348,7 +349,7 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
         lam_c = (2 * np.pi * fc) ** 2
         k = min(12, n - 1)
         while True:
-            lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method)
+            lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method, stats=st)
             if lam[-1] > lam_c or k >= n - 1 or k >= _MAX_MODES:
                 break
             k = min(2 * k, n - 1, _MAX_MODES)
@@ -392,5 +393,17 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     return Modes(omega=omega, frequency=freq, period=period, shapes=phi,
                  participation=gamma, effective_mass=meff, effective_mass_ratio=ratio,
                  cumulative_ratio=cum, damping=damping, total_mass=total, warnings=msgs,
-                 solver=f"{getattr(fac, 'kind', '')} + {method}",
-                 timings={"factor": t_factor, "eigen": t_eig}, rigid_mass=rigid)
+                 solver=f"{getattr(fac, 'kind', '')} + {_used(method, n, st)}",
+                 timings={"factor": t_factor, "eigen": t_eig,
+                          **{f"eigen_{k}": v for k, v in st.items()
+                             if k in ("solve_s", "orth_s", "ritz_s")}},
+                 rigid_mass=rigid)
+
+
+def _used(method: str, n: int, st: dict) -> str:
+    """The eigen-solver that gave the modes (``auto`` resolved, ARPACK fallback named)."""
+    if method == "auto":
+        method = "block" if n > 3000 else "lanczos"
+    if method == "block" and st and "dim" not in st:
+        return "block, then lanczos (ARPACK) as fallback"
+    return method
