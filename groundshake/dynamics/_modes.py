@@ -220,7 +220,8 @@ def _block_krylov(K, M, k, factor, shift, tol, *, block=None, max_dim=None,
     import time
     n = K.shape[0]
     b = int(block or 10)
-    max_dim = int(max_dim or min(n - 1, max(10 * k, 12 * b, 120)))
+    # (np.empty: columns never written cost no memory)
+    max_dim = int(max_dim or min(n - 1, max(16 * k, 16 * b, 200)))
     st = stats if stats is not None else {}
     st.update(solve_s=0.0, orth_s=0.0, ritz_s=0.0, solves=0, columns=0)
     rng = np.random.default_rng(12345)
