@@ -503,6 +503,9 @@ def _check_plausible(values, ctx):
     for name, m in (values.get("materials") or {}).items():
         for key in ("youngs_modulus", "density", "poisson_ratio"):
             _plausible(key, getattr(m, key), ("materials", name, key), ctx)
+    for i, part in enumerate(values.get("parts") or ()):
+        for j, length in enumerate(part.size):
+            _plausible("part_size", length, ("parts", i, "size", j), ctx)
     s = values.get("support")
     if s is not None and s.kind == "soil":
         for key, quantity in (("shear_wave_velocity", "shear_wave_velocity"),
@@ -522,6 +525,12 @@ def _check_plausible(values, ctx):
     for i, e in enumerate(values.get("equipment") or ()):
         _plausible("equipment_mass", e.mass, ("equipment", i, "mass"), ctx)
         _plausible("damping_percent", e.damping_percent, ("equipment", i, "damping_percent"), ctx)
+        _plausible("cg_height", e.cg_height, ("equipment", i, "cg_height"), ctx)
+        cap = getattr(e, "capacity", None)
+        if cap is not None:
+            for key in ("tension", "shear"):
+                _plausible("bolt_capacity", getattr(cap, key, None),
+                           ("equipment", i, "capacity", key), ctx)
         if getattr(e, "fp", None) is not None:
             _plausible("sds", e.fp.sds, ("equipment", i, "fp", "sds"), ctx)
     fs = values.get("floor_spectra")

@@ -58,7 +58,7 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
         modes = compute_modes(model, cutoff_hz=None if n_req else cutoff, n_modes=n_req,
                               excited=tuple(d in comps for d in DIRECTIONS), warn=False)
     residual = None
-    if (method or analysis.method) == "modal":
+    if (method or analysis.method) in ("auto", "modal", "coupled"):
         # the missing-mass shapes depend on the model only: one static solve here,
         # so workers never factorize K
         from ..dynamics._modal import residual_vectors
