@@ -81,7 +81,9 @@ def quantity_words(path: str) -> str:
 
 def render_suite_page(*, title: str, records: Sequence[Mapping[str, Any]],
                       statistics: Mapping[str, Mapping[str, Any]], spectra_html: str = "",
-                      units: str = "si", provenance: Mapping[str, Any] | None = None) -> str:
+                      units: str = "si", provenance: Mapping[str, Any] | None = None,
+                      scaling_html: str = "", combined: Mapping[str, float] | None = None,
+                      combination: str = "") -> str:
     """The HTML text of suite.html.
 
     Parameters
@@ -101,6 +103,11 @@ def render_suite_page(*, title: str, records: Sequence[Mapping[str, Any]],
         Display units.
     provenance : dict, optional
         ``version``, ``date``, ``command``, ``scenario`` shown at the end.
+    scaling_html : str
+        The scaling section (markup from this package only) when the sets were scaled.
+    combined : dict, optional
+        Path → the value the combination rule keeps (SI), shown as a last column
+        ``combined (RULE)`` with ``combination`` naming the rule.
     """
     check_system(units)
     ref: dict[str, float] = {}
@@ -153,9 +160,12 @@ def render_suite_page(*, title: str, records: Sequence[Mapping[str, Any]],
         rows.append([quantity_words(path), display_unit(k, units) if k else "", st.get("count"),
                      *(raw(f'<span class="n">{esc(n(st.get(c), k))}</span>')
                        for c in ("median", "p16", "p84", "max", "lognormal_median")),
-                     raw(f'<span class="n">{esc(fmt(st.get("beta"), None))}</span>')])
+                     raw(f'<span class="n">{esc(fmt(st.get("beta"), None))}</span>')]
+                    + ([raw(f'<span class="n">{esc(n((combined or {}).get(path), k))}</span>')]
+                       if combined is not None else []))
     stats_html = table(rows, ["quantity", "unit", "records", "median", "16th percentile",
-                              "84th percentile", "largest", "log-normal median", "β (ln)"])
+                              "84th percentile", "largest", "log-normal median", "β (ln)"]
+                       + ([f"combined ({combination})"] if combined is not None else []))
 
     # ---- the record sets, numbered from 1
     rec_rows, rec_cls = [], []
@@ -197,6 +207,7 @@ def render_suite_page(*, title: str, records: Sequence[Mapping[str, Any]],
     body = [section("suite-summary", "Summary", key_html
                     + ('<p class="note">Demand/capacity compares bolt peaks with the capacities '
                        "entered: a screening comparison, not a code check.</p>" if dcs else "")),
+            *([section("suite-scaling", "Scaling to a target", scaling_html)] if scaling_html else []),
             section("suite-statistics", "Statistics of the peaks over the record sets", stats_html),
             section("suite-spectra", "Spectra over the record sets",
                     spectra_html or '<p class="none">No spectra.</p>'),

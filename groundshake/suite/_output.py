@@ -76,6 +76,26 @@ def _band_panels(spec: dict, key: str, names: Sequence[str], target=None) -> lis
     return panels
 
 
+def _scaling_html(doc: dict, esc, table) -> str:
+    """A plain paragraph and table: the rule, the band, each set's factor, the combination."""
+    lo, hi = doc["range"]
+    text = (f"<p>Each record set was scaled to {esc(doc['target_label'])} by the rule "
+            f"{esc(doc['rule'])} ({esc(doc['source'])}): the mean of the sets' "
+            f"{esc(doc['spectrum'])} at {100 * doc['damping']:g} % damping reaches "
+            f"{100 * doc['share']:g} % of the target at every period from "
+            f"{doc['band'][0]:.3g} s to {doc['band'][1]:.3g} s (T = {doc['period_s']:.3g} s, "
+            f"{esc(doc['period_from'])}; least ratio {doc['least_ratio']:.3f}). Mode "
+            f"{esc(doc['mode'])}; common factor {doc['set_factor']:.4g}. {esc(doc['note'])}.</p>")
+    rows = [(f["record"], f"{f['factor']:.4g}", f"{f['own']:.4g}",
+             "yes" if f["in_range"] else f"no — outside {lo:g}–{hi:g}") for f in doc["factors"]]
+    text += table(rows, ["record set", "scale factor", "own fit", f"within {lo:g}–{hi:g}"])
+    if "combination" in doc:
+        text += (f"<p>Results combined by the <strong>{esc(doc['combination'])}</strong> over "
+                 f"{doc['count']} set(s): {esc(doc['combination_note'])} (the last column of "
+                 "the statistics below).</p>")
+    return text
+
+
 def write_suite_outputs(result, scenario, *, target: str | None = None,
                         units: str | None = None) -> list[Path]:
     """Write the spectra statistics (CSV, PNG) and ``suite.html`` into ``result.out_dir``.
@@ -128,10 +148,16 @@ def write_suite_outputs(result, scenario, *, target: str | None = None,
     source = getattr(scenario, "source", None)
     prov = {"version": None, "scenario": Path(str(source)).name if source else None,
             "how it ran": engine.line() if engine is not None else None}
+    scaling = getattr(result, "scaling", None)
+    from ..report._html import esc, table
     page = render_suite_page(title=str(getattr(scenario, "title", "suite")),
                              records=result.records, statistics=result.statistics,
                              spectra_html="".join(figures_html), units=units,
-                             provenance={k: v for k, v in prov.items() if v is not None})
+                             provenance={k: v for k, v in prov.items() if v is not None},
+                             scaling_html=_scaling_html(scaling, esc, table)
+                             if scaling is not None else "",
+                             combined=(scaling or {}).get("combined"),
+                             combination=str((scaling or {}).get("combination", "")))
     written.append(atomic_write_text(out / "suite.html", page))
     return written
 
