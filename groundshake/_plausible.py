@@ -80,6 +80,23 @@ RANGES: dict[str, Range] = {
                             ((1e3, "tonnes typed as kg"), (1e-3, "grams typed as kg"),
                              (1.0 / 9.80665, "a weight in N typed as mass")),
                             hint_when_unusual=True),
+    # A dimension of a foundation block or mat: pads of 0.1 m, mats of tens of metres;
+    # a turbine-generator mat reaches about 100 m (common practice). 2000 is a block's
+    # 2 m typed in mm.
+    "part_size": Range("m", 0.01, 0.05, 150.0, 500.0,
+                       "any foundation part", "any foundation block or mat (about 100 m)",
+                       ((1e-3, "mm typed as m"), (1e-2, "cm typed as m"))),
+    # Height of equipment's centre of gravity above its mount: tens of mm for a skid, a
+    # few metres for a tall transformer or tank (common practice); 500 is 0.5 m in mm.
+    "cg_height": Range("m", None, None, 15.0, 100.0,
+                       "", "any anchored equipment (a few metres)",
+                       ((1e-3, "mm typed as m"), (1e-2, "cm typed as m"))),
+    # Anchor bolt capacities per bolt: an M10 bolt carries some tens of kN, large cast-in
+    # anchors about 1 MN (from memory of ACI 318-19 Ch. 17 and EN 1992-4 worked examples;
+    # verify). Below 100 N no anchor holds equipment: kN typed as N.
+    "bolt_capacity": Range("N", 100.0, 2e3, 5e6, 1e8,
+                           "any anchor bolt (tens of kN)", "any anchor bolt (about 1 MN)",
+                           ((1e3, "kN typed as N"), (1e6, "MN typed as N"))),
     # Damping in percent. Measured damping of concrete and steel structures is rarely
     # below 0.5 % and screening spectra use 0.5-20 % (common practice; 5 % in ASCE 7-16
     # §11.4 and EN 1998-1 §3.2.2.2). A value below 0.25 % is a ratio typed for percent.

@@ -2,16 +2,18 @@
 
 Public names: :func:`compute_modes`, :class:`Modes`, :func:`lowest_modes`;
 motion and response: :class:`Motion`, :func:`build_motion`, :func:`motion_from_arrays`,
-:func:`modal_response`, :func:`residual_vectors`, :func:`direct_response`.
+:func:`modal_response`, :func:`residual_vectors`, :func:`coupled_response` (the whole
+damping matrix on modes plus missing-mass vectors), :func:`direct_response`.
 """
 from ._modes import Modes, compute_modes, lowest_modes
 from ._direct import DirectResponse, direct_response, newmark_parameters, substeps_for
 from ._modal import (ModalResponse, coupled_modal_response, modal_response, pruned_peak,
                      residual_vectors)
 from ._motion import Motion, build_motion, motion_from_arrays
+from ._coupled import coupled_response, ritz_basis
 
 __all__ = ["Modes", "compute_modes", "lowest_modes",
            "Motion", "build_motion", "motion_from_arrays",
            "ModalResponse", "modal_response", "coupled_modal_response", "residual_vectors",
-           "pruned_peak",
+           "pruned_peak", "coupled_response", "ritz_basis",
            "DirectResponse", "direct_response", "newmark_parameters", "substeps_for"]

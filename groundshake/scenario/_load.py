@@ -406,6 +406,7 @@ def _build(data: Any, ctx: _Context) -> Scenario:
     _check_damping(values, ctx)
     _check_motion(values, ctx)
     _check_floor_spectra(values, ctx)
+    _check_suite(values, ctx)
     values["equipment"] = _complete_equipment(values, ctx)
     _check_names(values, "sensors", ctx)
     _geometry.check_geometry(values, ctx)
@@ -502,6 +503,9 @@ def _check_plausible(values, ctx):
     for name, m in (values.get("materials") or {}).items():
         for key in ("youngs_modulus", "density", "poisson_ratio"):
             _plausible(key, getattr(m, key), ("materials", name, key), ctx)
+    for i, part in enumerate(values.get("parts") or ()):
+        for j, length in enumerate(part.size):
+            _plausible("part_size", length, ("parts", i, "size", j), ctx)
     s = values.get("support")
     if s is not None and s.kind == "soil":
         for key, quantity in (("shear_wave_velocity", "shear_wave_velocity"),
@@ -521,6 +525,12 @@ def _check_plausible(values, ctx):
     for i, e in enumerate(values.get("equipment") or ()):
         _plausible("equipment_mass", e.mass, ("equipment", i, "mass"), ctx)
         _plausible("damping_percent", e.damping_percent, ("equipment", i, "damping_percent"), ctx)
+        _plausible("cg_height", e.cg_height, ("equipment", i, "cg_height"), ctx)
+        cap = getattr(e, "capacity", None)
+        if cap is not None:
+            for key in ("tension", "shear"):
+                _plausible("bolt_capacity", getattr(cap, key, None),
+                           ("equipment", i, "capacity", key), ctx)
         if getattr(e, "fp", None) is not None:
             _plausible("sds", e.fp.sds, ("equipment", i, "fp", "sds"), ctx)
     fs = values.get("floor_spectra")
@@ -588,6 +598,17 @@ def _check_motion(values, ctx):
     if m.target_z is not None and m.target is None:
         raise ctx.bad(("motion", "target_z"), m.target_z, "a vertical target only beside a "
                       "horizontal target")
+
+
+def _check_suite(values, ctx):
+    st = values.get("suite")
+    if st is None:
+        return
+    r = st.scale_range
+    if len(r) != 2 or not r[0] < r[1]:
+        raise ctx.bad(("suite", "scale_range"), list(r), "two numbers [low, high], 0 < low < high")
+    if st.scale_to is not None:
+        _check_target(st.scale_to, ("suite", "scale_to"), ctx)
 
 
 def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
