@@ -376,7 +376,7 @@ def _settings(shared, item):
 
     return {"record": item["name"], "status": "ok", "numba": numba.get_num_threads(),
             "kernel": kernel_threads(), "env": os.environ.get("GROUNDSHAKE_THREADS"),
-            "malloc": _engine._process_ready and _engine._glibc() is not None}
+            "malloc": _engine._malloc_tuned}
 
 
 def test_workers_run_compiled_kernels_on_one_thread():

@@ -24,6 +24,10 @@ again and the waiting sets resubmitted. Each task announces its start (a Dask
 event), so a set past its limit is cancelled and reported failed, and silence from
 the scheduler for longer than any set may take ends the run with a clear error.
 
+Every worker (pool or Dask) is set up by :func:`_prepare_worker` before a set:
+compiled kernels on one thread, and (glibc) an allocator that keeps medium-sized
+arrays on its heap, with free memory given back after each set.
+
 The time limit inside a worker is soft: the computing thread receives an exception
 at the limit (delivered between Python steps, so one long compiled call finishes
 first). The hard stop (above) catches what the soft one cannot; in this process
@@ -251,7 +255,7 @@ def _one_compiled_thread() -> None:
     try:
         import numba
 
-        numba.set_num_threads(1)    # numba's setting is per thread: call it in the task's
+        numba.set_num_threads(1)    # per thread in numba: called in the computing one
     except Exception as e:  # noqa: BLE001 - an optional speed setting, never fatal
         log.debug("suite: numba threads left as they are (%s)", e)
 
@@ -262,6 +266,7 @@ _MMAP_THRESHOLD_B = 32 * 1024 * 1024     # glibc's own ceiling for its sliding t
 _TRIM_THRESHOLD_B = 2 * _MMAP_THRESHOLD_B
 _libc: Any = None
 _process_ready = False
+_malloc_tuned = False
 
 
 def _glibc():
@@ -293,18 +298,18 @@ def _prepare_worker() -> dict:
     Returns what is in force (for tests and the benchmark): ``numba_threads``,
     ``kernel_threads`` and ``malloc_tuned``.
     """
-    global _process_ready
+    global _process_ready, _malloc_tuned
     _one_compiled_thread()
     if not _process_ready:
         _process_ready = True
         os.environ.setdefault("GROUNDSHAKE_THREADS", "1")
         lib = _glibc()
         if lib is not None:
-            ok = (lib.mallopt(_M_MMAP_THRESHOLD, _MMAP_THRESHOLD_B) == 1
-                  and lib.mallopt(_M_TRIM_THRESHOLD, _TRIM_THRESHOLD_B) == 1)
-            if not ok:
+            _malloc_tuned = (lib.mallopt(_M_MMAP_THRESHOLD, _MMAP_THRESHOLD_B) == 1
+                             and lib.mallopt(_M_TRIM_THRESHOLD, _TRIM_THRESHOLD_B) == 1)
+            if not _malloc_tuned:
                 log.debug("suite: the allocator settings were not taken")
-    out = {"numba_threads": None, "kernel_threads": None, "malloc_tuned": _glibc() is not None}
+    out = {"numba_threads": None, "kernel_threads": None, "malloc_tuned": _malloc_tuned}
     try:
         import numba
 
