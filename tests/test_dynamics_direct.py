@@ -3,7 +3,7 @@
 Sources: the independent reference is scipy.signal.cont2discrete(method="foh") of
 the full state-space system (exact for ground acceleration linear between samples);
 Newmark (1959) and Hilber, Hughes & Taylor (1977) for the scheme's parameters and
-period error (REFERENCES.md §2).
+period error (docs/references.md §2).
 """
 from __future__ import annotations
 
@@ -55,7 +55,7 @@ def test_newmark_sdof_matches_exact_foh():
     res = direct_response(K, M, C, iota, ag, dt, output=sp.identity(1, format="csr"))
     ref = foh_reference(K, M, C, iota, ag, dt)
     # scipy cont2discrete foh is exact; Newmark period error (Ω/2)/atan(Ω/2) − 1 ≈ 8e-5
-    # at T/200 (Newmark 1959, REFERENCES.md §2), so 0.5 % on the peak is ample.
+    # at T/200 (Newmark 1959, docs/references.md §2), so 0.5 % on the peak is ample.
     assert np.max(np.abs(res.disp)) == pytest.approx(np.max(np.abs(ref)), rel=5e-3)
     np.testing.assert_allclose(res.disp[0], ref[0], atol=5e-3 * np.max(np.abs(ref)))
 
@@ -116,7 +116,7 @@ def test_hht_parameters_and_low_frequency_accuracy():
 def test_hht_spectral_radius_at_high_frequency():
     # free vibration of a stiff undamped oscillator stepped far beyond its period: each step
     # multiplies the amplitude by about the spectral radius (1 + α)/(1 − α) (HHT 1977, §2 of
-    # REFERENCES.md); start it with a ground step and watch the decay
+    # docs/references.md); start it with a ground step and watch the decay
     w = 2 * np.pi * 200.0
     K, M, iota = chain(1, k=w * w * 1.0, m=1.0)
     dt = 0.01                                             # ωΔt ≈ 12.6

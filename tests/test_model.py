@@ -2,7 +2,7 @@
 
 Sources: Kramer (1996) Geotechnical Earthquake Engineering ch. 7, shear column
 fn = (2n−1)Vs/(4H); Gazetas (1991) J. Geotech. Eng. 117(9), rigid rectangle and circle
-(REFERENCES.md §8, square vs circle of equal area within 1 % translation, 10 % rocking);
+(docs/references.md §8, square vs circle of equal area within 1 % translation, 10 % rocking);
 rigid-body dynamics (parallel-axis theorem, common practice) for the 6×6 check;
 Chopra, Dynamics of Structures: SDOF f = √(k/m)/2π (§2.1), Rayleigh damping
 (§11.4), effective modal masses sum to the total mass (§13.2); statics/D'Alembert for
@@ -77,7 +77,7 @@ def test_axial_rod_through_build_model():
         md = compute_modes(m, n_modes=12)
     iz = np.flatnonzero(md.effective_mass_ratio[:, 2] > 0.5)[0]
     ref = 1 / (4 * 8.0) * np.sqrt(30e9 / 2400.0)
-    # rod closed form (REFERENCES.md §7), 1 %
+    # rod closed form (docs/references.md §7), 1 %
     assert md.frequency[iz] == pytest.approx(ref, rel=0.01)
     # first axial mode carries 8/π² of the rod's mass (rod modal analysis, closed form);
     # here the base-node mass is not driven, so compare with the model's total
@@ -124,7 +124,7 @@ def test_gazetas_square_vs_circle_of_equal_area():
     assert imp.shear_modulus == pytest.approx(G, rel=1e-12)
     R = np.sqrt(4 * half ** 2 / np.pi)
     ref = circle_stiffness(R, shear_modulus=G, poisson_ratio=nu)
-    # REFERENCES.md §8: a square agrees with the circle of equal area within about 1 %
+    # docs/references.md §8: a square agrees with the circle of equal area within about 1 %
     # (translations) and 10 % (rocking)
     np.testing.assert_allclose(imp.stiffness[:3], ref[:3], rtol=0.01)
     np.testing.assert_allclose(imp.stiffness[3:5], ref[3:5], rtol=0.10)
@@ -140,7 +140,7 @@ def test_gazetas_orientation_and_dashpots():
     np.testing.assert_allclose(b.stiffness, a.stiffness[[1, 0, 2, 4, 3, 5]], rtol=1e-12)
     # Gazetas (1991): Kx ≤ Ky with x along the long side; rocking about the long axis softer
     assert a.stiffness[0] < a.stiffness[1] and a.stiffness[3] < a.stiffness[4]
-    # REFERENCES.md §8 dashpots: Cz = ρ·VLa·A, VLa = 3.4Vs/(π(1−ν)); Ch = ρVs·A
+    # docs/references.md §8 dashpots: Cz = ρ·VLa·A, VLa = 3.4Vs/(π(1−ν)); Ch = ρVs·A
     area = 12.0
     assert a.damping[2] == pytest.approx(1900 * 3.4 * 200 / (np.pi * 0.65) * area, rel=1e-12)
     assert a.damping[0] == pytest.approx(1900 * 200 * area, rel=1e-12)

@@ -3,8 +3,8 @@
 Sources (rules of thumb of the trade): elements no larger than about 1/10 of the
 shear wavelength (Kuhlemeyer & Lysmer 1973, "1/8 to 1/10 of the wavelength", from
 memory); at least ~10 samples per period of the highest frequency of interest
-(Phillips et al. 2012, REFERENCES.md §3); 90 % of the mass in the retained modes
-(ASCE 7-16 §12.9.1.1, REFERENCES.md §6); a linear soil-spring model needs the base to
+(Phillips et al. 2012, docs/references.md §3); 90 % of the mass in the retained modes
+(ASCE 7-16 §12.9.1.1, docs/references.md §6); a linear soil-spring model needs the base to
 stay in compression (common practice). Records are invented test signals.
 """
 from __future__ import annotations
