@@ -11,7 +11,8 @@ The excitation called "noise" below is invented test data (seeded random numbers
 """
 import numpy as np
 import pytest
-from scipy import signal
+
+from _oracles import sdof_foh
 
 from groundshake import InputError
 from groundshake.spectra import kernel_engine, oscillator_history, oscillator_peaks
@@ -37,15 +38,6 @@ def _noise(n, seed=1):
     return np.convolve(rng.standard_normal(n), np.ones(5) / 5, "same")
 
 
-def _scipy_foh(acc, dt, omega, xi):
-    """Reference response (x, v, absolute acceleration) by scipy's first-order hold."""
-    a = np.array([[0.0, 1.0], [-omega ** 2, -2 * xi * omega]])
-    b = np.array([[0.0], [-1.0]])
-    c = np.array([[1.0, 0.0], [0.0, 1.0], [-omega ** 2, -2 * xi * omega]])
-    sysd = signal.cont2discrete((a, b, c, np.zeros((3, 1))), dt, method="foh")
-    # scipy's foh state is x - D u; start from rest: x0 = -D[:2] u0
-    _, y, _ = signal.dlsim(sysd, acc, x0=-sysd[3][:2, 0] * acc[0])
-    return y
 
 
 PERIODS = np.array([0.05, 0.1, 0.3, 1.0, 3.0, 10.0])
@@ -59,11 +51,11 @@ def scipy_case():
     acc = _noise(n)
     tt, zz = np.meshgrid(PERIODS, DAMPING)
     omega, xi = 2 * np.pi / tt.ravel(), zz.ravel()
-    refs = [_scipy_foh(acc, dt, omega[k], xi[k]) for k in range(omega.size)]
+    refs = [sdof_foh(acc, dt, omega[k], xi[k]) for k in range(omega.size)]
     return dt, acc, omega, xi, refs
 
 
-def test_peaks_and_histories_match_scipy_foh(engine, scipy_case):
+def test_peaks_and_histories_matchsdof_foh(engine, scipy_case):
     dt, acc, omega, xi, refs = scipy_case
     p = oscillator_peaks(acc, dt, omega, xi)
     d, v, aa = oscillator_history(acc, dt, omega, xi)
@@ -86,7 +78,7 @@ def test_long_period_undamped_matches_scipy(engine):
     dt, n = 0.005, 3000
     acc = _noise(n, seed=7)
     omega = 2 * np.pi / 10.0
-    y = _scipy_foh(acc, dt, omega, 0.0)
+    y = sdof_foh(acc, dt, omega, 0.0)
     p = oscillator_peaks(acc, dt, np.array([omega]), 0.0)
     np.testing.assert_allclose([p.disp[0], p.vel[0], p.abs_acc[0]], np.abs(y).max(0), rtol=1e-9)
 
