@@ -18,8 +18,8 @@ import numpy as np
 from .. import __version__
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
+from .._constants import STANDARD_GRAVITY
 from .._progress import Progress
-from ..records import STANDARD_GRAVITY
 from . import _figures as F
 from ._html import (CSS, esc, figure, key_values, num, section, table, toml_text,
                     unit_of_key, value_html)

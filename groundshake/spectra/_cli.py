@@ -12,11 +12,12 @@ import numpy as np
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
 from .._cli_common import float_list, print_json, table
+from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_spectrum"]
 
-G = 9.80665
+G = STANDARD_GRAVITY
 _PLOT_SUFFIXES = (".png", ".pdf", ".svg")
 _SHOWN_PERIODS = (0.01, 0.02, 0.05, 0.1, 0.2, 0.3, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0)
 #: Largest departure from a right angle between two paired horizontals [deg] before a warning.
