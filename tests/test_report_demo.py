@@ -16,11 +16,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from test_report_fixture import demo_run, pipeline_available
+from _report_fixture import demo_run, make_output_folder
 
 ROOT = Path(__file__).resolve().parents[1]
-needs_pipeline = pytest.mark.skipif(not pipeline_available(),
-                                    reason="the run pipeline (results, spectra) is not installed")
 
 
 def test_packaged_example_equals_the_repository_example():
@@ -50,7 +48,6 @@ def test_regenerated_demo_records_equal_the_shipped_ones(tmp_path):
             np.testing.assert_array_equal(a.data, b.data)
 
 
-@needs_pipeline
 def test_demo_writes_the_report_and_says_where():
     status, out, folder = demo_run()
     assert status == 0                                          # Unix convention: success
@@ -69,7 +66,6 @@ def test_demo_writes_the_report_and_says_where():
     assert not [p for p in folder.iterdir() if p.name.startswith(".")]
 
 
-@needs_pipeline
 def test_demo_refuses_an_existing_folder_without_force(capsys):
     from groundshake.cli import main
 
@@ -92,7 +88,6 @@ def test_demo_into_a_file_is_refused(tmp_path, capsys):
 
 def test_report_command_refuses_to_overwrite_without_force(tmp_path, capsys):
     from groundshake.cli import main
-    from test_report_fixture import make_output_folder
 
     out = make_output_folder(tmp_path / "run", files=())
     assert main(["report", str(out), "--quiet"]) == 0
@@ -108,7 +103,6 @@ def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
     import groundshake.results as results
     from groundshake.cli import main
     from groundshake.report import write_report
-    from test_report_fixture import make_output_folder
 
     class Fake:
         summary = {"title": "stub", "warnings": [], "provenance": {}}
