@@ -19,7 +19,7 @@ import warnings
 from . import __version__
 from ._cli_common import common_options
 from ._errors import GroundshakeError, GroundshakeWarning
-from ._progress import set_quiet
+from ._progress import show_progress
 
 __all__ = ["main", "build_parser"]
 
@@ -71,10 +71,10 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as e:          # argparse: --help, --version, usage errors
         return int(e.code or 0)
     debug = bool(getattr(args, "debug", False))
-    set_quiet(bool(getattr(args, "quiet", False)))
     if not getattr(args, "command", None):
         parser.print_help(sys.stderr)
         return 2
+    old_progress = show_progress(not bool(getattr(args, "quiet", False)))  # the CLI draws
     old_show = warnings.showwarning
     warnings.showwarning = _show_warning
     old_term = _term_as_interrupt()
@@ -104,6 +104,7 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write("groundshake: interrupted; earlier output was left as it was\n")
         return 130
     finally:
+        show_progress(old_progress)
         warnings.showwarning = old_show
         if old_term is not None:
             signal.signal(signal.SIGTERM, old_term)
