@@ -65,3 +65,16 @@ def test_cited_reference_sheet_is_in_the_repository():
     for test in (ROOT / "tests").glob("*.py"):
         cited |= set(re.findall(r"docs/references\.md §(\d+)", test.read_text(encoding="utf-8")))
     assert cited and cited <= sections
+
+
+def test_tutorial_scenario_is_valid_and_has_the_mass_it_describes():
+    # the TOML of docs/getting-started.md, read as if saved in the repository's top folder
+    text = (ROOT / "docs" / "getting-started.md").read_text(encoding="utf-8")
+    blocks = re.findall(r"```toml\n(.*?)```", text, re.S)
+    assert len(blocks) == 1
+    from groundshake.scenario import parse_scenario_text
+
+    scen = parse_scenario_text(blocks[0], source="my-first.toml", base_dir=ROOT)
+    # the plinth's mass ρ·V = 2400 kg/m³ × 3 × 2 × 0.8 m³ (closed form) and the pump's 3 t
+    assert scen.parts[0].size == (3.0, 2.0, 0.8)
+    assert 2400.0 * 3.0 * 2.0 * 0.8 + scen.equipment[0].mass == pytest.approx(14520.0)
