@@ -9,12 +9,37 @@ from __future__ import annotations
 import contextlib
 import os
 import shutil
+import stat
 import tempfile
 from pathlib import Path
 from typing import Iterator
 
 __all__ = ["atomic_path", "atomic_write_text", "atomic_write_bytes", "atomic_directory",
            "atomic_savefig"]
+
+
+def _umask() -> int:
+    """The process's umask, read without changing it where the system allows."""
+    try:    # Linux >= 4.7 reports it; os.umask() alone would change it for a moment
+        with open("/proc/self/status", encoding="ascii") as fh:
+            for line in fh:
+                if line.startswith("Umask:"):
+                    return int(line.split()[1], 8)
+    except (OSError, ValueError, IndexError):
+        pass
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
+
+
+def _plain_mode(target: Path, *, folder: bool) -> int:
+    """The permission bits ``open(target, "w")`` (or ``mkdir``) would give ``target``."""
+    try:
+        if target.exists() and target.is_dir() == folder:
+            return stat.S_IMODE(target.stat().st_mode)
+    except OSError:
+        pass
+    return (0o777 if folder else 0o666) & ~_umask()
 
 
 @contextlib.contextmanager
@@ -33,6 +58,8 @@ def atomic_path(path: str | os.PathLike, *, suffix: str | None = None) -> Iterat
     tmp_path = Path(tmp)
     try:
         yield tmp_path
+        if tmp_path.exists():
+            os.chmod(tmp_path, _plain_mode(path, folder=False))
         os.replace(tmp_path, path)
     finally:
         if tmp_path.exists():
@@ -82,6 +109,7 @@ def atomic_directory(path: str | os.PathLike, *, overwrite: bool = False) -> Ite
     tmp = Path(tempfile.mkdtemp(prefix=f".{path.name}.", suffix=".part", dir=parent))
     try:
         yield tmp
+        os.chmod(tmp, _plain_mode(path, folder=True))
         if path.exists():
             if not overwrite:
                 raise FileExistsError(f"{path}: already exists")

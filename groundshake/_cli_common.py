@@ -11,7 +11,8 @@ import numpy as np
 
 from ._errors import InputError
 
-__all__ = ["common_options", "print_json", "to_jsonable", "float_list", "json_dumps"]
+__all__ = ["common_options", "print_json", "to_jsonable", "float_list", "json_dumps",
+           "check_damping_percent"]
 
 
 def common_options() -> argparse.ArgumentParser:
@@ -76,6 +77,23 @@ def float_list(text: str, *, name: str, positive: bool = False,
         if minimum is not None and v < minimum:
             raise InputError(f"{name}: {v:g} must be >= {minimum:g}")
     return values
+
+
+def check_damping_percent(values: Iterable[float], *, name: str = "--damping") -> None:
+    """Stop on a damping that can only be a ratio typed for percent (0.05 for 5 %);
+    warn on an unusual one (ranges in :mod:`groundshake._plausible`).
+
+    Parameters
+    ----------
+    values : iterable of float
+        Damping in percent of critical, as the option gives it.
+    name : str
+        The option, for the message.
+    """
+    from ._plausible import check_value
+
+    for v in values:
+        check_value("damping_percent", float(v), key=name, stacklevel=2)
 
 
 def table(rows: Iterable[Iterable[Any]], header: Iterable[str]) -> str:

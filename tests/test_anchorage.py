@@ -63,7 +63,7 @@ def test_offset_group_shifts_moments_to_centroid():
 def test_fp_formula_and_bounds():
     W = 18000.0 * G
     r = fp_comparison(weight=W, sds=1.0, ap=2.5, rp=2.5, ip=1.5, z_over_h=1.0, anchors=BOLTS,
-                      mass=18000.0, cg_height=1.6)
+                      mass=18000.0, cg_height=1.6, dead_load_factor=1.0)   # the whole weight
     # ASCE 7-16 §13.3.1: 0.4·2.5·1.0·W·(1 + 2)/(2.5/1.5) = 1.8 W, capped at 1.6·SDS·Ip·W = 2.4 W
     assert r["fp_unbounded"] == pytest.approx(1.8 * W, rel=1e-12)
     assert r["fp"] == pytest.approx(1.8 * W, rel=1e-12)
@@ -75,3 +75,33 @@ def test_fp_formula_and_bounds():
     t_hand = r["fp"] * 1.6 / (2 * 1.2) - (W - r["fv"]) / 4
     assert r["peak_tension"] == pytest.approx(t_hand, rel=1e-12)
     assert r["note"] == SCREENING_WORDING and "not a code capacity check" in r["note"]
+
+
+# ---- tension–shear interaction (screening ratio against the user's capacities)
+from groundshake.results._anchorage import bolt_interaction  # noqa: E402
+
+
+def test_interaction_power_form():
+    t = np.array([60e3, 0.0, -5e3, 30e3])
+    v = np.array([0.0, 40e3, 20e3, 20e3])
+    r = bolt_interaction(t, v, tension_capacity=60e3, shear_capacity=40e3)
+    # (T/Tc)^(5/3) + (V/Vc)^(5/3) (ACI 318-19 R17.8, from memory); compression counts as 0
+    expect = [1.0, 1.0, 0.5 ** (5 / 3), 0.5 ** (5 / 3) + 0.5 ** (5 / 3)]
+    np.testing.assert_allclose(r, expect, rtol=1e-12)
+
+
+def test_interaction_trilinear_form():
+    t = np.array([50e3, 10e3, 50e3])
+    v = np.array([5e3, 40e3, 30e3])
+    r = bolt_interaction(t, v, tension_capacity=100e3, shear_capacity=50e3, form="trilinear")
+    # ACI 318-19 §17.8 (from memory): V/Vc = 0.1 ≤ 0.2 → T/Tc; T/Tc = 0.1 ≤ 0.2 → V/Vc;
+    # otherwise (T/Tc + V/Vc)/1.2
+    np.testing.assert_allclose(r, [0.5, 0.8, (0.5 + 0.6) / 1.2], rtol=1e-12)
+
+
+def test_interaction_rejects_bad_input():
+    with pytest.raises(ValueError, match="capacities"):
+        bolt_interaction(np.ones(2), np.ones(2), tension_capacity=0.0, shear_capacity=1.0)
+    with pytest.raises(ValueError, match="allowed"):
+        bolt_interaction(np.ones(2), np.ones(2), tension_capacity=1.0, shear_capacity=1.0,
+                         form="linear")

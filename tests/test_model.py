@@ -107,10 +107,17 @@ def test_stiff_block_on_soil_matches_rigid_body_eigenproblem(springs):
     imp = gazetas_rectangle(4.0, 3.0, shear_wave_velocity=150.0, poisson_ratio=0.3,
                             density=1800.0, warn=False)
     m = 2400.0 * 4 * 3 * 1
-    lam = _rigid_body_6x6(m, 4.0, 3.0, 1.0, imp.stiffness)
-    # 6x6 rigid block on the Gazetas (1991) springs, parallel-axis mass: 0.5 %
+    k6 = imp.stiffness.copy()
+    if springs == "distributed":
+        # a uniform Winkler bed k_d = K_d/A under a rigid base rocks with k_z·I and twists with
+        # k_x·Ix + k_y·Iy (Winkler foundation statics; I of a rectangle b·h³/12, common practice)
+        A, Ix, Iy = 12.0, 4.0 * 3.0 ** 3 / 12, 3.0 * 4.0 ** 3 / 12
+        k6[3], k6[4] = k6[2] * Ix / A, k6[2] * Iy / A
+        k6[5] = (k6[0] * Ix + k6[1] * Iy) / A
+    lam = _rigid_body_6x6(m, 4.0, 3.0, 1.0, k6)
+    # 6x6 rigid block on the Gazetas (1991) springs (or the bed's), parallel-axis mass: 0.5 %
     np.testing.assert_allclose(md.frequency, np.sqrt(lam) / (2 * np.pi), rtol=5e-3)
-    fz = np.sqrt(imp.stiffness[2] / m) / (2 * np.pi)
+    fz = np.sqrt(k6[2] / m) / (2 * np.pi)
     iz = np.argmax(md.effective_mass_ratio[:, 2])
     # vertical mode sqrt(Kz/m)/2π (uncoupled, SDOF, Chopra §2.1): 0.5 %
     assert md.frequency[iz] == pytest.approx(fz, rel=5e-3)
@@ -160,8 +167,14 @@ def test_effective_masses_sum_to_total_mass_and_warning():
         model = build_model(scenario(**{**_as_dict(s), "support": sup}))
         md = compute_modes(model, n_modes=model.n_dof, warn=False)
         assert md.n_modes == model.n_dof
-        # Chopra §13.2: Σ effective modal masses over all modes = total mass (ιᵀMι)
-        np.testing.assert_allclose(md.effective_mass.sum(axis=0), model.total_mass, rtol=1e-9)
+        # Chopra §13.2: Σ effective modal masses over all modes = the mass the ground load
+        # drives, Lᵀ M⁻¹ L; with the mass moving rigidly with the ground (fixed base nodes,
+        # Clough & Penzien support excitation) it makes up the whole mass ρV + equipment
+        np.testing.assert_allclose(md.effective_mass.sum(axis=0) + model.rigid_mass,
+                                   model.total_mass, rtol=1e-9)
+        np.testing.assert_allclose(model.total_mass, 2400.0 * 1.0 + 500.0, rtol=1e-12)
+        if sup["kind"] == "soil":   # nothing is held by the ground on springs (definition)
+            np.testing.assert_allclose(model.rigid_mass, 0.0, atol=1e-9)
     with pytest.warns(GroundshakeWarning, match="ASCE 7-16"):
         compute_modes(model, n_modes=2)   # 2 modes cannot hold 90 % in every direction
 
@@ -201,7 +214,7 @@ def test_static_base_reaction_equals_inertia(support):
     R = model.reaction
     m_blk = 2400.0 * 4 * 3 * 1
     for a in range(2):
-        u = model.factor().solve(-(model.M @ model.influence[:, a]))
+        u = model.factor().solve(-model.ground_load[:, a])
         r = R.K @ u + R.G[:, a]
         # D'Alembert statics: the structure pushes its support with −(total mass)·a_g
         assert r[a] == pytest.approx(-(m_blk + 3000.0), rel=1e-8)
@@ -210,7 +223,7 @@ def test_static_base_reaction_equals_inertia(support):
         sign = 1 if a == 0 else -1
         assert r[4 if a == 0 else 3] == pytest.approx(sign * mom, rel=1e-8)
     # vertical: the whole mass, and the weight includes block + equipment (g = 9.80665)
-    u = model.factor().solve(-(model.M @ model.influence[:, 2]))
+    u = model.factor().solve(-model.ground_load[:, 2])
     assert (R.K @ u + R.G[:, 2])[2] == pytest.approx(-(m_blk + 3000.0), rel=1e-8)
     assert model.weight == pytest.approx(9.80665 * (m_blk + 3000.0), rel=1e-10)
 
@@ -284,3 +297,42 @@ def test_stepped_block_and_lumped_mass():
     assert np.all(M.row[nodes_only] == M.col[nodes_only])
     vol = 4 * 3 * 0.5 + 2 * 1 * 0.6
     assert model.weight == pytest.approx(9.80665 * (2400 * vol + 800.0), rel=1e-10)
+
+
+def test_distributed_bed_is_uniform_and_keeps_gazetas_totals():
+    # a flexible mat (6 × 4 × 0.4 m) on a distributed bed (issue 13 item 5)
+    s = scenario(parts=[{"name": "mat", "material": "c", "origin": [0, 0, 0],
+                         "size": [6.0, 4.0, 0.4]}], mesh={"element_size": 0.5},
+                 support=dict(SOIL, springs="distributed"))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", GroundshakeWarning)
+        model = build_model(s)
+    G, nu, L, B = 1800.0 * 150.0 ** 2, 0.3, 3.0, 2.0
+    kz = 2 * G * L / (1 - nu) * (0.73 + 1.54 * (B / L) ** 0.75)     # Gazetas (1991) Kz
+    # statics under 1 g down: the springs carry the weight, and the contact pressure of a
+    # uniform bed under a uniform mat is uniform, ρ·g·t (Winkler statics), node by node
+    u = model.factor().solve(-model.ground_load[:, 2] * 9.80665)
+    Kb = model._stiff_parts[0][1]                                     # the bed's springs
+    f = -(Kb @ u)
+    base = np.flatnonzero(np.isclose(model.nodes[:, 2], 0.0))
+    fz = f[model.node_map[3 * base + 2].indices]                      # free base DOFs
+    xs, ys = np.unique(model.nodes[base, 0]), np.unique(model.nodes[base, 1])
+    tx = np.diff(np.concatenate([[xs[0]], (xs[1:] + xs[:-1]) / 2, [xs[-1]]]))
+    ty = np.diff(np.concatenate([[ys[0]], (ys[1:] + ys[:-1]) / 2, [ys[-1]]]))
+    ixn = np.searchsorted(xs, model.nodes[base, 0])
+    iyn = np.searchsorted(ys, model.nodes[base, 1])
+    w = tx[ixn] * ty[iyn]                                             # tributary areas
+    p = fz / w
+    np.testing.assert_allclose(p, 2400.0 * 9.80665 * 0.4, rtol=1e-3)
+    # the bed's vertical total is Gazetas' Kz: a unit rigid translation (definition)
+    one = model.influence[:, 2]
+    assert one @ (Kb @ one) == pytest.approx(kz, rel=1e-10)
+    # radiation dashpots act on the averaged translation: Cz = ρ·VLa·A for a translation,
+    # nothing for a rigid rocking or twist (as with lumped springs; REFERENCES.md §8)
+    U, c = model.damping_update()
+    vla = 3.4 * 150.0 / (np.pi * 0.7)
+    assert c[2] * (U.T @ one)[2] ** 2 == pytest.approx(1800.0 * vla * 24.0, rel=1e-10)
+    nodes_z = np.zeros(model.node_map.shape[0])
+    nodes_z[2::3] = model.nodes[:, 1] - 2.0                           # θx: u_z = y − y_c
+    rock = model.node_map.T @ nodes_z        # no masters here: the map selects node DOFs
+    np.testing.assert_allclose(U.T @ rock, 0.0, atol=1e-9 * np.abs(U.T @ one).max())

@@ -2,8 +2,8 @@
 
 Sources (rules of thumb of the trade): elements no larger than about 1/10 of the
 shear wavelength (Kuhlemeyer & Lysmer 1973, "1/8 to 1/10 of the wavelength", from
-memory); at least ~10 samples per period of the highest frequency of interest
-(Phillips et al. 2012, docs/references.md §3); 90 % of the mass in the retained modes
+memory) at the highest frequency both modelled and carried by the record; a sampled
+record carries nothing above its Nyquist frequency 1/(2·dt) (sampling theorem); 90 % of the mass in the retained modes
 (ASCE 7-16 §12.9.1.1, docs/references.md §6); a linear soil-spring model needs the base to
 stay in compression (common practice). Records are invented test signals.
 """
@@ -53,19 +53,37 @@ def test_short_record_and_end_peak(warned):
     assert "peak occurs at the end of the record" in w
 
 
-def test_coarse_elements_and_coarse_step():
-    dt = 0.01
-    t = np.arange(300) * dt
+def test_coarse_elements():
+    dt = 0.005
+    t = np.arange(600) * dt
     ax = 2.0 * np.sin(2 * np.pi * 2.0 * t) * np.sin(np.pi * t / t[-1]) ** 2
     with pytest.warns(GroundshakeWarning):
         res = analyse(soft_soil_block(), motion=motion_from_arrays({"x": ax}, dt), progress=False)
     w = " | ".join(res.summary["warnings"])
     vs = math.sqrt(2.0e8 / (2 * 1.25) / 2000.0)     # block shear-wave velocity, 200 m/s
     f_hi = res.summary["modes"]["modes"][-1]["frequency"]
-    assert 0.5 > vs / (10 * f_hi)                    # precondition: 0.5-m elements too coarse
+    f_use = min(f_hi, 0.5 / dt)                      # modelled and carried by the record
+    assert 0.5 > vs / (10 * f_use)                   # precondition: 0.5-m elements too coarse
     assert "10 elements per wavelength" in w         # ~10 elements per wavelength (rule of thumb)
-    assert dt > 1 / (10 * f_hi)                      # precondition: under 10 samples a period
-    assert "coarser than 1/10 of the period" in w    # Phillips et al. 2012
+    # the record's Nyquist frequency is above every mode: nothing lies outside its band
+    assert "above the motion's usable band" not in w
+
+
+def test_modes_above_the_record_band():
+    dt = 0.05                                        # Nyquist 10 Hz
+    t = np.arange(200) * dt
+    ax = 2.0 * np.sin(2 * np.pi * 1.0 * t) * np.sin(np.pi * t / t[-1]) ** 2
+    with pytest.warns(GroundshakeWarning):
+        res = analyse(soft_soil_block(), motion=motion_from_arrays({"x": ax}, dt), progress=False)
+    w = " | ".join(res.summary["warnings"])
+    modes = res.summary["modes"]["modes"]
+    # precondition: a mode holding ≥ 5 % of the x mass above the Nyquist frequency 1/(2 dt)
+    # (sampling theorem: the record carries nothing there)
+    assert any(m["frequency"] > 0.5 / dt and m["effective_mass_ratio"]["x"] >= 0.05
+               for m in modes)
+    assert "above the motion's usable band" in w
+    # elements keyed to the band (10 Hz): 0.5 m < 200 m/s / (10 × 10 Hz), rule of thumb
+    assert "elements per wavelength" not in w
 
 
 def test_low_retained_mass_and_uplift(warned):

@@ -8,7 +8,7 @@ and is integrated exactly for piecewise-linear ground acceleration by the kernel
 that also serves the response spectra. The modes left out respond
 quasi-statically (missing mass, static residual)::
 
-    u_res(t) = Σ_d K⁻¹ (M ι_d − Σₙ Γₙd M φₙ) · (−a_d(t))
+    u_res(t) = Σ_d K⁻¹ (L_d − Σₙ Γₙd M φₙ) · (−a_d(t)),  L = M ι (+ M_fb ι_b, fixed base)
 
 The full displacement history is never stored: every result is a small operator
 times the modal histories (see :meth:`ModalResponse.recover`).
@@ -25,8 +25,8 @@ __all__ = ["ModalResponse", "modal_response", "residual_vectors", "pruned_peak"]
 
 
 def residual_vectors(M: sp.spmatrix, influence: np.ndarray, shapes: np.ndarray,
-                     participation: np.ndarray, solve: Callable[[np.ndarray], np.ndarray]
-                     ) -> np.ndarray:
+                     participation: np.ndarray, solve: Callable[[np.ndarray], np.ndarray],
+                     *, load: np.ndarray | None = None) -> np.ndarray:
     """Static residual shapes of the modes left out, one per ground direction.
 
     Parameters
@@ -38,9 +38,12 @@ def residual_vectors(M: sp.spmatrix, influence: np.ndarray, shapes: np.ndarray,
     shapes : ndarray (n, m)
         Mass-normalised mode shapes kept.
     participation : ndarray (m, 3)
-        Γₙd = φₙᵀ M ι_d.
+        Γₙd = φₙᵀ L_d.
     solve : callable
         ``solve(B)`` returns K⁻¹ B for B (n, 3) (the model's factor, reused).
+    load : ndarray (n, 3), optional
+        The ground load L [kg] (``BlockModel.ground_load``; M_ff ι_f + M_fb ι_b on a fixed
+        base); default M ι.
 
     Returns
     -------
@@ -50,9 +53,9 @@ def residual_vectors(M: sp.spmatrix, influence: np.ndarray, shapes: np.ndarray,
     References
     ----------
     Missing-mass (residual rigid) correction, e.g. USNRC RG 1.92 Rev. 3:
-    F_res = (M ι − Σ Γₙ M φₙ)·ZPA.
+    F_res = (L − Σ Γₙ M φₙ)·ZPA, L = M ι for a base that moves with the ground.
     """
-    Mi = np.asarray(M @ influence)
+    Mi = np.asarray(M @ influence) if load is None else np.asarray(load, dtype=float)
     B = Mi - np.asarray(M @ (shapes @ participation))
     return np.asarray(solve(B)).reshape(B.shape)
 

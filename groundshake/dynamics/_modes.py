@@ -1,7 +1,8 @@
 """Natural modes of the block model: shift-invert Lanczos on a sparse factorization.
 
 Solves K φ = ω² M φ for the lowest modes, mass-normalised (φᵀMφ = 1), and reports
-participation factors Γ = φᵀ M ι and effective modal masses Γ² per ground direction.
+participation factors Γ = φᵀ L and effective modal masses Γ² per ground direction, with
+L the model's ground load (M ι, or M_ff ι_f + M_fb ι_b on a fixed base).
 """
 from __future__ import annotations
 
@@ -30,10 +31,12 @@ class Modes:
     ----------
     omega, frequency, period : (m,) [rad/s], [Hz], [s].
     shapes : (n, m) mass-normalised mode shapes (φᵀMφ = 1).
-    participation : (m, 3) Γ = φᵀMι [kg^½] for ground x, y, z.
-    effective_mass : (m, 3) Γ² [kg]; effective_mass_ratio : (m, 3) Γ² / ιᵀMι;
+    participation : (m, 3) Γ = φᵀL [kg^½] for ground x, y, z (L the ground load).
+    effective_mass : (m, 3) Γ² [kg]; effective_mass_ratio : (m, 3) Γ² / total mass;
     cumulative_ratio : (m, 3). damping : (m,) modal damping ratios (composite).
-    total_mass : (3,) ιᵀMι [kg]. warnings : list of str.
+    total_mass : (3,) [kg], every mass of the model. rigid_mass : (3,) [kg], the mass that
+    moves rigidly with the ground (m − Lᵀ M⁻¹ L; the base nodes' share on a fixed base),
+    so that Σ over all modes of Γ² + rigid_mass = total_mass. warnings : list of str.
     """
 
     omega: np.ndarray
@@ -49,6 +52,7 @@ class Modes:
     warnings: list
     solver: str = ""
     timings: dict | None = None
+    rigid_mass: np.ndarray | None = None
 
     @property
     def n_modes(self) -> int:
@@ -76,7 +80,9 @@ class Modes:
                 "cumulative_ratio": dict(zip(_DIRS, map(float, self.cumulative_ratio[i]))),
                 "dominant_direction": dom[i],
             })
+        rigid = np.zeros(3) if self.rigid_mass is None else self.rigid_mass
         return {"total_mass": dict(zip(_DIRS, map(float, self.total_mass))),
+                "rigid_mass": dict(zip(_DIRS, map(float, rigid))),
                 "n_modes": self.n_modes,
                 "captured_ratio": dict(zip(_DIRS, map(float, self.cumulative_ratio[-1])))
                 if self.n_modes else {d: 0.0 for d in _DIRS},
@@ -302,12 +308,20 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     freq = omega / (2 * np.pi)
     with np.errstate(divide="ignore"):
         period = np.where(freq > 0, 1.0 / np.where(freq > 0, freq, 1.0), np.inf)
-    gamma = phi.T @ (M @ model.influence)  # (m, 3)
+    load = getattr(model, "ground_load", None)
+    if load is None:
+        load = M @ model.influence
+    gamma = phi.T @ np.asarray(load)  # (m, 3)
     meff = gamma ** 2
     total = np.asarray(model.total_mass, float)
     ratio = meff / total[None, :]
     cum = np.cumsum(ratio, axis=0)
-    msgs = mass_captured_warnings(cum, excited)
+    rigid = np.asarray(getattr(model, "rigid_mass", np.zeros(3)), float)
+    # the mass moving rigidly with the ground needs no mode: judge what the modes capture
+    # of the mass that can move relative to the ground
+    with np.errstate(divide="ignore", invalid="ignore"):
+        dyn_cum = np.where(total - rigid > 0, np.cumsum(meff, axis=0) / (total - rigid), 1.0)
+    msgs = mass_captured_warnings(dyn_cum, excited)
     if warn:
         for msg in msgs:
             warnings.warn(msg, GroundshakeWarning, stacklevel=2)
@@ -324,4 +338,4 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
                  participation=gamma, effective_mass=meff, effective_mass_ratio=ratio,
                  cumulative_ratio=cum, damping=damping, total_mass=total, warnings=msgs,
                  solver=f"{getattr(fac, 'kind', '')} + {method}",
-                 timings={"factor": t_factor, "eigen": t_eig})
+                 timings={"factor": t_factor, "eigen": t_eig}, rigid_mass=rigid)

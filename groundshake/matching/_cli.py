@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import float_list, print_json, table
+from .._cli_common import check_damping_percent, float_list, print_json, table
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_match"]
@@ -45,6 +45,7 @@ def cmd_match(args: argparse.Namespace) -> int:
     damping = [d / 100.0 for d in float_list(args.damping, name="--damping", positive=True)]
     if any(d >= 1 for d in damping):
         raise InputError(f"--damping {args.damping}: percent of critical, allowed 0 < value < 100")
+    check_damping_percent(100.0 * d for d in damping)
     band = None
     if args.band is not None:
         band = float_list(args.band, name="--band", positive=True)
@@ -220,12 +221,14 @@ def register(subparsers, parents) -> None:
                     "band. Exit status 1 if the match does not converge.")
     p.add_argument("record", metavar="RECORD", help="record file (every trace is matched)")
     p.add_argument("--target", required=True, action="append", metavar="SPEC",
-                   help="target spectrum: asce7:sds=..,sd1=..[,tl=..], en1998:type=..,ground=..,"
-                        "ag=..[,damping=..], or a CSV of period [s], PSA [g]; once per damping")
+                   help="target spectrum: asce7:sds=G,sd1=G,tl=S (all three required; "
+                        "SDS, SD1 in g, TL in s), en1998:type=1|2,ground=A..E,ag=G"
+                        "[,damping=PCT], or a CSV of period [s], PSA [g] (the default band "
+                        "is clipped to the table's periods); once per damping")
     p.add_argument("--damping", default="5", metavar="PCT",
                    help="damping in percent, comma-separated to match several at once (default 5)")
     p.add_argument("--band", metavar="T1,T2", help="period band [s] (default 0.05,4; short end "
-                   "at least 10·dt)")
+                   "at least 10·dt; within a target table's periods)")
     p.add_argument("--periods", metavar="T,...", help="periods [s] to match (default 30 per "
                    "decade over the band)")
     p.add_argument("--tolerance", type=float, default=5.0, metavar="PCT",

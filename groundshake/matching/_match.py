@@ -177,6 +177,65 @@ def _periods_and_band(periods, band, dt: float) -> tuple[np.ndarray, tuple[float
     return periods, (lo, hi)
 
 
+def _parsed(target):
+    """Target specs given as text, parsed once (other target forms unchanged)."""
+    from ..spectra import parse_target
+    if isinstance(target, str):
+        return parse_target(target)
+    if isinstance(target, (list, tuple)) and any(isinstance(t, str) for t in target):
+        return [parse_target(t) if isinstance(t, str) else t for t in target]
+    return target
+
+
+def _defined_range(target) -> tuple[float, float, str] | None:
+    """Periods [s] where every target is defined (tables), with a label; None if all are."""
+    items = target if isinstance(target, (list, tuple)) else [target]
+    lo, hi, names = 0.0, math.inf, []
+    for t in items:
+        r = getattr(t, "period_range", None)
+        if r is not None:
+            lo, hi = max(lo, r[0]), min(hi, r[1])
+            names.append(str(getattr(t, "label", "target")))
+    return (lo, hi, ", ".join(names)) if names else None
+
+
+def _fit_band(target, periods, band, dt: float, warn: list):
+    """Keep the band inside a target table: clip the default band (with a note); an
+    explicit band or explicit periods outside the table are errors naming its range."""
+    rng = _defined_range(target)
+    if rng is None:
+        return band
+    tlo, thi, name = rng
+    where = f"the periods of the target ({name}): {tlo:g}-{thi:g} s"
+    tiny = 1e-9
+    if band is not None:
+        try:
+            lo, hi = (float(b) for b in band)
+        except (TypeError, ValueError):
+            return band                      # _periods_and_band names the problem
+        if lo < tlo * (1 - tiny) or hi > thi * (1 + tiny):
+            raise InputError(f"band {lo:g}-{hi:g} s reaches outside {where}; allowed: a band "
+                             f"within {tlo:g}-{thi:g} s, or a target that covers the band")
+        return band
+    if periods is not None:
+        p = np.asarray(periods, dtype=float).ravel()
+        if p.size and np.all(np.isfinite(p)) and (p.min() < tlo * (1 - tiny)
+                                                  or p.max() > thi * (1 + tiny)):
+            raise InputError(f"periods {p.min():g}-{p.max():g} s reach outside {where}; "
+                             f"allowed: periods within {tlo:g}-{thi:g} s")
+        return band
+    lo, hi = default_band(dt)
+    if lo >= tlo * (1 - tiny) and hi <= thi * (1 + tiny):
+        return band
+    new = (max(lo, tlo), min(hi, thi))
+    if not new[0] < new[1]:
+        raise InputError(f"the default band {lo:g}-{hi:g} s does not overlap {where}; "
+                         "give a target that covers the band")
+    warn.append(f"the default band {lo:g}-{hi:g} s is clipped to {where}: matching over "
+                f"{new[0]:g}-{new[1]:g} s only")
+    return new
+
+
 def _damping_array(damping) -> np.ndarray:
     d = np.atleast_1d(np.asarray(damping, dtype=float)).ravel()
     if d.size == 0 or not np.all(np.isfinite(d)) or np.any(d <= 0) or np.any(d >= 1):
@@ -400,6 +459,8 @@ def match_spectrum_report(record: Record, target: TargetLike,
     dt = record.dt
     warn: list[str] = []
     damping_arr = _damping_array(damping)
+    target = _parsed(target)
+    band = _fit_band(target, periods, band, dt, warn)
     periods_arr, (lo, hi) = _periods_and_band(periods, band, dt)
     if periods_arr[0] < 10.0 * dt:
         warn.append(f"shortest period {periods_arr[0]:g} s has fewer than 10 samples per "

@@ -10,6 +10,8 @@ All displacements are relative to the ground.
 """
 from __future__ import annotations
 
+import math
+
 import warnings
 from dataclasses import dataclass, field
 from typing import Any, Literal
@@ -23,6 +25,7 @@ from ._elements import brick_matrices, shape_values
 from ._factor import Factor, factorize
 from ._memory import check_memory
 from ._mesh import Box, count_grid, mesh_boxes
+from ._impedance import adjust_impedance, modulus_ratio_of
 from ._recovery import StressPoints, surface_stress_points
 from ._supports import Impedance, distributed_bed, gazetas_rectangle
 
@@ -31,6 +34,9 @@ __all__ = ["Point", "EquipmentModel", "ReactionOperators", "BlockModel", "build_
 
 #: Standard gravity [m/s²].
 G_STANDARD = 9.80665
+#: Default share of the equipment weight that resists uplift: the 0.9·D of the load
+#: combination with E (ASCE 7-16 §2.3.6, from memory).
+DEAD_LOAD_FACTOR = 0.9
 #: Upper limit of composite modal damping ratios (ASCE 4 practice, from memory: 20 %).
 MODAL_DAMPING_CAP = 0.20
 
@@ -54,6 +60,26 @@ def rigid_link(offsets: np.ndarray) -> np.ndarray:
     T[:, 1, 3], T[:, 1, 5] = -r[:, 2], r[:, 0]
     T[:, 2, 3], T[:, 2, 4] = r[:, 1], -r[:, 0]
     return T.reshape(3 * p, 6)
+
+
+def _mass_solve(M: sp.spmatrix, B: np.ndarray) -> np.ndarray:
+    """M⁻¹ B for a mass matrix M (n, n) and B (n, k): diagonal, dense or Jacobi-preconditioned
+    conjugate gradients (a consistent mass is well conditioned, Wathen 1987)."""
+    M = sp.csr_matrix(M)
+    n = M.shape[0]
+    d = M.diagonal()
+    if M.nnz == n:
+        return B / d[:, None]
+    if n <= 3000:
+        import scipy.linalg as sla
+        return sla.solve(M.toarray(), B, assume_a="pos")
+    import scipy.sparse.linalg as spla
+    pre = sp.diags(1.0 / d)
+    out = np.empty_like(B, dtype=float)
+    for j in range(B.shape[1]):
+        x, info = spla.cg(M, B[:, j], rtol=1e-13, atol=0.0, M=pre, maxiter=2000)
+        out[:, j] = x
+    return out
 
 
 def _resultant_rows(offsets: np.ndarray) -> np.ndarray:
@@ -115,7 +141,13 @@ class BlockModel:
     """The finite-element model of a block and what stands on it (see docs/INTERNALS.md).
 
     Matrices are in the reduced DOFs (n,) of relative displacement: ``K`` [N/m],
-    ``M`` [kg] sparse CSR (n, n); ``influence`` (n, 3).
+    ``M`` [kg] sparse CSR (n, n), the consistent (or lumped) mass exactly as assembled;
+    ``influence`` (n, 3) ι, the rigid translation of each reduced DOF under a unit ground
+    displacement; ``ground_load`` (n, 3) [kg], L = M_ff ι_f + M_fb ι_b, so that the load of
+    the ground acceleration a_g is −L·a_g (equal to M ι unless the base is fixed);
+    ``total_mass`` (3,) [kg], every mass of the model including the fixed base nodes';
+    ``rigid_mass`` (3,) [kg], m − Lᵀ M⁻¹ L, the mass that moves rigidly with the ground
+    (the base nodes' share on a fixed base; zero on soil).
     """
 
     nodes: np.ndarray
@@ -126,6 +158,8 @@ class BlockModel:
     M: sp.csr_matrix
     influence: np.ndarray
     total_mass: np.ndarray
+    ground_load: np.ndarray
+    rigid_mass: np.ndarray
     weight: float
     sensors: list
     equipment: list
@@ -150,6 +184,10 @@ class BlockModel:
     notes: list = field(default_factory=list)
     rayleigh_used_hz: tuple[float, float] | None = None
     mesh: Any = None  # the GridMesh, for plots
+    inertia_reaction: ReactionOperators | None = None
+    _equipment_mass: sp.csr_matrix | None = None       # masses on flexible supports (n, n)
+    rayleigh_choice: str = ""
+    _radiation_lowrank: tuple | None = None            # (U (n, r), d (r,))
     stress_points: StressPoints | None = None  # where the rows of ``stress`` sit
 
     @property
@@ -159,7 +197,8 @@ class BlockModel:
     @property
     def is_classically_damped(self) -> bool:
         """False when discrete dashpots (soil radiation, equipment supports) are present."""
-        return self._dashpots is None or self._dashpots.nnz == 0
+        return ((self._dashpots is None or self._dashpots.nnz == 0)
+                and self._radiation_lowrank is None)
 
     def factor(self) -> Factor:
         """The factorization of K, built once and reused (``.solve(B)`` gives K⁻¹B)."""
@@ -167,18 +206,59 @@ class BlockModel:
             self._factor = factorize(self.K, solver=self.solver)
         return self._factor
 
-    def rayleigh_coefficients(self, frequencies_hz=None) -> tuple[float, float]:
-        """(a, b) of C = a·M + b·K giving the block's ratio at two frequencies [Hz].
+    def block_mass_matrix(self) -> sp.csr_matrix:
+        """M (n, n) [kg] without the masses on flexible equipment supports: the block, its
+        rigidly attached equipment and the equipment's rotary inertia on its mount."""
+        if self._equipment_mass is None or self._equipment_mass.nnz == 0:
+            return self.M
+        return sp.csr_matrix(self.M - self._equipment_mass)
 
-        Uses ``frequencies_hz``, else the scenario's ``rayleigh_hz``, else the first
-        mode and max(cutoff_hz, 5·f1) (the choice is kept in ``rayleigh_used_hz``).
+    def governing_frequencies(self, modes=None) -> tuple[float, float]:
+        """Rayleigh anchor frequencies [Hz] from the block's governing modes.
+
+        A mode belongs to the block when at least half of its kinetic energy
+        (φᵀ M_block φ, φᵀMφ = 1) is in the block; among those, the governing modes hold
+        at least 5 % of the total mass in some direction (effective mass Γ²/m). The
+        anchors are the lowest and highest governing frequencies, spread to at least
+        f2 = 1.5·f1. Without such a mode: the block mode of largest effective mass, else
+        the first mode. ``modes`` (a :class:`~groundshake.dynamics.Modes`) is computed
+        (12 lowest) when not given.
+        """
+        if modes is None:
+            from ..dynamics._modes import compute_modes
+            modes = compute_modes(self, n_modes=min(12, self.n_dof - 1), warn=False)
+        phi = np.asarray(modes.shapes)
+        f = np.asarray(modes.frequency, float)
+        share = np.einsum("im,im->m", phi, self.block_mass_matrix() @ phi)
+        ratio = np.asarray(modes.effective_mass_ratio).max(axis=1)
+        own = share >= 0.5
+        gov = own & (ratio >= 0.05)
+        if gov.any():
+            sel = f[gov]
+            why = "block modes holding ≥ 5 % of the mass"
+        elif own.any():
+            sel = f[own][[int(np.argmax(np.where(own, ratio, -1)[own]))]]
+            why = "the block mode of largest effective mass"
+        else:
+            sel = f[:1]
+            why = "the first mode (no mode is mostly the block's)"
+        f1, f2 = float(sel.min()), float(sel.max())
+        f2 = max(f2, 1.5 * f1)
+        self.rayleigh_choice = why
+        return f1, f2
+
+    def rayleigh_coefficients(self, frequencies_hz=None, *, modes=None) -> tuple[float, float]:
+        """(a, b) of C = a·M_block + b·K_block giving the block's ratio at two frequencies.
+
+        Uses ``frequencies_hz`` [Hz], else the scenario's ``rayleigh_hz``, else the
+        block's governing modes (:meth:`governing_frequencies`); the choice is kept in
+        ``rayleigh_used_hz``. Chopra §11.4: a = 2ξω1ω2/(ω1+ω2), b = 2ξ/(ω1+ω2).
         """
         f = frequencies_hz if frequencies_hz is not None else self.rayleigh_hz
         if f is None:
-            from ..dynamics._modes import lowest_modes
-            w, _ = lowest_modes(self.K, self.M, n_modes=1, factor=self.factor())
-            f1 = float(np.sqrt(max(w[0], 0.0)) / (2 * np.pi))
-            f = (f1, max(self.cutoff_hz or 0.0, 5 * f1))
+            f = self.governing_frequencies(modes)
+        elif frequencies_hz is None:
+            self.rayleigh_choice = "rayleigh_hz of the scenario"
         self.rayleigh_used_hz = (float(f[0]), float(f[1]))
         w1, w2 = 2 * np.pi * f[0], 2 * np.pi * f[1]
         z = self.damping_ratio
@@ -186,20 +266,27 @@ class BlockModel:
         b = 2 * z / (w1 + w2)
         return a, b
 
-    def damping_matrix(self, frequencies_hz=None) -> sp.csr_matrix:
+    def damping_matrix(self, frequencies_hz=None, *, modes=None) -> sp.csr_matrix:
         """Damping (n, n) [N·s/m] for direct integration.
 
-        Rayleigh a·M + b·K_block on the block (and equipment masses/soil springs, which
-        are part of M and K), with the block's ratio at two frequencies (see
-        :meth:`rayleigh_coefficients`), plus the discrete dashpots of equipment
-        supports and of soil radiation.
+        C = a·M_block + b·K_block + C_equipment + C_radiation: Rayleigh damping from the
+        block's own mass and stiffness (equipment on flexible supports left out of both;
+        soil springs inside K_block, so the soil's material damping is the block ratio at
+        the anchors), each equipment support's dashpot at its own ratio, and the soil's
+        radiation dashpots. Dashpots acting on the averaged base motion of a distributed
+        bed are not in this matrix: see :meth:`damping_update`.
         """
-        a, b = self.rayleigh_coefficients(frequencies_hz)
-        Kb = self._block_stiffness()
-        C = a * self.M + b * Kb
+        a, b = self.rayleigh_coefficients(frequencies_hz, modes=modes)
+        C = a * self.block_mass_matrix() + b * self._block_stiffness()
         if self._dashpots is not None:
             C = C + self._dashpots
         return sp.csr_matrix(C)
+
+    def damping_update(self):
+        """Low-rank damping (U (n, r), d (r,)) added to :meth:`damping_matrix`: C += U·diag(d)·Uᵀ
+        [N·s/m] (radiation dashpots on the area-averaged translations of a distributed bed),
+        or None."""
+        return self._radiation_lowrank
 
     def _block_stiffness(self):
         K = self.K
@@ -213,7 +300,8 @@ class BlockModel:
 
         ξ_n = Σ_j ξ_j·φᵀK_jφ / φᵀKφ (strain-energy weights: block and soil springs at the
         block ratio or its Rayleigh value, each equipment support at its own ratio), plus
-        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term),
+        φᵀC_radφ / (2ω_n φᵀMφ) for soil radiation dashpots (their diagonal modal term,
+        low-rank bed dashpots included),
         limited to :data:`MODAL_DAMPING_CAP` (20 %, ASCE 4 practice, from memory).
         """
         phi = np.asarray(shapes, dtype=float)
@@ -242,6 +330,10 @@ class BlockModel:
             if self._radiation is not None and self._radiation.nnz:
                 cr = np.einsum("im,im->m", phi, self._radiation @ phi)
                 z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
+            if self._radiation_lowrank is not None:
+                U, d = self._radiation_lowrank
+                cr = np.einsum("rm,r->m", np.asarray(U.T @ phi) ** 2, np.asarray(d))
+                z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
         return np.minimum(z, MODAL_DAMPING_CAP)
 
     def describe(self) -> dict:
@@ -255,6 +347,7 @@ class BlockModel:
             "parts": list(self.part_names),
             "materials": self.materials,
             "total_mass": [float(v) for v in self.total_mass],
+            "rigid_mass": [float(v) for v in self.rigid_mass],
             "weight": float(self.weight),
             "support": {"kind": self.support_kind},
             "base": {k: (v.tolist() if isinstance(v, np.ndarray) else v)
@@ -288,7 +381,7 @@ def _materials(scenario):
 
 
 def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None = None,
-                check_memory_first: bool = True) -> BlockModel:
+                check_memory_first: bool = True, soil_frequency_hz=None) -> BlockModel:
     """Build the :class:`BlockModel` of a scenario.
 
     Parameters
@@ -298,6 +391,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         ``equipment``, ``sensors``, ``analysis``).
     solver : factorization for :meth:`BlockModel.factor` (default from
         ``analysis.solver``).
+    soil_frequency_hz : array (6,), optional
+        On soil: the frequency [Hz] at which each base spring x, y, z, rx, ry, t is
+        evaluated (frequency-dependent impedance, model/_impedance.py); None = static.
 
     Raises
     ------
@@ -385,29 +481,36 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     base_master = None
     impedance = None
     base_dofs = (3 * base_nodes[:, None] + np.arange(3)).ravel()
-    k_bed = None
     if kind == "fixed":
         status[base_dofs] = 1
     elif kind == "soil":
-        vs = float(_get(support, "shear_wave_velocity"))
+        # strain-compatible modulus G = (G/G0)·ρVs², as an effective Vs (model/_impedance.py)
+        vs = float(_get(support, "shear_wave_velocity")) * math.sqrt(modulus_ratio_of(support)[0])
         nus = float(_get(support, "poisson_ratio"))
         rhos = float(_get(support, "density"))
         impedance = gazetas_rectangle(lx, ly, shear_wave_velocity=vs, poisson_ratio=nus,
                                       density=rhos,
                                       radiation_damping=bool(_get(support, "radiation_damping", True)))
+        # embedment and frequency dependence (model/_impedance.py)
+        impedance = adjust_impedance(impedance, lx, ly, support=support,
+                                     frequency_hz=soil_frequency_hz)
         if springs == "distributed":
-            # tributary areas: ∫N_A dA over the bottom faces of the bottom cells
-            w = np.zeros(nn)
+            # consistent Winkler bed: ∫N_A N_B dA over the bottom faces of the bottom cells
             jj, ii = np.nonzero(bottom)
-            a4 = (dxs[ii] * dys[jj]) / 4
-            for di in (0, 1):
-                for dj in (0, 1):
-                    np.add.at(w, mesh.node_id[0, jj + dj, ii + di], a4)
-            wb = w[base_nodes]
-            k_bed, note = distributed_bed(nodes[base_nodes, :2] - centre[:2], wb,
-                                          impedance.stiffness)
-            c_bed = impedance.damping[:3][None, :] * (wb / wb.sum())[:, None]
+            quad = np.stack([mesh.node_id[0, jj, ii], mesh.node_id[0, jj, ii + 1],
+                             mesh.node_id[0, jj + 1, ii + 1], mesh.node_id[0, jj + 1, ii]], 1)
+            q4 = np.array([[4, 2, 1, 2], [2, 4, 2, 1], [1, 2, 4, 2], [2, 1, 2, 4]]) / 36.0
+            vals = (dxs[ii] * dys[jj])[:, None, None] * q4[None]
+            Qn = sp.csr_matrix((vals.ravel(), (np.repeat(quad, 4, axis=1).ravel(),
+                                               np.tile(quad, (1, 4)).ravel())), shape=(nn, nn))
+            wq = np.asarray(Qn.sum(axis=1)).ravel()           # ∫N_A dA, tributary areas
+            xc, yc = nodes[:, 0] - centre[0], nodes[:, 1] - centre[1]
+            ix_b, iy_b = float(wq @ (yc * yc)), float(wq @ (xc * xc))  # exact for bilinear N
+            k_area, note = distributed_bed(area, (ix_b, iy_b), impedance.stiffness)
             notes.append(note)
+            notes.append("distributed bed: radiation dashpots Cx, Cy, Cz act on the base's "
+                         "area-averaged translations, so rocking and torsion carry no "
+                         "radiation damping, as with lumped springs")
         else:
             base_master = n_extra
             n_extra += 6
@@ -464,21 +567,6 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             n_extra += 3
         eq_info.append((q, name, e, mount_pt, mo, eo, fp_nodes))
 
-    if kind == "fixed" and mass_kind == "consistent":
-        # The consistent mass couples the first layer of nodes with the fixed base nodes;
-        # those couplings are lumped onto the diagonals (row sums), so that M·ι on the
-        # free DOFs is exactly the load of the ground acceleration and ιᵀMι the mass
-        # it drives (total mass is kept).
-        fx = sp.diags((status == 1).astype(float))
-        fr = sp.diags((status != 1).astype(float))
-        Dc = fx @ Mn @ fr
-        Dc = Dc + Dc.T
-        Mn = sp.csr_matrix(Mn - Dc + sp.diags(np.asarray(Dc.sum(axis=1)).ravel()))
-        Mn.eliminate_zeros()
-        Mn.sort_indices()
-        notes.append("consistent mass; its coupling to the fixed base nodes is lumped "
-                     "onto the diagonal so that M·ι is the exact ground load")
-
     # ---- node map P: node DOFs (3nn) = P · reduced
     free_dofs = np.flatnonzero(status == 0)
     nf = free_dofs.size
@@ -526,6 +614,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
 
     rad = None
     dash = None
+    radiation_lowrank = None
     if kind == "soil":
         if base_master is not None:
             Ks = np.zeros((n_extra, n_extra))
@@ -537,12 +626,20 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             rad = extra_mat(Cr)
         else:
             bd = red_of[base_dofs]
-            Ks_sp = sp.csr_matrix((k_bed.ravel(), (bd, bd)), shape=(n, n))
+            Qc = Qn.tocoo()
+            Ks_sp = sp.csr_matrix(sum(
+                sp.csr_matrix((k_area[d] * Qc.data, (red_of[3 * Qc.row + d],
+                                                     red_of[3 * Qc.col + d])), shape=(n, n))
+                for d in range(3)))
             K = K + Ks_sp
-            rad = sp.csr_matrix((c_bed.ravel(), (bd, bd)), shape=(n, n))
-            dash = rad
+            # dashpots on the mean translation ū_d = Σ (w_A/A) u_Ad: C = U diag(c) Uᵀ
+            U = sp.csr_matrix((np.tile(wq[base_nodes] / area, 3),
+                               (np.concatenate([red_of[3 * base_nodes + d] for d in range(3)]),
+                                np.repeat(np.arange(3), base_nodes.size))), shape=(n, 3))
+            radiation_lowrank = (U, impedance.damping[:3].copy())
 
     # ---- equipment masses, springs
+    Meq = np.zeros((n_extra, n_extra))   # masses on flexible supports (damped by them alone)
     equipment = []
     eq_parts = []
     for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
@@ -572,6 +669,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             kk = m * (2 * np.pi * fz) ** 2
             cc = 2 * zeta * m * (2 * np.pi * fz)
             Mx[eo:eo + 3, eo:eo + 3] += m * np.eye(3)
+            Meq[eo:eo + 3, eo:eo + 3] += m * np.eye(3)
             L = np.zeros((3, n_extra))
             L[:, eo:eo + 3] = np.eye(3)
             L[:, mo:mo + 6] -= Tcg
@@ -584,7 +682,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         equipment.append(EquipmentModel(
             name=name, mass=m, inertia=inertia, cg=cg, mount=mount_pt,
             anchors=np.asarray(_get(e, "anchors", []) or [], float).reshape(-1, 2),
-            dead_load_factor=float(_get(e, "dead_load_factor", 1.0)),
+            dead_load_factor=float(_get(e, "dead_load_factor", DEAD_LOAD_FACTOR)),
             capacity=_get(e, "capacity", None), fp=_get(e, "fp", None),
             operator=sp.csr_matrix(op), frequency_hz=fz, damping=zeta,
             footprint=np.array([bxf, byf])))
@@ -614,7 +712,32 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         iota[nf + mo + np.arange(3), np.arange(3)] = 1.0
         if eo is not None:
             iota[nf + eo + np.arange(3), np.arange(3)] = 1.0
-    total_mass = np.einsum("ia,ia->a", iota, M @ iota)
+    # ground load L = M_ff ι_f + M_fb ι_b: the consistent mass stays as assembled; on a
+    # fixed base the coupling of the first layer of nodes to the moving base nodes is part
+    # of the load (Clough & Penzien, support excitation).
+    iota_nodes = sp.csr_matrix((np.ones(n_node_dof), (np.arange(n_node_dof),
+                                                      np.arange(n_node_dof) % 3)),
+                               shape=(n_node_dof, 3))
+    Mi = np.asarray(M @ iota)
+    if kind == "fixed":
+        iota_b = np.zeros((n_node_dof, 3))
+        fixed_dofs = np.flatnonzero(status == 1)
+        iota_b[fixed_dofs, fixed_dofs % 3] = 1.0
+        Mnb = np.asarray(Mn @ iota_b)
+        ground_load = Mi + np.asarray(P.T @ Mnb)
+        total_mass = (np.einsum("ia,ia->a", iota, Mi)
+                      + 2 * np.einsum("ia,ia->a", iota, np.asarray(P.T @ Mnb))
+                      + np.einsum("ia,ia->a", iota_b, Mnb))
+        moving = np.einsum("ia,ia->a", ground_load, _mass_solve(M, ground_load))
+        rigid_mass = np.maximum(total_mass - moving, 0.0)
+        notes.append(f"fixed base: {mass_kind} mass kept as assembled; ground load "
+                     "L = M_ff·ι_f + M_fb·ι_b; mass moving rigidly with the ground "
+                     f"(m − Lᵀ M_ff⁻¹ L) {rigid_mass[0]:.4g} kg of {total_mass[0]:.4g} kg; "
+                     "base reactions include the base nodes' inertia and M_bf·ü_f")
+    else:
+        ground_load = Mi
+        total_mass = np.einsum("ia,ia->a", iota, Mi)
+        rigid_mass = np.zeros(3)
     block_mass = float(Mn.sum() / 3.0)
     weight = G_STANDARD * (block_mass + sum(e.mass for e in equipment))
 
@@ -634,9 +757,6 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         Sres = sp.csr_matrix(_resultant_rows(nodes[base_nodes] - centre))  # (6, 3nb)
         KR = -(Sres @ (Kn[base_dofs] @ P)).toarray()
         MR = -(Sres @ (Mn[base_dofs] @ P)).toarray()
-        iota_nodes = sp.csr_matrix((np.ones(n_node_dof), (np.arange(n_node_dof),
-                                                          np.arange(n_node_dof) % 3)),
-                                   shape=(n_node_dof, 3))
         GR = -(Sres @ (Mn[base_dofs] @ iota_nodes)).toarray()
         CR = np.zeros_like(KR)  # damping forces at the fixed base are not included
     elif base_master is not None:
@@ -651,11 +771,30 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         bd = red_of[base_dofs]
         KR = np.zeros((6, n))
         CR = np.zeros((6, n))
-        KR[:, bd] = Sres * k_bed.ravel()[None, :]
-        CR[:, bd] = Sres * c_bed.ravel()[None, :]
+        KR = (sp.csr_matrix(Sres) @ Ks_sp[bd]).toarray()
+        Ul, cl = radiation_lowrank
+        CR = ((Sres @ Ul[bd].toarray()) * cl[None, :]) @ Ul.T.toarray()
         MR = np.zeros((6, n))
         GR = np.zeros((6, 3))
     reaction = ReactionOperators(K=KR, C=CR, M=MR, G=GR)
+    # d'Alembert: the structure exerts −Σ m ü_abs on its support (moments about the centre
+    # of the base face). T (n, 6) is a rigid motion about that centre in reduced DOFs.
+    T = np.zeros((n, 6))
+    T[:nf] = rigid_link(nodes[free_dofs // 3] - centre).reshape(-1, 3, 6)[
+        np.arange(nf), free_dofs % 3]
+    if base_master is not None:
+        T[nf + base_master:nf + base_master + 6] = np.eye(6)
+    for (q, name, e, mount_pt, mo, eo, fp_nodes) in eq_info:
+        T[nf + mo:nf + mo + 3] = rigid_link(mount_pt - centre)
+        T[nf + mo + 3:nf + mo + 6, 3:] = np.eye(3)
+        if eo is not None:
+            T[nf + eo:nf + eo + 3] = rigid_link(equipment[q].cg - centre)
+    MT = -np.asarray((M @ T).T)
+    GT = -T.T @ ground_load
+    if kind == "fixed":   # the base nodes' own inertia and their coupling M_bf ü_f
+        MT = MT + MR
+        GT = GT + GR
+    inertia_reaction = ReactionOperators(K=np.zeros((6, n)), C=np.zeros((6, n)), M=MT, G=GT)
 
     held = status.reshape(-1, 3).max(axis=1)            # 1 fixed, 2 slaved (rigid base/mount)
     constraint = np.where(held > 0, 2, 0)
@@ -669,6 +808,7 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     model = BlockModel(
         nodes=nodes, elements=mesh.elements, element_centres=mesh.element_centres,
         element_part=mesh.element_part, K=K, M=M, influence=iota, total_mass=total_mass,
+        ground_load=ground_load, rigid_mass=rigid_mass,
         weight=weight, sensors=sensors, equipment=equipment, reaction=reaction,
         stress=stress, stress_points=stress_points, base=base, damping_ratio=ratio,
         rayleigh_hz=None if rayleigh is None else (float(rayleigh[0]), float(rayleigh[1])),
@@ -676,7 +816,9 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         part_names=[b.name for b in boxes], materials=materials, node_map=P,
         impedance=impedance, solver=solver,
         cutoff_hz=_get(analysis, "cutoff_hz", None),
-        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh)
+        _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh,
+        inertia_reaction=inertia_reaction, _radiation_lowrank=radiation_lowrank,
+        _equipment_mass=extra_mat(Meq) if n_extra else None)
     return model
 
 

@@ -67,7 +67,8 @@ def gazetas_rectangle(lx: float, ly: float, *, shear_wave_velocity: float,
     Kx = Ky − 0.2/(0.75−ν)·GL(1 − B/L); Krx = G/(1−ν)·Ibx^0.75(L/B)^0.25(2.4 + 0.5B/L);
     Kry = 3G/(1−ν)·Iby^0.75(L/B)^0.15; Kt = G·J^0.75[4 + 11(1 − B/L)^10].
     Rocking and torsional radiation dashpots are not modelled (they are small at low
-    frequency; leaving them out is on the side of less damping).
+    frequency; leaving them out is on the side of less damping), for lumped springs and
+    for a distributed bed alike.
     """
     G = density * shear_wave_velocity ** 2
     nu = poisson_ratio
@@ -125,62 +126,39 @@ def circle_stiffness(radius: float, *, shear_modulus: float, poisson_ratio: floa
     return np.array([kh, kh, 4 * G * R / (1 - nu), kr, kr, 16 * G * R ** 3 / 3])
 
 
-def distributed_bed(xy: np.ndarray, area: np.ndarray, totals: np.ndarray):
-    """Nodal springs of a bed whose totals match six rigid-base stiffnesses.
+def distributed_bed(area: float, second_moments: tuple[float, float],
+                    totals: np.ndarray) -> tuple[np.ndarray, str]:
+    """Uniform subgrade moduli of a spring bed whose translation totals are Kx, Ky, Kz.
 
     Parameters
     ----------
-    xy : (p, 2) node positions relative to the base centre [m]; area : (p,) tributary
-    areas [m²]; totals : (6,) Kx, Ky, Kz, Krx, Kry, Kt.
+    area : contact area A [m²]. second_moments : (Ix, Iy) [m⁴], ∫y² dA and ∫x² dA about the
+    centre of the base. totals : (6,) Kx, Ky, Kz [N/m], Krx, Kry, Kt [N·m/rad] of the
+    rigid base (Gazetas 1991).
 
     Returns
     -------
-    k : (p, 3) nodal springs [N/m] in x, y, z, and a note.
+    moduli : (3,) [N/m³] horizontal x, y and vertical springs per unit area, k_d = K_d / A;
+    note : what the bed gives and how its rocking and torsion compare with the rigid base.
 
     Notes
     -----
-    Vertical springs per unit area a + b·gx + c·gy + d·gx·gy, gx = |x/xm|^p,
-    gy = |y/ym|^p, with non-negative a..d (scipy nnls) so that Σkz = Kz, Σkz·y² = Krx,
-    Σkz·x² = Kry; horizontal springs per unit area (p₀ + t·(r/rm)^p), (q₀ + t·(r/rm)^p)
-    so that Σkx = Kx, Σky = Ky and Σ(kx·y² + ky·x²) = Kt. The lowest power p that
-    matches is used (the contact pressure under a rigid base on a half-space grows
-    towards its edges); if none does, the bed is uniform (totals of translation kept)
-    and the note says so.
+    A uniform (Winkler) bed carries a uniform load with a uniform contact pressure and,
+    under a rigid base, rocks with k_z·I and twists with k_x·Ix + k_y·Iy. A rigid base on
+    a half-space is stiffer in rocking and torsion (its contact pressure rises towards the
+    edges, about 2-3 times the bed's values for usual plans); the bed keeps the flexible
+    mat's load path and states the difference instead of concentrating springs at the
+    edges.
     """
-    x, y = xy[:, 0], xy[:, 1]
-    w = area
-    Kx, Ky, Kz, Krx, Kry, Kt = totals
-    xm = max(np.abs(x).max(), 1e-12)
-    ym = max(np.abs(y).max(), 1e-12)
-    r2 = x * x + y * y
-    rm = max(r2.max(), 1e-24)
-    from scipy.optimize import nnls
-    for p in (2, 4, 6, 8, 12, 16, 24, 32, 48, 64, 96, 128):
-        gx, gy, gr = np.abs(x / xm) ** p, np.abs(y / ym) ** p, (r2 / rm) ** (p / 2)
-        basis = np.column_stack([np.ones_like(x), gx, gy, gx * gy]) * w[:, None]  # (n, 4)
-        A = np.vstack([basis.sum(0), (basis * (y * y)[:, None]).sum(0),
-                       (basis * (x * x)[:, None]).sum(0)])
-        rhs = np.array([Kz, Krx, Kry])
-        sc = 1.0 / rhs
-        cz, _ = nnls(A * sc[:, None], rhs * sc)
-        bx = np.column_stack([w, np.zeros_like(w), w * gr])
-        by = np.column_stack([np.zeros_like(w), w, w * gr])
-        H = np.vstack([bx.sum(0), by.sum(0),
-                       (bx * (y * y)[:, None]).sum(0) + (by * (x * x)[:, None]).sum(0)])
-        rh = np.array([Kx, Ky, Kt])
-        sh = 1.0 / rh
-        ch, _ = nnls(H * sh[:, None], rh * sh)
-        if (np.abs(A @ cz / rhs - 1).max() < 1e-9 and np.abs(H @ ch / rh - 1).max() < 1e-9):
-            kz = basis @ cz
-            kx = bx @ ch
-            ky = by @ ch
-            note = ("distributed bed matching Kx, Ky, Kz, Krx, Kry, Kt (non-negative springs "
-                    f"per unit area from 1, |x|^{p}, |y|^{p}, |xy|^{p}, r^{p} terms: stiffer "
-                    "towards the edges and corners)")
-            break
-    else:
-        at = w / w.sum()
-        kx, ky, kz = Kx * at, Ky * at, Kz * at
-        note = ("distributed bed uniform (a matching bed would need negative springs): "
-                "translations match, rocking and torsion follow from the bed")
-    return np.column_stack([kx, ky, kz]), note
+    Kx, Ky, Kz, Krx, Kry, Kt = np.asarray(totals, dtype=float)
+    ix, iy = second_moments
+    k = np.array([Kx, Ky, Kz]) / area
+    rx, ry = k[2] * ix, k[2] * iy
+    rt = k[0] * ix + k[1] * iy
+    note = ("distributed bed: uniform subgrade moduli kx = Kx/A, ky = Ky/A, kz = Kz/A (Gazetas "
+            "translation totals), each spread over the base face by its shape functions "
+            "(consistent Winkler bed); rocking and torsion follow from the bed: "
+            f"Krx {rx / Krx:.2f}, Kry {ry / Kry:.2f}, Kt {rt / Kt:.2f} of Gazetas' rigid-base "
+            "values (a flexible mat's rocking is softer than a rigid base's; for a stiff block "
+            "choose springs = \"lumped\")")
+    return k, note

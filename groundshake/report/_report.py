@@ -209,6 +209,19 @@ class _Builder:
             worst = self.worst_dc()
         if worst is not None:
             items.append(("largest demand / entered capacity", num(worst, 3)))
+        st = self.s.get("stability")
+        if isinstance(st, Mapping):
+            for key, label in (("sliding", "least sliding FS"),
+                               ("overturning", "least overturning FS")):
+                v = _as_float(_get(st, key, "min_safety_factor"))
+                if v is not None:
+                    items.append((label, num(v, 3)))
+            q = _as_float(_get(st, "bearing", "peak_pressure"))
+            if q is not None:
+                items.append(("peak bearing pressure", f"{num(q / 1e3)} kPa"))
+        wi = _as_float(_get(self.s, "worst_interaction", "value"))
+        if wi is not None:
+            items.append(("largest bolt interaction", num(wi, 3)))
         freq = self.first_frequency()
         if freq is not None:
             items.append(("first mode", f"{num(freq)} Hz"))
@@ -642,6 +655,55 @@ class _Builder:
                          fid="fig-mode-shapes")
 
     # ----------------------------------------------------------------- results
+    def stability(self) -> str:
+        """Compact table: sliding, overturning, bearing and bolt interaction per soil case."""
+        st = self.s.get("stability")
+        if not isinstance(st, Mapping) or not st:
+            return ""
+
+        def row(name: str, g, f1, stab: Any, wi: Any) -> list:
+            stab = stab if isinstance(stab, Mapping) else {}
+            sl, ot, br = (stab.get(k) or {} for k in ("sliding", "overturning", "bearing"))
+            q = _as_float(br.get("peak_pressure"))
+            return [name, None if g is None else g / 1e6, f1,
+                    _as_float(sl.get("min_safety_factor")),
+                    _as_float(ot.get("min_safety_factor")), ot.get("edge") or "—",
+                    None if q is None else q / 1e3, _as_float(br.get("ratio_to_allowable")),
+                    _as_float(_get(wi, "value"))]
+
+        rows = []
+        for c in self.s.get("soil_cases") or []:
+            if isinstance(c, Mapping):
+                modes = c.get("modes") or []
+                f1 = _as_float(modes[0].get("frequency")) if modes and isinstance(
+                    modes[0], Mapping) else None
+                rows.append(row(str(c.get("name")), _as_float(c.get("shear_modulus")), f1,
+                                c.get("stability"), c.get("worst_interaction")))
+        label = "envelope (governs)" if rows else "this run"
+        rows.append(row(label, None, None if rows else self.first_frequency(), st,
+                        self.s.get("worst_interaction")))
+        sl = st.get("sliding") or {}
+        note = ("Rigid-block statics from the base resultants (weights of block and equipment "
+                "with the vertical motion): sliding FS = (μN + P)/|V|, overturning FS = "
+                "stabilising/overturning moment about each base edge, bearing = peak edge "
+                "pressure (linear; the no-tension rigid-base value where contact is lost), bolt "
+                "interaction against the entered capacities. Screening comparisons with "
+                "user-entered values, not a code check.")
+        if sl.get("min_safety_factor") is None and sl.get("note"):
+            note += " " + str(sl["note"]) + "."
+        cases = [c for c in self.s.get("soil_cases") or [] if isinstance(c, Mapping)]
+        if cases and _as_float(cases[0].get("modulus_ratio")) not in (None, 1.0):
+            note += (f" G is the strain-compatible modulus, G/G0 = "
+                     f"{num(_as_float(cases[0]['modulus_ratio']), 3)} "
+                     f"({cases[0].get('modulus_source', '')}).")
+        if len(cases) > 1:
+            note += " " + str(self.s.get("soil_case_practice", ""))
+        return ('<div class="stability"><h3>Foundation stability</h3>'
+                + f'<p class="note">{esc(note)}</p>'
+                + table(rows, ["soil case", "G [MPa]", "first mode [Hz]", "sliding FS min",
+                               "overturning FS min", "edge", "peak bearing [kPa]",
+                               "bearing / allowable", "bolt interaction max"]) + "</div>")
+
     def results(self) -> str:
         html_ = ["<h3>Governing peaks</h3>"]
         peaks = self.s.get("peaks")
@@ -805,7 +867,8 @@ class _Builder:
                     dcv = v / cv
                 pos = positions[k] if k < len(positions) else a.get("position")
                 rows.append({"bolt": k + 1, "position": pos, "tension": t, "shear": v,
-                             "cap_t": ct, "cap_v": cv, "dc_t": dct, "dc_v": dcv})
+                             "cap_t": ct, "cap_v": cv, "dc_t": dct, "dc_v": dcv,
+                             "ir": _as_float(a.get("interaction_ratio"))})
             out.append((name, rows))
         return out
 
@@ -825,17 +888,18 @@ class _Builder:
             html_.append(f"<h3>{esc(name)}</h3>")
             body, classes = [], []
             for r in rows:
-                over = any(d is not None and d > 1.0 for d in (r["dc_t"], r["dc_v"]))
+                over = any(d is not None and d > 1.0 for d in (r["dc_t"], r["dc_v"], r["ir"]))
                 have = r["dc_t"] is not None or r["dc_v"] is not None
                 body.append([r["bolt"], r["position"], r["tension"], r["shear"], r["cap_t"],
-                             r["cap_v"], r["dc_t"], r["dc_v"],
+                             r["cap_v"], r["dc_t"], r["dc_v"], r["ir"],
                              "above entered capacity" if over else
                              ("within entered capacity" if have else "no capacity entered")])
                 classes.append("over" if over else "")
             html_.append(table(body, ["bolt", "offset from mount x, y [m]", "peak tension [N]",
                                       "peak shear [N]", "entered tension capacity [N]",
                                       "entered shear capacity [N]", "D/C tension [–]",
-                                      "D/C shear [–]", "screening comparison"],
+                                      "D/C shear [–]", "tension–shear interaction [–]",
+                                      "screening comparison"],
                                row_classes=classes))
         if not found:
             html_.append('<p class="none">No anchor bolts in this scenario.</p>')
@@ -1056,7 +1120,7 @@ class _Builder:
             f'<div class="banner">{esc(SCREENING_NOTE)} Linear-elastic model; verify against '
             "the governing code and have a licensed engineer review. See "
             '<a href="#cautions">Cautions</a>.</div>'
-            + self.key_figures() +
+            + self.key_figures() + self.stability() +
             f'<nav class="toc">{toc}</nav></header>'
             f"<main>{sections}</main>"
             f"<footer>{esc(SCREENING_NOTE)} Generated by groundshake {esc(__version__)}.</footer>"

@@ -10,7 +10,8 @@ base plate. From the absolute acceleration of its CG (translations a, rotations
     F = m a + (0, 0, f_d·m·g),      M = I α + h ẑ × (m a),
 
 where f_d is the ``dead_load_factor`` (the share of the weight counted as
-resisting uplift). Moved to the bolt-group centroid, F_z and the overturning
+resisting uplift; default 0.9, the 0.9·D of the combination with E in ASCE 7-16
+§2.3.6, from memory). Moved to the bolt-group centroid, F_z and the overturning
 moments are shared by the bolts in proportion to their distance from the
 centroid (rigid plate, equal elastic bolts), and the horizontal forces equally
 plus the torsion in proportion to the polar distance. Compression is assumed to
@@ -24,7 +25,8 @@ import numpy as np
 
 from ..records import STANDARD_GRAVITY
 
-__all__ = ["BoltForces", "bolt_forces", "plate_loads", "fp_comparison", "SCREENING_WORDING"]
+__all__ = ["BoltForces", "bolt_forces", "plate_loads", "fp_comparison", "bolt_interaction",
+           "INTERACTION_FORMS", "SCREENING_WORDING"]
 
 SCREENING_WORDING = "screening comparison, not a code capacity check"
 
@@ -50,7 +52,7 @@ class BoltForces:
 
 
 def plate_loads(acc6: np.ndarray, *, mass: float, inertia, cg_height: float,
-                dead_load_factor: float = 1.0, g: float = STANDARD_GRAVITY) -> np.ndarray:
+                dead_load_factor: float = 0.9, g: float = STANDARD_GRAVITY) -> np.ndarray:
     """Forces and moments the foundation applies to the equipment at its plate centre.
 
     Parameters
@@ -85,7 +87,7 @@ def plate_loads(acc6: np.ndarray, *, mass: float, inertia, cg_height: float,
 
 
 def bolt_forces(acc6: np.ndarray, anchors: np.ndarray, *, mass: float, inertia,
-                cg_height: float, dead_load_factor: float = 1.0,
+                cg_height: float, dead_load_factor: float = 0.9,
                 g: float = STANDARD_GRAVITY) -> BoltForces:
     """Per-bolt tension and shear histories (rigid plate, elastic bolt group).
 
@@ -134,7 +136,7 @@ def bolt_forces(acc6: np.ndarray, anchors: np.ndarray, *, mass: float, inertia,
 
 def fp_comparison(*, weight: float, sds: float, ap: float, rp: float, ip: float,
                   z_over_h: float, anchors: np.ndarray, mass: float, cg_height: float,
-                  dead_load_factor: float = 1.0, g: float = STANDARD_GRAVITY) -> dict:
+                  dead_load_factor: float = 0.9, g: float = STANDARD_GRAVITY) -> dict:
     """Static equivalent-force demands for a side-by-side screening comparison.
 
     ASCE 7-16 §13.3.1: Fp = 0.4 ap SDS Wp (1 + 2 z/h)/(Rp/Ip), bounded by
@@ -171,3 +173,60 @@ def fp_comparison(*, weight: float, sds: float, ap: float, rp: float, ip: float,
             "peak_shear": float(bf.shear.max()) if bf.shear.size else 0.0,
             "source": "ASCE 7-16 §13.3.1 (parameters as entered)",
             "note": SCREENING_WORDING}
+
+
+#: Tension–shear interaction forms of :func:`bolt_interaction` and where each comes from.
+INTERACTION_FORMS = {
+    "5/3-power": "(T/Tc)^(5/3) + (V/Vc)^(5/3) <= 1 (ACI 318-19 commentary R17.8, "
+                 "from memory)",
+    "trilinear": "T/Tc alone when V/Vc <= 0.2, V/Vc alone when T/Tc <= 0.2, else "
+                 "(T/Tc + V/Vc)/1.2 <= 1 (ACI 318-19 §17.8, from memory)",
+}
+
+
+def bolt_interaction(tension: np.ndarray, shear: np.ndarray, *, tension_capacity: float,
+                     shear_capacity: float, form: str = "5/3-power") -> np.ndarray:
+    """Tension–shear interaction ratio of bolts against user-entered capacities.
+
+    A screening ratio (1 = on the interaction curve), never a code check: the
+    capacities are the user's numbers and the form is one published shape.
+
+    Parameters
+    ----------
+    tension : ndarray (..., n_t)
+        Bolt axial force [N], tension positive (compression counts as zero).
+    shear : ndarray (..., n_t)
+        Bolt shear [N] (magnitude).
+    tension_capacity, shear_capacity : float
+        Tc, Vc per bolt [N], > 0.
+    form : {"5/3-power", "trilinear"}
+        ``"5/3-power"``: r = (T/Tc)^(5/3) + (V/Vc)^(5/3);
+        ``"trilinear"``: r = T/Tc where V/Vc ≤ 0.2, V/Vc where T/Tc ≤ 0.2, otherwise
+        (T/Tc + V/Vc)/1.2. See :data:`INTERACTION_FORMS` for the sources.
+
+    Returns
+    -------
+    ndarray, the shape of ``tension``
+        Interaction ratio (dimensionless).
+
+    Raises
+    ------
+    ValueError
+        For capacities ≤ 0 or an unknown form.
+
+    Examples
+    --------
+    >>> float(bolt_interaction(np.array(50e3), np.array(0.0), tension_capacity=100e3,
+    ...                        shear_capacity=80e3, form="trilinear"))
+    0.5
+    """
+    if not (tension_capacity > 0 and shear_capacity > 0):
+        raise ValueError(f"capacities must be > 0; given tension_capacity={tension_capacity!r}, "
+                         f"shear_capacity={shear_capacity!r}")
+    t = np.maximum(np.asarray(tension, dtype=float), 0.0) / float(tension_capacity)
+    v = np.abs(np.asarray(shear, dtype=float)) / float(shear_capacity)
+    if form == "5/3-power":
+        return t ** (5.0 / 3.0) + v ** (5.0 / 3.0)
+    if form == "trilinear":
+        return np.where(v <= 0.2, t, np.where(t <= 0.2, v, (t + v) / 1.2))
+    raise ValueError(f"form: given {form!r}; allowed one of {tuple(INTERACTION_FORMS)}")

@@ -100,6 +100,18 @@ def _terminal_summary(s: dict, out: Path) -> str:
     contact = s["base"].get("contact")
     if contact:
         rows.append(("min contact pressure", contact["min_pressure"], "Pa"))
+    st = s.get("stability") or {}
+    for key, label in (("sliding", "least sliding FS"), ("overturning", "least overturning FS")):
+        v = (st.get(key) or {}).get("min_safety_factor")
+        if v is not None:
+            case = (st.get(key) or {}).get("case")
+            rows.append((label + (f" ({case} soil)" if case else ""), v, "-"))
+    q = (st.get("bearing") or {}).get("peak_pressure")
+    if q is not None:
+        rows.append(("peak bearing pressure", q / 1e3, "kPa"))
+    wi = s.get("worst_interaction")
+    if wi:
+        rows.append((f"bolt interaction ({wi['equipment']}, bolt {wi['bolt']})", wi["value"], "-"))
     lines = [f"{s['title']} — {s['analysis']['method']} "
              f"({s['analysis']['n_modes']} modes, {s['analysis']['n_steps']} steps)",
              table(rows, ("peak", "value", "unit"))]
@@ -107,6 +119,12 @@ def _terminal_summary(s: dict, out: Path) -> str:
     if w:
         lines.append(f"worst demand/capacity: {w['value']:.3g} ({w['equipment']}, bolt {w['bolt']}) "
                      f"— {w['note']}")
+    if s.get("soil_cases"):
+        lines.append("soil cases: " + ", ".join(
+            f"{c['name']} G = {c['shear_modulus'] / 1e6:.4g} MPa" for c in s["soil_cases"])
+            + " (peaks above: envelope)")
+    if st:
+        lines.append(f"stability: {st.get('note', '')}")
     lines.append(f"warnings: {len(s['warnings'])}" + (" (see summary.json)" if s["warnings"] else ""))
     lines.append(f"written: {out}")
     lines.append(SCREENING_NOTE)

@@ -19,11 +19,13 @@ from .._progress import Progress
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
-from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
+                         fp_comparison)
+from ._stability import base_stability
 from ._floor import floor_spectra
 from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_peaks, stress_summary
 
-__all__ = ["RunResults", "analyse", "respond"]
+__all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
 RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
 
@@ -62,6 +64,30 @@ class RunResults:
     stress: StressPeaks | None
     target_psa: np.ndarray | None = None
     inputs: dict = field(default_factory=dict)
+    base: np.ndarray | None = None
+
+
+def base_resultants(results: RunResults) -> dict[str, np.ndarray]:
+    """Base resultant histories of a run, the structure acting on its support.
+
+    Parameters
+    ----------
+    results : RunResults
+
+    Returns
+    -------
+    dict
+        ``"Fx", "Fy", "Fz"`` [N] and ``"Mx", "My", "Mz"`` [N·m], each an ndarray (n_t,)
+        on ``results.time``; moments about the centre of the base face
+        (``results.model.base["centre"]``). Taken by d'Alembert, −Σ m·ü_abs over every
+        mass of the model (block, base nodes, equipment), for both methods. The weight is
+        not included: Fz is the dynamic part, −m·a_z for a rigid body.
+    """
+    b = results.base
+    if b is None:
+        b = np.vstack([results.histories[f"base {c} [{'N' if c.startswith('F') else 'N*m'}]"]
+                       for c in RESULTANTS])
+    return {c: np.asarray(b[j]) for j, c in enumerate(RESULTANTS)}
 
 
 # --------------------------------------------------------------------------- helpers
@@ -133,7 +159,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             residual = None
         elif residual is None:
             residual = residual_vectors(model.M, model.influence, shapes, gam,
-                                        model.factor().solve)
+                                        model.factor().solve,
+                                        load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
         r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt, residual=residual)
         u, v, a = r.recover(output)
@@ -159,13 +186,15 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     def on_block(ub, steps):
         peaks.update(0, (S @ ub).reshape(n_el, 6, -1), steps)
 
-    C = model.damping_matrix()
+    C = model.damping_matrix(modes=modes)
+    update = model.damping_update() if hasattr(model, "damping_update") else None
     t0 = _time.perf_counter()
     res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
                           hht_alpha=hht_alpha, substeps=n_sub,
                           on_block=on_block if peaks is not None else None,
                           peak_operator=node_map, solver=getattr(model, "solver", "auto"),
-                          progress=progress)
+                          progress=progress, load=getattr(model, "ground_load", None),
+                          damping_update=update)
     node_peak = {}
     for j, d in enumerate(DIRECTIONS):
         vals = res.dof_peak[j::3]
@@ -180,9 +209,17 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     if n_sub > 1:
         assumptions.append(f"The record step {dt:g} s was subdivided into {n_sub} steps so that "
                            f"the step is at most 1/10 of the period at {cutoff_hz:g} Hz.")
-    assumptions.append("Block damping: Rayleigh matrix a·M + b·K at "
-                       f"{getattr(model, 'rayleigh_used_hz', None)} Hz plus the discrete "
-                       "dashpots of soil radiation and equipment supports.")
+    fr = getattr(model, "rayleigh_used_hz", None)
+    fr_txt = "?" if fr is None else f"{fr[0]:.3g} and {fr[1]:.3g} Hz"
+    why = getattr(model, "rayleigh_choice", "") or ""
+    assumptions.append(
+        f"Damping matrix: Rayleigh a·M + b·K of the block alone, {100 * model.damping_ratio:g} % "
+        f"at {fr_txt}" + (f" ({why})" if why else "") + "; the soil springs sit in the "
+        "stiffness term (their material damping is the block ratio at those frequencies); "
+        "each flexible equipment support carries only its own dashpot at its own ratio; "
+        "soil radiation dashpots as modelled. Non-classical damping is kept whole (no modal "
+        "uncoupling); the Rayleigh ratio differs from the target between and beyond the two "
+        "frequencies.")
     return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
 
 
@@ -229,7 +266,15 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
     acceleration = relative + ground. Each method's assumptions are listed in
     ``summary["analysis"]["assumptions"]``.
     """
+    from ._cases import analyse_cases, needs_soil_cases
+    if model is None and modes is None and needs_soil_cases(scenario):
+        # lower/best/upper soil cases, one model each, envelope governs (results/_cases.py)
+        return analyse_cases(scenario, analyse=analyse, progress=progress, method=method,
+                             motion=motion, stresses=stresses)
     collected: list[str] = []
+    if _get(_get(scenario, "support"), "variation", None) is not None:
+        collected.append("support.variation: the soil cases run only when the run builds its "
+                         "own model; this run (model given, e.g. a suite) is the best estimate")
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         out = _analyse(scenario, progress=progress, method=method, motion=motion, model=model,
@@ -286,12 +331,14 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   warn=False)
     timings["modes"] = _tick()
     # the modes' own notes, except the mass one (ours below also names the correction)
+    # and the modal damping cap, which only modal runs use
     collected.extend(m for m in getattr(modes, "warnings", []) or []
-                     if not str(m).startswith("modes capture"))
+                     if not str(m).startswith("modes capture")
+                     and not (method == "direct" and str(m).startswith("modal damping of mode")))
     if method == "modal" and not getattr(model, "is_classically_damped", True):
         collected.append("Non-classical damping (soil radiation and/or equipment dashpots) is "
-                         "represented by modal damping ratios (coupling terms neglected, ratios "
-                         "capped); run with --method direct to check.")
+                         "represented by modal damping ratios (coupling terms between modes "
+                         "neglected); --method direct keeps the whole damping matrix.")
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
@@ -307,7 +354,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         blocks.append(sp.csr_matrix(e.operator)); names.append(("equipment", e.name, 6))
     for e in model.equipment:
         blocks.append(_mount_operator(model, e.mount)); names.append(("mount", e.name, 3))
-    R = model.reaction
+    R = getattr(model, "inertia_reaction", None) or model.reaction
     blocks += [sp.csr_matrix(R.K), sp.csr_matrix(R.C), sp.csr_matrix(R.M)]
     output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n))
     _tick()
@@ -362,6 +409,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     # ---- equipment and anchorage
     equip_out: dict[str, Any] = {}
     worst_dc = None
+    worst_ir = None
     for e in model.equipment:
         sl = rows[("equipment", e.name)]
         rel = resp.disp[sl]
@@ -400,6 +448,15 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 if cap is not None:
                     b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
                     b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
+                    ir = bolt_interaction(t, v, tension_capacity=float(_get(cap, "tension")),
+                                          shear_capacity=float(_get(cap, "shear")),
+                                          form=_get(cap, "interaction", "5/3-power"))
+                    ii = int(np.argmax(ir))
+                    b["interaction_ratio"] = float(ir[ii])
+                    b["time_of_peak_interaction"] = float(ii * dt)
+                    if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
+                        worst_ir = (b["interaction_ratio"], e.name, i + 1,
+                                    _get(cap, "interaction", "5/3-power"))
                     dc = max(b["dc_tension"], b["dc_shear"])
                     if worst_dc is None or dc > worst_dc[0]:
                         worst_dc = (dc, e.name, i + 1)
@@ -407,13 +464,18 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 hist[f"{e.name} bolt {i + 1} tension [N]"] = t
                 hist[f"{e.name} bolt {i + 1} shear [N]"] = v
                 peak_times.append((f"{e.name} bolt {i + 1} tension", float(it * dt)))
+            d_["dead_load_factor"] = float(e.dead_load_factor)
             d_["anchorage_method"] = ("rigid base plate, elastic bolt group (common practice); "
                                       f"weight × dead_load_factor {float(e.dead_load_factor):g} "
-                                      "resists uplift; vertical motion included; "
+                                      "resists uplift (default 0.9: 0.9D with E, ASCE 7-16 "
+                                      "§2.3.6, from memory); vertical motion included; "
                                       f"{SCREENING_WORDING}")
             if cap is not None:
+                form = _get(cap, "interaction", "5/3-power")
                 d_["capacity"] = {"tension": float(_get(cap, "tension")),
                                   "shear": float(_get(cap, "shear")),
+                                  "interaction": form,
+                                  "interaction_formula": INTERACTION_FORMS[form],
                                   "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
@@ -463,6 +525,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
             collected.append(f"Possible uplift / loss of contact: the linear contact pressure falls "
                              f"to {pmin[i_min]:.3g} Pa at t = {i_min * dt:.3f} s; the linear model "
                              "(bonded soil springs) no longer holds there.")
+
+    # ---- stability of the base (results/_stability.py): screening with user values
+    stab = base_stability(base, weight=float(model.weight),
+                          lx=float(model.base.get("lx", 1.0)), ly=float(model.base.get("ly", 1.0)),
+                          support=_get(scenario, "support"))
+    stability_out = stab.summary(dt)
 
     peaks: dict[str, Any] = {
         "base_shear": {"x": base_out["peaks"]["Fx"]["value"], "y": base_out["peaks"]["Fy"]["value"]},
@@ -542,8 +610,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                     "cutoff_hz": cutoff, "n_modes": int(np.asarray(modes.omega).size),
                     "retained_mass_ratio": retained, "dt": dt, "n_steps": n_t,
                     "duration": float((n_t - 1) * dt), **resp.info,
-                    "effective_force": "p(t) = -M iota a_g(t), relative to the moving base; "
-                                       "absolute = relative + ground"}
+                    "effective_force": "p(t) = -L a_g(t), L = M iota (on a fixed base "
+                                       "M_ff iota_f + M_fb iota_b), relative to the moving "
+                                       "base; absolute = relative + ground",
+                    "base_resultants": "d'Alembert: -sum m * absolute acceleration over every "
+                                       "mass (block, base nodes, equipment), moments about "
+                                       "the centre of the base face"}
     summary.update({
         "analysis": analysis_out,
         "peaks": peaks,
@@ -552,8 +624,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         "worst_dc": None if worst_dc is None else
         {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
          "note": SCREENING_WORDING},
+        "worst_interaction": None if worst_ir is None else
+        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
+         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
         "stresses": stress_out,
         "base": base_out,
+        "stability": stability_out,
         "floor_spectra": floor_out,
         "modes": _modes_dict(modes, model),
         "model": model.describe(),
@@ -584,7 +660,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                       histories=hist, ground_spectra=ground_spectra, floor=floor,
                       stress=None if resp.stress is None else
                       element_peaks(resp.stress, model.stress_points.element_points),
-                      target_psa=target_psa, inputs=inputs)
+                      target_psa=target_psa, inputs=inputs, base=base)
 
 
 def _modes_dict(modes, model) -> dict:
@@ -630,33 +706,68 @@ def _records_summary(motion: Motion) -> list:
     return out
 
 
+def motion_band(scenario, motion: Motion) -> tuple[float, str]:
+    """Upper edge [Hz] of the motion's usable band and what sets it: the low-pass corner of
+    the processing when one is applied, else the Nyquist frequency 1/(2·dt)."""
+    nyq = 0.5 / motion.dt
+    lp = None
+    try:
+        settings = scenario.processing_settings() if hasattr(scenario, "processing_settings") \
+            else None
+        if settings is not None and bool(_get(settings, "enabled", True)):
+            lp = _get(settings, "lowpass_hz", None)
+    except (AttributeError, TypeError, ValueError, InputError):
+        lp = None
+    if lp is not None and float(lp) < nyq:
+        return float(lp), f"the low-pass corner {float(lp):.3g} Hz"
+    return nyq, f"the Nyquist frequency {nyq:.3g} Hz"
+
+
 def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff, peak_times,
                    n_modes) -> None:
-    """Append the automatic warnings of a run to ``collected``."""
+    """Append the automatic warnings of a run to ``collected`` (only those that apply)."""
     dt, dur = motion.dt, motion.duration
+    f_band, band_why = motion_band(scenario, motion)
     freq = np.asarray(modes.frequency) if n_modes else np.zeros(0)
+    excited = np.array([d in motion.components for d in DIRECTIONS])
     if n_modes:
         T1 = 1.0 / float(freq[0])
         if dur < 10 * T1:
             collected.append(f"The record ({dur:.3g} s) is shorter than 10 periods of the lowest "
                              f"mode (T1 = {T1:.3g} s): its response may not develop.")
         f_hi = float(freq[-1])
-        if dt > 1.0 / (10.0 * f_hi):
-            what = ("the modal kernel is exact for a piecewise-linear record, but the record "
-                    "cannot carry motion at that frequency") if method == "modal" else \
-                   "the step was subdivided, but the record cannot carry motion at that frequency"
-            collected.append(f"The time step dt = {dt:g} s is coarser than 1/10 of the period of "
-                             f"the highest retained mode ({f_hi:.3g} Hz); {what}.")
-        cum = np.asarray(modes.cumulative_ratio)[-1]
+        ratio = np.asarray(modes.effective_mass_ratio)
+        # modes holding mass that the record cannot drive: above its usable band
+        above = (freq > f_band) & np.any((ratio >= 0.05) & excited[None, :], axis=1)
+        if method == "modal" and np.any(above):
+            share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
+                                 * excited))
+            collected.append(
+                f"Mode(s) at {', '.join(f'{f:.3g}' for f in freq[above][:4])} Hz holding "
+                f"{100 * share:.0f} % of the mass lie above the motion's usable band (up to "
+                f"{band_why}, dt = {dt:g} s): the record carries no motion there, so they "
+                "respond quasi-statically; a record sampled more finely (or filtered less) "
+                "is needed to excite them.")
+        rigid = np.asarray(getattr(modes, "rigid_mass", None) if getattr(modes, "rigid_mass",
+                                                                         None) is not None
+                           else np.zeros(3), float)
+        total = np.asarray(modes.total_mass, float)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            cum = np.where(total - rigid > 0, np.asarray(modes.effective_mass).sum(axis=0)
+                           / (total - rigid), 1.0)
         low = [f"{d} {100 * cum[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
-               if d in motion.components and cum[j] < 0.9]
-        if low:
-            collected.append("Retained modal mass below 90 % (" + ", ".join(low) + "); "
-                             + ("the missing-mass correction carries the rest statically."
-                                if method == "modal" else "the direct solution uses all DOFs."))
-        f_use = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+               if excited[j] and cum[j] < 0.9]
+        if low and method == "modal" and f_hi < f_band:
+            collected.append("Retained modal mass below 90 % of the mass free to move ("
+                             + ", ".join(low) + ") while the modes left out start within the "
+                             f"motion's band (the highest kept is {f_hi:.3g} Hz, the band reaches "
+                             f"{f_band:.3g} Hz): the missing-mass correction treats them "
+                             "statically; raise cutoff_hz or modes (ASCE 7-16 §12.9.1.1 asks "
+                             "for 90 %).")
+        f_model = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+        f_use = min(f_model, f_band)
     else:
-        f_use = float(cutoff or 0.0)
+        f_use = min(float(cutoff or 0.0), f_band)
         collected.append("No mode below the cutoff: the block responds quasi-statically "
                          "(missing mass only)." if method == "modal" else
                          "No mode below the cutoff.")
@@ -676,8 +787,9 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
             h = float(_get(_get(scenario, "mesh"), "element_size"))
         if f_use > 0 and h > vs / (10.0 * f_use):
             collected.append(f"Elements up to {h:.3g} m are larger than 1/10 of the shear "
-                             f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m): fewer than about "
-                             "10 elements per wavelength; refine the mesh or lower the cutoff.")
+                             f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m), the highest "
+                             "frequency both modelled and carried by the motion: fewer than "
+                             "about 10 elements per wavelength; refine the mesh.")
     except (TypeError, ValueError, AttributeError):
         pass
     tail = max(5 * dt, 0.02 * dur)

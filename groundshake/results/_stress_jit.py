@@ -11,7 +11,9 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit, prange
+from numba import prange
+
+from groundshake._jit_cache import njit
 
 __all__ = ["fold_block"]
 

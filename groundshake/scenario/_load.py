@@ -19,6 +19,7 @@ from pathlib import Path
 from typing import Any
 
 from .._errors import GroundshakeWarning, ScenarioError
+from .._plausible import judge
 from . import _geometry
 from ._lines import key_lines, line_of
 from ._types import (
@@ -396,6 +397,7 @@ def _build(data: Any, ctx: _Context) -> Scenario:
     _check_processing(values, ctx)
     _check_materials_and_parts(values, ctx)
     _check_support(values, ctx)
+    _check_plausible(values, ctx)
     _check_damping(values, ctx)
     _check_motion(values, ctx)
     _check_floor_spectra(values, ctx)
@@ -452,16 +454,87 @@ def _check_names(values, section, ctx):
 def _check_support(values, ctx):
     s = values.get("support")
     if s is None or s.kind != "soil":
-        if s is not None and any(v is not None for v in (s.shear_wave_velocity, s.poisson_ratio, s.density)):
+        if s is not None and (any(v is not None for v in (s.shear_wave_velocity, s.poisson_ratio,
+                                                          s.density, s.variation,
+                                                          s.modulus_ratio, s.strain_compatible))
+                              or s.embedment_depth or s.frequency_dependent):
             ctx.notes.append(f"{ctx.where(('support',))}: support: soil properties given with "
                              f'kind = "fixed" are not used')
         return
+    if s.sidewall_contact_depth is not None and s.sidewall_contact_depth > s.embedment_depth:
+        raise ctx.bad(("support", "sidewall_contact_depth"), s.sidewall_contact_depth,
+                      f"a number in [0, embedment_depth = {_fmt(s.embedment_depth)}] [m]")
+    if s.modulus_ratio is not None and s.strain_compatible is not None:
+        raise ctx.bad(("support", "modulus_ratio"), s.modulus_ratio,
+                      "either modulus_ratio or strain_compatible, not both")
+    if s.sidewall_contact_depth is None:
+        values["support"] = dataclasses.replace(s, sidewall_contact_depth=s.embedment_depth)
     from ._types import SupportSettings
     meta = {f.name: f.metadata for f in _schema_fields(SupportSettings)}
     for key in ("shear_wave_velocity", "poisson_ratio", "density"):
         if getattr(s, key) is None:
             raise ctx.error(("support", key), "nothing (the key is missing)",
                             allowed_text(meta[key]) + ' (required when kind = "soil")')
+
+
+def _plausible(quantity: str, value, path: tuple, ctx: _Context) -> None:
+    """Error for a value no real case has (a unit slip), warning for an unusual one."""
+    if value is None:
+        return
+    level, text = judge(quantity, float(value), key=format_path(path))
+    if level == "error":
+        e = ScenarioError(f"{ctx.where(path)}: {text}")
+        e.key, e.line, e.file = format_path(path), line_of(ctx.lines, path), ctx.source
+        raise e
+    if level == "warn":
+        msg = f"{ctx.where(path)}: {text}"
+        ctx.notes.append(msg)
+        warnings.warn(msg, GroundshakeWarning, stacklevel=5)
+
+
+def _check_plausible(values, ctx):
+    """Unit slips in materials, soil, equipment and damping (ranges in groundshake._plausible)."""
+    for name, m in (values.get("materials") or {}).items():
+        for key in ("youngs_modulus", "density", "poisson_ratio"):
+            _plausible(key, getattr(m, key), ("materials", name, key), ctx)
+    s = values.get("support")
+    if s is not None and s.kind == "soil":
+        for key, quantity in (("shear_wave_velocity", "shear_wave_velocity"),
+                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio")):
+            _plausible(quantity, getattr(s, key), ("support", key), ctx)
+    d = values.get("damping")
+    if d is not None:
+        _plausible("damping_percent", d.ratio_percent, ("damping", "ratio_percent"), ctx)
+    for i, e in enumerate(values.get("equipment") or ()):
+        _plausible("equipment_mass", e.mass, ("equipment", i, "mass"), ctx)
+        _plausible("damping_percent", e.damping_percent, ("equipment", i, "damping_percent"), ctx)
+        if getattr(e, "fp", None) is not None:
+            _plausible("sds", e.fp.sds, ("equipment", i, "fp", "sds"), ctx)
+    fs = values.get("floor_spectra")
+    if fs is not None:
+        for z in fs.damping_percent:
+            _plausible("damping_percent", z, ("floor_spectra", "damping_percent"), ctx)
+    m = values.get("motion")
+    if m is not None and m.target is not None:
+        _check_target(m.target, ("motion", "target"), ctx)
+
+
+def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
+    """Parse the target now, so its unit slips (sds=9.81) name the file and line."""
+    from .._errors import InputError
+    from ..spectra._targets import parse_target
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", GroundshakeWarning)
+        try:
+            parse_target(spec, base_dir=ctx.base_dir)
+        except InputError as e:
+            err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
+            err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
+            raise err from None
+    for w in caught:
+        if issubclass(w.category, GroundshakeWarning):
+            ctx.warn(path, str(w.message))
 
 
 def _check_damping(values, ctx):

@@ -22,6 +22,7 @@ __all__ = [
     "Part",
     "MeshSettings",
     "SupportSettings",
+    "StrainCompatible",
     "DampingSettings",
     "AnchorCapacity",
     "FpParameters",
@@ -169,6 +170,20 @@ class MeshSettings:
 
 
 @dataclass(frozen=True, kw_only=True)
+class StrainCompatible:
+    """Reduction of the soil's shear modulus with the level of shaking (soil only).
+
+    Effective shear modulus ratio G/G0 by site class and S_DS/2.5 (ASCE 7-16
+    Table 19.2-1, from memory; linear interpolation between its columns).
+    """
+
+    site_class: Literal["A", "B", "C", "D", "E"] = spec(
+        "choice", choices=("A", "B", "C", "D", "E"), doc="site class of the table")
+    shaking_g: float = spec("number", ge=0.0, unit="g",
+                            doc="level of shaking S_DS/2.5 (or the site's PGA)")
+
+
+@dataclass(frozen=True, kw_only=True)
 class SupportSettings:
     """The ``[support]`` table; the soil keys are required when ``kind = "soil"``."""
 
@@ -184,6 +199,31 @@ class SupportSettings:
     springs: Literal["lumped", "distributed"] = spec(
         "choice", "lumped", choices=("lumped", "distributed"),
         doc="six springs at a rigid base, or a spring bed with the same totals")
+    embedment_depth: float = spec("number", 0.0, ge=0.0, unit="m",
+                                  doc="depth of the base below grade (soil only; Gazetas 1991 "
+                                      "embedment factors)")
+    sidewall_contact_depth: float | None = spec(
+        "number", None, ge=0.0, unit="m", derived="embedment_depth",
+        doc="height of the side walls in good contact with the soil (soil only)")
+    frequency_dependent: bool = spec(
+        "bool", False, doc="evaluate each base spring at the frequency of the modes that "
+                           "load it (Gazetas 1991 k(a0), iterated; soil only)")
+    variation: float | None = spec("number", None, ge=0.0, le=10.0,
+                                   doc="Cv of the shear modulus: lower, best and upper cases "
+                                       "G/(1+Cv), G, G(1+Cv); none = best estimate only")
+    modulus_ratio: float | None = spec("number", None, gt=0.0, le=1.0,
+                                       doc="strain-compatible G/G0 as entered (soil only)")
+    strain_compatible: StrainCompatible | None = spec(
+        "table", None, cls=StrainCompatible,
+        doc="G/G0 from the level of shaking {site_class, shaking_g} (soil only)")
+    friction_coefficient: float | None = spec(
+        "number", None, gt=0.0, doc="base friction coefficient μ for the sliding check; "
+                                    "none = no sliding check")
+    passive_resistance: float = spec("number", 0.0, ge=0.0, unit="N",
+                                     doc="horizontal resistance added to friction (user entered)")
+    allowable_bearing_pressure: float | None = spec(
+        "number", None, gt=0.0, unit="Pa", doc="allowable bearing pressure for the screening "
+                                               "ratio; none = no comparison")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -205,6 +245,9 @@ class AnchorCapacity:
 
     tension: float = spec("number", gt=0.0, unit="N", doc="tension capacity per bolt")
     shear: float = spec("number", gt=0.0, unit="N", doc="shear capacity per bolt")
+    interaction: Literal["5/3-power", "trilinear"] = spec(
+        "choice", "5/3-power", choices=("5/3-power", "trilinear"),
+        doc="tension-shear interaction: (T/Tc)^5/3 + (V/Vc)^5/3, or the trilinear form")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -243,8 +286,9 @@ class Equipment:
         doc="rotary inertia about the CG, axes x, y, z")
     anchors: tuple[tuple[float, float], ...] = spec(
         "points", (), unit="m", doc="bolt positions [[x, y], ...] from the mount")
-    dead_load_factor: float = spec("number", 1.0, ge=0.0, le=1.0,
-                                   doc="share of the weight that resists uplift")
+    dead_load_factor: float = spec("number", 0.9, ge=0.0, le=1.0,
+                                   doc="share of the weight that resists uplift (default 0.9: "
+                                       "0.9D with E, ASCE 7-16 §2.3.6, from memory)")
     capacity: AnchorCapacity | None = spec("table", None, cls=AnchorCapacity,
                                            doc="bolt capacities {tension, shear}, user supplied")
     fp: FpParameters | None = spec("table", None, cls=FpParameters,

@@ -11,7 +11,7 @@ import numpy as np
 
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import float_list, print_json, table
+from .._cli_common import check_damping_percent, float_list, print_json, table
 from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
 
@@ -135,6 +135,7 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
     damping_pct = float_list(args.damping, name="--damping", minimum=0.0)
     if any(d >= 100 for d in damping_pct):
         raise InputError(f"--damping: {max(damping_pct):g} %; allowed: percent in [0, 100)")
+    check_damping_percent(damping_pct)
     damping = check_damping(np.array(damping_pct) / 100.0, name="--damping")
     periods = (check_periods(float_list(args.periods, name="--periods"), name="--periods")
                if args.periods else default_periods())

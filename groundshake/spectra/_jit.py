@@ -11,7 +11,7 @@ b11 b12 b21 b22 cv cx).
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+from groundshake._jit_cache import njit
 
 __all__ = ["peaks_shared_range", "peaks_mixed_range", "history_range", "rotd_range",
            "rotated_peaks", "NB"]

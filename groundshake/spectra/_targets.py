@@ -24,6 +24,7 @@ import numpy as np
 
 from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
+from .._plausible import check_value
 
 __all__ = ["TargetSpectrum", "parse_target", "asce7_spectrum", "en1998_spectrum",
            "table_spectrum", "target_ratio", "EN1998_GROUND"]
@@ -53,6 +54,9 @@ class TargetSpectrum:
         ``"asce7"``, ``"en1998"`` or ``"table"``.
     parameters : dict
         The parameters as entered (in the units of the spec: g, s, percent).
+    period_range : (float, float) or None
+        Shortest and longest period [s] where the curve is defined (a table's first
+        and last rows); None for a code shape, defined at every period.
     """
 
     label: str
@@ -60,6 +64,7 @@ class TargetSpectrum:
     kind: str
     parameters: dict
     _fn: Callable[[np.ndarray], np.ndarray] = field(repr=False)
+    period_range: tuple[float, float] | None = None
 
     def psa(self, periods) -> np.ndarray:
         """Target pseudo-acceleration [m/s²] at ``periods`` [s] (≥ 0), shape of periods.
@@ -103,6 +108,8 @@ def asce7_spectrum(sds: float, sd1: float, tl: float) -> TargetSpectrum:
     for nm, v in (("sds", sds), ("sd1", sd1), ("tl", tl)):
         if not (math.isfinite(v) and v > 0):
             raise InputError(f"target asce7: {nm}={v!r}; must be a number > 0")
+    for nm, v in (("sds", sds), ("sd1", sd1), ("tl", tl)):
+        check_value(nm, v, where="target asce7: ", stacklevel=3)   # unit slips (m/s² for g)
     t0, ts = 0.2 * sd1 / sds, sd1 / sds
 
     def fn(t):
@@ -145,6 +152,7 @@ def en1998_spectrum(spectrum_type: int, ground: str, ag: float,
         raise InputError(f"target en1998: ground={ground!r}; allowed: A, B, C, D, E")
     if not (math.isfinite(ag) and ag > 0):
         raise InputError(f"target en1998: ag={ag!r}; must be a number of g > 0")
+    check_value("ag", ag, where="target en1998: ", stacklevel=3)   # unit slips (m/s² for g)
     if not (math.isfinite(damping_percent) and 0 <= damping_percent < 100):
         raise InputError(f"target en1998: damping={damping_percent!r}; allowed: percent in [0, 100)")
     s, tb, tc, td = EN1998_GROUND[spectrum_type][g]
@@ -206,6 +214,8 @@ def table_spectrum(path: str | os.PathLike) -> TargetSpectrum:
     if np.any(np.diff(arr[:, 0]) <= 0):
         raise InputError(f"{path}: periods repeat; each period may appear once")
     tt, vv = arr[:, 0], arr[:, 1]
+    check_value("target_psa", float(np.max(vv)), key="largest PSA", where=f"{path}: ",
+                stacklevel=3)                                   # the table's unit is g
     pos = tt > 0
 
     def fn(t):
@@ -223,7 +233,8 @@ def table_spectrum(path: str | os.PathLike) -> TargetSpectrum:
         return out
 
     return TargetSpectrum(label=f"table {path.name}", damping=0.05, kind="table",
-                          parameters={"path": str(path), "rows": int(len(arr))}, _fn=fn)
+                          parameters={"path": str(path), "rows": int(len(arr))}, _fn=fn,
+                          period_range=(float(tt[0]), float(tt[-1])))
 
 
 _ASCE_KEYS = {"sds", "sd1", "tl"}
