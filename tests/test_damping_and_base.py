@@ -6,7 +6,7 @@ motion (Chopra, Dynamics of Structures, ch. 9 and 11; Rayleigh coefficients
 a0 = 2ξω1ω2/(ω1+ω2), a1 = 2ξ/(ω1+ω2), Chopra §11.4) and integrated exactly for
 linear-between-samples input by scipy.signal.lsim (independent of our integrator);
 Gazetas (1991) Kz = 2GL/(1−ν)(0.73 + 1.54χ^0.75) and Lysmer's analog Cz = ρ·VLa·A,
-VLa = 3.4Vs/(π(1−ν)) (REFERENCES.md §8); Newton's second law (a rigid body's base
+VLa = 3.4Vs/(π(1−ν)) (docs/references.md §8); Newton's second law (a rigid body's base
 resultant is m·a_cg). Records here are invented test signals.
 """
 from __future__ import annotations

@@ -2,7 +2,7 @@
 
 Sources: Gazetas (1991), J. Geotech. Eng. ASCE 117(9), Table 1 (dynamic stiffness
 coefficients of a surface rectangle) and Table 2 (embedded foundations) — written from
-memory (REFERENCES.md §11 marks them [S] for the paper, the numbers here [M]); ASCE 7-16
+memory (docs/references.md §11 marks them [S] for the paper, the numbers here [M]); ASCE 7-16
 Table 19.2-1 effective shear modulus ratios — from memory, verify.
 """
 import math

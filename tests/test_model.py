@@ -328,7 +328,7 @@ def test_distributed_bed_is_uniform_and_keeps_gazetas_totals():
     one = model.influence[:, 2]
     assert one @ (Kb @ one) == pytest.approx(kz, rel=1e-10)
     # radiation dashpots act on the averaged translation: Cz = ρ·VLa·A for a translation,
-    # nothing for a rigid rocking or twist (as with lumped springs; REFERENCES.md §8)
+    # nothing for a rigid rocking or twist (as with lumped springs; docs/references.md §8)
     U, c = model.damping_update()
     vla = 3.4 * 150.0 / (np.pi * 0.7)
     assert c[2] * (U.T @ one)[2] ** 2 == pytest.approx(1800.0 * vla * 24.0, rel=1e-10)
