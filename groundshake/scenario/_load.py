@@ -411,7 +411,7 @@ def _check_processing(values, ctx):
     p = values.get("processing")
     if p is None:
         return
-    if p.lowpass_hz is not None and not p.lowpass_hz > p.highpass_hz:
+    if p.lowpass_hz and p.highpass_hz and not p.lowpass_hz > p.highpass_hz:
         raise ctx.bad(("processing", "lowpass_hz"), p.lowpass_hz,
                       f"a number > highpass_hz = {_fmt(p.highpass_hz)} [Hz]")
     if p.mean_removal == "pre-event" and not p.pre_event_s > 0:

@@ -118,9 +118,10 @@ class ProcessingOptions:
                               doc="length of the pre-event part")
     baseline_order: int = spec("integer", 1, ge=0, le=6,
                                doc="order of the polynomial baseline removed")
-    highpass_hz: float = spec("number", 0.1, gt=0.0, unit="Hz", doc="high-pass corner")
-    lowpass_hz: float | None = spec("number", None, gt=0.0, unit="Hz",
-                                    doc="low-pass corner; none = no low-pass")
+    highpass_hz: float = spec("number", 0.1, ge=0.0, unit="Hz",
+                              doc="high-pass corner; 0 = no high-pass")
+    lowpass_hz: float | None = spec("number", None, ge=0.0, unit="Hz",
+                                    doc="low-pass corner; none or 0 = no low-pass")
     filter_order: int = spec("integer", 4, ge=1, le=12, doc="Butterworth filter order")
     taper_percent: float = spec("number", 5.0, ge=0.0, le=25.0, unit="%",
                                 doc="cosine taper at each end, percent of the length")
