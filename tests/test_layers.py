@@ -76,8 +76,6 @@ LAYER_ALLOW = {
 CYCLE_ALLOW: set[tuple[str, ...]] = {
     # damping methods on BlockModel call the modes: move damping to dynamics/_damping.py
     ("groundshake.dynamics._modes", "groundshake.model._build"),
-    # the loader and the types call each other: split the spec engine from the types
-    ("groundshake.scenario._load", "groundshake.scenario._types"),
 }
 
 

@@ -20,7 +20,7 @@ from typing import Any
 
 from .._errors import GroundshakeWarning, ScenarioError
 from .._plausible import judge
-from . import _geometry
+from . import _geometry, _types
 from ._lines import key_lines, line_of
 from ._types import (
     Equipment,
@@ -729,8 +729,16 @@ def scenario_to_dict(scenario: Scenario) -> dict:
     return out
 
 
-def replace_motion(scenario: Scenario, components: dict, target, match_target) -> Scenario:
-    """A copy of ``scenario`` with another motion (see :meth:`Scenario.with_motion`)."""
+def replace_motion(scenario: Scenario, components: dict, target, match_target,
+                   keep: Any = None) -> Scenario:
+    """A copy of ``scenario`` with another motion (see :meth:`Scenario.with_motion`).
+
+    ``target`` or ``match_target`` equal to ``keep`` (or to ``_KEEP``) are kept from
+    ``scenario``.
+    """
+    if keep is not None:
+        target = _KEEP if target is keep else target
+        match_target = _KEEP if match_target is keep else match_target
     ctx = _Context(scenario.source, None, scenario.base_dir)
     old = scenario.motion
     given = {}
@@ -766,3 +774,7 @@ class _Keep:
 
 
 _KEEP = _Keep()
+
+
+_types._CODEC.update(from_dict=scenario_from_dict, to_dict=scenario_to_dict,
+                     replace_motion=replace_motion)
