@@ -78,8 +78,9 @@ def test_modes_above_the_record_band():
     w = " | ".join(res.summary["warnings"])
     modes = res.summary["modes"]["modes"]
     # precondition: a mode holding ≥ 5 % of the x mass above the Nyquist frequency 1/(2 dt)
-    # (sampling theorem: the record carries nothing there)
-    assert any(m["frequency"] > 0.5 / dt and m["effective_mass_ratio"]["x"] >= 0.05
+    # (sampling theorem: the record carries nothing there) yet below 33 Hz, where design
+    # practice still counts on dynamic response (USNRC RG 1.60 zero-period end, from memory)
+    assert any(0.5 / dt < m["frequency"] <= 33.0 and m["effective_mass_ratio"]["x"] >= 0.05
                for m in modes)
     assert "above the motion's usable band" in w
     # elements keyed to the band (10 Hz): 0.5 m < 200 m/s / (10 × 10 Hz), rule of thumb

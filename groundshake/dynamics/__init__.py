@@ -6,10 +6,12 @@ motion and response: :class:`Motion`, :func:`build_motion`, :func:`motion_from_a
 """
 from ._modes import Modes, compute_modes, lowest_modes
 from ._direct import DirectResponse, direct_response, newmark_parameters, substeps_for
-from ._modal import ModalResponse, modal_response, pruned_peak, residual_vectors
+from ._modal import (ModalResponse, coupled_modal_response, modal_response, pruned_peak,
+                     residual_vectors)
 from ._motion import Motion, build_motion, motion_from_arrays
 
 __all__ = ["Modes", "compute_modes", "lowest_modes",
            "Motion", "build_motion", "motion_from_arrays",
-           "ModalResponse", "modal_response", "residual_vectors", "pruned_peak",
+           "ModalResponse", "modal_response", "coupled_modal_response", "residual_vectors",
+           "pruned_peak",
            "DirectResponse", "direct_response", "newmark_parameters", "substeps_for"]

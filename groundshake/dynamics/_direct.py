@@ -2,10 +2,10 @@
 
 The equations are written relative to the moving base,
 
-    M ü + C u̇ + K u = p(t) = −M ι a_g(t),
+    M ü + C u̇ + K u = p(t) = −L a_g(t),   L = M ι (on a fixed base M_ff ι_f + M_fb ι_b),
 
-with the full damping matrix (non-classical damping, soil dashpots, equipment
-dashpots are all exact). The effective stiffness is factorized once and the
+with the whole damping matrix as given (no modal uncoupling: the discrete dashpots of
+soil and equipment act as modelled). The effective stiffness is factorized once and the
 factor reused at every step. Only what is asked for is kept: the histories of a
 few output operators, the running peak of every DOF and, through a callback,
 blocks of steps for stress peaks — never the whole displacement history.
@@ -129,7 +129,7 @@ def direct_response(K: sp.spmatrix, M: sp.spmatrix, C: sp.spmatrix | None,
                     peak_operator: sp.spmatrix | None = None,
                     progress: bool = False, load: np.ndarray | None = None,
                     damping_update: tuple | None = None) -> DirectResponse:
-    """Integrate M ü + C u̇ + K u = −M ι a_g(t) step by step.
+    """Integrate M ü + C u̇ + K u = −L a_g(t) step by step (L = M ι unless ``load``).
 
     Parameters
     ----------

@@ -336,6 +336,41 @@ class BlockModel:
                 z = z + np.where(omega > 0, cr / (2 * omega * mm), 0.0)
         return np.minimum(z, MODAL_DAMPING_CAP)
 
+    def modal_damping_matrix(self, shapes: np.ndarray) -> np.ndarray:
+        """Modal damping matrix (m, m) [1/s] for mass-normalised shapes (n, m).
+
+        Cm = diag(2ωₙ·ξ_b·sₙ) + Φᵀ C_d Φ: the block and the soil springs damped at the
+        block ratio ξ_b (or its Rayleigh value at ωₙ when ``rayleigh_hz`` is given) in
+        proportion sₙ of the mode's strain energy outside the equipment supports (classical,
+        diagonal), plus the discrete dashpots C_d (equipment supports at their own ratios,
+        soil radiation) projected whole, so the modes stay coupled through them as in the
+        direct method. No cap is applied.
+        """
+        phi = np.asarray(shapes, dtype=float)
+        e_tot = np.einsum("im,im->m", phi, self.K @ phi)
+        mm = np.einsum("im,im->m", phi, self.M @ phi)
+        omega = np.sqrt(np.maximum(e_tot, 0.0) / mm)
+        if self.rayleigh_hz is not None:
+            a, b = self.rayleigh_coefficients(self.rayleigh_hz)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                zb = np.where(omega > 0, a / (2 * omega) + b * omega / 2, self.damping_ratio)
+        else:
+            zb = np.full(phi.shape[1], self.damping_ratio)
+        e_eq = np.zeros(phi.shape[1])
+        for ratio, Kp in self._stiff_parts:
+            if ratio is not None:
+                e_eq += np.einsum("im,im->m", phi, Kp @ phi)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            share = np.where(e_tot > 0, (e_tot - e_eq) / e_tot, 1.0)
+        Cm = np.diag(2 * omega * zb * share)
+        if self._dashpots is not None and self._dashpots.nnz:
+            Cm = Cm + phi.T @ (self._dashpots @ phi)
+        if self._radiation_lowrank is not None:
+            U, d = self._radiation_lowrank
+            W = np.asarray(U.T @ phi)
+            Cm = Cm + W.T @ (np.asarray(d)[:, None] * W)
+        return 0.5 * (Cm + Cm.T)
+
     def describe(self) -> dict:
         """Plain dict for summary.json: mesh counts, element, supports, materials."""
         d = {

@@ -17,7 +17,8 @@ from .._cautions import CAUTIONS
 from .._errors import GroundshakeWarning, InputError
 from .._progress import Progress
 from ..dynamics._direct import direct_response, substeps_for
-from ..dynamics._modal import modal_response, pruned_peak, residual_vectors
+from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
+                               residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
 from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
                          fp_comparison)
@@ -28,6 +29,9 @@ from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_pea
 __all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
 RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
+#: Frequency [Hz] above which ground motion drives a structure quasi-statically in design
+#: practice (the zero-period end of USNRC RG 1.60 spectra, from memory).
+RIGID_HZ = 33.0
 
 
 @dataclass
@@ -162,7 +166,15 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                                         model.factor().solve,
                                         load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
-        r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt, residual=residual)
+        if getattr(model, "is_classically_damped", True) or not hasattr(model,
+                                                                        "modal_damping_matrix"):
+            r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
+                               residual=residual)
+        else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
+            r = coupled_modal_response(shapes, modes.omega, model.modal_damping_matrix(shapes),
+                                       gam, ag, dt, residual=residual)
+            info["modal_damping"] = "coupled"
+            info["modal_damping_diagonal_ratios"] = [float(v) for v in r.damping]
         u, v, a = r.recover(output)
         Z = r.coordinates
         node_peak = {}
@@ -331,14 +343,12 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   warn=False)
     timings["modes"] = _tick()
     # the modes' own notes, except the mass one (ours below also names the correction)
-    # and the modal damping cap, which only modal runs use
+    # and the cap of composite modal damping ratios, which only classically damped modal
+    # runs use (non-classical damping keeps the modal damping matrix whole, uncapped)
+    uses_cap = method == "modal" and getattr(model, "is_classically_damped", True)
     collected.extend(m for m in getattr(modes, "warnings", []) or []
                      if not str(m).startswith("modes capture")
-                     and not (method == "direct" and str(m).startswith("modal damping of mode")))
-    if method == "modal" and not getattr(model, "is_classically_damped", True):
-        collected.append("Non-classical damping (soil radiation and/or equipment dashpots) is "
-                         "represented by modal damping ratios (coupling terms between modes "
-                         "neglected); --method direct keeps the whole damping matrix.")
+                     and not (not uses_cap and str(m).startswith("modal damping of mode")))
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
@@ -737,17 +747,21 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                              f"mode (T1 = {T1:.3g} s): its response may not develop.")
         f_hi = float(freq[-1])
         ratio = np.asarray(modes.effective_mass_ratio)
-        # modes holding mass that the record cannot drive: above its usable band
-        above = (freq > f_band) & np.any((ratio >= 0.05) & excited[None, :], axis=1)
+        # modes holding mass that the record cannot drive: above its usable band but below
+        # the frequency from which design practice treats a structure as rigid (33 Hz, the
+        # zero-period end of USNRC RG 1.60 spectra, from memory); stiffer modes respond
+        # quasi-statically to any real ground motion anyway
+        above = ((freq > f_band) & (freq <= RIGID_HZ)
+                 & np.any((ratio >= 0.05) & excited[None, :], axis=1))
         if method == "modal" and np.any(above):
             share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
                                  * excited))
             collected.append(
                 f"Mode(s) at {', '.join(f'{f:.3g}' for f in freq[above][:4])} Hz holding "
                 f"{100 * share:.0f} % of the mass lie above the motion's usable band (up to "
-                f"{band_why}, dt = {dt:g} s): the record carries no motion there, so they "
-                "respond quasi-statically; a record sampled more finely (or filtered less) "
-                "is needed to excite them.")
+                f"{band_why}, dt = {dt:g} s) and below {RIGID_HZ:g} Hz: the record carries no "
+                "motion there, so they respond quasi-statically where real ground motion may "
+                "still drive them; use a record sampled more finely (or filtered less).")
         rigid = np.asarray(getattr(modes, "rigid_mass", None) if getattr(modes, "rigid_mass",
                                                                          None) is not None
                            else np.zeros(3), float)

@@ -203,7 +203,7 @@ class SupportSettings:
     radiation_damping: bool = spec("bool", True, doc="add radiation dashpots (soil only)")
     springs: Literal["lumped", "distributed"] = spec(
         "choice", "lumped", choices=("lumped", "distributed"),
-        doc="six springs at a rigid base, or a spring bed with the same totals")
+        doc="six springs at a rigid base, or a uniform spring bed with the same translation totals")
     embedment_depth: float = spec("number", 0.0, ge=0.0, unit="m",
                                   doc="depth of the base below grade (soil only; Gazetas 1991 "
                                       "embedment factors)")
