@@ -142,14 +142,14 @@ def test_low_rank_bed_dashpots_equal_the_assembled_matrix():
     # the low-rank dashpots equals solving with C + U·diag(c)·Uᵀ assembled, to round-off
     import scipy.sparse as sp
 
-    from groundshake.dynamics import direct_response
+    from groundshake.dynamics import damping_matrix, direct_response
     from groundshake.model import build_model
     support = {"kind": "soil", "shear_wave_velocity": VS, "poisson_ratio": NU_S,
                "density": RHO_S, "springs": "distributed"}
     model = build_model(_scenario(support=support,
                                   materials={"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2,
                                                    "density": 2400.0}}))
-    C = model.damping_matrix(frequencies_hz=(5.0, 30.0))
+    C = damping_matrix(model, frequencies_hz=(5.0, 30.0))
     U, c = model.damping_update()
     full = sp.csr_matrix(C + U @ sp.diags(c) @ U.T)
     ag = np.vstack([record(6, n_t=120), record(7, n_t=120), record(8, n_t=120)])

@@ -14,9 +14,14 @@ import numpy as np
 import scipy.sparse as sp
 
 from .._cautions import CAUTIONS
+from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
+from ..processing import intensity_measures
+from ..spectra import parse_target
 from .._progress import Progress
+from ..dynamics._damping import damping_matrix, modal_damping_matrix
 from ..dynamics._direct import direct_response, substeps_for
+from ..dynamics._modes import compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion, build_motion
@@ -166,12 +171,11 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                                         model.factor().solve,
                                         load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
-        if getattr(model, "is_classically_damped", True) or not hasattr(model,
-                                                                        "modal_damping_matrix"):
+        if getattr(model, "is_classically_damped", True):
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
         else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
-            r = coupled_modal_response(shapes, modes.omega, model.modal_damping_matrix(shapes),
+            r = coupled_modal_response(shapes, modes.omega, modal_damping_matrix(model, shapes),
                                        gam, ag, dt, residual=residual)
             info["modal_damping"] = "coupled"
             info["modal_damping_diagonal_ratios"] = [float(v) for v in r.damping]
@@ -198,7 +202,9 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     def on_block(ub, steps):
         peaks.update(0, (S @ ub).reshape(n_el, 6, -1), steps)
 
-    C = model.damping_matrix(modes=modes)
+    if modes is None and model.rayleigh_hz is None:   # the Rayleigh anchors need the modes
+        modes = compute_modes(model, n_modes=min(12, model.n_dof - 1), warn=False)
+    C = damping_matrix(model, modes=modes)
     update = model.damping_update() if hasattr(model, "damping_update") else None
     t0 = _time.perf_counter()
     res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
@@ -489,7 +495,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
-            d_["fp"] = fp_comparison(weight=e.mass * 9.80665, sds=float(_get(fp, "sds")),
+            d_["fp"] = fp_comparison(weight=e.mass * STANDARD_GRAVITY, sds=float(_get(fp, "sds")),
                                      ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
                                      ip=float(_get(fp, "ip", 1.0)),
                                      z_over_h=float(_get(fp, "z_over_h", 0.0)),
@@ -600,12 +606,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     target_psa = None
     target_spec = _get(_get(scenario, "motion"), "target")
     if target_spec:
-        try:
-            from ..spectra import parse_target
-            tgt = parse_target(target_spec, base_dir=_get(scenario, "base_dir"))
-            target_psa = np.asarray(tgt.psa(periods), dtype=float)
-        except ImportError:  # pragma: no cover - stage not installed
-            target_psa = None
+        tgt = parse_target(target_spec, base_dir=_get(scenario, "base_dir"))
+        target_psa = np.asarray(tgt.psa(periods), dtype=float)
 
     # ---- warnings
     _auto_warnings(collected, scenario=scenario, model=model, modes=modes, motion=motion,
@@ -690,10 +692,6 @@ def _modes_dict(modes, model) -> dict:
 
 def _records_summary(motion: Motion) -> list:
     out = []
-    try:
-        from ..processing import intensity_measures
-    except ImportError:  # pragma: no cover
-        intensity_measures = None
     for d in motion.components:
         rec = motion.corrected.get(d)
         if rec is None:
@@ -706,12 +704,11 @@ def _records_summary(motion: Motion) -> list:
                  # before the first sample as read (records.csv and histories.csv count
                  # from the start of the pad)
                  "pad_before_s": float(rec.metadata.get("pad_before_s", 0.0))}
-        if intensity_measures is not None:
-            try:
-                entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
-                                     if np.ndim(v) == 0}     # scalars; curves stay in the CSVs
-            except Exception as exc:  # noqa: BLE001 - measures are informative only
-                entry["measures_error"] = str(exc)
+        try:
+            entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
+                                 if np.ndim(v) == 0}     # scalars; curves stay in the CSVs
+        except Exception as exc:  # noqa: BLE001 - measures are informative only
+            entry["measures_error"] = str(exc)
         out.append(entry)
     return out
 
