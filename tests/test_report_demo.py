@@ -23,7 +23,7 @@ ROOT = Path(__file__).resolve().parents[1]
 
 
 def test_packaged_example_equals_the_repository_example():
-    from groundshake.report._demo import DEMO_SCENARIO, example_scenario_text
+    from groundshake.pipeline import DEMO_SCENARIO, example_scenario_text
 
     repo = (ROOT / "examples" / DEMO_SCENARIO).read_text(encoding="utf-8")
     assert example_scenario_text() == repo                      # byte-for-byte copy
@@ -128,7 +128,7 @@ def test_report_command_refuses_to_overwrite_without_force(tmp_path, capsys):
 def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
     """The demo's own steps with the analysis stubbed by an invented output folder
     (INVENTED TEST DATA), so --force can be checked without a full run."""
-    import groundshake.results as results
+    import groundshake.pipeline._demo as demo
     from groundshake.cli import main
     from groundshake.report import write_report
 
@@ -140,8 +140,8 @@ def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
         write_report(out, progress=False)
         return out
 
-    monkeypatch.setattr(results, "analyse", lambda scenario, **kw: Fake())
-    monkeypatch.setattr(results, "write_outputs", fake_write)
+    monkeypatch.setattr(demo, "analyse", lambda scenario, **kw: Fake())
+    monkeypatch.setattr(demo, "write_outputs", fake_write)
     folder = tmp_path / "demo"
     assert main(["demo", "-o", str(folder), "--quiet"]) == 0    # Unix convention: success
     assert (folder / "results" / "report.html").is_file()

@@ -14,6 +14,10 @@ from pathlib import Path
 
 from .._atomic import atomic_write_text
 from .._errors import InputError
+from ..records.synthetic import make_demo_records
+from ..report import write_report
+from ..results import analyse, write_outputs
+from ..scenario import load_scenario
 
 __all__ = ["DEMO_SCENARIO", "DemoRun", "example_scenario_text", "run_demo"]
 
@@ -66,10 +70,6 @@ def run_demo(out_dir: str | Path = "groundshake-demo", *, force: bool = False,
     InputError
         ``out_dir`` exists and ``force`` is false, or it is a file.
     """
-    from ..records.synthetic import make_demo_records
-    from ..results import analyse, write_outputs
-    from ..scenario import load_scenario
-
     out = Path(out_dir)
     if out.exists() and not out.is_dir():
         raise InputError(f"-o {out}: exists and is not a folder")
@@ -86,7 +86,6 @@ def run_demo(out_dir: str | Path = "groundshake-demo", *, force: bool = False,
     write_outputs(results, res_dir, overwrite=True)
     report = res_dir / "report.html"
     if not report.is_file():                      # outputs written without the report
-        from ._report import write_report
         write_report(res_dir, progress=progress)
     return DemoRun(folder=out, scenario=scen, results=res_dir, report=report,
                    summary=results.summary)

@@ -33,7 +33,7 @@ def register(subparsers, parents) -> None:
 
 
 def _demo(args) -> int:
-    from ._demo import run_demo
+    from ..pipeline import run_demo
 
     quiet = bool(getattr(args, "quiet", False))
     run = run_demo(args.output, force=bool(args.force), progress=not quiet)

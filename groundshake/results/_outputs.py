@@ -11,7 +11,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from .._atomic import atomic_directory
-from .._cli_common import json_dumps
+from .._json import json_dumps
 from ..dynamics._motion import DIRECTIONS
 
 __all__ = ["write_outputs", "OUTPUT_FILES"]

@@ -19,7 +19,7 @@ import numpy as np
 
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS
-from .._cli_common import json_dumps
+from .._json import json_dumps
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ._discover import RecordSet
 from ._engine import run_tasks
