@@ -53,7 +53,6 @@ LAYER_ALLOW = {
     "groundshake.dynamics._motion -> groundshake.matching",      # motion from files: pipeline/
     "groundshake.dynamics._motion -> groundshake.processing",    # motion from files: pipeline/
     "groundshake.dynamics._motion -> groundshake.records",       # motion from files: pipeline/
-    "groundshake.records.io.csmip -> groundshake.spectra._targets",  # published spectrum as target
     "groundshake.results._outputs -> groundshake.report",        # writing report.html: pipeline/
     "groundshake.suite._output -> groundshake.report._figures",  # suite report: report/
     "groundshake.suite._output -> groundshake.report._html",     # suite report: report/

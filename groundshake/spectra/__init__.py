@@ -9,7 +9,7 @@ from ._kernel import OscillatorPeaks, kernel_engine, oscillator_history, oscilla
 from ._rotd import ANGLES, RotD, rotated_peak, rotd
 from ._statistics import spectrum_statistics
 from ._targets import (EN1998_GROUND, TargetSpectrum, asce7_spectrum, en1998_spectrum,
-                       parse_target, table_spectrum, target_ratio)
+                       parse_target, published_target, table_spectrum, target_ratio)
 from ._spectrum import (SAMPLES_PER_PERIOD, Spectrum, default_periods, fourier_upsample,
                         response_spectrum)
 
@@ -17,4 +17,5 @@ __all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_
            "Spectrum", "response_spectrum", "default_periods", "fourier_upsample",
            "SAMPLES_PER_PERIOD", "RotD", "rotd", "rotated_peak", "ANGLES",
            "spectrum_statistics", "TargetSpectrum", "parse_target", "asce7_spectrum",
-           "en1998_spectrum", "table_spectrum", "target_ratio", "EN1998_GROUND"]
+           "en1998_spectrum", "table_spectrum", "target_ratio", "EN1998_GROUND",
+           "published_target"]

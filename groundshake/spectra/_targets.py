@@ -27,7 +27,7 @@ from .._errors import GroundshakeWarning, InputError
 from .._plausible import check_value
 
 __all__ = ["TargetSpectrum", "parse_target", "asce7_spectrum", "en1998_spectrum",
-           "table_spectrum", "target_ratio", "EN1998_GROUND"]
+           "table_spectrum", "target_ratio", "EN1998_GROUND", "published_target"]
 
 G = STANDARD_GRAVITY  # m/s² per g
 
@@ -317,3 +317,45 @@ def parse_target(spec: str, *, base_dir: str | os.PathLike | None = None) -> Tar
         raise InputError(f"target {s!r}: no such file (a target is asce7:..., en1998:..., "
                          "or a CSV file of period [s], PSA [g])")
     return table_spectrum(path)
+
+
+def published_target(spectrum, damping: float = 0.05) -> TargetSpectrum:
+    """A published response spectrum as a target PSA curve (log-log interpolation).
+
+    Parameters
+    ----------
+    spectrum : groundshake.records.io.csmip.PublishedSpectrum
+        As read by :func:`groundshake.records.read_csmip_spectra`: ``periods`` (n,) [s],
+        ``damping`` (k,) ratios, ``psa`` (k, n) [m/s²], ``component``, ``metadata``.
+    damping : float
+        Which of the published damping ratios to use.
+
+    Returns
+    -------
+    TargetSpectrum
+        Undefined (NaN) outside the published periods.
+
+    Raises
+    ------
+    InputError
+        The spectrum was not published at ``damping``.
+    """
+    k = np.flatnonzero(np.isclose(spectrum.damping, damping, atol=1e-9))
+    if not k.size:
+        raise InputError(f"published spectrum {spectrum.component}: no {100 * damping:g} % "
+                         f"damping; it has "
+                         f"{', '.join(f'{100 * d:g} %' for d in spectrum.damping)}")
+    tt, vv = spectrum.periods, spectrum.psa[k[0]] / G
+
+    def fn(t):
+        t = np.asarray(t, dtype=float)
+        out = np.full(t.shape, np.nan)
+        inside = (t >= tt[0]) & (t <= tt[-1])
+        out[inside] = np.exp(np.interp(np.log(t[inside]), np.log(tt), np.log(vv)))
+        return out
+
+    meta = spectrum.metadata
+    label = f"published spectrum {meta.get('station', '')} {spectrum.component}".strip()
+    return TargetSpectrum(label=label, damping=float(damping), kind="table",
+                          parameters={"source": meta.get("source", ""), "rows": int(tt.size)},
+                          _fn=fn)

@@ -467,39 +467,6 @@ class PublishedSpectrum:
         """Pseudo-acceleration (2π/T)·PSV [m/s²], shape (n_damping, n_periods)."""
         return self.psv * (2.0 * np.pi / self.periods)
 
-    def as_target(self, damping: float = 0.05):
-        """This spectrum as a target PSA curve (log-log interpolation between periods).
-
-        Parameters
-        ----------
-        damping : float
-            Which of the published damping ratios to use.
-
-        Returns
-        -------
-        groundshake.spectra.TargetSpectrum
-            Undefined (NaN) outside the published periods.
-        """
-        from ...spectra._targets import G, TargetSpectrum  # later stage, imported on use
-
-        k = np.flatnonzero(np.isclose(self.damping, damping, atol=1e-9))
-        if not k.size:
-            raise RecordError(f"published spectrum {self.component}: no {100 * damping:g} % "
-                              f"damping; it has {', '.join(f'{100 * d:g} %' for d in self.damping)}")
-        tt, vv = self.periods, self.psa[k[0]] / G
-
-        def fn(t):
-            t = np.asarray(t, dtype=float)
-            out = np.full(t.shape, np.nan)
-            inside = (t >= tt[0]) & (t <= tt[-1])
-            out[inside] = np.exp(np.interp(np.log(t[inside]), np.log(tt), np.log(vv)))
-            return out
-
-        label = f"published spectrum {self.metadata.get('station', '')} {self.component}".strip()
-        return TargetSpectrum(label=label, damping=float(damping), kind="table",
-                              parameters={"source": self.metadata.get("source", ""),
-                                          "rows": int(tt.size)}, _fn=fn)
-
 
 _SPEC_LINE = re.compile(r"^\s*damping\s*=\s*([0-9]*\.?[0-9]+)\s*\.?\s*data of\s*(.*?)\s*:?\s*$", re.I)
 _NPER = re.compile(r"\((\d+)\s+periods", re.I)
