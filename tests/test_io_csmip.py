@@ -117,7 +117,11 @@ def test_v3_spectra_reproduced_from_the_v2_record():
         assert sp.periods[0] == 0.04 and sp.periods[-1] == 6.0
         assert list(sp.damping) == [0.05]  # "Damping = .05."
         keep = sp.periods >= 10 * rec.dt
-        ours = response_spectrum(rec.acc, rec.dt, sp.periods[keep], 0.05)
+        # the agency computes on the samples as given, joined by straight lines: the
+        # same convention is interpolate=False (our default reads the record as
+        # band-limited and is up to 2.5 % higher here at 0.05-0.2 s, README "Coarse
+        # records")
+        ours = response_spectrum(rec.acc, rec.dt, sp.periods[keep], 0.05, interpolate=False)
         for name, unit in (("sa", G), ("sd", INCH), ("sv", INCH), ("psv", INCH)):
             pub = getattr(sp, name)[0][keep]
             calc = getattr(ours, name)[0]

@@ -33,6 +33,9 @@ class Motion:
         What was done to bring the components together (also issued as warnings).
     matching : dict str -> dict
         Spectral-matching reports by component, when ``match_target`` was asked for.
+    pad_before : float
+        Leading zero pad [s] shared by every component: the first sample is at
+        t = −pad_before on the as-read axis (t = 0 at the first sample as read).
     """
 
     acc: np.ndarray
@@ -42,6 +45,7 @@ class Motion:
     corrected: Mapping[str, Any] = field(default_factory=dict)
     notes: tuple[str, ...] = ()
     matching: Mapping[str, Any] = field(default_factory=dict)
+    pad_before: float = 0.0
 
     @property
     def n(self) -> int:
@@ -50,8 +54,14 @@ class Motion:
 
     @property
     def time(self) -> np.ndarray:
-        """Times [s], shape (n_t,)."""
-        return np.arange(self.n) * self.dt
+        """Times [s] counted from the first sample as read (the pad at negative
+        times), shape (n_t,)."""
+        return self.time_of_step(np.arange(self.n))
+
+    def time_of_step(self, step):
+        """Time [s] on the as-read axis of a step index (int or int array), rounded to
+        1 ns (no round-off tails such as 5.585000000000001 in the outputs)."""
+        return np.round(np.asarray(step) * self.dt - self.pad_before, 9)
 
     @property
     def duration(self) -> float:
@@ -62,7 +72,7 @@ class Motion:
         """The same motion times ``factor`` (for linearity checks)."""
         return Motion(acc=self.acc * factor, dt=self.dt, components=self.components,
                       raw=self.raw, corrected=self.corrected, notes=self.notes,
-                      matching=self.matching)
+                      matching=self.matching, pad_before=self.pad_before)
 
 
 def motion_from_arrays(acc: Mapping[str, np.ndarray] | np.ndarray, dt: float) -> Motion:
@@ -131,8 +141,11 @@ def build_motion(scenario: Any) -> Motion:
     ``scale``, corrected with the scenario's processing settings (or used as
     read when ``enabled = false``), matched to ``target`` when ``match_target``
     (horizontal components only), resampled to the finest time step among the
-    components and zero-padded at the end to the longest one. Each adjustment
-    is noted in :attr:`Motion.notes`.
+    components, and placed on one time grid: every component's first sample as
+    read at t = 0, the longest leading pad (correction and matching pads) shared by
+    all (zeros added in front of the others) and zeros at the end to the longest.
+    Each adjustment is noted in :attr:`Motion.notes`; the corrected records kept
+    in :attr:`Motion.corrected` are the aligned ones.
 
     Parameters
     ----------
@@ -187,13 +200,50 @@ def build_motion(scenario: Any) -> Motion:
                 notes.append(f"motion.{d}: resampled from dt = {r.dt:g} s to {dt:g} s "
                              "(the finest step among the components)")
                 used[d] = resample(r, dt)
-    n_t = max(r.n for r in used.values())
-    acc = np.zeros((3, n_t))
+    # one grid: the first sample as read of every component at t = 0
+    pads = {d: float(r.metadata.get("pad_before_s", 0.0) or 0.0) for d, r in used.items()}
+    lead = max(pads.values())
+    shift = {}
     for d, r in used.items():
-        if r.n < n_t:
-            notes.append(f"motion.{d}: zero-padded at the end from {r.n} to {n_t} samples "
-                         "to match the longest component")
-        acc[DIRECTIONS.index(d), :r.n] = r.acc
+        exact = (lead - pads[d]) / dt
+        shift[d] = int(round(exact))
+        if abs(exact - shift[d]) > 1e-6:
+            notes.append(f"motion.{d}: aligned to the nearest sample of the common grid "
+                         f"({abs(exact - shift[d]) * dt:.3g} s off)")
+    n_t = max(shift[d] + r.n for d, r in used.items())
+    acc = np.zeros((3, n_t))
+    for d, r in list(used.items()):
+        k = shift[d]
+        acc[DIRECTIONS.index(d), k:k + r.n] = r.acc
+        after = n_t - k - r.n
+        if k or after:
+            what = []
+            if k:
+                what.append(f"{k * dt:g} s in front (to the longest leading pad, {lead:g} s)")
+            if after:
+                what.append(f"{after * dt:g} s at the end (to the longest component)")
+            notes.append(f"motion.{d}: zero-padded by " + " and ".join(what)
+                         + "; every component's first sample as read is at t = 0")
+            md = dict(r.metadata)
+            md["pad_before_s"] = lead             # on the shared grid (to the nearest sample)
+            md["pad_after_s"] = float(md.get("pad_after_s", 0.0) or 0.0) + after * dt
+            used[d] = r.replace(acc=acc[DIRECTIONS.index(d)], metadata=md,
+                                start_time=_shift_iso(r.start_time, -k * dt),
+                                step="zero-padded onto the time grid shared by the components")
     acc.setflags(write=False)
     return Motion(acc=acc, dt=float(dt), components=tuple(d for d in DIRECTIONS if d in used),
-                  raw=raw, corrected=used, notes=tuple(notes), matching=matching)
+                  raw=raw, corrected=used, notes=tuple(notes), matching=matching,
+                  pad_before=float(lead))
+
+
+def _shift_iso(text: str, seconds: float) -> str:
+    """An ISO 8601 time moved by ``seconds`` ("" stays "", unreadable text unchanged)."""
+    from datetime import datetime, timedelta
+
+    if not text or not seconds:
+        return text
+    try:
+        t = datetime.fromisoformat(text.replace("Z", "+00:00"))
+    except ValueError:
+        return text
+    return (t + timedelta(seconds=seconds)).isoformat()

@@ -186,7 +186,8 @@ def _plot(results, path: Path) -> None:
         before = np.concatenate([np.zeros(pad), r.original.acc, np.zeros(pad)])
         before = np.pad(before, (0, max(0, r.record.n - before.size)))[:r.record.n]
         before = before * r.scale_factor
-        t = r.record.time - r.pad_s
+        # as-read axis: t = 0 at the first sample as read, every pad at negative times
+        t = r.record.time - float(r.record.metadata.get("pad_before_s", r.pad_s) or 0.0)
         vb, db = integrate_motion(before, dt)
         va, da = integrate_motion(r.record.acc, dt)
         for row, (label, yb, ya) in enumerate((("acceleration [m/s²]", before, r.record.acc),
@@ -201,7 +202,7 @@ def _plot(results, path: Path) -> None:
             if row == 0:
                 ax.legend(fontsize=7, loc="upper right")
             if row == 2:
-                ax.set_xlabel("time from the first sample of the (corrected) record [s]")
+                ax.set_xlabel("time from the first sample as read [s]")
     fig.suptitle("Spectral matching (screening only)", fontsize=10)
     fig.tight_layout()
     atomic_savefig(fig, path, dpi=100)

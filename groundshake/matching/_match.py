@@ -51,7 +51,9 @@ class MatchResult:
     ----------
     record : Record
         The adjusted motion (padded with ``pad_s`` seconds of zeros each side before
-        matching, so the wavelets fit whole).
+        matching, so the wavelets fit whole; ``metadata["pad_before_s"]`` and
+        ``start_time`` include that pad, so times stay counted from the first
+        sample as read).
     original : Record
         The record as given.
     periods : ndarray, shape (n_periods,)
@@ -576,7 +578,13 @@ def match_spectrum_report(record: Record, target: TargetLike,
     out = record
     for s in steps:
         out = out.replace(step=s)
-    out = out.replace(acc=acc)
+    changes = {}
+    if pad_s:        # the pads keep the record's own time axis: as read from t = 0
+        md = dict(record.metadata)
+        md["pad_before_s"] = float(md.get("pad_before_s", 0.0) or 0.0) + pad_s
+        md["pad_after_s"] = float(md.get("pad_after_s", 0.0) or 0.0) + pad_s
+        changes = {"metadata": md, "start_time": _shift_iso(record.start_time, -pad_s)}
+    out = out.replace(acc=acc, **changes)
     return MatchResult(record=out, original=record, periods=periods_arr, damping=damping_arr,
                        target_psa=target_psa, psa_before=psa_before, psa_after=psa_after,
                        iterations=iterations, converged=converged, status=status,
@@ -634,3 +642,16 @@ def match_record_to_target(record: Record, spec: str, *, damping: float | None =
     report = result.to_dict()
     report["cautions"] = list(CAUTIONS)
     return result.record, report
+
+
+def _shift_iso(text: str, seconds: float) -> str:
+    """An ISO 8601 time moved by ``seconds`` ("" stays "", unreadable text unchanged)."""
+    from datetime import datetime, timedelta
+
+    if not text or not seconds:
+        return text
+    try:
+        t = datetime.fromisoformat(text.replace("Z", "+00:00"))
+    except ValueError:
+        return text
+    return (t + timedelta(seconds=seconds)).isoformat()

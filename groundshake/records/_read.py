@@ -17,6 +17,7 @@ from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, RecordError
 from ._record import Record
 from ._units import canonical_units
+from ._write import restore_written_pad
 from .io import read as _read_with_registry
 from .io._common import MIN_SAMPLES
 from .io.text import STEP_TOLERANCE
@@ -105,6 +106,7 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         _check_inventory_applies(path)
     records = _read_with_registry(path, units=user_units, dt=dt, resample=resample,
                                   inventory=inventory)
+    records = [restore_written_pad(rec) for rec in records]   # our own pads, as written
     for rec in records:
         _warn_if_implausible(rec)
     return records

@@ -125,7 +125,7 @@ def strip_figure(time: np.ndarray, strips: Sequence[tuple[str, Sequence[tuple[st
     span = _active_span(t_all, [y for _, curves, _ in strips for _, y in curves])
     if span is not None:
         axes[-1].set_xlim(*span)
-    axes[-1].set_xlabel("time [s]", fontsize=8)
+    axes[-1].set_xlabel("time from the first sample as read [s]", fontsize=8)
     if title:
         fig.suptitle(mpl_text(title), fontsize=10, color=PALETTE[0])
     return fig
@@ -184,7 +184,7 @@ def record_figure(rows: Sequence[tuple[str, str, tuple[np.ndarray, np.ndarray] |
         ax.yaxis.set_major_locator(MaxNLocator(4))
         _style(ax)
     axes[0].legend(fontsize=7.5, loc="upper right", frameon=False, ncol=2)
-    axes[-1].set_xlabel("time [s]", fontsize=8)
+    axes[-1].set_xlabel("time from the first sample as read [s]", fontsize=8)
     if title:
         fig.suptitle(mpl_text(title), fontsize=10, color=PALETTE[0])
     return fig

@@ -332,6 +332,9 @@ class _Builder:
                     best = j
             return t.column(best)
 
+        def own_time(state: str) -> bool:
+            return any(state in label_words(t.header[j]) for j in time_cols)
+
         names = {"acc": ("acceleration", "m/s²"), "vel": ("velocity", "m/s"),
                  "disp": ("displacement", "m")}
         out = []
@@ -347,7 +350,9 @@ class _Builder:
                         pair.append(None)
                         continue
                     tt = time_for(i, comp, state)
-                    if state == "corrected":
+                    if state == "corrected" and own_time(state):
+                        # older folders: the corrected series had its own time column
+                        # counted from the start of its pad; now one as-read column
                         tt = tt - self.pad_before(comp, cols, time_for)
                     pair.append((tt, t.column(i)))
                 unit = t.unit(cols.get((q, "corrected"), cols.get((q, "raw")))) or names[q][1]

@@ -20,14 +20,16 @@ OUTPUT_FILES = ("summary.json", "histories.csv", "records.csv", "ground_spectra.
                 "floor_spectra.csv", "modes.csv", "element_peaks.csv", "mode_shapes.csv")
 
 
-def _csv_text(header: Sequence[str], columns: Iterable[np.ndarray | Sequence]) -> str:
+def _csv_text(header: Sequence[str], columns: Iterable[np.ndarray | Sequence], *,
+              blank_nan: bool = False) -> str:
     cols = [np.asarray(c) for c in columns]
     n = max((c.shape[0] for c in cols), default=0)
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(header)
     for i in range(n):
-        w.writerow([(f"{float(c[i]):.10g}" if np.issubdtype(c.dtype, np.floating) else str(c[i]))
+        w.writerow([(("" if blank_nan and not np.isfinite(c[i]) else f"{float(c[i]):.10g}")
+                     if np.issubdtype(c.dtype, np.floating) else str(c[i]))
                     if i < c.shape[0] else "" for c in cols])
     return buf.getvalue()
 
@@ -91,34 +93,53 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
 
 
 def _records_csv(motion) -> str:
+    """records.csv: one time column on the as-read axis (t = 0 at the first sample as
+    read, pads at negative times), then raw and corrected acc/vel/disp of each
+    component on the same rows; blank where a series has no sample. A raw record on
+    another step than the motion's is linearly interpolated onto its rows."""
     from ..processing import integrate
 
-    header, cols = [], []
-    n_max = 0
+    time = motion.time
+    if not (motion.raw or motion.corrected):         # motion given as arrays
+        vel, disp = integrate(np.asarray(motion.acc), motion.dt)
+        header = ["time [s]"]
+        cols = [time]
+        for j, d in enumerate(DIRECTIONS):
+            header += [f"{d} corrected acc [m/s2]", f"{d} corrected vel [m/s]",
+                       f"{d} corrected disp [m]"]
+            cols += [motion.acc[j], vel[j], disp[j]]
+        return _csv_text(header, cols)
+    header, cols = ["time [s]"], [time]
     for d in DIRECTIONS:
         for kind, recs in (("raw", motion.raw), ("corrected", motion.corrected)):
             rec = recs.get(d) if recs else None
             if rec is None:
                 continue
             vel, disp = integrate(np.asarray(rec.acc), rec.dt)
-            n_max = max(n_max, rec.n)
-            header += [f"{d} {kind} time [s]", f"{d} {kind} acc [m/s2]",
-                       f"{d} {kind} vel [m/s]", f"{d} {kind} disp [m]"]
-            cols += [rec.time, np.asarray(rec.acc), np.asarray(vel), np.asarray(disp)]
-    if not cols:                                    # motion given as arrays
-        vel, disp = integrate(np.asarray(motion.acc), motion.dt)
-        header = ["time [s]"]
-        cols = [motion.time]
-        for j, d in enumerate(DIRECTIONS):
-            header += [f"{d} corrected acc [m/s2]", f"{d} corrected vel [m/s]",
-                       f"{d} corrected disp [m]"]
-            cols += [motion.acc[j], vel[j], disp[j]]
-        return _csv_text(header, cols)
-    # the abscissa first: the time of the longest series
-    longest = int(np.argmax([c.shape[0] for c in cols[0::4]]))
-    header = ["time [s]"] + header
-    cols = [cols[4 * longest]] + cols
-    return _csv_text(header, cols)
+            header += [f"{d} {kind} acc [m/s2]", f"{d} {kind} vel [m/s]",
+                       f"{d} {kind} disp [m]"]
+            cols += _on_rows(time, motion.dt, rec, (np.asarray(rec.acc), vel, disp))
+    return _csv_text(header, cols, blank_nan=True)
+
+
+def _on_rows(time: np.ndarray, dt: float, rec, series) -> list[np.ndarray]:
+    """Series of ``rec`` (each (rec.n,)) placed on the rows ``time`` (n_t,) [s]; NaN
+    outside the record."""
+    t_rec = rec.time - float(rec.metadata.get("pad_before_s", 0.0) or 0.0)
+    exact = (t_rec[0] - time[0]) / dt
+    k = int(round(exact))
+    out = []
+    for y in series:
+        col = np.full(time.size, np.nan)
+        if abs(rec.dt - dt) <= 1e-9 * dt and abs(exact - k) <= 1e-6:
+            lo, hi = max(k, 0), min(k + rec.n, time.size)
+            if hi > lo:
+                col[lo:hi] = y[lo - k:hi - k]
+        else:
+            inside = (time >= t_rec[0] - 1e-9 * dt) & (time <= t_rec[-1] + 1e-9 * dt)
+            col[inside] = np.interp(time[inside], t_rec, y)
+        out.append(col)
+    return out
 
 
 def _ground_csv(results) -> str:
@@ -184,10 +205,10 @@ def _elements_csv(results) -> str:
     cols = [c[:, 0], c[:, 1], c[:, 2]]
     s = results.stress
     if s is not None:
-        dt = results.motion.dt
         header += ["von mises [Pa]", "principal tension [Pa]", "principal compression [Pa]",
                    "time of von mises peak [s]", "part"]
-        cols += [s.von_mises, s.tension, s.compression, s.von_mises_step * dt,
+        cols += [s.von_mises, s.tension, s.compression,
+                 results.motion.time_of_step(s.von_mises_step),
                  np.asarray(results.model.element_part)]
     return _csv_text(header, cols)
 

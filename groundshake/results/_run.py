@@ -104,12 +104,13 @@ def _dense(a) -> np.ndarray:
     return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
 
 
-def _peak(x: np.ndarray, dt: float) -> dict:
-    """Peak |x| of a history (n_t,) with its time [s] and signed value."""
+def _peak(x: np.ndarray, time: np.ndarray) -> dict:
+    """Peak |x| of a history (n_t,) with its time [s] (from ``time`` (n_t,), the
+    as-read axis) and signed value."""
     if x.size == 0:
         return {"value": 0.0, "time": 0.0, "signed": 0.0}
     i = int(np.argmax(np.abs(x)))
-    return {"value": float(abs(x[i])), "time": float(i * dt), "signed": float(x[i])}
+    return {"value": float(abs(x[i])), "time": float(time[i]), "signed": float(x[i])}
 
 
 def _sha256(path: Path) -> str | None:
@@ -185,7 +186,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         A = r.coefficients(node_map)
         for j, d in enumerate(DIRECTIONS):
             row, val, col = pruned_peak(A[j::3], Z)
-            node_peak[d] = {"value": val, "node": int(row), "time": float(col * dt)}
+            node_peak[d] = {"value": val, "node": int(row), "time": float(motion.time_of_step(col))}
         t1 = _time.perf_counter()
         peaks = None
         if stresses and n_el:
@@ -218,7 +219,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         vals = res.dof_peak[j::3]
         i = int(np.argmax(vals)) if vals.size else -1
         node_peak[d] = {"value": float(vals[i]) if i >= 0 else 0.0, "node": i,
-                        "time": float(res.dof_peak_step[j::3][i] * dt) if i >= 0 else 0.0}
+                        "time": float(motion.time_of_step(res.dof_peak_step[j::3][i]))
+                        if i >= 0 else 0.0}
     info.update(timings={"time_history": _time.perf_counter() - t0,
                          "factorization": res.factor_time},
                 substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
@@ -358,7 +360,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     dt = motion.dt
     ag = np.asarray(motion.acc, dtype=float)
     n_t = ag.shape[1]
-    time = np.arange(n_t) * dt
+    time = motion.time                       # counted from the first sample as read
     iota = np.asarray(model.influence, dtype=float)
     n = model.n_dof
 
@@ -409,7 +411,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
               "peak_absolute_acceleration": {}, "peak_relative_displacement": {},
               "time_of_peak_absolute_acceleration": {}, "time_of_peak_relative_displacement": {}}
         for j, dn in enumerate(DIRECTIONS):
-            pa, pd = _peak(absacc[j], dt), _peak(rel[j], dt)
+            pa, pd = _peak(absacc[j], time), _peak(rel[j], time)
             d_["peak_absolute_acceleration"][dn] = pa["value"]
             d_["time_of_peak_absolute_acceleration"][dn] = pa["time"]
             d_["peak_relative_displacement"][dn] = pd["value"]
@@ -438,11 +440,11 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
               "time_of_peak_absolute_acceleration": {},
               "peak_angular_acceleration": {}}
         for j, dn in enumerate(DIRECTIONS):
-            pa = _peak(absacc[j], dt)
+            pa = _peak(absacc[j], time)
             d_["peak_absolute_acceleration"][dn] = pa["value"]
             d_["time_of_peak_absolute_acceleration"][dn] = pa["time"]
-            d_["peak_relative_displacement"][dn] = _peak(rel[j], dt)["value"]
-            d_["peak_angular_acceleration"][dn] = _peak(absacc[3 + j], dt)["value"]
+            d_["peak_relative_displacement"][dn] = _peak(rel[j], time)["value"]
+            d_["peak_angular_acceleration"][dn] = _peak(absacc[3 + j], time)["value"]
             hist[f"{e.name} abs acc {dn} [m/s2]"] = absacc[j]
             hist[f"{e.name} rel disp {dn} [m]"] = rel[j]
             if dn in motion.components:
@@ -458,8 +460,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 t, v = bf.tension[i], bf.shear[i]
                 it, iv = int(np.argmax(t)), int(np.argmax(v))
                 b = {"position": [float(x), float(y)],
-                     "peak_tension": float(max(0.0, t[it])), "time_of_peak_tension": float(it * dt),
-                     "peak_shear": float(v[iv]), "time_of_peak_shear": float(iv * dt),
+                     "peak_tension": float(max(0.0, t[it])), "time_of_peak_tension": float(time[it]),
+                     "peak_shear": float(v[iv]), "time_of_peak_shear": float(time[iv]),
                      "min_axial": float(t.min())}
                 if cap is not None:
                     b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
@@ -469,7 +471,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                           form=_get(cap, "interaction", "5/3-power"))
                     ii = int(np.argmax(ir))
                     b["interaction_ratio"] = float(ir[ii])
-                    b["time_of_peak_interaction"] = float(ii * dt)
+                    b["time_of_peak_interaction"] = float(time[ii])
                     if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
                         worst_ir = (b["interaction_ratio"], e.name, i + 1,
                                     _get(cap, "interaction", "5/3-power"))
@@ -479,7 +481,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                 d_["anchors"].append(b)
                 hist[f"{e.name} bolt {i + 1} tension [N]"] = t
                 hist[f"{e.name} bolt {i + 1} shear [N]"] = v
-                peak_times.append((f"{e.name} bolt {i + 1} tension", float(it * dt)))
+                peak_times.append((f"{e.name} bolt {i + 1} tension", float(time[it])))
             d_["dead_load_factor"] = float(e.dead_load_factor)
             d_["anchorage_method"] = ("rigid base plate, elastic bolt group (common practice); "
                                       f"weight × dead_load_factor {float(e.dead_load_factor):g} "
@@ -514,7 +516,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                 "sign": "resultants the structure exerts on its support",
                                 "peaks": {}}
     for j, c in enumerate(RESULTANTS):
-        base_out["peaks"][c] = _peak(base[j], dt)
+        base_out["peaks"][c] = _peak(base[j], time)
     for j, c in enumerate(("Fx", "Fy")):
         if DIRECTIONS[j] in motion.components:
             peak_times.append((f"base shear {DIRECTIONS[j]}", base_out["peaks"][c]["time"]))
@@ -531,22 +533,22 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         i_min = int(np.argmin(pmin))
         uplift = bool(pmin[i_min] < 0)
         base_out["contact"] = {"static_pressure": W / A, "peak_pressure": float(pmax.max()),
-                               "time_of_peak_pressure": float(np.argmax(pmax) * dt),
+                               "time_of_peak_pressure": float(time[np.argmax(pmax)]),
                                "min_pressure": float(pmin[i_min]),
-                               "time_of_min_pressure": float(i_min * dt),
+                               "time_of_min_pressure": float(time[i_min]),
                                "uplift": uplift,
                                "method": "rigid base, linear pressure from the weight of block "
                                          "and equipment and the base resultants Fz, Mx, My"}
         if uplift:
             collected.append(f"Possible uplift / loss of contact: the linear contact pressure falls "
-                             f"to {pmin[i_min]:.3g} Pa at t = {i_min * dt:.3f} s; the linear model "
+                             f"to {pmin[i_min]:.3g} Pa at t = {time[i_min]:.3f} s; the linear model "
                              "(bonded soil springs) no longer holds there.")
 
     # ---- stability of the base (results/_stability.py): screening with user values
     stab = base_stability(base, weight=float(model.weight),
                           lx=float(model.base.get("lx", 1.0)), ly=float(model.base.get("ly", 1.0)),
                           support=_get(scenario, "support"))
-    stability_out = stab.summary(dt)
+    stability_out = stab.summary(dt, t0=float(time[0]))     # on the as-read axis
 
     peaks: dict[str, Any] = {
         "base_shear": {"x": base_out["peaks"]["Fx"]["value"], "y": base_out["peaks"]["Fy"]["value"]},
@@ -566,6 +568,10 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     if resp.stress is not None:
         stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt,
                                                   part_names=list(model.part_names))
+        for g in list(stress_out.values()):    # step times → the as-read axis
+            for h in ((g, g.get("away_from_features")) if isinstance(g, dict) else ()):
+                if isinstance(h, dict) and "time" in h:
+                    h["time"] = float(motion.time_of_step(round(h["time"] / dt)))
         collected.extend(stress_notes)
         resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
         peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
@@ -621,7 +627,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     analysis_out = {"method": method, "assumptions": resp.assumptions,
                     "cutoff_hz": cutoff, "n_modes": int(np.asarray(modes.omega).size),
                     "retained_mass_ratio": retained, "dt": dt, "n_steps": n_t,
-                    "duration": float((n_t - 1) * dt), **resp.info,
+                    "duration": float((n_t - 1) * dt), "pad_before_s": motion.pad_before,
+                    **resp.info,
                     "effective_force": "p(t) = -L a_g(t), L = M iota (on a fixed base "
                                        "M_ff iota_f + M_fb iota_b), relative to the moving "
                                        "base; absolute = relative + ground",
@@ -700,9 +707,9 @@ def _records_summary(motion: Motion) -> list:
         entry = {"direction": d, "name": rec.name, "component": rec.component,
                  "source": rec.source, "units": rec.units, "dt": rec.dt, "n": rec.n,
                  "history": list(rec.history),
-                 # leading zero pad of the corrected record [s]: its time 0 is this much
-                 # before the first sample as read (records.csv and histories.csv count
-                 # from the start of the pad)
+                 # leading zero pad of the corrected record [s], the same for every
+                 # component (one grid); every output counts time from the first sample
+                 # as read, so the pad lies at negative times
                  "pad_before_s": float(rec.metadata.get("pad_before_s", 0.0))}
         try:
             entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
@@ -804,7 +811,7 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
     except (TypeError, ValueError, AttributeError):
         pass
     tail = max(5 * dt, 0.02 * dur)
-    late = [nm for nm, t in peak_times if t >= dur - tail]
+    late = [nm for nm, t in peak_times if t >= float(motion.time[-1]) - tail]
     if late:
         collected.append("A peak occurs at the end of the record (" + ", ".join(late[:4])
                          + (", ..." if len(late) > 4 else "")

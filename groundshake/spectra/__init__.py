@@ -10,12 +10,13 @@ from ._rotd import ANGLES, RotD, rotated_peak, rotd
 from ._statistics import spectrum_statistics
 from ._targets import (EN1998_GROUND, TargetSpectrum, asce7_spectrum, en1998_spectrum,
                        parse_target, published_target, table_spectrum, target_ratio)
-from ._spectrum import (SAMPLES_PER_PERIOD, Spectrum, default_periods, fourier_upsample,
-                        response_spectrum)
+from ._spectrum import (MAX_REFINEMENT, SAMPLES_PER_PERIOD, Spectrum, default_periods,
+                        fourier_upsample, refinement_factors, response_spectrum)
 
 __all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_engine",
            "Spectrum", "response_spectrum", "default_periods", "fourier_upsample",
-           "SAMPLES_PER_PERIOD", "RotD", "rotd", "rotated_peak", "ANGLES",
+           "SAMPLES_PER_PERIOD", "MAX_REFINEMENT", "refinement_factors", "RotD", "rotd",
+           "rotated_peak", "ANGLES",
            "spectrum_statistics", "TargetSpectrum", "parse_target", "asce7_spectrum",
            "en1998_spectrum", "table_spectrum", "target_ratio", "EN1998_GROUND",
            "published_target"]

@@ -14,6 +14,7 @@ from .._cautions import CAUTIONS, SCREENING_NOTE
 from .._cli_common import check_damping_percent, float_list, print_json, table
 from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
+from ._spectrum import SAMPLES_PER_PERIOD
 
 __all__ = ["register", "cmd_spectrum"]
 
@@ -197,6 +198,11 @@ def _band_index(damping, target):
     return 0
 
 
+def _pad(rec) -> float:
+    """Leading pad [s] of a corrected record (0 as read)."""
+    return float(rec.metadata.get("pad_before_s", 0.0) or 0.0)
+
+
 def _document(records, raws, spectra, rotds, stats, target, target_psa, settings, found):
     out = []
     for rec, raw, s in zip(records, raws, spectra):
@@ -204,15 +210,18 @@ def _document(records, raws, spectra, rotds, stats, target, target_psa, settings
                  "dt": rec.dt, "n": rec.n, "pga": s.pga,
                  "periods": s.periods, "damping_percent": 100 * s.damping,
                  "sd": s.sd, "sv": s.sv, "sa": s.sa, "psv": s.psv, "psa": s.psa,
-                 "sd_time": s.sd_time, "sa_time": s.sa_time,
-                 "interpolated_below_s": 10 * rec.dt if s.interpolated else None,
+                 # peak times on the as-read axis (the correction's pad at t < 0)
+                 "sd_time": s.sd_time - _pad(rec), "sa_time": s.sa_time - _pad(rec),
+                 "interpolated_below_s": SAMPLES_PER_PERIOD * rec.dt if s.interpolated else None,
+                 "pga_band_limited": s.zero_period,
                  "history": list(rec.history)}
         if target_psa is not None:
             entry["ratio_to_target"] = s.psa / target_psa
         out.append(entry)
     doc = {"records": out,
            "units": {"periods": "s", "sd": "m", "sv": "m/s", "sa": "m/s2", "psv": "m/s",
-                     "psa": "m/s2", "pga": "m/s2", "sd_time": "s", "sa_time": "s"},
+                     "psa": "m/s2", "pga": "m/s2", "pga_band_limited": "m/s2",
+                     "sd_time": "s", "sa_time": "s"},
            "processing": {**settings.to_dict(), "description": settings.describe()}}
     if rotds:
         doc["rotd"] = [{"records": label.split("+", 1), "periods": r.periods,
@@ -220,7 +229,9 @@ def _document(records, raws, spectra, rotds, stats, target, target_psa, settings
                         "psa": {f"{q:g}": r.psa[i] for i, q in enumerate(r.percentiles)},
                         "sd": {f"{q:g}": r.sd[i] for i, q in enumerate(r.percentiles)},
                         "gmrotd50_psa": r.gmrotd50, "angle_of_max_deg": r.angle_of_max,
-                        "pga": {f"{q:g}": r.pga[i] for i, q in enumerate(r.percentiles)}}
+                        "pga": {f"{q:g}": r.pga[i] for i, q in enumerate(r.percentiles)},
+                        "pga_band_limited": {f"{q:g}": r.zero_period[i]
+                                             for i, q in enumerate(r.percentiles)}}
                        for label, r in rotds]
     if stats is not None:
         doc["statistics"] = {"quantity": "psa", "over": [s.name for s in spectra],
@@ -295,7 +306,10 @@ def _print_text(spectra, rotds, target, target_psa, settings, args, *, left_out=
     rows = [[f"{p[k]:.3g}", *[c[k] for c in cols]] for k in idx]
     print("PSA [g] (pseudo-spectral acceleration; SI values with --json or -o)")
     print(table(rows, header))
-    print("PGA [g]: " + ", ".join(f"{s.name} {s.pga / G:.4g}" for s in spectra))
+    print("PGA [g] over the samples: " + ", ".join(f"{s.name} {s.pga / G:.4g}" for s in spectra))
+    if any(s.interpolated for s in spectra):
+        print("PGA [g] band-limited (the short-period limit of SA here): "
+              + ", ".join(f"{s.name} {s.zero_period / G:.4g}" for s in spectra))
     for s in spectra:
         j, k = np.unravel_index(np.argmax(s.psa), s.psa.shape)
         print(f"{s.name}: peak PSA {s.psa[j, k] / G:.4g} g at {s.periods[k]:.3g} s "

@@ -9,7 +9,8 @@ import numpy as np
 from .._errors import InputError
 from ._coefficients import step_coefficients
 from ._kernel import Engine, _jit, kernel_engine, oscillator_history, run_blocks
-from ._spectrum import check_damping, check_periods, default_periods, interpolation_groups
+from ._spectrum import (MAX_REFINEMENT, check_damping, check_periods, default_periods,
+                        fourier_upsample, interpolation_groups)
 
 __all__ = ["RotD", "rotd", "rotated_peak"]
 
@@ -43,6 +44,10 @@ class RotD:
         RotDnn of the peak ground acceleration [m/s²].
     by_angle : ndarray, shape (n_damping, n_periods, 180)
         Peak |displacement| [m] at each rotation angle θ of a1·cosθ + a2·sinθ.
+    pga_band_limited : ndarray, shape (n_pct,)
+        RotDnn of the peak ground acceleration [m/s²] of the band-limited pair (both
+        components Fourier-interpolated 16-fold, as the shortest periods use them);
+        ``pga`` (over the samples) when computed without refinement.
     """
 
     periods: np.ndarray
@@ -55,6 +60,13 @@ class RotD:
     angle_of_max: np.ndarray
     pga: np.ndarray
     by_angle: np.ndarray
+    pga_band_limited: np.ndarray | None = None
+
+    @property
+    def zero_period(self) -> np.ndarray:
+        """The zero-period RotDnn [m/s²] that RotDnn of SA tends to as T → 0 here:
+        :attr:`pga_band_limited`, or :attr:`pga` without refinement; shape (n_pct,)."""
+        return self.pga if self.pga_band_limited is None else self.pga_band_limited
 
     def psa_for(self, nn: float) -> np.ndarray:
         """PSA RotDnn [m/s²] for one of the percentiles computed, (n_damping, n_periods)."""
@@ -130,7 +142,8 @@ def rotd(acc1: np.ndarray, acc2: np.ndarray, dt: float, periods=None, damping=0.
     percentiles : sequence of float
         The nn of each RotDnn (50 = median over angles, 100 = maximum).
     interpolate : bool
-        Fourier-interpolate for periods below 10·dt (as :func:`response_spectrum`).
+        Refine the pair per period as :func:`response_spectrum` does (band-limited
+        reading; :func:`~groundshake.spectra.refinement_factors`).
     engine : {"auto", "numba", "numpy"}
         Kernel engine.
 
@@ -195,6 +208,10 @@ def rotd(acc1: np.ndarray, acc2: np.ndarray, dt: float, periods=None, damping=0.
     angle = ANGLES[np.argmax(by_angle, axis=-1)]
     pga_by_angle = rotated_peak(a1, a2)
     pga = np.percentile(pga_by_angle, q)
+    pga_bl = None
+    if interpolate and a1.size > 1:
+        fine = fourier_upsample(np.stack([a1, a2]), MAX_REFINEMENT)
+        pga_bl = np.percentile(rotated_peak(fine[0], fine[1]), q)
     return RotD(periods=p, damping=z, percentiles=q, sd=sd, psv=sd * np.sqrt(w2),
                 psa=sd * w2, gmrotd50=gmrotd50, angle_of_max=angle, pga=pga,
-                by_angle=by_angle)
+                by_angle=by_angle, pga_band_limited=pga_bl)
