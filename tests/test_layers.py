@@ -47,13 +47,18 @@ ALLOWED: dict[str, set[str]] = {
 }
 ALLOWED["cli"] |= {"cli"}
 
+# Single modules a stage may import beyond ALLOWED: the output contract, which the report
+# reads a run through.
+ALLOWED_MODULES: dict[str, set[str]] = {
+    "report": {"groundshake.results._schema"},
+}
+
 # Today's layer violations, "importer -> imported module" (function-level imports included).
 # Shrink only; each entry names work left for the application-layer and cli/ moves.
 LAYER_ALLOW = {
     "groundshake.dynamics._motion -> groundshake.matching",      # motion from files: pipeline/
     "groundshake.dynamics._motion -> groundshake.processing",    # motion from files: pipeline/
     "groundshake.dynamics._motion -> groundshake.records",       # motion from files: pipeline/
-    "groundshake.results._outputs -> groundshake.report",        # writing report.html: pipeline/
     "groundshake.suite._output -> groundshake.report._figures",  # suite report: report/
     "groundshake.suite._output -> groundshake.report._html",     # suite report: report/
     "groundshake.suite._output -> groundshake.spectra",          # target: over pipeline/
@@ -148,7 +153,7 @@ def layer_violations(graph) -> set[str]:
         for t in targets:
             d = stage_of(t)
             if d == "base" or (d == s and s != "base") or t == "groundshake" \
-                    or d in ALLOWED.get(s, set()):
+                    or d in ALLOWED.get(s, set()) or t in ALLOWED_MODULES.get(s, set()):
                 continue
             bad.add(f"{src} -> {t}")
     return bad
@@ -257,7 +262,6 @@ def import_fallbacks() -> list[str]:
 
 # `except ImportError` around the package's own modules today. Shrink only.
 IMPORT_FALLBACK_ALLOW: list[str] = [
-    "groundshake.results._outputs: ..report",
 ]
 
 

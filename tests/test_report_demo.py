@@ -141,7 +141,7 @@ def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
         return out
 
     monkeypatch.setattr(demo, "analyse", lambda scenario, **kw: Fake())
-    monkeypatch.setattr(demo, "write_outputs", fake_write)
+    monkeypatch.setattr(demo, "write_run", fake_write)
     folder = tmp_path / "demo"
     assert main(["demo", "-o", str(folder), "--quiet"]) == 0    # Unix convention: success
     assert (folder / "results" / "report.html").is_file()

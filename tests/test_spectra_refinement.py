@@ -5,7 +5,7 @@ Sources:
   band-limited signal through its samples; that signal is the reference here.
 - Independent band-limited reference: scipy.signal.resample (FFT) to 64 times the
   rate, then each oscillator by scipy.signal.cont2discrete(method="foh") (exact for
-  a piecewise-linear input, REFERENCES.md §1) run with scipy.signal.lfilter.
+  a piecewise-linear input, docs/references.md §1) run with scipy.signal.lfilter.
 - Issue 14 acceptance: continuous at 10·dt within 0.5 %, independent of the period
   set within 0.1 %.
 - The record is invented test data (seeded noise with content up to the Nyquist

@@ -15,9 +15,9 @@ from pathlib import Path
 from .._atomic import atomic_write_text
 from .._errors import InputError
 from ..records.synthetic import make_demo_records
-from ..report import write_report
-from ..results import analyse, write_outputs
+from ..results import analyse
 from ..scenario import load_scenario
+from ._write import write_run
 
 __all__ = ["DEMO_SCENARIO", "DemoRun", "example_scenario_text", "run_demo"]
 
@@ -83,9 +83,7 @@ def run_demo(out_dir: str | Path = "groundshake-demo", *, force: bool = False,
     prov = results.summary.setdefault("provenance", {})
     prov["command"] = f"groundshake demo -o {out}"
     res_dir = out / "results"
-    write_outputs(results, res_dir, overwrite=True)
+    write_run(results, res_dir, overwrite=True, progress=progress)
     report = res_dir / "report.html"
-    if not report.is_file():                      # outputs written without the report
-        write_report(res_dir, progress=progress)
     return DemoRun(folder=out, scenario=scen, results=res_dir, report=report,
                    summary=results.summary)
