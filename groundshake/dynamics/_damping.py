@@ -93,6 +93,22 @@ def damping_matrix(model, frequencies_hz=None, *, modes=None) -> sp.csr_matrix:
     return sp.csr_matrix(C)
 
 
+def _block_ratio(model, phi: np.ndarray):
+    """Per mode of ``phi`` (n, m): strain energy φᵀKφ, modal mass φᵀMφ, ω [rad/s] and the
+    block's ratio at ω (its Rayleigh value a/(2ω) + bω/2 when ``rayleigh_hz`` is given,
+    Chopra §11.4), each shaped (m,)."""
+    e_tot = np.einsum("im,im->m", phi, model.K @ phi)
+    mm = np.einsum("im,im->m", phi, model.M @ phi)
+    omega = np.sqrt(np.maximum(e_tot, 0.0) / mm)
+    if model.rayleigh_hz is not None:
+        a, b = rayleigh_coefficients(model, model.rayleigh_hz)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            zb = np.where(omega > 0, a / (2 * omega) + b * omega / 2, model.damping_ratio)
+    else:
+        zb = np.full(phi.shape[1], model.damping_ratio)
+    return e_tot, mm, omega, zb
+
+
 def modal_damping(model, shapes: np.ndarray) -> np.ndarray:
     """Composite modal damping ratios (m,) for mode shapes (n, m).
 
@@ -105,16 +121,7 @@ def modal_damping(model, shapes: np.ndarray) -> np.ndarray:
     phi = np.asarray(shapes, dtype=float)
     if phi.ndim == 1:
         phi = phi[:, None]
-    Kphi = model.K @ phi
-    e_tot = np.einsum("im,im->m", phi, Kphi)
-    mm = np.einsum("im,im->m", phi, model.M @ phi)
-    omega = np.sqrt(np.maximum(e_tot, 0.0) / mm)
-    if model.rayleigh_hz is not None:
-        a, b = rayleigh_coefficients(model, model.rayleigh_hz)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            zb = np.where(omega > 0, a / (2 * omega) + b * omega / 2, model.damping_ratio)
-    else:
-        zb = np.full(phi.shape[1], model.damping_ratio)
+    e_tot, mm, omega, zb = _block_ratio(model, phi)
     e_rest = e_tot.copy()
     num = np.zeros(phi.shape[1])
     for ratio, Kp in model._stiff_parts:
@@ -146,15 +153,7 @@ def modal_damping_matrix(model, shapes: np.ndarray) -> np.ndarray:
     direct method. No cap is applied.
     """
     phi = np.asarray(shapes, dtype=float)
-    e_tot = np.einsum("im,im->m", phi, model.K @ phi)
-    mm = np.einsum("im,im->m", phi, model.M @ phi)
-    omega = np.sqrt(np.maximum(e_tot, 0.0) / mm)
-    if model.rayleigh_hz is not None:
-        a, b = rayleigh_coefficients(model, model.rayleigh_hz)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            zb = np.where(omega > 0, a / (2 * omega) + b * omega / 2, model.damping_ratio)
-    else:
-        zb = np.full(phi.shape[1], model.damping_ratio)
+    e_tot, _, omega, zb = _block_ratio(model, phi)
     e_eq = np.zeros(phi.shape[1])
     for ratio, Kp in model._stiff_parts:
         if ratio is not None:
