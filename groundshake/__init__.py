@@ -43,7 +43,7 @@ _LAZY = {
     "BlockModel": "groundshake.model",
     "compute_modes": "groundshake.dynamics",
     "Modes": "groundshake.dynamics",
-    "analyse": "groundshake.results",
+    "analyse": "groundshake.pipeline",
     "Scenario": "groundshake.scenario",
     "ScenarioError": "groundshake._errors",
     "CAUTIONS": "groundshake._cautions",

@@ -19,7 +19,8 @@ from scipy import signal
 
 from groundshake._errors import GroundshakeWarning
 from groundshake.dynamics import motion_from_arrays
-from groundshake.results import analyse, base_resultants
+from groundshake.pipeline import analyse
+from groundshake.results import base_resultants
 from groundshake.scenario import Scenario
 
 DT = 0.005

@@ -195,7 +195,7 @@ def test_scenario_support_key_errors():
 @pytest.mark.filterwarnings("ignore::groundshake._errors.GroundshakeWarning")
 def test_run_reports_each_case_and_the_envelope():
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
     scen = _scenario({**SOIL, "variation": 0.5, "friction_coefficient": 0.6})
     dt = 0.01
     t = np.arange(300) * dt

@@ -121,7 +121,7 @@ def test_cli_inventory_option(capsys):
 
 
 def test_scenario_inventory(tmp_path):
-    from groundshake.dynamics import build_motion
+    from groundshake.pipeline import build_motion
     from groundshake.scenario import parse_scenario_text
 
     text = f"""title = "inventory test (invented block)"

@@ -19,7 +19,7 @@ from _blocks import concrete_block
 from _oracles import psa_foh
 
 from groundshake._errors import GroundshakeWarning
-from groundshake.dynamics import build_motion
+from groundshake.pipeline import build_motion
 from groundshake.scenario import parse_scenario_text
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -21,7 +21,7 @@ import pytest
 from groundshake._errors import GroundshakeWarning
 from groundshake.dynamics import motion_from_arrays
 from groundshake.model import build_model
-from groundshake.results import analyse
+from groundshake.pipeline import analyse
 from groundshake.scenario import parse_scenario_text
 from groundshake.suite import flatten_scalars
 

@@ -15,7 +15,7 @@ from _oracles import sdof_foh
 
 from groundshake.dynamics import motion_from_arrays
 from groundshake.records import STANDARD_GRAVITY as G
-from groundshake.results import analyse
+from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
 DT = 0.005

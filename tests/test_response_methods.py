@@ -17,7 +17,7 @@ from _oracles import sdof_foh
 from groundshake.dynamics import (compute_modes, modal_response, motion_from_arrays,
                                   residual_vectors)
 from groundshake.model import build_model
-from groundshake.results import analyse
+from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
 DT = 0.005

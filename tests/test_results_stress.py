@@ -323,7 +323,7 @@ def test_uniform_strain_is_exact_at_every_surface_point_of_two_materials():
 @pytest.mark.parametrize("method", ["modal", "direct"])
 def test_run_reports_surface_peaks_and_how_they_were_recovered(method):
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
 
     scen = Scenario.from_dict({
         "title": "test block (invented)",

@@ -16,7 +16,7 @@ import pytest
 
 from groundshake._errors import GroundshakeWarning
 from groundshake.dynamics import motion_from_arrays
-from groundshake.results import analyse
+from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
 

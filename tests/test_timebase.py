@@ -28,7 +28,7 @@ from _blocks import concrete_block
 
 from groundshake._errors import GroundshakeWarning
 from groundshake.cli import main
-from groundshake.dynamics import build_motion
+from groundshake.pipeline import build_motion
 from groundshake.processing import correct_record, intensity_measures
 from groundshake.records import read_record, write_record
 from groundshake.scenario import parse_scenario_text

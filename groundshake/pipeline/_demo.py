@@ -15,8 +15,8 @@ from pathlib import Path
 from .._atomic import atomic_write_text
 from .._errors import InputError
 from ..records.synthetic import make_demo_records
-from ..results import analyse
 from ..scenario import load_scenario
+from ._run import analyse
 from ._write import write_run
 
 __all__ = ["DEMO_SCENARIO", "DemoRun", "example_scenario_text", "run_demo"]

@@ -22,7 +22,7 @@ from typing import Any
 
 import numpy as np
 
-from .._errors import GroundshakeWarning
+from .._errors import GroundshakeWarning, InputError
 from ..model._impedance import modulus_ratio_of
 
 __all__ = ["soil_cases", "needs_soil_cases", "analyse_cases", "consistent_soil_model",
@@ -311,7 +311,6 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         ``equipment``, ``stability``, ``worst_dc``, ``worst_interaction`` and the floor
         spectra.
     """
-    from ..dynamics._motion import build_motion
     from ..model import build_model
     cases = soil_cases(scenario.support)
     cv = _get(scenario.support, "variation")
@@ -320,7 +319,8 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         notes.append(f"Soil variation Cv = {cv:g} is below 0.5, the least ASCE 4-16 §5.1.7 asks "
                      "for where the soil is not well investigated (from memory)")
     if motion is None:
-        motion = build_motion(scenario)
+        raise InputError("motion: none given; groundshake.analyse (the application layer) "
+                         "reads it from the scenario's [motion] files")
     results = []
     for c in cases:
         sc = _case_scenario(scenario, c)

@@ -34,8 +34,7 @@ def register(subparsers, parents) -> None:
 
 def _run(args) -> int:
     from ..scenario import load_scenario
-    from ..pipeline import write_run
-    from ._run import analyse
+    from ..pipeline import analyse, write_run
 
     scen_path = Path(args.scenario)
     out = Path(args.output)

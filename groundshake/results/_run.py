@@ -24,7 +24,7 @@ from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modes import compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
-from ..dynamics._motion import DIRECTIONS, Motion, build_motion
+from ..dynamics._motion import DIRECTIONS, Motion
 from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
                          fp_comparison)
 from ._stability import base_stability
@@ -255,18 +255,21 @@ def _get(obj, key, default=None):
 def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
-    """Run a scenario: motion, model, modes, response and every result.
+    """Run a scenario on a given motion: model, modes, response and every result.
 
     Parameters
     ----------
     scenario : Scenario
-        From :func:`groundshake.load_scenario` (needs a ``[motion]`` section
-        unless ``motion`` is given).
+        From :func:`groundshake.load_scenario`.
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
     method : {"modal", "direct"}, optional
         Overrides ``analysis.method``.
-    motion, model, modes : optional
+    motion : Motion
+        The base motion (:func:`groundshake.dynamics.motion_from_arrays`, or from the
+        scenario's files by :func:`groundshake.pipeline.build_motion`;
+        :func:`groundshake.analyse` does that for you).
+    model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
         Compute stress peaks (at the surface stress points).
@@ -334,10 +337,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
     if motion is None:
-        if _get(scenario, "motion") is None:
-            raise InputError(f"{_get(scenario, 'source', 'scenario')}: [motion]: missing; "
-                             "allowed x, y, z = { file = ... } (at least one)")
-        motion = build_motion(scenario)
+        raise InputError("motion: none given; groundshake.analyse (the application layer) "
+                         "reads it from the scenario's [motion] files")
     timings["motion"] = _tick()
     collected.extend(motion.notes)
     if model is None:

@@ -126,7 +126,7 @@ def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
     Never raises for a bad record: the result then has ``status = "failed"`` and
     the one-line ``error``.
     """
-    from ..results import analyse
+    from ..pipeline import analyse
 
     rs = RecordSet.from_dict(item)
     started = _dt.datetime.now(_dt.timezone.utc)
