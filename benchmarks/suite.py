@@ -1,16 +1,19 @@
 """Suite benchmark: many invented synthetic record sets through the demo model.
 
-Runs the same suite serially (a plain loop: the reference), on a local pool of 1
-and 2 workers, and on a 2-worker Dask LocalCluster, all in this process, and prints
-per-record times, the speed-up and each engine's overhead against the plain loop.
+Runs the same suite serially (a plain loop: the reference), then in this process, on
+a local pool of 2 workers and on a 2-worker Dask LocalCluster (a warm-up on 2 sets,
+then the full run), and the whole sequence again (``--rounds``) on the same cluster;
+prints per-record times, the speed-up against the plain loop and which engine ran.
 The records are synthetic (Boore 2003 stochastic method, invented scenario), one
 seed per set.
 
-    python benchmarks/suite.py [--records 100] [--duration 20] [--skip-dask]
+    python benchmarks/suite.py [--records 100] [--duration 20] [--rounds 2] [--skip-dask]
 """
 from __future__ import annotations
 
 import argparse
+import contextlib
+import os
 import tempfile
 import time
 import warnings
@@ -43,10 +46,12 @@ def main() -> None:
     ap.add_argument("--records", type=int, default=100)
     ap.add_argument("--duration", type=float, default=20.0, help="record length [s]")
     ap.add_argument("--scenario", default=str(ROOT / "examples" / "transformer-pad.toml"))
+    ap.add_argument("--rounds", type=int, default=2,
+                    help="times the whole engine sequence runs, on one Dask cluster")
     ap.add_argument("--skip-dask", action="store_true")
     args = ap.parse_args()
     warnings.simplefilter("ignore", GroundshakeWarning)
-    with tempfile.TemporaryDirectory() as tmp:
+    with tempfile.TemporaryDirectory() as tmp, contextlib.ExitStack() as stack:
         tmp = Path(tmp)
         recs = tmp / "recs"
         recs.mkdir()
@@ -59,46 +64,51 @@ def main() -> None:
         t0 = time.perf_counter()
         shared = prepare_suite(scenario)
         t_prep = time.perf_counter() - t0
-        print(f"model and modes built once: {t_prep:.2f} s")
-        times = {}
+        print(f"model ({shared['n_dof']} DOFs) and modes built once: {t_prep:.2f} s; "
+              f"load average at the start {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores")
         plain = dict(shared)
         t0 = time.perf_counter()
         for rs in sets:        # the reference: a plain loop, no files, no engine
             assert run_record_set(plain, rs.to_dict())["status"] == "ok"
-        times["plain loop"] = time.perf_counter() - t0
-        for label, kw in (("suite, 1 worker (in process)", dict(workers=1)),
-                          ("pool, 2 workers", dict(workers=2))):
-            t0 = time.perf_counter()
-            res = run_suite(scenario, sets, tmp / label.replace(" ", "_").replace(",", ""),
-                            shared=shared, **kw)
-            times[label] = time.perf_counter() - t0
-            assert res.n_failed == 0, [r.get("error") for r in res.records if r["status"] != "ok"]
+        ref = time.perf_counter() - t0
+        client = None
         if not args.skip_dask:
             from distributed import Client, LocalCluster
 
-            with LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                              dashboard_address=None) as cluster, Client(cluster) as client:
-                # new worker processes import the package and load the compiled kernels
-                # once (a forked pool inherits them): timed apart as start-up
-                t0 = time.perf_counter()
-                run_suite(scenario, sets[:2], tmp / "dask-warm", shared=shared, scheduler=client)
-                print(f"dask start-up (2 sets on fresh workers): {time.perf_counter() - t0:.2f} s")
-                t0 = time.perf_counter()
-                res = run_suite(scenario, sets, tmp / "dask", shared=shared, scheduler=client)
-                times["dask LocalCluster, 2 workers"] = time.perf_counter() - t0
-                assert res.n_failed == 0
-        ref = times["plain loop"]
+            cluster = stack.enter_context(LocalCluster(n_workers=2, threads_per_worker=1,
+                                                       processes=True, dashboard_address=None))
+            client = stack.enter_context(Client(cluster))
         n = args.records
-        print(f"\n{'engine':<32}{'total [s]':>10}{'per record [s]':>16}{'speed-up':>10}")
-        for label, t in times.items():
-            print(f"{label:<32}{t:>10.2f}{t / n:>16.3f}{ref / t:>10.2f}")
-        if "dask LocalCluster, 2 workers" in times:
-            pool2 = times["pool, 2 workers"]
-            dask2 = times["dask LocalCluster, 2 workers"]
-            print(f"\nDask per-record overhead over the 2-worker pool: "
-                  f"{100 * (dask2 - pool2) / pool2:+.1f} %")
-        print(f"2 workers vs 1: "
-              f"{times['suite, 1 worker (in process)'] / times['pool, 2 workers']:.2f}x")
+        for rnd in range(1, args.rounds + 1):
+            times = {"plain loop (reference)": ref}
+            engines = [("suite, 1 worker (in process)", dict(workers=1)),
+                       ("local pool, 2 workers", dict(workers=2))]
+            if client is not None:
+                engines.append(("dask LocalCluster, 2 workers", dict(scheduler=client)))
+            print(f"\nround {rnd} of {args.rounds}")
+            for label, kw in engines:
+                if "scheduler" in kw:
+                    # the workers' first sets import the package and load the compiled
+                    # kernels (a pool worker gets them from its fork server): timed apart
+                    t0 = time.perf_counter()
+                    warm = run_suite(scenario, sets[:2], tmp / f"warm{rnd}", shared=shared, **kw)
+                    assert warm.n_failed == 0
+                    print(f"  dask warm-up (2 sets): {time.perf_counter() - t0:.2f} s")
+                t0 = time.perf_counter()
+                res = run_suite(scenario, sets, tmp / f"{rnd}-{label.split(',')[0].replace(' ', '_')}",
+                                shared=shared, **kw)
+                times[label] = time.perf_counter() - t0
+                assert res.n_failed == 0, [r.get("error") for r in res.records
+                                           if r["status"] != "ok"]
+                print(f"  {label}: {res.engine.line()}")
+            print(f"  {'engine':<32}{'total [s]':>10}{'per record [s]':>16}{'speed-up':>10}")
+            for label, t in times.items():
+                print(f"  {label:<32}{t:>10.2f}{t / n:>16.3f}{ref / t:>10.2f}")
+            one, pool2 = times["suite, 1 worker (in process)"], times["local pool, 2 workers"]
+            print(f"  2 workers vs 1: {one / pool2:.2f}x")
+            if "dask LocalCluster, 2 workers" in times:
+                dask2 = times["dask LocalCluster, 2 workers"]
+                print(f"  Dask overhead over the 2-worker pool: {100 * (dask2 - pool2) / pool2:+.1f} %")
 
 
 if __name__ == "__main__":

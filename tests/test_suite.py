@@ -165,8 +165,10 @@ def test_workers_reuse_the_shared_missing_mass_shapes(suite_case):
     assert run_record_set(local, sets[0].to_dict())["status"] == "ok"
     _, model, modes = _objects(local)
     assert model._factor is None
-    M, iota = model.M, model.influence
-    B = M @ iota - M @ (modes.shapes @ modes.participation)
+    # the ground load L = M_ff ι_f + M_fb ι_b (effective-force method, Clough & Penzien
+    # support excitation); the residual is K⁻¹(L − Σ Γₙ M φₙ) (USNRC RG 1.92 Rev. 3 missing mass)
+    M, load = model.M, model.ground_load
+    B = load - M @ (modes.shapes @ modes.participation)
     direct = spla.spsolve(model.K.tocsc(), B)
     np.testing.assert_allclose(shared["residual"], direct, rtol=1e-8,
                                atol=1e-12 * np.abs(direct).max())

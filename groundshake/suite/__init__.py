@@ -1,7 +1,7 @@
 """Suites of records through one model: discovery, engines (serial, pool, Dask), statistics."""
 from ._discover import COMPONENT_WORDS, RecordSet, discover_record_sets
-from ._engine import run_tasks
+from ._engine import EngineReport, SuiteStalled, run_tasks
 from ._stats import flatten_scalars, peak_statistics, scalar_statistics
 
-__all__ = ["COMPONENT_WORDS", "RecordSet", "discover_record_sets", "run_tasks",
-           "flatten_scalars", "peak_statistics", "scalar_statistics"]
+__all__ = ["COMPONENT_WORDS", "RecordSet", "discover_record_sets", "run_tasks", "EngineReport",
+           "SuiteStalled", "flatten_scalars", "peak_statistics", "scalar_statistics"]

@@ -35,6 +35,12 @@ def register(subparsers, parents) -> None:
                    help="override [analysis] method")
     p.add_argument("--target", default=None, metavar="SPEC",
                    help="target spectrum drawn with the ground-spectra band")
+    p.add_argument("--set-timeout", type=float, default=None, metavar="S",
+                   help="time limit of one record set [s]; a set past it is reported failed "
+                        "(default: 120 s + 1e-6 s x DOFs x record samples, x10 on the second "
+                        "term for the direct method; 0: no limit)")
+    p.add_argument("--retries", type=int, default=2, metavar="N",
+                   help="times a set is run again after its worker was lost (default 2)")
     p.add_argument("--resume", action="store_true",
                    help="keep finished records in DIR and run only the rest")
     p.add_argument("--force", action="store_true", help="write into an existing DIR")
@@ -59,6 +65,10 @@ def _suite(args) -> int:
         raise InputError(f"-o {args.output}: the scenario's own folder; give a new folder")
     if args.workers is not None and args.workers < 1:
         raise InputError(f"--workers {args.workers}: must be >= 1")
+    if args.set_timeout is not None and not (args.set_timeout >= 0 and args.set_timeout < float("inf")):
+        raise InputError(f"--set-timeout {args.set_timeout}: give seconds > 0 (0: no limit)")
+    if args.retries < 0:
+        raise InputError(f"--retries {args.retries}: must be >= 0")
     scenario = load_scenario(scen_path)
     comps = tuple(scenario.motion.components()) if scenario.motion is not None else ("x", "y", "z")
     if args.dt is not None and not args.dt > 0:
@@ -72,6 +82,8 @@ def _suite(args) -> int:
     try:
         result = run_suite(scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
                            resume=args.resume, method=args.method,
+                           set_timeout="auto" if args.set_timeout is None else args.set_timeout,
+                           retries=args.retries,
                            on_result=(lambda r: bar.advance()) if bar is not None else None)
     finally:
         if bar is not None:
@@ -84,7 +96,8 @@ def _suite(args) -> int:
     else:
         rows = [(r["record"], r["status"], r.get("error", "")) for r in result.records]
         print(table(rows, ["record set", "status", "error"]))
-        print(f"\n{len(result.records) - result.n_failed} ok, {result.n_failed} failed; "
+        print(f"\n{result.engine.line()}")
+        print(f"{len(result.records) - result.n_failed} ok, {result.n_failed} failed; "
               f"wrote {doc_path} and {out / 'suite.html'}")
         print("For screening only — not a design or a code check.")
     return 1 if result.n_failed else 0

@@ -19,6 +19,9 @@ remaining stem (``rec07-h1.mseed``, ``rec07-h2.mseed``, ``rec07-up.mseed`` →
 set ``rec07``). When the scenario's ``[motion]`` has a single component, every
 file is a set of its own applied to that component, whatever its name.
 
+A relative folder or pattern is taken from the current working directory (as a
+shell would), never from the scenario's folder; the sets hold absolute paths.
+
 Manifest (CSV with a header row): ``set`` (or ``name``), ``x``, ``y``, ``z``
 (file paths, relative to the manifest; blank where absent), and optionally
 ``scale`` (all components), ``scale_x``, ``scale_y``, ``scale_z``, ``units``, ``dt``
@@ -29,6 +32,7 @@ from __future__ import annotations
 import csv
 import glob
 import math
+import os
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -93,7 +97,8 @@ def _component_of(path: Path) -> tuple[str, str] | None:
 
 
 def _candidate_files(spec: str) -> list[Path]:
-    p = Path(spec)
+    """Record files of a folder, a pattern or one file, as absolute paths (from the cwd)."""
+    p = Path(os.path.abspath(spec))
     if p.is_dir():
         files = [q for q in sorted(p.iterdir()) if q.is_file() and not q.name.startswith(".")
                  and q.suffix.lower() in _RECORD_SUFFIXES and q.name.lower() != "readme.md"]
@@ -101,7 +106,7 @@ def _candidate_files(spec: str) -> list[Path]:
             raise InputError(f"{spec}: folder holds no record files")
         return files
     if any(ch in spec for ch in "*?["):
-        files = [Path(f) for f in sorted(glob.glob(spec)) if Path(f).is_file()]
+        files = [Path(os.path.abspath(f)) for f in sorted(glob.glob(spec)) if Path(f).is_file()]
         if not files:
             raise InputError(f"{spec}: pattern matches no files")
         return files

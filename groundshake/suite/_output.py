@@ -118,7 +118,10 @@ def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[
                   for k, v in result.statistics.items()]
     failures = [(r["record"], r.get("error", "")) for r in result.records if r.get("status") != "ok"]
     warnings_ = sorted({w for r in result.records for w in r.get("warnings", [])})
+    engine = getattr(result, "engine", None)
     body = [
+        section("suite-engine", "How it ran",
+                f"<p>{esc(engine.line())}</p>" if engine is not None else "<p>—</p>"),
         section("suite-records", "Record sets",
                 table([(r["record"], r["status"], ", ".join(f"{c}: {Path(f).name}" for c, f in
                                                            r.get("files", {}).items()))

@@ -9,7 +9,9 @@ from __future__ import annotations
 
 import datetime as _dt
 import json
+import math
 import time
+import uuid
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -22,11 +24,12 @@ from .._cautions import CAUTIONS
 from .._json import json_dumps
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ._discover import RecordSet
-from ._engine import run_tasks
+from ._engine import EngineReport, SuiteStalled, run_tasks
 from ._plain import from_plain, to_plain
 from ._stats import peak_statistics
 
-__all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks"]
+__all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks",
+           "default_set_timeout"]
 
 DIRECTIONS = ("x", "y", "z")
 _PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
@@ -60,23 +63,100 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
         from ..dynamics._modal import residual_vectors
 
         residual = residual_vectors(model.M, model.influence, np.asarray(modes.shapes),
-                                    np.asarray(modes.participation), model.factor().solve)
+                                    np.asarray(modes.participation), model.factor().solve,
+                                    load=model.ground_load)
     return {"scenario": scenario.to_dict(), "source": str(scenario.source),
             "base_dir": str(scenario.base_dir), "model": to_plain(model),
-            "modes": to_plain(modes), "method": method, "residual": residual}
+            "modes": to_plain(modes), "method": method, "residual": residual,
+            "n_dof": int(model.K.shape[0]), "token": uuid.uuid4().hex}
 
 
-def _objects(shared: dict[str, Any]) -> tuple[Any, Any, Any]:
+#: this process's scenario, model and modes, rebuilt once per prepared model (its token);
+#: kept outside ``shared`` so that the shared data itself never changes on a worker
+_OBJECTS: dict[str, tuple[Any, Any, Any]] = {}
+
+
+def _objects(shared: Mapping[str, Any]) -> tuple[Any, Any, Any]:
     """Scenario, model and modes rebuilt from the shared plain data, once per worker."""
-    cache = shared.get("_objects")
+    token = str(shared.get("token") or id(shared))
+    cache = _OBJECTS.get(token)
     if cache is None:
         from ..scenario import Scenario
 
         scenario = Scenario.from_dict(shared["scenario"], source=shared["source"],
                                       base_dir=Path(shared["base_dir"]))
         cache = (scenario, from_plain(shared["model"]), from_plain(shared["modes"]))
-        shared["_objects"] = cache      # this worker's copy only
+        while len(_OBJECTS) >= 4:       # a few models at a time per process
+            _OBJECTS.pop(next(iter(_OBJECTS)))
+        _OBJECTS[token] = cache
     return cache
+
+
+#: the default per-set time limit [s]: a fixed allowance for a worker's start-up
+#: (imports, compiled kernels loaded or built) plus a generous bound on the work
+_LIMIT_BASE_S = 120.0
+_LIMIT_PER_DOF_STEP_S = 1e-6
+_LIMIT_DIRECT_FACTOR = 10.0
+
+
+def default_set_timeout(n_dof: int, n_steps: int, *, method: str | None = "modal") -> float:
+    """The default time limit of one record set [s].
+
+    ``120 s + 1e-6 s × n_dof × n_steps`` (× 10 on the work term for the direct
+    method, which solves the full system every step). Measured on a 2-core machine,
+    the demo model (3606 DOFs) takes about 0.3 s for a 20 s record at 200 Hz
+    (4000 steps), about 2e-8 s per DOF and step, so the limit leaves a margin of
+    some 50× on the work plus two minutes for a fresh worker's start-up.
+
+    Parameters
+    ----------
+    n_dof : int
+        Degrees of freedom of the model.
+    n_steps : int
+        Samples of the set's longest record.
+    method : {"modal", "direct"}, optional
+    """
+    work = _LIMIT_PER_DOF_STEP_S * float(n_dof) * float(n_steps)
+    if method == "direct":
+        work *= _LIMIT_DIRECT_FACTOR
+    return _LIMIT_BASE_S + work
+
+
+def _record_steps(rs: RecordSet) -> int | None:
+    """Samples in a set's longest record (a quick read), None if it cannot be read here."""
+    from ..records import read_record
+
+    longest = None
+    for f in rs.files.values():
+        for units in dict.fromkeys((rs.units, "m/s2")):
+            try:
+                with warnings.catch_warnings():
+                    warnings.simplefilter("ignore")
+                    recs = read_record(f, units=units, dt=rs.dt)
+            except (GroundshakeError, OSError, ValueError):
+                continue
+            n = max((len(r.acc) for r in recs), default=0)
+            longest = n if longest is None else max(longest, n)
+            break
+    return longest
+
+
+def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario,
+                method: str | None, set_timeout: float | None | str) -> list[float | None]:
+    """Each set's time limit [s]: the given one, none (0 or None), or the default."""
+    if set_timeout is None or set_timeout == 0:
+        return [None] * len(sets)
+    if set_timeout != "auto":
+        value = float(set_timeout)
+        if not math.isfinite(value) or value < 0:
+            raise InputError(f"--set-timeout {set_timeout}: give seconds > 0 (0: no limit)")
+        return [value] * len(sets)
+    n_dof = int(shared.get("n_dof") or 0) or int(shared["model"]["fields"]["K"]["shape"][0])
+    how = method or getattr(getattr(scenario, "analysis", None), "method", "modal")
+    steps = [_record_steps(rs) for rs in sets]
+    known = [s for s in steps if s]
+    fallback = max(known) if known else 200 * 3600      # an hour at 200 Hz
+    return [default_set_timeout(n_dof, s or fallback, method=how) for s in steps]
 
 
 _NOT_PEAKS = {"time", "at", "signed", "position", "node", "element", "step", "where"}
@@ -178,6 +258,7 @@ class SuiteResult:
     statistics: dict
     spectra_statistics: dict = field(default_factory=dict)
     out_dir: Path | None = None
+    engine: EngineReport = field(default_factory=EngineReport)
 
     @property
     def n_failed(self) -> int:
@@ -241,7 +322,8 @@ def spectra_statistics(results: Sequence[Mapping]) -> dict:
 def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
               workers: int | None = 1, scheduler: Any = None, resume: bool = False,
               method: str | None = None, shared: Mapping[str, Any] | None = None,
-              on_result: Callable[[dict], None] | None = None) -> SuiteResult:
+              on_result: Callable[[dict], None] | None = None,
+              set_timeout: float | str | None = "auto", retries: int = 2) -> SuiteResult:
     """Run every record set through the scenario's model; write as results complete.
 
     Parameters
@@ -261,6 +343,18 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
         Output of :func:`prepare_suite`, when already built.
     on_result : callable, optional
         Called with each result as it arrives (progress).
+    set_timeout : float, "auto" or None
+        Time limit of one set [s]; ``"auto"`` (default) gives each set
+        :func:`default_set_timeout` of the model's DOFs and its record's samples;
+        0 or None: no limit. A set past it is reported failed, with the reason.
+    retries : int
+        Times a set is run again after its worker was lost.
+
+    Raises
+    ------
+    SuiteStalled
+        The engine stopped answering (see :func:`groundshake.suite.run_tasks`);
+        every set finished until then is written, and ``resume=True`` runs the rest.
     """
     out_dir = Path(out_dir)
     (out_dir / "records").mkdir(parents=True, exist_ok=True)
@@ -270,33 +364,50 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
     done = _load_done(out_dir, sets) if resume else {}
     todo = [rs for rs in sets if rs.name not in done]
     results: dict[str, dict] = dict(done)
+    report = EngineReport()
+    limits: list = []
     if todo:
         if shared is None:
             shared = prepare_suite(scenario, method=method)
+        limits = _set_limits(todo, shared, scenario, method, set_timeout)
         last = time.monotonic()
-        for r in run_tasks(run_record_set, shared, [rs.to_dict() for rs in todo],
-                           workers=workers, scheduler=scheduler):
-            name = r.get("record") or "record"
-            results[name] = r
-            atomic_write_text(_record_file(out_dir, name), json_dumps(r, indent=None))
-            if on_result is not None:
-                on_result(r)
-            if time.monotonic() - last > _PROGRESS_EVERY_S:   # a progress copy, not per record
-                _write_suite_json(out_dir, scenario, sets, results, complete=False)
-                last = time.monotonic()
+        try:
+            for r in run_tasks(run_record_set, shared, [rs.to_dict() for rs in todo],
+                               workers=workers, scheduler=scheduler, retries=retries,
+                               limits=limits, report=report):
+                name = r.get("record") or "record"
+                if name in results:       # never written twice
+                    continue
+                results[name] = r
+                atomic_write_text(_record_file(out_dir, name), json_dumps(r, indent=None))
+                if on_result is not None:
+                    on_result(r)
+                if time.monotonic() - last > _PROGRESS_EVERY_S:   # a progress copy
+                    _write_suite_json(out_dir, scenario, sets, results, complete=False,
+                                      engine=report)
+                    last = time.monotonic()
+        except SuiteStalled as e:       # say so in suite.json, keep what is done
+            report.notes.append(str(e))
+            _write_suite_json(out_dir, scenario, sets, results, complete=False, engine=report)
+            raise
     ordered = [results[n] for n in names if n in results]
+    report.failed = sum(1 for r in ordered if r.get("status") != "ok")
+    known = [x for x in limits if x is not None]
     stats = peak_statistics([r["peaks"] for r in ordered if r.get("status") == "ok"])
     spec = spectra_statistics(ordered)
     result = SuiteResult(records=ordered, statistics=stats, spectra_statistics=spec,
-                         out_dir=out_dir)
+                         out_dir=out_dir, engine=report)
     _write_suite_json(out_dir, scenario, sets, results, complete=True, stats=stats,
+                      engine=report, set_timeout_s=({"min": min(known), "max": max(known)}
+                                                    if known else None),
                       resumed=sorted(done), method=method, workers=workers,
                       scheduler=None if scheduler is None else str(scheduler))
     return result
 
 
 def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
-                      stats: dict | None = None, **extra) -> None:
+                      stats: dict | None = None, engine: EngineReport | None = None,
+                      set_timeout_s: dict | None = None, **extra) -> None:
     from .. import __version__
 
     records = []
@@ -313,6 +424,8 @@ def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
         "complete": complete,
         "counts": {"sets": len(sets), "ok": sum(1 for r in records if r["status"] == "ok"),
                    "failed": n_failed},
+        "engine": {**(engine.to_dict() if engine is not None else {}),
+                   "set_timeout_s": set_timeout_s},
         "records": records,
         "statistics": stats or {},
         "statistics_note": "over the records with status ok: sample mean, std, median, "
