@@ -62,6 +62,7 @@ LAYER_ALLOW = {
     "groundshake.suite._run -> groundshake.dynamics",            # one model: over pipeline/
     "groundshake.suite._run -> groundshake.dynamics._modal",     # one model: over pipeline/
     "groundshake.suite._run -> groundshake.model",               # one model: over pipeline/
+    "groundshake.suite._run -> groundshake.records",             # reading a set: over pipeline/
     "groundshake.suite._run -> groundshake.scenario",            # one run: over pipeline/
     "groundshake.suite._run -> groundshake.spectra",             # statistics: over pipeline/
 }

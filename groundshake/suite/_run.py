@@ -22,6 +22,7 @@ import numpy as np
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS
 from .._json import json_dumps
+from .._constants import DIRECTIONS
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ._discover import RecordSet
 from ._engine import EngineReport, SuiteStalled, run_tasks
@@ -31,7 +32,6 @@ from ._stats import peak_statistics
 __all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks",
            "default_set_timeout"]
 
-DIRECTIONS = ("x", "y", "z")
 _PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
 
 
