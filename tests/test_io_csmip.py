@@ -119,7 +119,7 @@ def test_v3_spectra_reproduced_from_the_v2_record():
         keep = sp.periods >= 10 * rec.dt
         # the agency computes on the samples as given, joined by straight lines: the
         # same convention is interpolate=False (our default reads the record as
-        # band-limited and is up to 2.5 % higher here at 0.05-0.2 s, README "Coarse
+        # band-limited and is up to 2.5 % higher here at 0.05-0.2 s, docs/guide/spectra.md "Coarse
         # records")
         ours = response_spectrum(rec.acc, rec.dt, sp.periods[keep], 0.05, interpolate=False)
         for name, unit in (("sa", G), ("sd", INCH), ("sv", INCH), ("psv", INCH)):

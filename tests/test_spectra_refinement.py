@@ -101,7 +101,7 @@ def test_zero_period_value_is_the_band_limited_pga():
 
 
 def test_refinement_factors_follow_the_rule():
-    # the rule stated in the README: smallest power of two giving 40 samples a period,
+    # the rule stated in docs/guide/spectra.md: smallest power of two giving 40 samples a period,
     # at most 16 (40·dt/T = 40, 4.0, 1.0, 0.4 and 2000 samples short)
     f = refinement_factors([DT, 10 * DT, 40 * DT, 100 * DT, 0.02 * DT], DT)
     assert f.tolist() == [16, 4, 1, 1, 16]
