@@ -78,3 +78,29 @@ def test_tutorial_scenario_is_valid_and_has_the_mass_it_describes():
     # the plinth's mass ρ·V = 2400 kg/m³ × 3 × 2 × 0.8 m³ (closed form) and the pump's 3 t
     assert scen.parts[0].size == (3.0, 2.0, 0.8)
     assert 2400.0 * 3.0 * 2.0 * 0.8 + scen.equipment[0].mass == pytest.approx(14520.0)
+
+
+def test_readme_python_example_names_exist():
+    # the README's short Python example imports only public names that exist (STYLE.md
+    # point 11: documented examples must work; the run itself is the tutorial's test)
+    import ast
+    import importlib
+
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    blocks = re.findall(r"```python\n(.*?)```", text, re.S)
+    assert len(blocks) == 1
+    tree = ast.parse(blocks[0])
+    found = 0
+    for node in ast.walk(tree):
+        if isinstance(node, ast.ImportFrom):
+            module = importlib.import_module(node.module)
+            for alias in node.names:
+                assert hasattr(module, alias.name), f"{node.module}.{alias.name}"
+                found += 1
+    assert found >= 4
+
+
+def test_readme_is_a_front_door():
+    # issue 15: the README is at most 200 lines; the docs tree holds the rest
+    lines = (ROOT / "README.md").read_text(encoding="utf-8").splitlines()
+    assert len(lines) <= 200
