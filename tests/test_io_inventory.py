@@ -141,7 +141,7 @@ enabled = false
                                  source=str(tmp_path / "s.toml"), base_dir=tmp_path)
     with pytest.raises(RecordError, match="look like raw counts|raw counts, most likely"):
         build_motion(no_inv)
-    from groundshake.results._cli import _with_inventory
+    from groundshake.cli.run import _with_inventory
 
     assert _with_inventory(no_inv, XML).motion.inventory == XML.resolve()
 

@@ -84,7 +84,7 @@ def stage_of(module: str) -> str:
     parts = module.split(".")
     if len(parts) == 1:
         return "base"
-    if parts[1] in ("cli", "_cli_common"):
+    if parts[1] == "cli":
         return "cli"
     if len(parts) == 2 and not (PACKAGE / parts[1]).is_dir():
         return "base" if parts[1] in BASE else parts[1]

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .._cli_common import print_json, table
+from ._common import print_json, table
 from .._errors import InputError
 from .._progress import Progress
 
@@ -50,9 +50,9 @@ def register(subparsers, parents) -> None:
 
 def _suite(args) -> int:
     from ..scenario import load_scenario
-    from ._discover import discover_record_sets
-    from ._output import write_suite_outputs
-    from ._run import run_suite
+    from ..suite._discover import discover_record_sets
+    from ..suite._output import write_suite_outputs
+    from ..suite._run import run_suite
 
     out = Path(args.output)
     scen_path = Path(args.scenario)

@@ -5,7 +5,7 @@ import sys
 from pathlib import Path
 
 from .._cautions import SCREENING_NOTE
-from .._cli_common import print_json, table
+from ._common import print_json, table
 from .._errors import InputError
 
 __all__ = ["register"]

@@ -8,8 +8,8 @@ from typing import Any, Iterable
 
 import numpy as np
 
-from ._errors import InputError
-from ._json import json_dumps, to_jsonable
+from .._errors import InputError
+from .._json import json_dumps, to_jsonable
 
 __all__ = ["common_options", "print_json", "to_jsonable", "float_list", "json_dumps",
            "check_damping_percent"]
@@ -62,7 +62,7 @@ def check_damping_percent(values: Iterable[float], *, name: str = "--damping") -
     name : str
         The option, for the message.
     """
-    from ._plausible import check_value
+    from .._plausible import check_value
 
     for v in values:
         check_value("damping_percent", float(v), key=name, stacklevel=2)
