@@ -59,9 +59,6 @@ LAYER_ALLOW = {
     "groundshake.suite._output -> groundshake.report._figures",  # suite report: report/
     "groundshake.suite._output -> groundshake.report._html",     # suite report: report/
     "groundshake.suite._output -> groundshake.spectra",          # target: over pipeline/
-    "groundshake.suite._run -> groundshake.dynamics",            # one model: over pipeline/
-    "groundshake.suite._run -> groundshake.dynamics._modal",     # one model: over pipeline/
-    "groundshake.suite._run -> groundshake.model",               # one model: over pipeline/
     "groundshake.suite._run -> groundshake.records",             # reading a set: over pipeline/
     "groundshake.suite._run -> groundshake.scenario",            # one run: over pipeline/
     "groundshake.suite._run -> groundshake.spectra",             # statistics: over pipeline/

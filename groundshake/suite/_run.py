@@ -44,27 +44,10 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
     missing-mass shapes (n, 3) from one static solve; nothing that depends on a
     record.
     """
-    from ..dynamics import compute_modes
-    from ..model import build_model
+    from ..pipeline import prepare_model
 
-    model = build_model(scenario)
-    analysis = scenario.analysis
-    cutoff = analysis.cutoff_hz
-    n_req = analysis.modes
-    comps = tuple(scenario.motion.components()) if scenario.motion is not None else DIRECTIONS
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", GroundshakeWarning)
-        modes = compute_modes(model, cutoff_hz=None if n_req else cutoff, n_modes=n_req,
-                              excited=tuple(d in comps for d in DIRECTIONS), warn=False)
-    residual = None
-    if (method or analysis.method) == "modal":
-        # the missing-mass shapes depend on the model only: one static solve here,
-        # so workers never factorize K
-        from ..dynamics._modal import residual_vectors
-
-        residual = residual_vectors(model.M, model.influence, np.asarray(modes.shapes),
-                                    np.asarray(modes.participation), model.factor().solve,
-                                    load=model.ground_load)
+    prepared = prepare_model(scenario, method=method)    # workers never factorize K
+    model, modes, residual = prepared.model, prepared.modes, prepared.residual
     return {"scenario": scenario.to_dict(), "source": str(scenario.source),
             "base_dir": str(scenario.base_dir), "model": to_plain(model),
             "modes": to_plain(modes), "method": method, "residual": residual,
