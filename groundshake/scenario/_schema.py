@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import dataclasses
 
-from ._load import _schema_fields, allowed_text
+from ._spec import _schema_fields, allowed_text
 from ._types import MotionComponent, Scenario
 
 __all__ = ["schema_rows", "schema_markdown"]
