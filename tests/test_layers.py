@@ -35,7 +35,8 @@ ALLOWED: dict[str, set[str]] = {
     "scenario": {"records", "processing", "spectra", "matching"},
     "model": {"scenario"},
     "dynamics": {"model", "scenario", "spectra"},
-    "results": {"dynamics", "model", "scenario", "records", "processing", "spectra"},
+    "results": {"dynamics", "model", "scenario", "records", "processing", "spectra",
+                "matching"},
     "pipeline": {"records", "processing", "spectra", "matching", "scenario", "model",
                  "dynamics", "results", "report"},
     # the report reads a run's output folder through the output contract only

@@ -22,7 +22,7 @@ def register(subparsers, parents) -> None:
     p.add_argument("-o", "--output", metavar="DIR", required=True,
                    help="output folder to create")
     p.add_argument("--force", action="store_true", help="replace DIR if it exists")
-    p.add_argument("--method", choices=("modal", "direct"), default=None,
+    p.add_argument("--method", choices=("modal", "direct", "spectrum"), default=None,
                    help="override [analysis] method")
     p.add_argument("--no-report", action="store_true",
                    help="write summary.json and the CSV tables only (no report.html)")
@@ -112,8 +112,10 @@ def _terminal_summary(s: dict, out: Path) -> str:
     wi = s.get("worst_interaction")
     if wi:
         rows.append((f"bolt interaction ({wi['equipment']}, bolt {wi['bolt']})", wi["value"], "-"))
-    lines = [f"{s['title']} — {s['analysis']['method']} "
-             f"({s['analysis']['n_modes']} modes, {s['analysis']['n_steps']} steps)",
+    an = s["analysis"]
+    how = (f"{an['n_modes']} modes, {an['n_steps']} steps" if an["method"] != "spectrum" else
+           f"{an['n_modes']} modes, design spectrum; peaks without signs or times")
+    lines = [f"{s['title']} — {an['method']} ({how})",
              table(rows, ("peak", "value", "unit"))]
     w = s.get("worst_dc")
     if w:

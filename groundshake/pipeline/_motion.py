@@ -88,7 +88,8 @@ def build_motion(scenario: Any) -> Motion:
         raw[d] = rec
         used[d] = correct_record(rec, settings) if enabled else rec
     if not used:
-        raise InputError("motion: no component given; allowed keys x, y, z (at least one)")
+        raise InputError("motion: no component given; allowed keys x, y, z (at least one), "
+                         'or method = "spectrum" for a [motion] with only a target')
     notes: list[str] = []
     matching: dict[str, Any] = {}
     target = _get(motion, "target")

@@ -19,7 +19,7 @@ def analyse(scenario, *, motion=None, **options):
     ----------
     scenario : Scenario
         From :func:`groundshake.load_scenario`; needs a ``[motion]`` section unless
-        ``motion`` is given.
+        ``motion`` is given (the ``"spectrum"`` method reads only its target).
     motion : Motion, optional
         The base motion, when it does not come from the scenario's files.
     **options
@@ -38,7 +38,9 @@ def analyse(scenario, *, motion=None, **options):
         No ``[motion]`` and no ``motion``; any error of reading or correcting the records.
     """
     read_s = None
-    if motion is None:
+    method = options.get("method") or getattr(getattr(scenario, "analysis", None), "method",
+                                               None)
+    if motion is None and method != "spectrum":     # the spectrum method reads no records
         if getattr(scenario, "motion", None) is None:
             raise InputError(f"{getattr(scenario, 'source', 'scenario')}: [motion]: missing; "
                              "allowed x, y, z = { file = ... } (at least one)")

@@ -711,7 +711,7 @@ class _Builder:
                                "bearing / allowable", "bolt interaction max"]) + "</div>")
 
     def results(self) -> str:
-        html_ = ["<h3>Governing peaks</h3>"]
+        html_ = [self.spectrum_note(), "<h3>Governing peaks</h3>"]
         peaks = self.s.get("peaks")
         html_.append(key_values(peaks) if isinstance(peaks, Mapping) and peaks
                      else '<p class="none">No peaks in summary.json.</p>')
@@ -742,6 +742,29 @@ class _Builder:
             html_.append(key_values(base))
         html_.append(self.history_figures())
         return "".join(html_)
+
+    def spectrum_note(self) -> str:
+        """For a response-spectrum run: what its peaks are (signs and times lost)."""
+        an = self.s.get("analysis")
+        if not (isinstance(an, Mapping) and an.get("method") == "spectrum"):
+            return ""
+        items = "".join(f"<li>{esc(str(a))}</li>" for a in an.get("assumptions") or [])
+        out = ('<p class="note">Response-spectrum analysis of the design spectrum: every '
+               "value below is a peak magnitude estimated on its own, without sign or time; "
+               "peaks of different quantities need not occur together.</p>"
+               f"<ul>{items}</ul>")
+        side = an.get("spectrum_motions")
+        if isinstance(side, Mapping) and side.get("comparison"):
+            rows = [[r.get("quantity"), _as_float(r.get("spectrum")),
+                     _as_float(r.get("time_history_mean")), _as_float(r.get("time_history_sd")),
+                     _as_float(r.get("ratio"))]
+                    for r in side["comparison"] if isinstance(r, Mapping)]
+            out += (f"<h3>Side by side: spectrum method and {esc(str(side.get('n')))} "
+                    "spectrum-compatible motions</h3>"
+                    + table(rows, ["quantity", "spectrum method", "time-history mean",
+                                   "standard deviation", "ratio"])
+                    + f'<p class="note">{esc(str(side.get("note", "")))}</p>')
+        return out
 
     def stress_figure(self) -> str:
         e = self.f.table("element_peaks")

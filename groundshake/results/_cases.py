@@ -227,7 +227,8 @@ def _envelope_equipment(items: list, names: list[str]) -> dict:
             if key in b:
                 k = int(np.argmax([x[key] for x in bolts]))
                 b[key] = bolts[k][key]
-                b[tkey] = bolts[k][tkey]
+                if tkey in bolts[k]:                     # a spectrum run has no times
+                    b[tkey] = bolts[k][tkey]
                 b.setdefault("governing_case", {})[key] = names[k]
         for key in ("dc_tension", "dc_shear"):
             if key in b:
@@ -251,7 +252,7 @@ def _envelope_stability(items: list, names: list[str]) -> dict:
 
     least("sliding")
     least("overturning")
-    peaks = [(_get(x["bearing"], "peak_pressure", math.inf) if x["bearing"].get("time") is not None
+    peaks = [(_get(x["bearing"], "peak_pressure", math.inf) if x["bearing"].get("edge") is not None
               else -math.inf) for x in items]
     j = int(np.argmax(peaks))
     out["bearing"] = {**items[j]["bearing"], "case": names[j],
@@ -318,7 +319,8 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
     if cv is not None and cv < 0.5:
         notes.append(f"Soil variation Cv = {cv:g} is below 0.5, the least ASCE 4-16 §5.1.7 asks "
                      "for where the soil is not well investigated (from memory)")
-    if motion is None:
+    spectrum = (method or _get(_get(scenario, "analysis"), "method", "modal")) == "spectrum"
+    if motion is None and not spectrum:      # the spectrum method reads no records
         raise InputError("motion: none given; groundshake.analyse (the application layer) "
                          "reads it from the scenario's [motion] files")
     results = []
@@ -369,9 +371,10 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         if all(contacts):
             kmin = int(np.argmin([c["min_pressure"] for c in contacts]))
             kmax = int(np.argmax([c["peak_pressure"] for c in contacts]))
+            tp = contacts[kmax].get("time_of_peak_pressure")     # none in a spectrum run
             s["base"]["contact"] = {
                 **contacts[kmin], "peak_pressure": contacts[kmax]["peak_pressure"],
-                "time_of_peak_pressure": contacts[kmax]["time_of_peak_pressure"],
+                **({"time_of_peak_pressure": tp} if tp is not None else {}),
                 "uplift": any(c["uplift"] for c in contacts),
                 "governing_case": {"min_pressure": names[kmin], "peak_pressure": names[kmax]}}
         s["worst_dc"] = _worst([x.get("worst_dc") for x in sums], names)
@@ -399,7 +402,9 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         s["warnings"] = warns
     s["soil_cases"] = entries
     s["soil_case_practice"] = CASE_PRACTICE
-    s["envelope"] = {"cases": names, "histories": f"histories.csv holds the {names[ib]} case",
+    s["envelope"] = {"cases": names,
+                     "histories": f"histories.csv holds the {names[ib]} case" if best.histories
+                     else "no histories (response-spectrum analysis)",
                      "governing": "largest peak and least safety factor over the cases"}
     s["scenario"] = scenario.to_dict() if hasattr(scenario, "to_dict") else s.get("scenario", {})
     s["warnings"].extend(n for n in notes if n not in s["warnings"])

@@ -79,8 +79,9 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         summary = {"schema_version": SCHEMA_VERSION, **results.summary}
         _write(tmp, SUMMARY_FILE, json_dumps(summary) + "\n")
         h = results.histories
-        _write(tmp, "histories.csv", _csv_text(list(h), list(h.values())))
-        _write(tmp, "records.csv", _records_csv(results.motion))
+        if h:           # a response-spectrum run has no histories and reads no records
+            _write(tmp, "histories.csv", _csv_text(list(h), list(h.values())))
+            _write(tmp, "records.csv", _records_csv(results.motion))
         _write(tmp, "ground_spectra.csv", _ground_csv(results))
         _write(tmp, "floor_spectra.csv", _floor_csv(results))
         _write(tmp, "modes.csv", _modes_csv(results.modes))
@@ -203,7 +204,11 @@ def _elements_csv(results) -> str:
     header = ["x [m]", "y [m]", "z [m]"]
     cols = [c[:, 0], c[:, 1], c[:, 2]]
     s = results.stress
-    if s is not None:
+    if s is not None and not results.histories:      # response spectrum: no times
+        header += ["von mises [Pa]", "principal tension [Pa]", "principal compression [Pa]",
+                   "part"]
+        cols += [s.von_mises, s.tension, s.compression, np.asarray(results.model.element_part)]
+    elif s is not None:
         header += ["von mises [Pa]", "principal tension [Pa]", "principal compression [Pa]",
                    "time of von mises peak [s]", "part"]
         cols += [s.von_mises, s.tension, s.compression,

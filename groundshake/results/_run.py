@@ -25,6 +25,8 @@ from ..dynamics._modes import compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion
+from ._common import RunResults, _modes_dict, _sha256
+from ._spectrum_run import spectrum_analyse
 from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
                          fp_comparison)
 from ._stability import base_stability
@@ -39,41 +41,6 @@ RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
 RIGID_HZ = 33.0
 
 
-@dataclass
-class RunResults:
-    """Everything a run produced.
-
-    Attributes
-    ----------
-    summary : dict
-        The summary (as written to summary.json), SI units.
-    motion : Motion
-    model : BlockModel
-    modes : Modes
-    time : ndarray (n_t,) [s]
-    histories : dict str -> ndarray (n_t,)
-        Named time histories (column name with unit → values).
-    ground_spectra : dict
-        ``periods``, ``damping``, ``psa`` (3, n_d, n_p) of the ground motion.
-    floor : dict
-        Output of :func:`floor_spectra` plus ``points`` (names).
-    stress : StressPeaks
-        Per element: the largest peaks of its corner stress points (NaN for an element
-        with no corner on the surface).
-    """
-
-    summary: dict
-    motion: Motion
-    model: Any
-    modes: Any
-    time: np.ndarray
-    histories: dict
-    ground_spectra: dict
-    floor: dict
-    stress: StressPeaks | None
-    target_psa: np.ndarray | None = None
-    inputs: dict = field(default_factory=dict)
-    base: np.ndarray | None = None
 
 
 def base_resultants(results: RunResults) -> dict[str, np.ndarray]:
@@ -111,17 +78,6 @@ def _peak(x: np.ndarray, time: np.ndarray) -> dict:
         return {"value": 0.0, "time": 0.0, "signed": 0.0}
     i = int(np.argmax(np.abs(x)))
     return {"value": float(abs(x[i])), "time": float(time[i]), "signed": float(x[i])}
-
-
-def _sha256(path: Path) -> str | None:
-    try:
-        h = hashlib.sha256()
-        with open(path, "rb") as fh:
-            for chunk in iter(lambda: fh.read(1 << 20), b""):
-                h.update(chunk)
-        return h.hexdigest()
-    except OSError:
-        return None
 
 
 def _mount_operator(model, position) -> sp.csr_matrix:
@@ -252,7 +208,8 @@ def _get(obj, key, default=None):
 
 
 # --------------------------------------------------------------------------- the run
-def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct"] | None = None,
+def analyse(scenario, *, progress: bool = True,
+            method: Literal["modal", "direct", "spectrum"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario on a given motion: model, modes, response and every result.
@@ -263,12 +220,13 @@ def analyse(scenario, *, progress: bool = True, method: Literal["modal", "direct
         From :func:`groundshake.load_scenario`.
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
-    method : {"modal", "direct"}, optional
-        Overrides ``analysis.method``.
+    method : {"modal", "direct", "spectrum"}, optional
+        Overrides ``analysis.method``. ``"spectrum"`` is response-spectrum analysis of
+        ``[motion] target`` (records are not read; ``time`` and ``histories`` stay empty).
     motion : Motion
         The base motion (:func:`groundshake.dynamics.motion_from_arrays`, or from the
         scenario's files by :func:`groundshake.pipeline.build_motion`;
-        :func:`groundshake.analyse` does that for you).
+        :func:`groundshake.analyse` does that for you); none for ``"spectrum"``.
     model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
@@ -331,8 +289,17 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
 
     analysis = _get(scenario, "analysis")
     method = method or _get(analysis, "method", "modal") or "modal"
+    if method == "spectrum":            # the design spectrum, no records
+        if motion is not None:
+            raise InputError("analysis.method: 'spectrum' takes the design spectrum of "
+                             "[motion] target, not records; allowed 'modal' or 'direct' with "
+                             "a given motion")
+        return spectrum_analyse(scenario, progress=progress, model=model, modes=modes,
+                                stresses=stresses, collected=collected, residual=residual,
+                                timings=timings, analyse=analyse)
     if method not in ("modal", "direct"):
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct', "
+                         "'spectrum'")
     cutoff = _get(analysis, "cutoff_hz", 50.0)
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
@@ -681,21 +648,6 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                       stress=None if resp.stress is None else
                       element_peaks(resp.stress, model.stress_points.element_points),
                       target_psa=target_psa, inputs=inputs, base=base)
-
-
-def _modes_dict(modes, model) -> dict:
-    if hasattr(modes, "to_dict"):
-        d = modes.to_dict()
-        if isinstance(d, dict):
-            d.setdefault("total_mass", [float(v) for v in model.total_mass])
-            return d
-        return {"total_mass": [float(v) for v in model.total_mass], "modes": d}
-    out = []
-    for i in range(np.asarray(modes.omega).size):
-        out.append({"frequency": float(modes.frequency[i]), "period": float(modes.period[i]),
-                    "effective_mass_ratio": {d: float(modes.effective_mass_ratio[i, j])
-                                             for j, d in enumerate(DIRECTIONS)}})
-    return {"total_mass": [float(v) for v in model.total_mass], "modes": out}
 
 
 def _records_summary(motion: Motion) -> list:

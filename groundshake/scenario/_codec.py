@@ -84,10 +84,14 @@ def replace_motion(scenario: Scenario, components: dict, target, match_target,
     if tgt is not None:
         data["target"] = tgt
     data["match_target"] = mt
+    if old is not None:               # the spectrum method's vertical stays as it was
+        if old.target_z is not None:
+            data["target_z"] = old.target_z
+        data["vertical_fraction"] = old.vertical_fraction
     if old is not None and old.inventory is not None:  # the station inventory stays
         data["inventory"] = os.fspath(old.inventory)
     motion = _parse_obj(MotionSettings, data, ("motion",), ctx)
-    values = {"motion": motion}
+    values = {"motion": motion, "analysis": scenario.analysis}
     _check_motion(values, ctx)
     keep = [n for n in scenario.notes if "motion." not in n]
     return dataclasses.replace(scenario, motion=motion, notes=tuple(keep + ctx.notes))

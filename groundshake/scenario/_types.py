@@ -99,6 +99,13 @@ class MotionSettings:
                               doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8` "
                                   "or a CSV of period [s], PSA [g] (relative path)")
     match_target: bool = spec("bool", False, doc="adjust the records to the target first")
+    target_z: str | None = spec("target", None,
+                                doc="vertical design spectrum of the spectrum method (same forms "
+                                    "as target); none = vertical_fraction × target")
+    vertical_fraction: float = spec("number", 2.0 / 3.0, ge=0.0, le=2.0,
+                                    doc="vertical spectrum as a share of the horizontal target "
+                                        "when target_z is not given (2/3: USNRC RG 1.60 and "
+                                        "ASCE 4 long-period ratio, from memory); 0 = no vertical")
     inventory: Path | None = spec("path", None,
                                   doc="station inventory (StationXML) of records in raw counts "
                                       "(MiniSEED, SAC), relative to the scenario file")
@@ -315,9 +322,17 @@ class Sensor:
 class AnalysisSettings:
     """The ``[analysis]`` table."""
 
-    method: Literal["modal", "direct"] = spec(
-        "choice", "modal", choices=("modal", "direct"),
-        doc="modal superposition with missing mass, or direct integration")
+    method: Literal["modal", "direct", "spectrum"] = spec(
+        "choice", "modal", choices=("modal", "direct", "spectrum"),
+        doc="modal superposition with missing mass, direct integration, or response-spectrum "
+            "analysis of [motion] target (CQC, missing mass at the ZPA)")
+    direction_combination: Literal["srss", "100-40-40"] = spec(
+        "choice", "srss", choices=("srss", "100-40-40"),
+        doc="spectrum method: how the peaks of ground x, y, z are combined")
+    spectrum_motions: int = spec("integer", 0, ge=0, le=30,
+                                 doc="spectrum method: invented motions matched to the design "
+                                     "spectra and run by modal time history, for floor spectra "
+                                     "(their mean) and a side-by-side table; 0 = none")
     cutoff_hz: float = spec("number", 50.0, gt=0.0, unit="Hz", doc="modes up to this frequency")
     modes: int | None = spec("integer", None, ge=1, le=10000,
                              doc="a fixed number of modes instead of the cutoff")

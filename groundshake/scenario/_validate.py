@@ -146,6 +146,8 @@ def _check_plausible(values, ctx):
     m = values.get("motion")
     if m is not None and m.target is not None:
         _check_target(m.target, ("motion", "target"), ctx)
+    if m is not None and m.target_z is not None:
+        _check_target(m.target_z, ("motion", "target_z"), ctx)
 
 
 def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
@@ -177,11 +179,20 @@ def _check_motion(values, ctx):
     m = values.get("motion")
     if m is None:
         return
-    if not m.components():
+    analysis = values.get("analysis")
+    spectrum = analysis is not None and analysis.method == "spectrum"
+    if spectrum and m.target is None:
+        raise ctx.error(("motion", "target"), "nothing (the key is missing)",
+                        'a design spectrum (required by [analysis] method = "spectrum")')
+    if not m.components() and m.target is None:
         raise ctx.error(("motion",), "a [motion] table without components",
-                        "at least one of x, y, z (or leave [motion] out for modes only)")
+                        "at least one of x, y, z (or leave [motion] out for modes only; "
+                        'only a target for method = "spectrum")')
     if m.match_target and m.target is None:
         raise ctx.bad(("motion", "match_target"), True, "true only with a target")
+    if m.target_z is not None and m.target is None:
+        raise ctx.bad(("motion", "target_z"), m.target_z, "a vertical target only beside a "
+                      "horizontal target")
 
 
 def _check_floor_spectra(values, ctx):

@@ -1,0 +1,724 @@
+"""A scenario by response-spectrum analysis: the design spectrum in, peak results out.
+
+The same summary keys as a time-history run wherever a peak is meaningful (see
+docs/INTERNALS.md); every value is a peak magnitude whose sign and time are unknown.
+"""
+from __future__ import annotations
+
+import itertools
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sp
+
+from .._cautions import CAUTIONS
+from .._constants import STANDARD_GRAVITY
+from .._errors import InputError
+from .._progress import Progress
+from ..dynamics._modal import residual_vectors
+from ..dynamics._motion import DIRECTIONS, Motion
+from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, VON_MISES_FORM,
+                                           ellipsoid_quadratic_max, modal_spectrum,
+                                           spectral_accelerations)
+from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+
+from ._anchorage import INTERACTION_FORMS, bolt_interaction
+from ._common import RunResults, _modes_dict, _sha256
+from ._stability import base_stability
+from ._stress import StressPeaks
+
+__all__ = ["spectrum_analyse", "stress_bounds", "stress_envelope", "SIGNS_LOST", "STRESS_RULE"]
+
+#: The note every spectrum run carries.
+SIGNS_LOST = ("Response-spectrum results are peak magnitudes: the signs and the simultaneity "
+              "of peaks are lost (each quantity's peak is estimated on its own; two peaks need "
+              "not occur together), and no time of peak exists.")
+
+RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
+
+#: All sign combinations of six peak accelerations, (6, 64).
+_SIGNS = np.array(list(itertools.product((1.0, -1.0), repeat=6))).T
+#: All sign combinations of five peak base resultants Fx, Fy, Fz, Mx, My, (5, 32).
+_SIGNS5 = np.array(list(itertools.product((1.0, -1.0), repeat=5))).T
+
+
+def _get(obj, key, default=None):
+    if obj is None:
+        return default
+    if isinstance(obj, dict):
+        return obj.get(key, default)
+    return getattr(obj, key, default)
+
+
+def _dense(a) -> np.ndarray:
+    return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
+
+
+def stress_bounds(peaks: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Bounds of von Mises and principal stresses from peak stress components.
+
+    Parameters
+    ----------
+    peaks : ndarray (6, k)
+        Peak magnitudes of [σxx, σyy, σzz, τyz, τxz, τxy] [Pa] at k points.
+
+    Returns
+    -------
+    von_mises, tension, compression : ndarray (k,)
+        [Pa]. von Mises √(½[(Sx+Sy)² + (Sy+Sz)² + (Sz+Sx)²] + 3(Tyz² + Txz² + Txy²)),
+        the largest von Mises over every sign of the components (each normal difference
+        at its worst); tension max_i (S_ii + Σ_{j≠i} T_ij) ≥ σ₁ and compression its
+        negative ≤ σ₃ (Gershgorin's circle theorem for the stress tensor). Conservative
+        for any stress state whose components lie within their peaks.
+    """
+    S = np.abs(np.asarray(peaks, dtype=float))
+    sx, sy, sz, tyz, txz, txy = S
+    vm = np.sqrt(0.5 * ((sx + sy) ** 2 + (sy + sz) ** 2 + (sz + sx) ** 2)
+                 + 3.0 * (tyz ** 2 + txz ** 2 + txy ** 2))
+    t = np.max(np.stack([sx + txy + txz, sy + txy + tyz, sz + txz + tyz]), axis=0)
+    return vm, t, -t
+
+
+STRESS_RULE = (
+    "the six stress components of each point form a response vector whose CQC covariance "
+    "(modes, rigid part and missing mass, directions by SRSS) defines a response ellipsoid; "
+    "von Mises is its largest value over that ellipsoid (Menun & Der Kiureghian 2000, from "
+    "memory), with the ellipsoid widened by the 100-40-40 rule's excess over SRSS where "
+    "that rule is chosen; principal tension is the smaller of mean stress peak + 2/3 × that "
+    "von Mises and the Gershgorin bound over every sign of the component peaks, principal "
+    "compression its negative: upper estimates of stress states that need not occur; von "
+    "Mises of the combined components would not be one")
+
+
+def stress_envelope(peaks: np.ndarray, cov: np.ndarray) -> tuple[np.ndarray, np.ndarray,
+                                                                   np.ndarray]:
+    """Envelope von Mises and principal stresses of stress points from the spectrum method.
+
+    Parameters
+    ----------
+    peaks : ndarray (6, k)
+        Peak magnitudes of [σxx, σyy, σzz, τyz, τxz, τxy] [Pa] by the run's direction rule.
+    cov : ndarray (k, 6, 6)
+        Their covariance (SRSS over directions), :meth:`ModalSpectrum.covariance` [Pa²].
+
+    Returns
+    -------
+    von_mises, tension, compression : ndarray (k,)
+        [Pa]; see :data:`STRESS_RULE`. The ellipsoid is scaled at each point by the
+        largest ratio² of ``peaks`` to the ellipsoid's own component extents √Σᵢᵢ (1 for
+        SRSS), so that it reaches every component peak.
+    """
+    P = np.abs(np.asarray(peaks, dtype=float))
+    C = np.asarray(cov, dtype=float)
+    ext = np.sqrt(np.maximum(np.einsum("kii->ki", C), 0.0))                 # (k, 6)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(ext > 0, P.T / np.where(ext > 0, ext, 1.0), 1.0)
+    f = np.maximum(np.max(ratio, axis=1), 1.0) ** 2
+    C = C * f[:, None, None]
+    vm = np.sqrt(ellipsoid_quadratic_max(C, VON_MISES_FORM))
+    c = np.array([1.0, 1.0, 1.0, 0.0, 0.0, 0.0]) / 3.0
+    p_peak = np.sqrt(np.maximum(np.einsum("i,kij,j->k", c, C, c), 0.0))
+    _, t_box, _ = stress_bounds(P)
+    t1 = np.minimum(t_box, p_peak + 2.0 / 3.0 * vm)
+    return vm, t1, -t1
+
+
+def _drop_times(d) -> None:
+    """Remove every ``time`` and ``time_of_…`` key of a nested summary dict (a spectrum run
+    has no times)."""
+    if isinstance(d, dict):
+        for k in [k for k in d if k == "time" or str(k).startswith("time_of_")]:
+            del d[k]
+        for v in d.values():
+            _drop_times(v)
+
+
+def _targets(scenario):
+    """(horizontal target, vertical target or None, vertical scale, description)."""
+    from ..spectra import parse_target
+
+    m = _get(scenario, "motion")
+    base_dir = _get(scenario, "base_dir")
+    spec_h = _get(m, "target")
+    if not spec_h:
+        raise InputError(f"{_get(scenario, 'source', 'scenario')}: motion.target: missing; "
+                         'allowed a design spectrum (asce7:..., en1998:..., or a CSV table) '
+                         'for [analysis] method = "spectrum"')
+    th = parse_target(str(spec_h), base_dir=base_dir)
+    spec_z = _get(m, "target_z")
+    frac = _get(m, "vertical_fraction", DEFAULT_VERTICAL_FRACTION)
+    frac = DEFAULT_VERTICAL_FRACTION if frac is None else float(frac)
+    if spec_z:
+        tz = parse_target(str(spec_z), base_dir=base_dir)
+        vert = {"target": tz.to_dict(), "source": "motion.target_z"}
+        return th, tz, 1.0, vert
+    vert = {"target": th.to_dict(), "fraction": frac,
+            "source": "motion.vertical_fraction × motion.target (2/3 by default: USNRC RG 1.60 "
+                      "and ASCE 4 long-period ratio, from memory)"}
+    return th, (th if frac > 0 else None), frac, vert
+
+
+def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
+                     collected: list, residual: np.ndarray | None = None,
+                     timings: dict | None = None, analyse=None):
+    """Run a scenario by response-spectrum analysis (``[analysis] method = "spectrum"``).
+
+    Parameters
+    ----------
+    scenario : Scenario
+        Needs ``[motion] target`` (records are not used).
+    progress : bool
+        Progress indicators on stderr.
+    model, modes : optional
+        Precomputed model and modes.
+    stresses : bool
+        Element stress peaks.
+    collected : list of str
+        Automatic warnings are appended here.
+    residual : ndarray (n, 3), optional
+        Missing-mass shapes for ``modes``.
+    timings : dict, optional
+        Filled with the stage times [s].
+    analyse : callable
+        :func:`groundshake.results.analyse`, for the time-history runs of the invented
+        matched motions (passed in so that this module does not import the run's).
+
+    Returns
+    -------
+    RunResults
+        ``time`` and ``histories`` empty; ``summary`` with the keys of a time-history run
+        where a peak is meaningful, SI units.
+    """
+    import time as _time
+
+    from ..dynamics import compute_modes
+    from ..model import build_model
+
+    timings = {} if timings is None else timings
+    clock = [_time.perf_counter()]
+
+    def _tick() -> float:
+        now = _time.perf_counter()
+        dt_, clock[0] = now - clock[0], now
+        return dt_
+
+    analysis = _get(scenario, "analysis")
+    cutoff = _get(analysis, "cutoff_hz", 50.0)
+    n_modes_req = _get(analysis, "modes", None)
+    rule = _get(analysis, "direction_combination", "srss") or "srss"
+    th, tz, fz, vert = _targets(scenario)
+    targets = (th, th, tz)
+    scales = (1.0, 1.0, fz if tz is th else 1.0)
+    excited = (True, True, tz is not None)
+    comps = tuple(d for d, e in zip(DIRECTIONS, excited) if e)
+    timings["motion"] = _tick()
+    if model is None:
+        model = build_model(scenario)
+    timings["model"] = _tick()
+    if modes is None:
+        with Progress("modes", total=None, enabled=progress):
+            modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
+                                  n_modes=n_modes_req, excited=excited, warn=False)
+    timings["modes"] = _tick()
+    collected.extend(m for m in getattr(modes, "warnings", []) or []
+                     if not str(m).startswith("modes capture"))
+    shapes = np.asarray(modes.shapes)
+    gam = np.asarray(modes.participation)
+    if residual is None:
+        residual = residual_vectors(model.M, model.influence, shapes, gam, model.factor().solve,
+                                    load=getattr(model, "ground_load", None))
+    iota = np.asarray(model.influence, dtype=float)
+    ms = modal_spectrum(shapes, modes.omega, modes.damping, gam, targets, scales=scales,
+                        residual=residual, rule=rule)
+    collected.extend(n for n in ms.notes if n.startswith("target") and "held" in n)
+
+    summary: dict[str, Any] = {"title": _get(scenario, "title", "scenario"),
+                               "cautions": list(CAUTIONS), "warnings": []}
+
+    def disp(op):
+        return ms.peak(op, kind="displacement")
+
+    def acc(op):
+        op = sp.csr_matrix(op)
+        return ms.peak(op, kind="acceleration", ground=_dense(op @ iota))
+
+    # ---- sensors
+    sensors_out: dict[str, Any] = {}
+    for s in model.sensors:
+        a, u = acc(s.operator), disp(s.operator)
+        sensors_out[s.name] = {
+            "position": [float(v) for v in s.position],
+            "peak_absolute_acceleration": {d: float(a[j]) for j, d in enumerate(DIRECTIONS)},
+            "peak_relative_displacement": {d: float(u[j]) for j, d in enumerate(DIRECTIONS)}}
+
+    # ---- equipment and anchorage
+    equip_out: dict[str, Any] = {}
+    worst_dc = None
+    worst_ir = None
+    for e in model.equipment:
+        a6, u6 = acc(e.operator), disp(e.operator)
+        d_ = {"mass": float(e.mass), "cg": [float(v) for v in e.cg],
+              "support": "rigid" if e.frequency_hz is None else "flexible",
+              "frequency_hz": (None if e.frequency_hz is None
+                               else [float(v) for v in e.frequency_hz]),
+              "damping": float(e.damping),
+              "peak_absolute_acceleration": {d: float(a6[j]) for j, d in enumerate(DIRECTIONS)},
+              "peak_relative_displacement": {d: float(u6[j]) for j, d in enumerate(DIRECTIONS)},
+              "peak_angular_acceleration": {d: float(a6[3 + j]) for j, d in enumerate(DIRECTIONS)},
+              "anchors": []}
+        anchors = np.asarray(e.anchors, dtype=float).reshape(-1, 2)
+        if anchors.shape[0]:
+            # the six peak accelerations applied together, with every sign: an envelope
+            bf = bolt_forces(a6[:, None] * _SIGNS, anchors, mass=e.mass, inertia=e.inertia,
+                             cg_height=float(e.cg[2] - e.mount[2]),
+                             dead_load_factor=float(e.dead_load_factor))
+            cap = e.capacity
+            for i, (x, y) in enumerate(anchors):
+                b = {"position": [float(x), float(y)],
+                     "peak_tension": float(max(0.0, bf.tension[i].max())),
+                     "peak_shear": float(bf.shear[i].max()),
+                     "min_axial": float(bf.tension[i].min())}
+                if cap is not None:
+                    b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
+                    b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
+                    if bolt_interaction is not None:
+                        form = _get(cap, "interaction", "5/3-power") or "5/3-power"
+                        ir = bolt_interaction(bf.tension[i], bf.shear[i],
+                                              tension_capacity=float(_get(cap, "tension")),
+                                              shear_capacity=float(_get(cap, "shear")),
+                                              form=form)
+                        b["interaction_ratio"] = float(np.max(ir))
+                        if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
+                            worst_ir = (b["interaction_ratio"], e.name, i + 1, form)
+                    dc = max(b["dc_tension"], b["dc_shear"])
+                    if worst_dc is None or dc > worst_dc[0]:
+                        worst_dc = (dc, e.name, i + 1)
+                d_["anchors"].append(b)
+            d_["dead_load_factor"] = float(e.dead_load_factor)
+            d_["anchorage_method"] = (
+                "rigid base plate, elastic bolt group (common practice); the six peak CG "
+                "accelerations (translations and rotations) of the spectrum method applied "
+                "together with every sign (64 combinations), the largest bolt force kept: an "
+                "envelope, conservative because the peaks do not occur together; weight × "
+                f"dead_load_factor {float(e.dead_load_factor):g} resists uplift; "
+                f"{SCREENING_WORDING}")
+            if cap is not None:
+                d_["capacity"] = {"tension": float(_get(cap, "tension")),
+                                  "shear": float(_get(cap, "shear")),
+                                  "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
+                if INTERACTION_FORMS is not None:
+                    form = _get(cap, "interaction", "5/3-power") or "5/3-power"
+                    d_["capacity"].update(interaction=form,
+                                          interaction_formula=INTERACTION_FORMS[form])
+        if e.fp is not None and anchors.shape[0]:
+            fp = e.fp
+            d_["fp"] = fp_comparison(weight=e.mass * STANDARD_GRAVITY, sds=float(_get(fp, "sds")),
+                                     ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
+                                     ip=float(_get(fp, "ip", 1.0)),
+                                     z_over_h=float(_get(fp, "z_over_h", 0.0)),
+                                     anchors=anchors, mass=e.mass,
+                                     cg_height=float(e.cg[2] - e.mount[2]),
+                                     dead_load_factor=float(e.dead_load_factor))
+            # the keys of a time-history run; here the peaks of the spectrum method
+            d_["fp"]["time_history_peak_tension"] = max(b["peak_tension"] for b in d_["anchors"])
+            d_["fp"]["time_history_peak_shear"] = max(b["peak_shear"] for b in d_["anchors"])
+            d_["fp"]["analysis_peaks_from"] = "response-spectrum analysis"
+        equip_out[e.name] = d_
+
+    # ---- base resultants (d'Alembert: −Σ m ü_abs, acceleration type)
+    R = getattr(model, "inertia_reaction", None)
+    if R is None:       # pragma: no cover - every model built here has it
+        raise InputError("spectrum method: the model has no inertia reaction operators")
+    base_pk = ms.peak(np.asarray(R.M), kind="acceleration", ground=np.asarray(R.G))
+    base_out: dict[str, Any] = {
+        "about": [float(v) for v in np.asarray(model.base.get("centre", np.zeros(3)))],
+        "sign": "resultants the structure exerts on its support (magnitudes)",
+        "peaks": {c: {"value": float(base_pk[j])} for j, c in enumerate(RESULTANTS)}}
+    if model.support_kind == "soil":
+        A = float(model.base.get("area", 0.0)) or 1.0
+        lx, ly = float(model.base.get("lx", 1.0)), float(model.base.get("ly", 1.0))
+        Ix, Iy = lx * ly ** 3 / 12.0, ly * lx ** 3 / 12.0
+        W = float(model.weight)
+        swing = base_pk[2] / A + base_pk[3] * (ly / 2) / Ix + base_pk[4] * (lx / 2) / Iy
+        pmax, pmin = W / A + swing, W / A - swing
+        base_out["contact"] = {"static_pressure": W / A, "peak_pressure": float(pmax),
+                               "min_pressure": float(pmin), "uplift": bool(pmin < 0),
+                               "method": "rigid base, linear pressure from the weight of block "
+                                         "and equipment and the peak base resultants Fz, Mx, My "
+                                         "taken together with their worst signs (an envelope)"}
+        if pmin < 0:
+            collected.append(f"Possible uplift / loss of contact: the linear contact pressure "
+                             f"envelope falls to {pmin:.3g} Pa; the linear model (bonded soil "
+                             "springs) no longer holds there.")
+
+    stability_out = None
+    if base_stability is not None:
+        # the five peak resultants together at every sign: an envelope (32 combinations)
+        combos = np.vstack([base_pk[:5, None] * _SIGNS5, np.zeros((1, _SIGNS5.shape[1]))])
+        stab = base_stability(combos, weight=float(model.weight),
+                              lx=float(model.base.get("lx", 1.0)),
+                              ly=float(model.base.get("ly", 1.0)),
+                              support=_get(scenario, "support"))
+        stability_out = stab.summary(1.0)
+        _drop_times(stability_out)
+        stability_out["spectrum_method"] = (
+            "the peak base resultants Fx, Fy, Fz, Mx, My taken together at every sign "
+            "(32 combinations) and the least safety factor / largest pressure kept: an "
+            "envelope, conservative because the peaks do not occur together")
+
+    peaks: dict[str, Any] = {
+        "base_shear": {"x": float(base_pk[0]), "y": float(base_pk[1])},
+        "base_axial": float(base_pk[2]),
+        "overturning_moment": {"x": float(base_pk[3]), "y": float(base_pk[4])},
+        "torsion": float(base_pk[5]),
+        "relative_displacement": {}}
+    node_map = sp.csr_matrix(model.node_map)
+    un = disp(node_map)
+    nodes = np.asarray(model.nodes)
+    for j, d in enumerate(DIRECTIONS):
+        vals = un[j::3]
+        i = int(np.argmax(vals)) if vals.size else -1
+        entry = {"value": float(vals[i]) if i >= 0 else 0.0}
+        if i >= 0:
+            entry["at"] = [float(v) for v in nodes[i]]
+        peaks["relative_displacement"][d] = entry
+    timings["response"] = _tick()
+
+    # ---- stresses
+    stress_out: dict[str, Any] = {}
+    speaks = None
+    n_el = int(np.asarray(model.elements).shape[0])
+    S = sp.csr_matrix(model.stress)
+    if stresses and n_el and S.shape[0]:
+        n_pts = S.shape[0] // 6
+        with Progress("stress peaks", total=None, enabled=progress):
+            comp = ms.peak(S, kind="displacement").reshape(n_pts, 6)     # component peaks
+            cov = ms.covariance(S, kind="displacement")                   # (n_pts, 6, 6)
+        vm, t1, t3 = stress_envelope(comp.T, cov)
+        zero = np.zeros(n_pts, dtype=np.int64)
+        point_peaks = StressPeaks(vm, zero, t1, zero.copy(), t3, zero.copy())
+        pts = getattr(model, "stress_points", None)
+        if pts is not None:            # stress points on the surface (nodal recovery)
+            from . import _stress as _st
+            stress_out, notes = _st.stress_summary(point_peaks, pts, 0.0,
+                                                   part_names=list(model.part_names))
+            collected.extend(notes)
+            _drop_times(stress_out)
+            speaks = _st.element_peaks(point_peaks, pts.element_points)
+        else:                          # one point per element (its centre)
+            speaks = point_peaks
+            stress_out = {}
+            centres = np.asarray(model.element_centres)
+            for key, arr, pick in (("von_mises", vm, np.argmax),
+                                   ("principal_tension", t1, np.argmax),
+                                   ("principal_compression", t3, np.argmin)):
+                e = int(pick(arr))
+                stress_out[key] = {"value": float(arr[e]), "element": e,
+                                   "at": [float(v) for v in centres[e]]}
+            stress_out["points"] = "element centres"
+            stress_out["units"] = "Pa"
+        stress_out["combination"] = STRESS_RULE
+        peaks["von_mises"] = stress_out["von_mises"]["value"]
+        peaks["principal_tension"] = stress_out["principal_tension"]["value"]
+        peaks["principal_compression"] = stress_out["principal_compression"]["value"]
+    timings["stress_peaks"] = _tick()
+
+    # ---- spectra: the design spectra at the floor-spectrum damping values
+    fs = _get(scenario, "floor_spectra")
+    pr = _get(fs, "periods")
+    periods = np.geomspace(float(_get(pr, "min", 0.02)), float(_get(pr, "max", 5.0)),
+                           int(_get(pr, "count", 120)))
+    damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
+    gpsa = np.zeros((3, damp.size, periods.size))
+    for j in range(3):
+        if targets[j] is None:
+            continue
+        for i, z in enumerate(damp):
+            gpsa[j, i], _ = spectral_accelerations(targets[j], periods, np.full(periods.size, z),
+                                                   scale=scales[j])
+    ground_spectra = {"periods": periods, "damping": damp, "psa": gpsa, "sa": gpsa}
+    target_psa = np.asarray(th.psa(periods), dtype=float)
+    floor = {"periods": periods, "damping": damp, "points": []}
+    floor_out = {"damping_percent": [float(v) for v in damp * 100],
+                 "points": {},
+                 "note": "not computed: floor spectra need time histories; set [analysis] "
+                         "spectrum_motions = N (invented motions matched to the design spectra) "
+                         "or run records with match_target = true by the modal method"}
+    n_mot = int(_get(analysis, "spectrum_motions", 0) or 0)
+    side = None
+    if n_mot > 0:
+        with Progress("spectrum-compatible motions", total=None, enabled=progress):
+            if analyse is None:
+                raise InputError("analysis.spectrum_motions: the matched motions need the "
+                                 "time-history run (pass analyse=groundshake.results.analyse)")
+            floor, floor_out, side = _matched_floor(
+                scenario, n_mot, targets, scales, model=model, modes=modes, residual=residual,
+                analyse=analyse)
+        timings["spectrum_motions"] = _tick()
+
+    # ---- assumptions and warnings
+    zpa = {d: float(ms.zpa[j]) for j, d in enumerate(DIRECTIONS)}
+    assumptions = [
+        SIGNS_LOST,
+        f"Response-spectrum analysis of {ms.omega.size} mode(s): modal peaks from the design "
+        "spectrum at each mode's period and damping; modes combined by CQC (Der Kiureghian "
+        "1981); the modes left out by the missing-mass method, a rigid response at the "
+        "zero-period acceleration. Modes stiffer than the spectrum's peak are split into a "
+        "rigid share α = ZPA/Sa (Lindley & Yow 1980) and a periodic share √(1 − α²); the rigid "
+        "shares and the missing mass are summed algebraically, the periodic shares by CQC, "
+        "and the two parts by SRSS (USNRC RG 1.92 Rev. 3, from memory).",
+        f"Directions combined by {'SRSS' if rule == 'srss' else 'the 100-40-40 rule'} "
+        "(USNRC RG 1.92 Rev. 3; ASCE 4).",
+        "Both horizontal directions take the horizontal target in full; the vertical takes "
+        + ("motion.target_z." if tz is not None and tz is not th else
+           (f"{fz:g} × the horizontal target (motion.vertical_fraction; 2/3 by default, the "
+            "USNRC RG 1.60 / ASCE 4 long-period ratio, from memory)." if tz is not None else
+            "nothing (vertical_fraction = 0).")),
+        "Absolute accelerations: each mode at its pseudo-spectral acceleration; the rigid part "
+        "of the modes left out at the ZPA.",
+        "Modal damping: " + ("the composite ratio of each mode" if
+                             getattr(model, "is_classically_damped", True) else
+                             "the diagonal ratios of ΦᵀCΦ; the coupling of the modes by discrete "
+                             "dashpots (soil radiation, equipment supports) is neglected")
+        + " (capped as the modal method does).",
+        *[n for n in ms.notes if n not in collected],
+    ]
+    given = _get(_get(scenario, "motion"), "components")
+    if callable(given) and given():
+        assumptions.append("The record components of [motion] are not used by the spectrum "
+                           "method (only its target); run method = \"modal\" for them.")
+    rigid = np.asarray(getattr(modes, "rigid_mass", None)
+                       if getattr(modes, "rigid_mass", None) is not None else np.zeros(3), float)
+    total = np.asarray(modes.total_mass, float)
+    n_m = int(np.asarray(modes.omega).size)
+    cum = np.asarray(modes.cumulative_ratio) if n_m else np.zeros((1, 3))
+    retained = {d: float(cum[-1, j]) for j, d in enumerate(DIRECTIONS)}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        free = np.where(total - rigid > 0,
+                        (np.asarray(modes.effective_mass).sum(axis=0) if n_m else np.zeros(3))
+                        / (total - rigid), 1.0)
+    low = [f"{d} {100 * free[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
+           if excited[j] and free[j] < 0.9]
+    if low:
+        collected.append("Retained modal mass below 90 % of the mass free to move ("
+                         + ", ".join(low) + "): the missing-mass correction carries the rest "
+                         "at the ZPA; check that the modes left out are rigid (above the "
+                         "spectrum's zero-period frequency), or raise cutoff_hz (ASCE 7-16 "
+                         "§12.9.1.1 asks for 90 %).")
+    analysis_out = {"method": "spectrum", "assumptions": assumptions,
+                    "cutoff_hz": cutoff, "n_modes": n_m, "retained_mass_ratio": retained,
+                    "n_steps": 0, "direction_combination": rule,
+                    "missing_mass": True,
+                    "targets": {"horizontal": th.to_dict(), "vertical": vert},
+                    "zero_period_acceleration": zpa,
+                    "modal_spectral_acceleration": {
+                        d: [float(v) for v in ms.sa[j]] for j, d in enumerate(DIRECTIONS)},
+                    "modal_damping": [float(v) for v in ms.damping],
+                    "base_resultants": "d'Alembert: -sum m * absolute acceleration over every "
+                                       "mass (block, base nodes, equipment), moments about "
+                                       "the centre of the base face; each resultant's peak "
+                                       "on its own"}
+    if side is not None:
+        rsa = _with_bolt_maxima({"sensors": sensors_out,
+                                 "equipment": {k: dict(v) for k, v in equip_out.items()},
+                                 "peaks": peaks})
+        for row in side["comparison"]:
+            v = _pick(rsa, row["key"])
+            row["spectrum"] = v
+            row["ratio"] = (v / row["time_history_mean"]
+                            if v is not None and row["time_history_mean"] else None)
+        analysis_out["spectrum_motions"] = side
+    summary.update({
+        "analysis": analysis_out,
+        "peaks": peaks,
+        "sensors": sensors_out,
+        "equipment": equip_out,
+        "worst_dc": None if worst_dc is None else
+        {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
+         "note": SCREENING_WORDING},
+        "worst_interaction": None if worst_ir is None else
+        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
+         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
+        "stresses": stress_out,
+        "base": base_out,
+        **({"stability": stability_out} if stability_out is not None else {}),
+        "floor_spectra": floor_out,
+        "modes": _modes_dict(modes, model),
+        "model": model.describe(),
+        "records": [],
+        "motion": {"components": list(comps), "dt": None, "n_steps": 0,
+                   "notes": ["no records: response-spectrum analysis of the design spectrum"],
+                   "matching": {}},
+        "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
+    })
+    import datetime as _dt
+    from pathlib import Path
+
+    from .. import __version__
+
+    inputs = {}
+    for src in (_get(scenario, "source", None), th.parameters.get("path"),
+                tz.parameters.get("path") if tz is not None else None):
+        if src and Path(str(src)).is_file():
+            inputs[str(src)] = _sha256(Path(str(src)))
+    summary["provenance"] = {
+        "version": __version__,
+        "date": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
+        "inputs": inputs,
+        "solver": {"method": "spectrum", "factor": getattr(model, "solver", "auto")},
+        "settings": {"cutoff_hz": cutoff, "modes": n_modes_req, "direction_combination": rule},
+        "timings_s": timings,
+    }
+    motion = Motion(acc=np.zeros((3, 0)), dt=float("nan"), components=comps)
+    return RunResults(summary=summary, motion=motion, model=model, modes=modes,
+                      time=np.zeros(0), histories={}, ground_spectra=ground_spectra,
+                      floor=floor, stress=speaks, target_psa=target_psa, inputs=inputs,
+                      base=None)
+
+
+#: The peaks set side by side (summary key path, label).
+_SIDE_BY_SIDE = (
+    (("peaks", "base_shear", "x"), "base shear x [N]"),
+    (("peaks", "base_shear", "y"), "base shear y [N]"),
+    (("peaks", "base_axial"), "base axial [N]"),
+    (("peaks", "overturning_moment", "x"), "overturning moment x [N*m]"),
+    (("peaks", "overturning_moment", "y"), "overturning moment y [N*m]"),
+    (("peaks", "von_mises"), "von Mises [Pa]"),
+)
+
+
+def _pick(d, key):
+    for k in key:
+        if not isinstance(d, dict) or k not in d:
+            return None
+        d = d[k]
+    return float(d) if isinstance(d, (int, float)) else None
+
+
+def _side_keys(summary) -> list[tuple[tuple, str]]:
+    keys = list(_SIDE_BY_SIDE)
+    for group in ("sensors", "equipment"):
+        for nm, e in (summary.get(group) or {}).items():
+            for d in DIRECTIONS:
+                keys.append(((group, nm, "peak_absolute_acceleration", d),
+                             f"{nm} acceleration {d} [m/s2]"))
+            if group == "equipment" and e.get("anchors"):
+                keys.append(((group, nm, "max_bolt_tension"), f"{nm} max bolt tension [N]"))
+                keys.append(((group, nm, "max_bolt_shear"), f"{nm} max bolt shear [N]"))
+    return keys
+
+
+def _with_bolt_maxima(summary) -> dict:
+    for e in (summary.get("equipment") or {}).values():
+        if e.get("anchors"):
+            e["max_bolt_tension"] = max(b["peak_tension"] for b in e["anchors"])
+            e["max_bolt_shear"] = max(b["peak_shear"] for b in e["anchors"])
+    return summary
+
+
+def _matched_floor(scenario, n, targets, scales, *, model, modes, residual, analyse,
+                   dt: float = 0.002, duration: float = 30.0):
+    """Floor spectra (mean over ``n`` spectrum-compatible motions) and the side-by-side rows.
+
+    Each motion is invented: three components of stochastic ground acceleration
+    (groundshake.records.synthetic, Boore 2003, seeds 1000 + 10·k + j), the horizontals
+    matched to the horizontal design spectrum and the vertical to the vertical one
+    (groundshake.matching, 0.02–4 s), run by the modal method through the same model.
+    """
+    import dataclasses
+    import warnings as _w
+
+    from .._errors import GroundshakeWarning
+    from ..dynamics._motion import motion_from_arrays
+    from ..matching import match_spectrum_report
+    from ..records import Record
+    from ..records.synthetic import stochastic_acceleration
+
+    band = (max(0.02, 10 * dt), 4.0)
+    th_scen = dataclasses.replace(
+        scenario, analysis=dataclasses.replace(scenario.analysis, method="modal"))
+    runs, misfits = [], []
+    for k in range(n):
+        comps = {}
+        for j, d in enumerate(DIRECTIONS):
+            tgt = targets[j]
+            if tgt is None:
+                continue
+            rng = np.random.default_rng(1000 + 10 * k + j)
+            acc = stochastic_acceleration(rng, dt=dt, duration=duration)
+            rec = Record(acc=acc, dt=dt, name=f"invented-{k + 1}-{d}", component=d,
+                         units="m/s2", metadata={"synthetic": "invented, matched to the "
+                                                              "design spectrum"})
+            fn = tgt if scales[j] == 1.0 else _scaled_target(tgt, scales[j])
+            with _w.catch_warnings():
+                _w.simplefilter("ignore", GroundshakeWarning)
+                res = match_spectrum_report(rec, fn, tgt.damping, band=band)
+            misfits.append(float(np.nanmax(np.abs(res.psa_after / res.target_psa - 1.0))))
+            comps[d] = np.asarray(res.record.acc, dtype=float)
+        n_max = max(a.size for a in comps.values())
+        motion = motion_from_arrays({d: np.pad(a, (0, n_max - a.size)) for d, a in comps.items()},
+                                    dt)
+        with _w.catch_warnings(record=True):
+            _w.simplefilter("always", GroundshakeWarning)
+            runs.append(analyse(th_scen, progress=False, motion=motion, model=model,
+                                modes=modes, stresses=True, residual=residual))
+    floor = dict(runs[0].floor)
+    for key, v in floor.items():
+        if isinstance(v, np.ndarray) and key not in ("periods", "damping"):
+            floor[key] = np.mean([np.asarray(r.floor[key]) for r in runs], axis=0)
+    floor_out = dict(runs[0].summary["floor_spectra"])
+    floor_out["points"] = _mean_leaves([r.summary["floor_spectra"]["points"] for r in runs])
+    per = np.asarray(floor["periods"])
+    for p, nm in enumerate(floor.get("points", [])):       # peaks of the mean spectra
+        for j, d in enumerate(DIRECTIONS):
+            for i, dp in enumerate(np.asarray(floor["damping"]) * 100):
+                e = floor_out["points"].get(nm, {}).get(d, {}).get(f"{dp:g}%")
+                if e is not None:
+                    curve = np.asarray(floor["psa"][p, j, i])
+                    e["peak_psa"] = float(curve.max())
+                    e["period_of_peak"] = float(per[int(np.argmax(curve))])
+                    e["zpa_is"] = "mean of the motions' peak absolute accelerations"
+    floor_out["method"] = (
+        f"mean of the floor spectra of {n} invented motions (stochastic method, Boore 2003), "
+        "each component matched to its design spectrum (horizontal target, vertical target or "
+        "fraction) over 0.02-4 s and run by the modal method through the same model; a "
+        "matched motion is a modified record, so these spectra are an estimate")
+    floor_out["largest_match_misfit"] = float(max(misfits))
+    keys = _side_keys(runs[0].summary)
+    sums = [_with_bolt_maxima(r.summary) for r in runs]
+    rows = []
+    for key, label in keys:
+        vals = [_pick(sm, key) for sm in sums]
+        vals = [v for v in vals if v is not None]
+        if not vals:
+            continue
+        rows.append({"quantity": label, "key": list(key),
+                     "time_history_mean": float(np.mean(vals)),
+                     "time_history_sd": float(np.std(vals, ddof=1)) if len(vals) > 1 else 0.0})
+    side = {"n": n, "dt": dt, "duration": duration, "largest_match_misfit": float(max(misfits)),
+            "pga_mean": {d: float(np.mean([np.max(np.abs(r.motion.acc[j])) for r in runs]))
+                         for j, d in enumerate(DIRECTIONS)},
+            "comparison": rows,
+            "note": "the spectrum method beside the mean peaks of the same motions that give "
+                    "the floor spectra (modal time history); matched motions reach the design "
+                    "spectrum only over the matched band and their peak ground acceleration "
+                    "may exceed the spectrum's ZPA"}
+    return floor, floor_out, side
+
+
+def _scaled_target(target, scale: float):
+    from ..spectra._targets import TargetSpectrum
+    return TargetSpectrum(label=f"{scale:g} x {target.label}", damping=target.damping,
+                          kind="scaled", parameters={"scale": scale},
+                          _fn=lambda t: scale * target._fn(t))
+
+
+def _mean_leaves(items: list):
+    """Leaf-wise mean of nested dicts of numbers (the first one's structure)."""
+    first = items[0]
+    if isinstance(first, dict):
+        return {k: _mean_leaves([it[k] for it in items if isinstance(it, dict) and k in it])
+                for k in first}
+    if isinstance(first, (int, float)) and not isinstance(first, bool):
+        return float(np.mean([float(v) for v in items]))
+    return first
