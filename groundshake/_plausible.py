@@ -82,6 +82,23 @@ RANGES: dict[str, Range] = {
                             ((1e3, "tonnes typed as kg"), (1e-3, "grams typed as kg"),
                              (1.0 / STANDARD_GRAVITY, "a weight in N typed as mass")),
                             hint_when_unusual=True),
+    # A dimension of a foundation block or mat: pads of 0.1 m, mats of tens of metres;
+    # a turbine-generator mat reaches about 100 m (common practice). 2000 is a block's
+    # 2 m typed in mm.
+    "part_size": Range("m", 0.01, 0.05, 150.0, 500.0,
+                       "any foundation part", "any foundation block or mat (about 100 m)",
+                       ((1e-3, "mm typed as m"), (1e-2, "cm typed as m"))),
+    # Height of equipment's centre of gravity above its mount: tens of mm for a skid, a
+    # few metres for a tall transformer or tank (common practice); 500 is 0.5 m in mm.
+    "cg_height": Range("m", None, None, 15.0, 100.0,
+                       "", "any anchored equipment (a few metres)",
+                       ((1e-3, "mm typed as m"), (1e-2, "cm typed as m"))),
+    # Anchor bolt capacities per bolt: an M10 bolt carries some tens of kN, large cast-in
+    # anchors about 1 MN (from memory of ACI 318-19 Ch. 17 and EN 1992-4 worked examples;
+    # verify). Below 100 N no anchor holds equipment: kN typed as N.
+    "bolt_capacity": Range("N", 100.0, 2e3, 5e6, 1e8,
+                           "any anchor bolt (tens of kN)", "any anchor bolt (about 1 MN)",
+                           ((1e3, "kN typed as N"), (1e6, "MN typed as N"))),
     # Damping in percent. Measured damping of concrete and steel structures is rarely
     # below 0.5 % and screening spectra use 0.5-20 % (common practice; 5 % in ASCE 7-16
     # §11.4 and EN 1998-1 §3.2.2.2). A value below 0.25 % is a ratio typed for percent.
@@ -101,6 +118,43 @@ RANGES: dict[str, Range] = {
     # EN 1998-1 ag in g: national zonation maps stay below about 0.5 g (from memory).
     "ag": Range("g", None, 0.02, 0.7, 2.0, "", "any design ground acceleration (about 0.5 g)",
                 ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
+    # --- foundation checks ([support]) ---
+    # Base friction coefficient μ = tan δ of a block on soil or rock: about 0.25 (clay) to
+    # 0.7 (clean gravel, rock) for mass concrete cast on the ground (NAVFAC DM-7.02 Table 1,
+    # friction factors, from memory); ACI 318-19 §22.9.4.2 gives 1.4 for concrete cast
+    # monolithically, the largest any code uses (from memory). Above 2 no interface holds:
+    # an angle in degrees (tan 30° = 0.58) or a percent was typed.
+    "friction_coefficient": Range("", None, 0.2, 1.0, 2.0, "",
+                                  "any base interface (μ = tan δ ≤ 1.4, ACI 318-19 "
+                                  "§22.9.4.2); an angle in degrees is not μ",
+                                  ((0.01, "a percent typed for μ"),)),
+    # Allowable bearing pressure: presumptive values run from 1500 psf (72 kPa, clay) to
+    # 12 000 psf (575 kPa, crystalline bedrock) (IBC 2018 Table 1806.2, from memory);
+    # soft clays carry 25-50 kPa and sound rock some MPa (common practice). Below 1 kPa
+    # nothing is carried (kPa typed as Pa); 100 MPa is the crushing strength of concrete.
+    "allowable_bearing_pressure": Range("Pa", 1e3, 2.5e4, 1e7, 1e8,
+                                        "any soil that carries a foundation",
+                                        "the strength of concrete itself (about 100 MPa)",
+                                        ((1e3, "kPa typed as Pa"), (1e6, "MPa typed as Pa"))),
+    # Cv of the soil's shear modulus: ASCE 4-16 §5.1.7 asks for at least 0.5, and 1.0 where
+    # the site is not well investigated (from memory — verify). Zero (best estimate only)
+    # is allowed; no hard bound, as a wider spread is not impossible, only unusual.
+    "variation": Range("", None, 0.5, 1.0, None, "", ""),
+    # Depth of a block's base below grade: foundation blocks are embedded 0-5 m, deep
+    # machine foundations some 10 m (common practice). 100 m is no block: mm or cm typed.
+    "embedment_depth": Range("m", None, None, 10.0, 100.0, "",
+                             "any foundation block (deep foundations are piles)",
+                             ((1e-3, "mm typed as m"), (1e-2, "cm typed as m"))),
+    # Strain-compatible G/G0 as entered: ASCE 7-16 Table 19.2-1 spans 1.0 down to 0.05
+    # (site class E at S_DS/2.5 = 0.4, from memory); below it the table asks for a
+    # site-specific study. The schema keeps it in (0, 1].
+    "modulus_ratio": Range("", None, 0.05, None, None, "", ""),
+    # Level of shaking S_DS/2.5 (or PGA) in g for Table 19.2-1, whose columns end at 0.8 g
+    # (ASCE 7-16, from memory); the largest recorded PGA is about 4 g (from memory), so
+    # above 5 g it is m/s² or cm/s² typed for g.
+    "shaking_g": Range("g", None, None, 1.5, 5.0, "",
+                       "any recorded shaking (about 4 g)",
+                       ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
     # A target table's PSA in g: design spectra peak near 2.5 × PGA (ASCE 7-16 §11.4.6,
     # EN 1998-1 §3.2.2.2), so above about 10 g a table is in another unit.
     "target_psa": Range("g", None, None, 6.0, 15.0, "", "any design spectrum (in g)",

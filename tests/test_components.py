@@ -194,3 +194,29 @@ def test_sac_component_headers_fill_what_the_code_leaves_open(tmp_path):
     assert sac("HN1", 90.0, 30.0) == ("horizontal", 30.0)  # SEED "1": direction from cmpaz
     assert sac("HNE", 90.0, 0.0) == ("horizontal", 90.0)  # SEED "E" wins over a zero cmpaz
     assert sac("Q", 0.0, 0.0) == ("vertical", None)  # an unknown code: cmpinc 0 is up
+
+
+@pytest.mark.parametrize("ext", ["mseed", "sac"])
+@pytest.mark.parametrize("component, kind, azimuth", [
+    ("N90E", "horizontal", 90.0),    # quadrant bearings (surveyors' convention): N90E = east
+    ("N28W", "horizontal", 332.0),   # N a W = 360 − a (GeoNet's WTMC "Component N28W")
+    ("S62W", "horizontal", 242.0),   # S a W = 180 + a
+    ("U-D", "vertical", None),       # AFAD/NSMN's vertical column
+    ("360", "horizontal", 0.0),      # CSMIP "Chan 1: 360 Deg"
+])
+def test_written_records_keep_their_orientation(tmp_path, ext, component, kind, azimuth):
+    # a MiniSEED channel holds 3 characters (SEED manual), a SAC kcmpnm 8: a bearing
+    # cut to "N90" would read back as north; what is written must read back the same way
+    from groundshake.records import Record, write_record
+
+    rec = Record(acc=np.sin(np.linspace(0, 20, 400)), dt=0.01, name=f"STA {component}",
+                 component=component, source="test", units="m/s2",
+                 metadata={"station": "STA"})
+    path = tmp_path / f"r.{ext}"
+    write_record(rec, path)
+    (back,) = read_record(path, units="m/s2" if ext == "mseed" else None)
+    assert back.metadata.get("orientation") == kind
+    if azimuth is None:
+        assert back.metadata.get("azimuth_deg") is None
+    else:
+        assert back.metadata.get("azimuth_deg") == pytest.approx(azimuth, abs=1e-9)

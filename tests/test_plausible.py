@@ -99,6 +99,11 @@ ERRORS = [
      "did you mean 2 %", "ratios typed for percent (arithmetic)"),
     ("mass = 18000.0", "mass = 0.08", "equipment[0].mass", "did you mean 80 kg",
      "an 80 kg pump typed in tonnes; 0.08 kg is no anchored equipment (common practice)"),
+    ("size = [6.0, 4.0, 1.0]", "size = [6000.0, 4000.0, 1000.0]", "parts[0].size[0]",
+     "did you mean 6 m", "a 6 m pad typed in mm: 6000 × 1e-3 = 6 m (arithmetic); no "
+     "foundation block is kilometres long (common practice)"),
+    ("cg_height = 1.2", "cg_height = 1200", "equipment[0].cg_height", "did you mean 1.2 m",
+     "1.2 m typed in mm (arithmetic); no anchored equipment's CG is 1.2 km up"),
 ]
 
 
@@ -264,3 +269,18 @@ def test_scenario_target_slip_names_file_and_line(tmp_path):
     msg = str(info.value)
     assert msg.startswith(f"case.toml:{_line(text, 'target =')}: motion.target")
     assert "did you mean 1 g" in msg                     # 9.81 m/s² = 1 g (standard gravity)
+
+
+def test_bolt_capacity_in_kn_typed_as_n_is_an_error(tmp_path):
+    # anchor bolts carry tens of kN (an M10 bolt, from memory of EN 1992-4 / ACI 318-19
+    # Ch. 17 examples); 20 N is 20 kN typed as N (arithmetic: 20 × 1e3)
+    line = "capacity = { tension = 20, shear = 15 }"
+    text = BASE.replace("cg_height = 1.2", "cg_height = 1.2\n" + line, 1)
+    with pytest.raises(ScenarioError) as info:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            _parse(text, tmp_path)
+    msg = str(info.value)
+    assert msg.startswith(f"case.toml:{_line(text, line)}: equipment[0].capacity.tension = 20 N")
+    assert "did you mean 20000 N (kN typed as N)" in msg
+    assert "\n" not in msg

@@ -233,3 +233,30 @@ def test_match_output_and_plot_on_the_as_read_axis(tmp_path, monkeypatch):
     t, y = lines[0].get_xdata(), lines[0].get_ydata()
     assert t[0] == pytest.approx(-pad, abs=1e-9)
     assert t[np.argmax(np.abs(y))] == pytest.approx(t_pga, abs=DT * 1.001)
+
+
+@pytest.mark.parametrize("clock", ["2020-01-02T03:04:05.437", "2019-07-06T03:19:23.0383"])
+def test_sac_with_a_sub_second_clock_keeps_the_as_read_axis(tmp_path, clock):
+    # real files start at fractions of a second (e.g. an ESM header's
+    # DATE_TIME_FIRST_SAMPLE 16:09:19.870); SAC's reference time holds whole
+    # milliseconds (SAC format: nzmsec), so the rest must not move the samples
+    from obspy import UTCDateTime
+    from obspy import read as obspy_read
+
+    t_file, acc = _file_columns(H1)
+    t_pga = t_file[np.argmax(np.abs(acc))]                 # the file's own time column
+    rec = read_record(H1)[0].replace(start_time=clock)
+    cor = correct_record(rec)
+    pad = cor.metadata["pad_before_s"]
+    write_record(cor, tmp_path / "c.sac")
+    tr = obspy_read(str(tmp_path / "c.sac"))[0]
+    # ObsPy (an independent reader): the first sample at clock − pad, to its 1 µs
+    assert float(tr.stats.starttime - UTCDateTime(clock)) == pytest.approx(-pad, abs=2e-6)
+    # SAC format: reference time = starttime − b, at the clock to SAC's 1 ms (b is a
+    # 32-bit float: about 2e-6 s of rounding at 30 s)
+    ref = tr.stats.starttime - tr.stats.sac.b
+    assert -2e-6 <= float(UTCDateTime(clock) - ref) < 1e-3 + 2e-6
+    # read back by groundshake: the pad again, and the PGA at the file's own time
+    back = read_record(tmp_path / "c.sac")[0]
+    assert back.metadata["pad_before_s"] == pytest.approx(pad, abs=1e-9)
+    assert intensity_measures(back)["pga_time"] == pytest.approx(t_pga, abs=1e-9)

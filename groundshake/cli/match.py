@@ -224,8 +224,9 @@ def register(subparsers, parents) -> None:
     p.add_argument("--target", required=True, action="append", metavar="SPEC",
                    help="target spectrum: asce7:sds=G,sd1=G,tl=S (all three required; "
                         "SDS, SD1 in g, TL in s), en1998:type=1|2,ground=A..E,ag=G"
-                        "[,damping=PCT], or a CSV of period [s], PSA [g] (the default band "
-                        "is clipped to the table's periods); once per damping")
+                        "[,damping=PCT], a CSV of period [s], PSA [g], or a CSMIP Volume 3 "
+                        "file FILE[:damping=PCT,channel=N] (the default band is clipped "
+                        "to a table's periods); once per damping")
     p.add_argument("--damping", default="5", metavar="PCT",
                    help="damping in percent, comma-separated to match several at once (default 5)")
     p.add_argument("--band", metavar="T1,T2", help="period band [s] (default 0.05,4; short end "

@@ -338,7 +338,8 @@ def register(subparsers, parents) -> None:
         description="Response spectra of records (corrected unless --raw), exact for "
                     "piecewise-linear records. SI units in JSON and CSV.",
         epilog="Targets: asce7:sds=G,sd1=G,tl=S | en1998:type=1|2,ground=A..E,ag=G"
-               "[,damping=PCT] | a CSV file of period [s], PSA [g].")
+               "[,damping=PCT] | a CSV file of period [s], PSA [g] | a CSMIP Volume 3 "
+               "file FILE[:damping=PCT,channel=N] (its published PSA).")
     p.add_argument("records", nargs="+", metavar="RECORD", help="record files")
     p.add_argument("--damping", default="5", metavar="PCT",
                    help="damping in percent, comma-separated (default 5)")

@@ -619,8 +619,8 @@ def match_record_to_target(record: Record, spec: str, *, damping: float | None =
     record : Record
         The corrected component [m/s²].
     spec : str
-        Target spec string (see :func:`groundshake.spectra.parse_target`); a CSV path is
-        resolved against ``base_dir`` (the scenario's folder).
+        Target spec string (see :func:`groundshake.spectra.parse_target`); a CSV or
+        Volume 3 path is resolved against ``base_dir`` (the scenario's folder).
     damping : float, optional
         Damping ratio of the match; default: the damping the target is for
         (``TargetSpectrum.damping``), else 0.05.

@@ -26,6 +26,7 @@ from ._elements import brick_matrices, shape_values
 from ._factor import Factor, factorize
 from ._memory import check_memory
 from ._mesh import Box, count_grid, mesh_boxes
+from ._cone import rotation_cones
 from ._impedance import adjust_impedance, modulus_ratio_of
 from ._recovery import StressPoints, surface_stress_points
 from ._supports import Impedance, distributed_bed, gazetas_rectangle
@@ -188,6 +189,10 @@ class BlockModel:
     rayleigh_choice: str = ""
     _radiation_lowrank: tuple | None = None            # (U (n, r), d (r,))
     stress_points: StressPoints | None = None  # where the rows of ``stress`` sit
+    #: rotational cones of a lumped soil base for step-by-step runs (model/_cone.py) and
+    #: the reduced DOFs of the base's rotations about x, y, z they hang on
+    cones: Any = None
+    base_rotation_dofs: np.ndarray | None = None
 
     @property
     def n_dof(self) -> int:
@@ -270,7 +275,8 @@ def _materials(scenario):
 
 
 def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None = None,
-                check_memory_first: bool = True, soil_frequency_hz=None) -> BlockModel:
+                check_memory_first: bool = True, soil_frequency_hz=None,
+                cones: bool = False) -> BlockModel:
     """Build the :class:`BlockModel` of a scenario.
 
     Parameters
@@ -283,6 +289,10 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     soil_frequency_hz : array (6,), optional
         On soil: the frequency [Hz] at which each base spring x, y, z, rx, ry, t is
         evaluated (frequency-dependent impedance, model/_impedance.py); None = static.
+    cones : bool
+        On soil with lumped springs: also fit rotational cones (Wolf 1994) to the static
+        rocking and torsion springs, for step-by-step runs (``BlockModel.cones``; see
+        :func:`groundshake.model._cone.with_cones`). Modal runs do not use them.
 
     Raises
     ------
@@ -692,8 +702,21 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
     stress = sp.csr_matrix(stress_points.operator @ P)
     materials = {nm: {"youngs_modulus": p[0], "poisson_ratio": p[1], "density": p[2]}
                  for nm, p in zip(mat_names, mat_props)}
+    cone_model = rotation_dofs = None
     if kind == "soil":
         notes.extend(impedance.notes)
+        if cones and base_master is not None:
+            cone_model = rotation_cones(lx, ly, impedance.stiffness[3:], shear_wave_velocity=vs,
+                                        poisson_ratio=nus, density=rhos)
+            rotation_dofs = nf + base_master + np.arange(3, 6)
+            notes.append("time-domain soil impedance: rocking and torsion as rotational cones "
+                         "(Wolf 1994, from memory), each the static spring plus an extra "
+                         "rotation of inertia rho*I*z0 hung on the base by the dashpot "
+                         "rho*c*I, fitted to the static springs; translations keep their "
+                         "springs and dashpots")
+        elif cones:
+            notes.append("time-domain soil impedance: rotational cones need lumped springs; "
+                         "the distributed bed keeps its static springs")
     model = BlockModel(
         nodes=nodes, elements=mesh.elements, element_centres=mesh.element_centres,
         element_part=mesh.element_part, K=K, M=M, influence=iota, total_mass=total_mass,
@@ -707,7 +730,8 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         cutoff_hz=_get(analysis, "cutoff_hz", None),
         _stiff_parts=stiff_parts, _dashpots=dash, _radiation=rad, notes=notes, mesh=mesh,
         inertia_reaction=inertia_reaction, _radiation_lowrank=radiation_lowrank,
-        _equipment_mass=extra_mat(Meq) if n_extra else None)
+        _equipment_mass=extra_mat(Meq) if n_extra else None,
+        cones=cone_model, base_rotation_dofs=rotation_dofs)
     return model
 
 

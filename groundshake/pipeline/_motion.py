@@ -14,6 +14,7 @@ from ..dynamics._motion import DIRECTIONS, Motion
 from ..matching import match_record_to_target
 from ..processing import correct_record, resample
 from ..records import read_record
+from ..records._components import pick_component
 
 __all__ = ["build_motion"]
 
@@ -26,28 +27,12 @@ def _get(obj: Any, key: str, default: Any = None) -> Any:
     return getattr(obj, key, default)
 
 
-def _pick_trace(records: Sequence[Any], trace: Any, where: str) -> Any:
-    if trace is None:
-        if len(records) != 1:
-            names = ", ".join(f"{i}: {r.component or r.name}" for i, r in enumerate(records))
-            raise InputError(f"{where}.trace: the file holds {len(records)} traces ({names}); "
-                             "give trace = index or channel code")
-        return records[0]
-    if isinstance(trace, (int, np.integer)) and not isinstance(trace, bool):
-        if not 0 <= int(trace) < len(records):
-            raise InputError(f"{where}.trace: given {trace}; allowed 0..{len(records) - 1}")
-        return records[int(trace)]
-    for r in records:
-        if str(trace).lower() in (str(r.component).lower(), str(r.name).lower()):
-            return r
-    codes = ", ".join(str(r.component or r.name) for r in records)
-    raise InputError(f"{where}.trace: given {trace!r}; allowed {codes}")
-
-
 def build_motion(scenario: Any) -> Motion:
     """Read, scale and correct the scenario's motion; bring components together.
 
-    Each component is read (``file``, ``units``, ``dt``, ``trace``), scaled by
+    Each component is read (``file``, ``units``, ``dt``; one channel of a file by
+    ``trace``, ``channel`` or ``azimuth``, see
+    :func:`groundshake.records._components.pick_component`), scaled by
     ``scale``, corrected with the scenario's processing settings (or used as
     read when ``enabled = false``), matched to ``target`` when ``match_target``
     (horizontal components only), resampled to the finest time step among the
@@ -81,7 +66,8 @@ def build_motion(scenario: Any) -> Motion:
         path = _get(spec, "file")
         recs = read_record(path, units=_get(spec, "units"), dt=_get(spec, "dt"),
                            inventory=_get(motion, "inventory"))
-        rec = _pick_trace(recs, _get(spec, "trace"), where)
+        rec = pick_component(recs, trace=_get(spec, "trace"), channel=_get(spec, "channel"),
+                             azimuth=_get(spec, "azimuth"), where=where)
         scale = float(_get(spec, "scale", 1.0) or 1.0)
         if scale != 1.0:
             rec = rec.replace(acc=rec.acc * scale, step=f"scaled by {scale:g}")

@@ -23,10 +23,14 @@ A header's own statement wins over the code: ``metadata["orientation"]``
 from __future__ import annotations
 
 import math
+import numbers
 import re
-from typing import Any, Literal, Mapping, NamedTuple
+from typing import Any, Literal, Mapping, NamedTuple, Sequence
 
-__all__ = ["Orientation", "describe", "orientation", "azimuth_deg", "bearing_deg"]
+from .._errors import InputError
+
+__all__ = ["Orientation", "describe", "orientation", "azimuth_deg", "bearing_deg",
+           "pick_component", "components_by_orientation", "AZIMUTH_TOLERANCE_DEG"]
 
 Kind = Literal["vertical", "horizontal", "unknown"]
 
@@ -179,3 +183,136 @@ def orientation(component: str, metadata: Mapping[str, Any] | None = None) -> Ki
 def azimuth_deg(component: str, metadata: Mapping[str, Any] | None = None) -> float | None:
     """Azimuth [deg] clockwise from north of a horizontal component, or None (see :func:`describe`)."""
     return describe(component, metadata).azimuth_deg
+
+
+#: Largest difference [deg] between an ``azimuth`` asked for and a channel's azimuth for
+#: the channel to be picked (headers state whole degrees or bearings such as N28W).
+AZIMUTH_TOLERANCE_DEG = 1.0
+
+
+def _listing(records: Sequence[Any]) -> str:
+    """``0: 360 (horizontal, 0°), 1: UP (vertical), ...`` for messages."""
+    out = []
+    for i, r in enumerate(records):
+        o = describe(str(r.component or ""), getattr(r, "metadata", None))
+        what = o.kind if o.azimuth_deg is None else f"{o.kind}, {o.azimuth_deg:g}°"
+        out.append(f"{i}: {r.component or r.name} ({what})")
+    return ", ".join(out)
+
+
+def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
+                   channel: str | None = None, azimuth: float | None = None,
+                   orientation: Literal["vertical", "horizontal"] | None = None,
+                   where: str = "component") -> Any:
+    """The one record of a file that a scenario component asks for.
+
+    At most one of the choices may be given; with none, the file must hold one record.
+
+    Parameters
+    ----------
+    records : sequence of Record
+        The records of one file, in the file's order.
+    trace : int or str, optional
+        Index from 0, or a channel code (as ``channel``).
+    channel : str, optional
+        The component code as written (``"360"``, ``"HNZ"``, ``"UP"``; case ignored) or
+        the record's name.
+    azimuth : float, optional
+        Azimuth [deg] clockwise from north of the horizontal channel wanted; matched
+        within :data:`AZIMUTH_TOLERANCE_DEG` (mod 360, so 0 finds "360 Deg").
+    orientation : {"vertical", "horizontal"}, optional
+        The file's only channel of that kind (vertical → z).
+    where : str
+        The scenario key, for messages (``"motion.x"``).
+
+    Returns
+    -------
+    Record
+
+    Raises
+    ------
+    InputError
+        Two choices at once, none matching, or several matching; the message lists the
+        file's channels with what their headers say of their direction.
+    """
+    given = {k: v for k, v in (("trace", trace), ("channel", channel), ("azimuth", azimuth),
+                               ("orientation", orientation)) if v is not None}
+    if len(given) > 1:
+        raise InputError(f"{where}: {' and '.join(given)} given together; allowed: one of "
+                         "trace, channel, azimuth, orientation")
+    if not given:
+        if len(records) != 1:
+            raise InputError(f"{where}: the file holds {len(records)} channels "
+                             f"({_listing(records)}); give channel = code, azimuth = degrees "
+                             "or trace = index")
+        return records[0]
+    key, value = next(iter(given.items()))
+    if key == "trace" and isinstance(value, numbers.Integral) and not isinstance(value, bool):
+        value = int(value)
+        if not 0 <= value < len(records):
+            raise InputError(f"{where}.trace: given {value}; allowed 0..{len(records) - 1} "
+                             f"({_listing(records)})")
+        return records[value]
+    if key in ("trace", "channel"):
+        text = str(value).strip().lower()
+        found = [r for r in records if text in (str(r.component).strip().lower(),
+                                                 str(r.name).strip().lower())]
+    elif key == "azimuth":
+        az = float(value)
+        if not math.isfinite(az):
+            raise InputError(f"{where}.azimuth: given {value!r}; allowed: degrees from north")
+        found = []
+        for r in records:
+            o = describe(str(r.component or ""), getattr(r, "metadata", None))
+            if o.kind == "horizontal" and o.azimuth_deg is not None:
+                gap = abs((o.azimuth_deg - az + 180.0) % 360.0 - 180.0)
+                if gap <= AZIMUTH_TOLERANCE_DEG:
+                    found.append(r)
+    elif key == "orientation":
+        if value not in ("vertical", "horizontal"):
+            raise InputError(f"{where}.orientation: given {value!r}; allowed 'vertical', "
+                             "'horizontal'")
+        found = [r for r in records
+                 if describe(str(r.component or ""), getattr(r, "metadata", None)).kind == value]
+    if len(found) == 1:
+        return found[0]
+    what = "no channel matches" if not found else f"{len(found)} channels match"
+    raise InputError(f"{where}.{key}: given {value!r}; {what}; the file holds "
+                     f"{_listing(records)}")
+
+
+def components_by_orientation(records: Sequence[Any], *, where: str = "motion.file"
+                              ) -> dict[str, Any]:
+    """x, y, z records of a station file given once: the vertical to z, the horizontals
+    to x and y in the file's order.
+
+    Parameters
+    ----------
+    records : sequence of Record
+        The records of one file (one to three channels).
+    where : str
+        The scenario key, for messages.
+
+    Returns
+    -------
+    dict
+        ``{"x": Record, "y": Record, "z": Record}``, keys present for the channels found.
+
+    Raises
+    ------
+    InputError
+        More than one vertical or two horizontals, or a channel whose direction the
+        file does not state (the message lists the channels; give x, y, z instead).
+    """
+    kinds = [describe(str(r.component or ""), getattr(r, "metadata", None)).kind
+             for r in records]
+    vertical = [r for r, k in zip(records, kinds) if k == "vertical"]
+    horizontal = [r for r, k in zip(records, kinds) if k == "horizontal"]
+    if "unknown" in kinds or len(vertical) > 1 or len(horizontal) > 2 or not records:
+        raise InputError(f"{where}: cannot tell x, y and z apart by orientation: the file "
+                         f"holds {_listing(records) or 'no channels'}; allowed: one vertical "
+                         "and at most two horizontals, else give x, y, z with channel = code")
+    out = dict(zip(("x", "y"), horizontal))
+    if vertical:
+        out["z"] = vertical[0]
+    return out

@@ -9,6 +9,7 @@ import numpy as np
 
 from .._atomic import atomic_path, atomic_write_text
 from .._errors import InputError
+from ._components import Orientation, describe
 from ._record import Record
 
 __all__ = ["write_record", "WRITE_FORMATS", "restore_written_pad"]
@@ -41,7 +42,12 @@ def write_record(records: Record | Iterable[Record], path) -> Path:
         (``metadata["pad_before_s"]``): the CSV time column starts at −pad; the
         MiniSEED/SAC start time is the as-read origin minus the pad (the origin is
         the file's clock, or 1970-01-01 when the record had none); SAC also puts
-        its reference time at the origin with ``b`` = −pad (``kuser1`` "padded").
+        its reference time at the origin with ``b`` = −pad (``kuser1`` "padded"; the
+        reference time to SAC's 1 ms, the origin's remaining microseconds in ``b``).
+        The channel keeps the record's component where it fits (SAC 8 characters,
+        MiniSEED 3); a component that would read back pointing elsewhere once cut
+        short (``"N90E"`` → ``"N90"``) is written as ``"UP"`` (vertical) or its
+        azimuth in whole degrees (``"90"``). SAC also states ``cmpaz``/``cmpinc``.
 
     Returns
     -------
@@ -95,20 +101,54 @@ def _pad_before(rec: Record) -> float:
     return float(rec.metadata.get("pad_before_s", 0.0) or 0.0)
 
 
+def _same_orientation(a: Orientation, b: Orientation) -> bool:
+    if a.kind != b.kind:
+        return False
+    if a.azimuth_deg is None or b.azimuth_deg is None:
+        return a.azimuth_deg is None and b.azimuth_deg is None
+    return abs((a.azimuth_deg - b.azimuth_deg + 180.0) % 360.0 - 180.0) < 1e-6
+
+
+def _channel_code(rec: Record, where: Orientation, size: int) -> str:
+    """A channel code of at most ``size`` characters that reads back as ``where``.
+
+    The record's own component is kept when it fits the format; a code cut short to fit
+    (``"N90E"`` → ``"N90"``, which reads as north) is replaced by one that keeps the
+    orientation: ``"UP"`` for a vertical, the azimuth in whole degrees (``"90"``,
+    ``"332"``) for a horizontal, ``"H"`` for a horizontal of unknown azimuth.
+    """
+    comp = rec.component or ""
+    code = comp if re.fullmatch(rf"[A-Za-z0-9]{{1,{size}}}", comp) \
+        else _code(rec.metadata.get("channel", "") or comp, size)
+    if where.kind == "unknown":
+        return code
+    back = describe(code)
+    if _same_orientation(back, where):
+        return code
+    if back.kind == where.kind and back.azimuth_deg is None:
+        return code      # less said than known, nothing wrong (SAC adds cmpaz)
+    if where.kind == "vertical":
+        return "UP"
+    if where.azimuth_deg is None:
+        return "H"
+    return f"{round(where.azimuth_deg) % 360:d}"
+
+
 def _trace(rec: Record, *, sac: bool):
     from obspy import Trace, UTCDateTime
 
     md = rec.metadata
     pad = _pad_before(rec)
+    where = describe(rec.component or "", md)
     # the record's start_time is its first sample (the pad's start) when it has a
     # clock; without one the as-read origin is put at the epoch
     start = UTCDateTime(rec.start_time) if rec.start_time else UTCDateTime(0) - pad
+    size = 8 if sac else 5          # SAC kstnm/kcmpnm hold 8 characters, SEED 5 and 3
     header = {
         "network": _code(md.get("network", ""), 2),
-        "station": _code(md.get("station", "") or rec.name, 5),
+        "station": _code(md.get("station", "") or rec.name, size),
         "location": _code(md.get("location", ""), 2),
-        "channel": rec.component if re.fullmatch(r"[A-Za-z0-9]{1,3}", rec.component or "")
-        else _code(md.get("channel", ""), 3),
+        "channel": _channel_code(rec, where, 8 if sac else 3),
         "sampling_rate": 1.0 / rec.dt,
         "starttime": start,
     }
@@ -117,10 +157,18 @@ def _trace(rec: Record, *, sac: bool):
     if sac:
         from obspy.io.sac.util import utcdatetime_to_sac_nztimes
 
-        head = {"kuser0": "m/s2", "kcmpnm": (rec.component or "")[:8]}
+        head = {"kuser0": "m/s2"}
+        if where.kind == "vertical":        # SAC: cmpinc from up (0 up, 90 horizontal)
+            head.update(cmpinc=0.0, cmpaz=0.0)
+        elif where.kind == "horizontal":
+            head["cmpinc"] = 90.0
+            if where.azimuth_deg is not None:
+                head["cmpaz"] = float(where.azimuth_deg)
         if pad:      # reference time at the as-read origin, the pad before it (b < 0)
+            # SAC's reference time resolves 1 ms; the origin's remaining microseconds
+            # go into b, so the first sample keeps its clock time
             nz, micro = utcdatetime_to_sac_nztimes(start + pad)
-            head.update(nz, nzmsec=micro // 1000, b=-pad, kuser1=SAC_PAD_MARK)
+            head.update(nz, b=micro * 1e-6 - pad, kuser1=SAC_PAD_MARK)
         tr.stats.sac = head
     return tr
 
@@ -149,7 +197,7 @@ def restore_written_pad(rec: Record) -> Record:
     pad, start = 0.0, rec.start_time
     if md.get("format") == "SAC" and str(md.get("sac.kuser1", "")).strip() == SAC_PAD_MARK:
         b = float(md.get("sac.b", 0.0) or 0.0)
-        pad = -b if b < 0 else 0.0
+        pad = _whole_samples(-b, rec.dt) if b < 0 else 0.0
     if start:
         from obspy import UTCDateTime
 
@@ -164,6 +212,21 @@ def restore_written_pad(rec: Record) -> Record:
     if not pad:
         return rec
     return rec.replace(metadata={**md, "pad_before_s": pad}, start_time=start)
+
+
+def _whole_samples(pad: float, dt: float) -> float:
+    """The pad [s] a SAC ``b`` stands for: a whole number of samples in [pad, pad + 1 ms].
+
+    ``b`` holds the pad less the origin's sub-millisecond part (SAC's reference time
+    resolves 1 ms) as a 32-bit float; the pads written here are whole samples, so the
+    one multiple of ``dt`` in that window is the pad. With ``dt`` ≤ 1 ms the window
+    may hold two: ``pad`` is kept as it is (within 1 ms).
+    """
+    if dt <= 1e-3:
+        return pad
+    whole = round((pad + 5e-4) / dt) * dt
+    slack = 5e-4 + 1e-6 * max(1.0, pad)           # 1 ms window and float32 rounding
+    return whole if abs(whole - (pad + 5e-4)) <= slack else pad
 
 
 def _csv_text(recs: list[Record], path: Path) -> str:

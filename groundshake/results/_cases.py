@@ -323,12 +323,19 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
     if motion is None and not spectrum:      # the spectrum method reads no records
         raise InputError("motion: none given; groundshake.analyse (the application layer) "
                          "reads it from the scenario's [motion] files")
+    run_method = method or _get(_get(scenario, "analysis"), "method", "modal")
     results = []
     for c in cases:
         sc = _case_scenario(scenario, c)
         with warnings.catch_warnings(record=True) as caught:   # re-emitted once, combined
             warnings.simplefilter("always", GroundshakeWarning)
-            if _get(sc.support, "frequency_dependent", False):
+            if _get(sc.support, "frequency_dependent", False) and run_method == "direct":
+                # step by step: static springs and rotational cones (model/_cone.py)
+                model = build_model(sc, cones=True)
+                c["frequency_dependent"] = {
+                    "method": "rotational cones (Wolf 1994, from memory), direct run",
+                    **(model.cones.to_dict() if model.cones is not None else {})}
+            elif _get(sc.support, "frequency_dependent", False):
                 model, info = consistent_soil_model(sc)
                 c["frequency_dependent"] = info
             else:

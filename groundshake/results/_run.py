@@ -163,13 +163,17 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         modes = compute_modes(model, n_modes=min(12, model.n_dof - 1), warn=False)
     C = damping_matrix(model, modes=modes)
     update = model.damping_update() if hasattr(model, "damping_update") else None
+    K, M, iota, load = model.K, model.M, model.influence, getattr(model, "ground_load", None)
+    block_fn, rows, peak_rows = (on_block if peaks is not None else None), output, node_map
+    if getattr(model, "cones", None) is not None:   # the soil's rotational cones (model/_cone.py)
+        from ..model._cone import cone_run
+        K, M, C, iota, load, rows, peak_rows, block_fn, update = cone_run(
+            model, C, output, node_map, block_fn, update)
     t0 = _time.perf_counter()
-    res = direct_response(model.K, model.M, C, model.influence, ag, dt, output=output,
-                          hht_alpha=hht_alpha, substeps=n_sub,
-                          on_block=on_block if peaks is not None else None,
-                          peak_operator=node_map, solver=getattr(model, "solver", "auto"),
-                          progress=progress, load=getattr(model, "ground_load", None),
-                          damping_update=update)
+    res = direct_response(K, M, C, iota, ag, dt, output=rows,
+                          hht_alpha=hht_alpha, substeps=n_sub, on_block=block_fn,
+                          peak_operator=peak_rows, solver=getattr(model, "solver", "auto"),
+                          progress=progress, load=load, damping_update=update)
     node_peak = {}
     for j, d in enumerate(DIRECTIONS):
         vals = res.dof_peak[j::3]
@@ -196,6 +200,13 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         "soil radiation dashpots as modelled. Non-classical damping is kept whole (no modal "
         "uncoupling); the Rayleigh ratio differs from the target between and beyond the two "
         "frequencies.")
+    if getattr(model, "cones", None) is not None:
+        assumptions.append(
+            "Soil rocking and torsion frequency-dependent in time: rotational cones (Wolf "
+            "1994, from memory) fitted to the static springs, each an extra rotation of "
+            "inertia rho*I*z0 tied to the base by the dashpot rho*c*I (stiffness K at rest, "
+            "2/3 K and full radiation at high frequency).")
+        info["soil_cones"] = model.cones.to_dict()
     return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
 
 

@@ -155,7 +155,7 @@ def _allowed_text(meta: dict) -> str:
     if kind == "trace":
         return "an integer ≥ 0 or a channel code"
     if kind == "target":
-        return "a target spec (asce7:..., en1998:...) or a path to a CSV file"
+        return "a target spec (asce7:..., en1998:...), a CSV file or a CSMIP Volume 3 file"
     if kind == "table":
         names = [f.name for f in _schema_fields(meta["cls"])]
         return "a table with keys " + ", ".join(names)
@@ -286,6 +286,10 @@ def _convert(f: dataclasses.Field, v: Any, path: tuple, ctx: _Context) -> Any:
             raise ctx.bad(path, v, allowed)
         if _SPEC_RE.match(v.strip()):
             return v.strip()
+        head, sep, options = v.strip().rpartition(":")
+        if sep and "=" in options and head.strip() and not (ctx.base_dir / v.strip()).exists():
+            # FILE:key=value,... (a CSMIP Volume 3 file with its damping and channel)
+            return f"{_existing_file(head.strip(), path, ctx, allowed)}:{options}"
         return str(_existing_file(v, path, ctx, allowed))
     if kind == "table":
         return _parse_obj(meta["cls"], v, path, ctx)

@@ -83,6 +83,13 @@ class MotionComponent:
                             doc="time step, for one-column text files")
     trace: int | str | None = spec("trace", None,
                                    doc="trace index (from 0) or channel code in a multi-trace file")
+    channel: str | None = spec("string", None,
+                               doc="the channel of a multi-channel file by its code as written "
+                                   "(`360`, `HNZ`, `UP`) or the record's name")
+    azimuth: float | None = spec("number", None, ge=0.0, le=360.0, unit="deg",
+                                 doc="the horizontal channel of a multi-channel file whose "
+                                     "azimuth (clockwise from north, from its header) is this, "
+                                     "within 1°")
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -95,9 +102,14 @@ class MotionSettings:
                                      doc="horizontal component along y")
     z: MotionComponent | None = spec("table", None, cls=MotionComponent,
                                      doc="vertical component")
+    file: Path | None = spec("path", None,
+                             doc="one station file holding the components, instead of x, y, z: "
+                                 "its vertical channel goes to z, its horizontals to x and y in "
+                                 "the file's order (written out as x, y, z with their channels)")
     target: str | None = spec("target", None,
-                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8` "
-                                  "or a CSV of period [s], PSA [g] (relative path)")
+                              doc="target spectrum: a spec such as `asce7:sds=1.0,sd1=0.6,tl=8`, "
+                                  "a CSV of period [s], PSA [g], or a CSMIP Volume 3 file "
+                                  "`FILE.V3:channel=N` (relative paths)")
     match_target: bool = spec("bool", False, doc="adjust the records to the target first")
     target_z: str | None = spec("target", None,
                                 doc="vertical design spectrum of the spectrum method (same forms "
@@ -219,7 +231,8 @@ class SupportSettings:
         doc="height of the side walls in good contact with the soil (soil only)")
     frequency_dependent: bool = spec(
         "bool", False, doc="evaluate each base spring at the frequency of the modes that "
-                           "load it (Gazetas 1991 k(a0), iterated; soil only)")
+                           "load it (Gazetas 1991 k(a0), iterated; soil only); in direct "
+                           "runs rocking and torsion as rotational cones (Wolf 1994)")
     variation: float | None = spec("number", None, ge=0.0, le=10.0,
                                    doc="Cv of the shear modulus: lower, best and upper cases "
                                        "G/(1+Cv), G, G(1+Cv); none = best estimate only")

@@ -2,6 +2,7 @@
 spectra, plausibility) and the scenario built from validated tables."""
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import warnings
 from pathlib import Path
@@ -11,7 +12,7 @@ from .._errors import GroundshakeWarning, ScenarioError
 from .._plausible import judge
 from . import _geometry
 from ._lines import line_of
-from ._types import Equipment, Scenario
+from ._types import Equipment, MotionComponent, MotionSettings, Scenario
 from ._spec import (_Context, _did_you_mean, _fmt, _parse_obj, _schema_fields, allowed_text,
                     format_path)
 
@@ -126,17 +127,34 @@ def _check_plausible(values, ctx):
     for name, m in (values.get("materials") or {}).items():
         for key in ("youngs_modulus", "density", "poisson_ratio"):
             _plausible(key, getattr(m, key), ("materials", name, key), ctx)
+    for i, part in enumerate(values.get("parts") or ()):
+        for j, length in enumerate(part.size):
+            _plausible("part_size", length, ("parts", i, "size", j), ctx)
     s = values.get("support")
     if s is not None and s.kind == "soil":
         for key, quantity in (("shear_wave_velocity", "shear_wave_velocity"),
-                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio")):
+                              ("density", "soil_density"), ("poisson_ratio", "soil_poisson_ratio"),
+                              ("variation", "variation"), ("embedment_depth", "embedment_depth"),
+                              ("modulus_ratio", "modulus_ratio")):
             _plausible(quantity, getattr(s, key), ("support", key), ctx)
+        if s.strain_compatible is not None:
+            _plausible("shaking_g", s.strain_compatible.shaking_g,
+                       ("support", "strain_compatible", "shaking_g"), ctx)
+    if s is not None:
+        for key in ("friction_coefficient", "allowable_bearing_pressure"):
+            _plausible(key, getattr(s, key), ("support", key), ctx)
     d = values.get("damping")
     if d is not None:
         _plausible("damping_percent", d.ratio_percent, ("damping", "ratio_percent"), ctx)
     for i, e in enumerate(values.get("equipment") or ()):
         _plausible("equipment_mass", e.mass, ("equipment", i, "mass"), ctx)
         _plausible("damping_percent", e.damping_percent, ("equipment", i, "damping_percent"), ctx)
+        _plausible("cg_height", e.cg_height, ("equipment", i, "cg_height"), ctx)
+        cap = getattr(e, "capacity", None)
+        if cap is not None:
+            for key in ("tension", "shear"):
+                _plausible("bolt_capacity", getattr(cap, key, None),
+                           ("equipment", i, "capacity", key), ctx)
         if getattr(e, "fp", None) is not None:
             _plausible("sds", e.fp.sds, ("equipment", i, "fp", "sds"), ctx)
     fs = values.get("floor_spectra")
@@ -152,13 +170,22 @@ def _check_plausible(values, ctx):
 
 def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
     """Parse the target now, so its unit slips (sds=9.81) name the file and line."""
-    from .._errors import InputError
     from ..spectra._targets import parse_target
+
+    with _keyed(path, ctx):
+        parse_target(spec, base_dir=ctx.base_dir)
+
+
+@contextlib.contextmanager
+def _keyed(path: tuple, ctx: _Context):
+    """Run a check of one key: its InputError becomes that key's ScenarioError (file and
+    line), its GroundshakeWarnings that key's warnings and notes."""
+    from .._errors import InputError
 
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)
         try:
-            parse_target(spec, base_dir=ctx.base_dir)
+            yield
         except InputError as e:
             err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
             err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
@@ -179,6 +206,8 @@ def _check_motion(values, ctx):
     m = values.get("motion")
     if m is None:
         return
+    if m.file is not None:
+        m = values["motion"] = _components_of_file(m, ctx)
     analysis = values.get("analysis")
     spectrum = analysis is not None and analysis.method == "spectrum"
     if spectrum and m.target is None:
@@ -193,6 +222,30 @@ def _check_motion(values, ctx):
     if m.target_z is not None and m.target is None:
         raise ctx.bad(("motion", "target_z"), m.target_z, "a vertical target only beside a "
                       "horizontal target")
+
+
+def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:
+    """``[motion] file = ...`` written out as x, y, z by the channels' orientation."""
+    from ..records import read_record
+    from ..records._components import components_by_orientation
+
+    path = ("motion", "file")
+    given = [k for k in m.components()]
+    if given:
+        raise ctx.error(path, f"a file together with {', '.join(given)}",
+                        "either file (its channels picked by orientation) or x, y, z")
+    with _keyed(path, ctx):
+        records = read_record(m.file, inventory=m.inventory)
+        picked = components_by_orientation(records, where="motion.file")
+    comps = {}
+    for axis, rec in picked.items():
+        same = sum(str(r.component) == str(rec.component) for r in records)
+        code = str(rec.component) if rec.component and same == 1 else rec.name
+        comps[axis] = MotionComponent(file=m.file, channel=code)
+    ctx.notes.append(f"{ctx.where(path)}: motion.file: "
+                     + ", ".join(f"{a} = channel {c.channel!r}" for a, c in comps.items())
+                     + " (by orientation: vertical to z, horizontals to x, y in file order)")
+    return dataclasses.replace(m, file=None, **comps)
 
 
 def _check_floor_spectra(values, ctx):

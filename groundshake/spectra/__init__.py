@@ -9,7 +9,8 @@ from ._kernel import OscillatorPeaks, kernel_engine, oscillator_history, oscilla
 from ._rotd import ANGLES, RotD, rotated_peak, rotd
 from ._statistics import spectrum_statistics
 from ._targets import (EN1998_GROUND, TargetSpectrum, asce7_spectrum, en1998_spectrum,
-                       parse_target, published_target, table_spectrum, target_ratio)
+                       parse_target, published_target, table_spectrum, target_ratio,
+                       volume3_target)
 from ._spectrum import (MAX_REFINEMENT, SAMPLES_PER_PERIOD, Spectrum, default_periods,
                         fourier_upsample, refinement_factors, response_spectrum)
 
@@ -18,5 +19,5 @@ __all__ = ["OscillatorPeaks", "oscillator_peaks", "oscillator_history", "kernel_
            "SAMPLES_PER_PERIOD", "MAX_REFINEMENT", "refinement_factors", "RotD", "rotd",
            "rotated_peak", "ANGLES",
            "spectrum_statistics", "TargetSpectrum", "parse_target", "asce7_spectrum",
-           "en1998_spectrum", "table_spectrum", "target_ratio", "EN1998_GROUND",
-           "published_target"]
+           "en1998_spectrum", "table_spectrum", "published_target", "volume3_target",
+           "target_ratio", "EN1998_GROUND"]

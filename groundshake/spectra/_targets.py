@@ -9,6 +9,12 @@ Target syntax (ours), as accepted by ``parse_target`` and the CLI's ``--target``
   ground A) in g; damping in percent (η correction).
 - ``PATH`` — a CSV table of two columns: period [s] and PSA [g]; a header line and
   ``#`` comments are allowed; interpolated log-log, undefined outside its range.
+- ``PATH[:damping=PCT][,channel=C]`` where PATH is a CSMIP Volume 3 file (recognised by
+  its content) — the published spectrum's PSA, (2π/T)·PSV, as a target; damping in
+  percent (default 5, one the file publishes); ``channel`` the channel number as
+  printed (``Chan  2``) or its orientation as written (``360``, ``Up``), needed when the
+  file holds more than one channel. Interpolated log-log, undefined outside the
+  published periods.
 """
 from __future__ import annotations
 
@@ -27,7 +33,8 @@ from .._errors import GroundshakeWarning, InputError
 from .._plausible import check_value
 
 __all__ = ["TargetSpectrum", "parse_target", "asce7_spectrum", "en1998_spectrum",
-           "table_spectrum", "target_ratio", "EN1998_GROUND", "published_target"]
+           "table_spectrum", "published_target", "volume3_target", "target_ratio",
+           "EN1998_GROUND"]
 
 G = STANDARD_GRAVITY  # m/s² per g
 
@@ -51,12 +58,14 @@ class TargetSpectrum:
     damping : float
         Damping ratio the curve is meant for.
     kind : str
-        ``"asce7"``, ``"en1998"`` or ``"table"``.
+        ``"asce7"``, ``"en1998"``, ``"table"`` or ``"published"`` (a published
+        spectrum, e.g. of a CSMIP Volume 3 file).
     parameters : dict
         The parameters as entered (in the units of the spec: g, s, percent).
     period_range : (float, float) or None
         Shortest and longest period [s] where the curve is defined (a table's first
-        and last rows); None for a code shape, defined at every period.
+        and last rows, a published spectrum's periods); None for a code shape, defined
+        at every period.
     """
 
     label: str
@@ -216,6 +225,14 @@ def table_spectrum(path: str | os.PathLike) -> TargetSpectrum:
     tt, vv = arr[:, 0], arr[:, 1]
     check_value("target_psa", float(np.max(vv)), key="largest PSA", where=f"{path}: ",
                 stacklevel=3)                                   # the table's unit is g
+    return TargetSpectrum(label=f"table {path.name}", damping=0.05, kind="table",
+                          parameters={"path": str(path), "rows": int(len(arr))},
+                          _fn=_log_log(tt, vv), period_range=(float(tt[0]), float(tt[-1])))
+
+
+def _log_log(tt: np.ndarray, vv: np.ndarray) -> Callable[[np.ndarray], np.ndarray]:
+    """The curve through rows (tt [s] increasing, vv > 0): log-log between rows with
+    T > 0, linear from a T = 0 row up to the first T > 0, NaN outside the rows."""
     pos = tt > 0
 
     def fn(t):
@@ -232,9 +249,107 @@ def table_spectrum(path: str | os.PathLike) -> TargetSpectrum:
             out[low] = np.interp(t[low], tt[:2], vv[:2])
         return out
 
-    return TargetSpectrum(label=f"table {path.name}", damping=0.05, kind="table",
-                          parameters={"path": str(path), "rows": int(len(arr))}, _fn=fn,
-                          period_range=(float(tt[0]), float(tt[-1])))
+    return fn
+
+
+def published_target(spectrum, damping: float = 0.05) -> TargetSpectrum:
+    """A published response spectrum's PSA as a target curve.
+
+    Parameters
+    ----------
+    spectrum : PublishedSpectrum
+        As read by :func:`groundshake.records.read_csmip_spectra`: ``periods`` shape
+        (n_periods,) [s], increasing; ``damping`` shape (n_damping,) (ratios); ``psa``
+        shape (n_damping, n_periods) [m/s²]; ``component`` and ``metadata``.
+    damping : float
+        Which of the published damping ratios to use (a ratio, 0.05 for 5 %).
+
+    Returns
+    -------
+    TargetSpectrum
+        PSA = (2π/T)·PSV of the chosen damping, log-log between the published periods,
+        NaN outside them (``period_range``).
+
+    Raises
+    ------
+    InputError
+        The spectrum has no such damping (the message lists those it has), or a PSA
+        that is not > 0 inside its periods.
+    """
+    k = np.flatnonzero(np.isclose(np.asarray(spectrum.damping, dtype=float), damping,
+                                  rtol=0.0, atol=1e-9))
+    meta = dict(getattr(spectrum, "metadata", {}) or {})
+    name = " ".join(str(v) for v in (meta.get("station", ""), spectrum.component) if v)
+    if not k.size:
+        have = ", ".join(f"{100 * d:g} %" for d in spectrum.damping)
+        raise InputError(f"published spectrum {name}: no {100 * damping:g} % damping; "
+                         f"allowed: {have}")
+    tt = np.asarray(spectrum.periods, dtype=float)
+    vv = np.asarray(spectrum.psa, dtype=float)[k[0]] / G
+    if not np.all(np.isfinite(vv) & (vv > 0)):
+        bad = int(np.flatnonzero(~(np.isfinite(vv) & (vv > 0)))[0])
+        raise InputError(f"published spectrum {name}: PSA {vv[bad]:g} g at {tt[bad]:g} s; "
+                         "a target needs PSA > 0 at every period")
+    parameters = {"source": meta.get("source", ""), "component": spectrum.component,
+                  "damping": 100 * float(damping), "rows": int(tt.size)}
+    if "channel_number" in meta:
+        parameters["channel"] = meta["channel_number"]
+    return TargetSpectrum(label=f"published spectrum {name}, {100 * damping:g} %",
+                          damping=float(damping), kind="published", parameters=parameters,
+                          _fn=_log_log(tt, vv), period_range=(float(tt[0]), float(tt[-1])))
+
+
+def volume3_target(path: str | os.PathLike, *, damping_percent: float = 5.0,
+                   channel: str | int | None = None) -> TargetSpectrum:
+    """A target from the published spectra of a CSMIP Volume 3 file.
+
+    Parameters
+    ----------
+    path : path
+        The Volume 3 file.
+    damping_percent : float
+        Damping of the published spectrum to use [%] (default 5).
+    channel : int or str, optional
+        The channel number as printed (``Chan  2``), or its orientation as written
+        (``"360"``, ``"Up"``); needed when the file holds more than one channel.
+
+    Returns
+    -------
+    TargetSpectrum
+        See :func:`published_target`.
+
+    Raises
+    ------
+    InputError
+        The file does not parse, the channel is missing or unknown (the message lists
+        the file's channels), or the damping is not published.
+    """
+    from ..records import read_csmip_spectra  # records are read here, one stage down
+
+    path = Path(path)
+    spectra = read_csmip_spectra(path)
+    listing = ", ".join(f"{s.metadata.get('channel_number', '?')} ({s.component})"
+                        for s in spectra)
+    if channel is None:
+        if len(spectra) != 1:
+            raise InputError(f"target {path}: the Volume 3 file holds {len(spectra)} channels; "
+                             f"choose one with channel=N (number or orientation): {listing}")
+        chosen = spectra[0]
+    else:
+        text = str(channel).strip()
+        by_number = [s for s in spectra if text.isdigit()
+                     and s.metadata.get("channel_number") == int(text)]
+        by_name = [s for s in spectra if s.component.strip().lower() == text.lower()]
+        found = by_number or by_name
+        if len(found) != 1:
+            raise InputError(f"target {path}: channel={text!r} "
+                             f"{'is not in the file' if not found else 'is ambiguous'}; "
+                             f"allowed (number or orientation): {listing}")
+        chosen = found[0]
+    if not (math.isfinite(damping_percent) and 0 < damping_percent < 100):
+        raise InputError(f"target {path}: damping={damping_percent!r}; allowed: percent in "
+                         "(0, 100)")
+    return published_target(chosen, damping_percent / 100.0)
 
 
 _ASCE_KEYS = {"sds", "sd1", "tl"}
@@ -275,7 +390,8 @@ def parse_target(spec: str, *, base_dir: str | os.PathLike | None = None) -> Tar
     ----------
     spec : str
         ``asce7:sds=..,sd1=..,tl=..``, ``en1998:type=..,ground=..,ag=..[,damping=..]``,
-        or a path to a CSV table (relative paths against ``base_dir``).
+        a path to a CSV table, or a path to a CSMIP Volume 3 file with optional
+        ``:damping=PCT,channel=N`` (relative paths against ``base_dir``).
     base_dir : path, optional
         Folder that relative table paths are resolved against (default: the current one).
 
@@ -285,7 +401,8 @@ def parse_target(spec: str, *, base_dir: str | os.PathLike | None = None) -> Tar
         Unknown form or key, missing or bad value, unreadable table.
     """
     if not isinstance(spec, str) or not spec.strip():
-        raise InputError(f"target: {spec!r}; give asce7:..., en1998:... or a CSV path")
+        raise InputError(f"target: {spec!r}; give asce7:..., en1998:..., a CSV path or a "
+                         "CSMIP Volume 3 path")
     s = spec.strip()
     head, sep, body = s.partition(":")
     kind = head.strip().lower()
@@ -307,55 +424,47 @@ def parse_target(spec: str, *, base_dir: str | os.PathLike | None = None) -> Tar
             raise InputError(f"target {s!r}: type={p['type']!r}; allowed: 1, 2")
         return en1998_spectrum(int(p["type"]), p["ground"], _num(s, "ag", p["ag"]),
                                _num(s, "damping", p.get("damping", "5")))
-    path = Path(s)
-    if base_dir is not None and not path.is_absolute():
-        path = Path(base_dir) / path
+    path, options = _file_and_options(s, base_dir)
     if not path.is_file():
         if sep and len(kind) > 1 and not path.exists():
             raise InputError(f"target {s!r}: unknown form {kind!r}; allowed: asce7:..., "
-                             "en1998:..., or a CSV file of period [s], PSA [g]")
+                             f"en1998:..., {_FILE_FORMS}")
         raise InputError(f"target {s!r}: no such file (a target is asce7:..., en1998:..., "
-                         "or a CSV file of period [s], PSA [g])")
+                         f"{_FILE_FORMS})")
+    if _is_volume3(path):
+        p = _parse_params(s, options, _V3_KEYS)
+        return volume3_target(path, damping_percent=_num(s, "damping", p.get("damping", "5")),
+                              channel=p.get("channel"))
+    if options:
+        raise InputError(f"target {s!r}: {options!r} are options of a CSMIP Volume 3 file; "
+                         f"{path.name} is read as a CSV table of period [s], PSA [g], which "
+                         "takes none")
     return table_spectrum(path)
 
 
-def published_target(spectrum, damping: float = 0.05) -> TargetSpectrum:
-    """A published response spectrum as a target PSA curve (log-log interpolation).
+_V3_KEYS = {"damping", "channel"}
+_FILE_FORMS = ("a CSV file of period [s], PSA [g], or a CSMIP Volume 3 file "
+               "(FILE[:damping=PCT,channel=N])")
 
-    Parameters
-    ----------
-    spectrum : groundshake.records.io.csmip.PublishedSpectrum
-        As read by :func:`groundshake.records.read_csmip_spectra`: ``periods`` (n,) [s],
-        ``damping`` (k,) ratios, ``psa`` (k, n) [m/s²], ``component``, ``metadata``.
-    damping : float
-        Which of the published damping ratios to use.
 
-    Returns
-    -------
-    TargetSpectrum
-        Undefined (NaN) outside the published periods.
+def _file_and_options(spec: str, base_dir) -> tuple[Path, str]:
+    """(file, options text) of ``PATH`` or ``PATH:key=value,...``; the whole spec is a
+    path when such a file exists (a colon may belong to the path)."""
+    def resolve(text: str) -> Path:
+        p = Path(text)
+        return Path(base_dir) / p if base_dir is not None and not p.is_absolute() else p
 
-    Raises
-    ------
-    InputError
-        The spectrum was not published at ``damping``.
-    """
-    k = np.flatnonzero(np.isclose(spectrum.damping, damping, atol=1e-9))
-    if not k.size:
-        raise InputError(f"published spectrum {spectrum.component}: no {100 * damping:g} % "
-                         f"damping; it has "
-                         f"{', '.join(f'{100 * d:g} %' for d in spectrum.damping)}")
-    tt, vv = spectrum.periods, spectrum.psa[k[0]] / G
+    whole = resolve(spec)
+    head, sep, body = spec.rpartition(":")
+    if not whole.exists() and sep and "=" in body and head.strip():
+        return resolve(head.strip()), body
+    return whole, ""
 
-    def fn(t):
-        t = np.asarray(t, dtype=float)
-        out = np.full(t.shape, np.nan)
-        inside = (t >= tt[0]) & (t <= tt[-1])
-        out[inside] = np.exp(np.interp(np.log(t[inside]), np.log(tt), np.log(vv)))
-        return out
 
-    meta = spectrum.metadata
-    label = f"published spectrum {meta.get('station', '')} {spectrum.component}".strip()
-    return TargetSpectrum(label=label, damping=float(damping), kind="table",
-                          parameters={"source": meta.get("source", ""), "rows": int(tt.size)},
-                          _fn=fn)
+def _is_volume3(path: Path) -> bool:
+    from ..records.io.csmip import is_volume3   # records are read here, one stage down
+    try:
+        with open(path, "rb") as fh:
+            return is_volume3(fh.read(4096))
+    except OSError:
+        return False

@@ -14,6 +14,10 @@ y, h2, n, ns, north   y
 z, up, v, ud, vert    z
 ====================  =========
 
+Any other component code the readers recognise also works: a vertical one (``hnz``,
+``ud1``) is z; a horizontal azimuth goes to the nearer axis, x east and y north
+(``360`` → y, ``090`` → x, ``n28w`` → y); ``hn1``/``hn2`` are x/y.
+
 Files whose stems agree once that word is removed form one set, named by the
 remaining stem (``rec07-h1.mseed``, ``rec07-h2.mseed``, ``rec07-up.mseed`` →
 set ``rec07``). When the scenario's ``[motion]`` has a single component, every
@@ -89,10 +93,33 @@ class RecordSet:
 
 
 def _component_of(path: Path) -> tuple[str, str] | None:
+    """(set stem, axis) of a file named ``STEM-WORD.ext``, or None.
+
+    WORD is one of :data:`COMPONENT_WORDS`, or any component code the readers know
+    (:func:`groundshake.records._components.describe`: ``hnz``, ``ud1``, ``360``,
+    ``n28w``): vertical → z; a horizontal with an azimuth → the nearer axis, x east
+    (90°, 270°) and y north (0°, 180°), as ``e`` → x and ``n`` → y; a horizontal without
+    one → x if it ends in 1 and y if in 2 (``hn1``, ``hn2``, like ``h1``, ``h2``). A bare
+    number needs two digits (``rec-1`` is a set number, not 1°); a diagonal (45°) is
+    not guessed.
+    """
+    from ..records._components import describe
+
     m = _SPLIT.match(path.stem)
     if not m:
         return None
-    comp = COMPONENT_WORDS.get(m.group("word").lower())
+    word = m.group("word")
+    comp = COMPONENT_WORDS.get(word.lower())
+    if comp is None and not (word.isdigit() and len(word) < 2):
+        kind, az = describe(word)
+        if kind == "vertical":
+            comp = "z"
+        elif kind == "horizontal" and az is not None:
+            east, north = abs(math.sin(math.radians(az))), abs(math.cos(math.radians(az)))
+            comp = None if math.isclose(east, north, rel_tol=1e-9) else (
+                "x" if east > north else "y")
+        elif kind == "horizontal":
+            comp = {"1": "x", "2": "y"}.get(word[-1:])
     return None if comp is None else (m.group("stem"), comp)
 
 

@@ -1,13 +1,12 @@
 """Pieces shared by the readers of agency text formats (USC, AFAD, UNAM, RENADIC, BHRC, CWB).
 
-Decoding, numbers in fixed-width Fortran fields, the checks of ``units``/``dt``
-given by the user against the header, and the building of a :class:`Record`
+Decoding, the check of ``units`` given by the user against the header, Volume-1
+style data blocks, and the building of a :class:`Record`
 with the metadata keys every reader fills (station, channel, azimuth_deg,
 orientation, event_*, header_pga ...).
 """
 from __future__ import annotations
 
-import math
 import re
 import warnings
 from pathlib import Path
@@ -19,29 +18,15 @@ from ..._errors import GroundshakeWarning, RecordError
 from .._components import describe
 from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
-from ._common import MIN_SAMPLES
+from ._common import MIN_SAMPLES, FormatError
 
-__all__ = ["read_lines", "head_lines", "numbers", "fixed_width", "make_record", "FormatError",
-           "units_factor", "warn", "volume1_data", "check_units",
-           "check_dt", "G10"]
+__all__ = ["read_lines", "head_lines", "numbers", "make_record", "units_factor", "warn",
+           "volume1_data", "check_units", "G10"]
 
 #: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
 G10 = 0.1 * STANDARD_GRAVITY
 
 _FLOAT = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[EeDd][-+]?\d+)?")
-
-
-class FormatError(RecordError):
-    """A file that looks like a known format but does not parse.
-
-    The message reads ``"FORMAT file: what is wrong (header line N: ...)"``.
-    """
-
-    def __init__(self, fmt: str, path: Path | str, what: str, *, line: int | None = None,
-                 text: str | None = None):
-        where = "" if line is None else f" (line {line}" + (
-            f": {text.strip()[:60]!r})" if text is not None else ")")
-        super().__init__(f"{fmt} file {path}: {what}{where}")
 
 
 def read_lines(path: Path, *, fallback: str = "latin-1") -> list[str]:
@@ -67,69 +52,12 @@ def numbers(text: str) -> list[float]:
     return [float(s.replace("D", "E").replace("d", "e")) for s in _FLOAT.findall(text)]
 
 
-def fixed_width(lines: Sequence[str], *, count: int, width: int, fmt: str, path: Path,
-                first_line: int, per_line: int | None = None) -> np.ndarray:
-    """``count`` numbers from a block of lines written with a Fortran ``nFw.d`` format.
-
-    Fast path: split on white space and convert in C. When neighbouring values
-    touch (``-123.456-789.012``), each line is cut into fields of ``width``.
-
-    Parameters
-    ----------
-    lines : sequence of str
-        The block's lines (no line ends), the first one being file line ``first_line``.
-    count : int
-        Numbers wanted.
-    width : int
-        Field width of the Fortran format.
-    per_line : int, optional
-        Fields per line; only used to name the line at fault.
-
-    Returns
-    -------
-    ndarray, shape (count,)
-    """
-    joined = " ".join(lines).replace("D", "E").replace("d", "e")
-    try:
-        values = np.array(joined.split(), dtype=float)
-    except ValueError:
-        values = None
-    if values is None or values.size < count:
-        cells: list[str] = []
-        for ln in lines:  # file lines, not samples; only when fields touch
-            body = ln.rstrip()
-            cells.extend(body[k:k + width] for k in range(0, len(body), width))
-        cells = [c for c in cells if c.strip()]
-        try:
-            values = np.array([c.replace("D", "E") for c in cells], dtype=float)
-        except ValueError:
-            bad = next(c for c in cells if not _is_number(c))
-            k = cells.index(bad)
-            line = first_line + (k // per_line if per_line else 0)
-            raise FormatError(fmt, path, f"{bad.strip()!r} is not a number in the data block",
-                              line=line) from None
-    if values.size < count:
-        raise FormatError(fmt, path, f"the data block holds {values.size} values; the header "
-                          f"announces {count}", line=first_line)
-    return values[:count]
-
-
 def _is_number(text: str) -> bool:
     try:
         float(text.replace("D", "E"))
     except ValueError:
         return False
     return True
-
-
-def check_dt(header_dt: float, user_dt: float | None, path: Path, fmt: str) -> float:
-    """The header's time step [s]; an error if ``user_dt`` says otherwise (beyond 1e-6)."""
-    if not (math.isfinite(header_dt) and header_dt > 0):
-        raise FormatError(fmt, path, f"time step {header_dt!r} s in the header must be > 0")
-    if user_dt is not None and not math.isclose(float(user_dt), header_dt, rel_tol=1e-6):
-        raise RecordError(f"{path}: dt={float(user_dt):g} s was given but the {fmt} header "
-                          f"says {header_dt:g} s; drop --dt or fix the file")
-    return float(header_dt)
 
 
 def check_units(file_units: str, user_units: str | None, path: Path, fmt: str) -> None:
@@ -156,7 +84,7 @@ def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float
         The units the header states, as the user would write them (``"cm/s2"``,
         ``"g/10"``, ``"g"``); compared with ``user_units``.
     dt : float
-        Time step [s] (already checked with :func:`check_dt`).
+        Time step [s] (already checked with :func:`._common.check_dt`).
     station, component : str
         Station code and the channel code as written; the name is
         ``"<station> <component>"``.

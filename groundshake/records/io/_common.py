@@ -11,7 +11,7 @@ from ..._errors import RecordError
 from .._units import UNIT_NAMES, UNITS, canonical_units
 
 __all__ = ["MIN_SAMPLES", "to_si", "resolve_units", "check_samples", "check_dt",
-           "format_error", "user_units", "looks_binary", "fixed_width", "free_numbers",
+           "FormatError", "user_units", "looks_binary", "fixed_width", "free_numbers",
            "iso_time", "azimuth_from_code", "orientation_metadata", "unique_names"]
 
 #: Fewest samples a record may have.
@@ -54,23 +54,66 @@ def check_samples(data: np.ndarray, label: str) -> None:
         raise RecordError(f"{label}: sample {bad[0]} is {data[bad[0]]} (NaN or inf)")
 
 
-def check_dt(given: float | None, header: float, label: str, what: str = "the header") -> None:
-    """A ``dt`` option [s] that contradicts the file's own step is an error (1e-6 relative)."""
+def check_dt(given: float | None, header: float, label: str, what: str = "the header", *,
+             fmt: str | None = None, path: Path | str | None = None) -> float:
+    """The file's own time step [s], checked against a ``dt`` option.
+
+    Parameters
+    ----------
+    given : float or None
+        The ``dt`` option [s] (None: not given).
+    header : float
+        The step the file states [s].
+    label : str
+        Where, for the message (file, or file and channel).
+    what : str
+        What states the step, e.g. ``"its DT= header"``.
+    fmt, path : str, optional
+        With both given, a step that is not finite and > 0 is refused as a
+        :class:`FormatError` of that format (callers that check it themselves omit them).
+
+    Returns
+    -------
+    float
+        ``header`` [s].
+
+    Raises
+    ------
+    RecordError
+        ``given`` differs from ``header`` by more than 1e-6 relative.
+    """
+    if fmt is not None and path is not None and not (math.isfinite(header) and header > 0):
+        raise FormatError(fmt, path, f"time step {header!r} s in the header must be > 0")
     if given is not None and not math.isclose(float(given), header, rel_tol=1e-6):
         raise RecordError(f"{label}: dt={float(given):g} s was given but {what} says "
                           f"{header:g} s; drop the dt option or fix the file")
+    return float(header)
 
 
-def format_error(fmt: str, path: Path | str, what: str, line: int | None = None,
-                 text: str | None = None, part: str = "line") -> RecordError:
-    """The error for a file that looks like ``fmt`` but does not parse.
+class FormatError(RecordError):
+    """A file that looks like a known format but does not parse.
 
-    ``"<fmt> file <path>: <what> (<part> <line>: '<text>')"``; ``line`` is 1-based,
-    ``part`` e.g. ``"header line"`` or ``"line"``.
+    The message reads ``"<fmt> file <path>: <what> (<part> <line>: '<text>')"``;
+    ``line`` is 1-based, ``part`` e.g. ``"header line"`` or ``"line"``. The fields
+    are kept on the error (``fmt``, ``path``, ``what``, ``line``, ``text``, ``part``)
+    and survive pickling (a worker process of a suite sends errors back).
     """
-    where = f" ({part} {line}: {text.strip()[:60]!r})" if line is not None and text is not None \
-        else (f" ({part} {line})" if line is not None else "")
-    return RecordError(f"{fmt} file {path}: {what}{where}")
+
+    def __init__(self, fmt: str, path: Path | str, what: str, line: int | None = None,
+                 text: str | None = None, *, part: str = "line"):
+        self.fmt, self.path, self.what = fmt, str(path), what
+        self.line, self.text, self.part = line, text, part
+        where = f" ({part} {line}: {text.strip()[:60]!r})" if line is not None and text is not None \
+            else (f" ({part} {line})" if line is not None else "")
+        super().__init__(f"{fmt} file {path}: {what}{where}")
+
+    def __reduce__(self):
+        return (_rebuild_format_error, (self.fmt, self.path, self.what, self.line, self.text,
+                                        self.part))
+
+
+def _rebuild_format_error(fmt, path, what, line, text, part):
+    return FormatError(fmt, path, what, line, text, part=part)
 
 
 def looks_binary(head: bytes) -> bool:
@@ -79,13 +122,19 @@ def looks_binary(head: bytes) -> bool:
     return b"\x00" in head or controls > 0.01 * max(len(head), 1)
 
 
-def fixed_width(lines: list[str], count: int, width: int, per_line: int, *, fmt: str,
+def fixed_width(lines, count: int, width: int, per_line: int, *, fmt: str,
                 path, first_line: int) -> np.ndarray:
     """Numbers written in a Fortran fixed-width format (``per_line`` fields of ``width``).
 
+    Each line is cut into ``per_line`` fields of ``width`` characters (anything past
+    them, such as card sequence numbers, is ignored), so values that touch
+    (``-123.456-789.012``) are read. Fortran ``D`` exponents are accepted. A block
+    whose fields are not aligned but whose values are separated by blanks is read by
+    splitting on blanks instead.
+
     Parameters
     ----------
-    lines : list of str
+    lines : sequence of str
         The data lines, starting with the first one.
     count : int
         Number of values to read.
@@ -101,27 +150,39 @@ def fixed_width(lines: list[str], count: int, width: int, per_line: int, *, fmt:
 
     Raises
     ------
-    RecordError
-        Too few lines, or a field that is not a number (the message names the line).
+    FormatError
+        Too few values, or a field that is not a number (the message names the line).
     """
     n_lines = -(-count // per_line)
-    if len(lines) < n_lines:
-        raise format_error(fmt, path, f"{count} values in {n_lines} lines were announced but "
-                           f"the file ends after {len(lines)}", first_line + len(lines) - 1)
+    block_lines = [ln.replace("D", "E").replace("d", "e") for ln in lines[:n_lines]]
+    if len(block_lines) < n_lines:
+        held = len(" ".join(block_lines).split())
+        raise FormatError(fmt, path, f"the data block holds {held} values; the header "
+                          f"announces {count}", first_line)
     span = width * per_line
-    block = "".join(ln[:span].ljust(span) for ln in lines[:n_lines])
+    block = "".join(ln[:span].ljust(span) for ln in block_lines)
     fields = np.frombuffer(block.encode("latin-1", "replace"), dtype=f"S{width}")[:count]
     try:
         return fields.astype(float)
     except ValueError:
-        for i, f in enumerate(fields):  # only on failure: find the field at fault
-            try:
-                float(f)
-            except ValueError:
-                k = i // per_line
-                raise format_error(fmt, path, f"value {i + 1} of {count} ({f.decode('latin-1')!r}) "
-                                   f"is not a number", first_line + k, lines[k]) from None
-        raise
+        pass
+    try:  # not aligned in columns but separated by blanks
+        loose = np.array(" ".join(block_lines).split(), dtype=float)
+    except ValueError:
+        loose = None
+    if loose is not None and loose.size >= count:
+        return loose[:count]
+    for i, f in enumerate(fields):  # only on failure: find the field at fault
+        try:
+            float(f)
+        except ValueError:
+            k = i // per_line
+            raise FormatError(fmt, path, f"value {i + 1} of {count} "
+                              f"({f.decode('latin-1').strip()!r}) is not a number",
+                              first_line + k, lines[k]) from None
+    held = 0 if loose is None else loose.size
+    raise FormatError(fmt, path, f"the data block holds {held} values; the header "
+                      f"announces {count}", first_line)
 
 
 def free_numbers(lines: list[str], count: int, *, fmt: str, path, first_line: int) -> np.ndarray:
@@ -138,8 +199,8 @@ def free_numbers(lines: list[str], count: int, *, fmt: str, path, first_line: in
     """
     tokens = " ".join(lines).split()
     if len(tokens) < count:
-        raise format_error(fmt, path, f"{count} values were announced but the file holds "
-                           f"{len(tokens)}", first_line + len(lines) - 1)
+        raise FormatError(fmt, path, f"{count} values were announced but the file holds "
+                          f"{len(tokens)}", first_line + len(lines) - 1)
     try:
         return np.array(tokens[:count], dtype=float)
     except ValueError:
@@ -149,8 +210,8 @@ def free_numbers(lines: list[str], count: int, *, fmt: str, path, first_line: in
                 try:
                     float(tok)
                 except ValueError:
-                    raise format_error(fmt, path, f"{tok!r} is not a number", first_line + k,
-                                       ln) from None
+                    raise FormatError(fmt, path, f"{tok!r} is not a number", first_line + k,
+                                      ln) from None
                 seen += 1
         raise
 

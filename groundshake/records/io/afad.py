@@ -13,8 +13,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import (FormatError, check_dt, head_lines, make_record, numbers, read_lines,
-                      units_factor, warn)
+from ._agency import head_lines, make_record, numbers, read_lines, units_factor, warn
+from ._common import FormatError, check_dt
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -106,7 +106,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     if not vals:
         raise FormatError(FORMAT, path, f"SAMPLING INTERVAL {dt_text!r} is not a number",
                           line=dt_line)
-    step = check_dt(vals[0], dt, path, FORMAT)
+    step = check_dt(dt, vals[0], path, f"the {FORMAT} header",
+                    fmt=FORMAT, path=path)
     n_text, n_line = get("NUMBER OF DATA")
     try:
         n = int(n_text.split()[0])

@@ -13,8 +13,8 @@ import math
 import re
 from pathlib import Path
 
-from ._agency import (FormatError, check_dt, head_lines, make_record, read_lines,
-                      units_factor, volume1_data)
+from ._agency import head_lines, make_record, read_lines, units_factor, volume1_data
+from ._common import FormatError, check_dt
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -109,7 +109,8 @@ def _channel(lines, s, end, path, units, dt):
     duration = float(pm.group(2))
     # DURATION = n·dt (9984 points, 49.920 s at 200 per second); its printed
     # digits limit the step to six significant figures
-    step = check_dt(float(f"{duration / n:.6g}"), dt, path, FORMAT)
+    step = check_dt(dt, float(f"{duration / n:.6g}"), path, f"the {FORMAT} header",
+                    fmt=FORMAT, path=path)
     values, _ = volume1_data(lines, uline + 1, end, n, fmt=FORMAT, path=path, width=13)
 
     meta: dict = {}

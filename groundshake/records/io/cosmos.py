@@ -25,7 +25,7 @@ import numpy as np
 from ..._errors import GroundshakeWarning, RecordError
 from .._record import Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, fixed_width, format_error, iso_time,
+from ._common import (check_dt, check_samples, fixed_width, FormatError, iso_time,
                       orientation_metadata, resolve_units, to_si, unique_names, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -78,8 +78,8 @@ def _channels(lines: list[str], path: Path):
             continue
         m = _FIRST.search(lines[i])
         if not m:
-            raise format_error(FORMAT, path, "expected the first line of a channel, '... (Format "
-                               "v01.20 with 13 text lines)'", i + 1, lines[i])
+            raise FormatError(FORMAT, path, "expected the first line of a channel, '... (Format "
+                              "v01.20 with 13 text lines)'", i + 1, lines[i])
         first = i
         ntext = int(m.group(2))
         text = lines[i:i + ntext]
@@ -87,11 +87,11 @@ def _channels(lines: list[str], path: Path):
         headers = {}
         for what in ("Integer", "Real"):
             if i >= n:
-                raise format_error(FORMAT, path, f"the file ends before the {what.lower()} header")
+                raise FormatError(FORMAT, path, f"the file ends before the {what.lower()} header")
             mh = _HEADER.match(lines[i])
             if not mh or mh.group(2).lower() != what.lower():
-                raise format_error(FORMAT, path, f"expected '... {what}-header values follow on "
-                                   "... lines, Format= (...)'", i + 1, lines[i])
+                raise FormatError(FORMAT, path, f"expected '... {what}-header values follow on "
+                                  "... lines, Format= (...)'", i + 1, lines[i])
             count, nl, per, width = (int(mh.group(1)), int(mh.group(3)), int(mh.group(4)),
                                      int(mh.group(5)))
             headers[what] = fixed_width(lines[i + 1:i + 1 + nl], count, width, per, fmt=FORMAT,
@@ -105,9 +105,9 @@ def _channels(lines: list[str], path: Path):
             i += 1 + k
         md = _DATA.match(lines[i]) if i < n else None
         if not md:
-            raise format_error(FORMAT, path, "expected the data line '<n> ... pts, approx ... "
-                               "secs, units=...(code), Format=(...)'", i + 1,
-                               lines[i] if i < n else "")
+            raise FormatError(FORMAT, path, "expected the data line '<n> ... pts, approx ... "
+                              "secs, units=...(code), Format=(...)'", i + 1,
+                              lines[i] if i < n else "")
         npts, per, width = int(md.group(1)), int(md.group(5)), int(md.group(6))
         data = fixed_width(lines[i + 1:], npts, width, per, fmt=FORMAT, path=path,
                            first_line=i + 2)
@@ -163,8 +163,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         ms = _value(reals, 62)
         step = ms / 1000.0 if ms is not None and ms > 0 else _value(reals, 34)
         if step is None or not step > 0:
-            raise format_error(FORMAT, path, "no sampling interval (real header value 62 [ms] "
-                               "or 34 [s])", ch["first"], ch["text"][0])
+            raise FormatError(FORMAT, path, "no sampling interval (real header value 62 [ms] "
+                              "or 34 [s])", ch["first"], ch["text"][0])
         step = float(step)
         check_dt(dt, step, label, "its real header (value 62)")
         data = ch["data"]
@@ -175,10 +175,10 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         if code == _COUNTS or "count" in ch["unit_text"].lower():
             lsb, sens = _value(reals, 22), _value(reals, 42)
             if not lsb or not sens or lsb <= 0 or sens <= 0:
-                raise format_error(FORMAT, path, "raw counts, but the real header lacks the "
-                                   "recorder LSB (value 22, µV/count) or the sensor sensitivity "
-                                   "(value 42, V/g) needed to convert them",
-                                   ch["data_line_no"], ch["data_line"])
+                raise FormatError(FORMAT, path, "raw counts, but the real header lacks the "
+                                  "recorder LSB (value 22, µV/count) or the sensor sensitivity "
+                                  "(value 42, V/g) needed to convert them",
+                                  ch["data_line_no"], ch["data_line"])
             scale = lsb * 1e-6 / sens  # counts -> volts -> g
             file_units = "g"
             meta["units_from"] = ("counts x recorder LSB (real header 22, µV/count) / sensor "
@@ -193,9 +193,9 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                 file_units = canonical_units(ch["unit_text"]) if ch["unit_text"] else \
                     _UNIT_CODES[code]
             except (RecordError, KeyError):
-                raise format_error(FORMAT, path, f"units {ch['unit_text']!r} (code {code}) are "
-                                   "not units of acceleration", ch["data_line_no"],
-                                   ch["data_line"]) from None
+                raise FormatError(FORMAT, path, f"units {ch['unit_text']!r} (code {code}) are "
+                                  "not units of acceleration", ch["data_line_no"],
+                                  ch["data_line"]) from None
         rec_units = resolve_units(file_units, given, label)
         text = "\n".join(ch["text"])
         mc = _CHAN.search(text)
@@ -253,5 +253,5 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                               name=f"{meta['station']} {component}".strip(), component=component,
                               source=where, units=rec_units, start_time=start, metadata=meta))
     if not records:
-        raise format_error(FORMAT, path, f"no acceleration channel (found: {', '.join(kinds)})")
+        raise FormatError(FORMAT, path, f"no acceleration channel (found: {', '.join(kinds)})")
     return unique_names(records)

@@ -23,11 +23,11 @@ import numpy as np
 from ..._errors import RecordError
 from .._record import STANDARD_GRAVITY, Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, fixed_width, format_error, free_numbers,
+from ._common import (check_dt, check_samples, fixed_width, FormatError, free_numbers,
                       iso_time, orientation_metadata, resolve_units, to_si, unique_names,
                       user_units)
 
-__all__ = ["FORMAT", "EXTENSIONS", "is_format", "read", "read_csmip_v2_series",
+__all__ = ["FORMAT", "EXTENSIONS", "is_format", "is_volume3", "read", "read_csmip_v2_series",
            "read_csmip_spectra", "CsmipSeries", "PublishedSpectrum"]
 
 FORMAT = "CSMIP/CDMG Volume 1/2 (and Volume 3 spectra)"
@@ -65,8 +65,8 @@ def is_format(path: Path, head: bytes) -> bool:
         # a CSMIP channel names its channel ("Chan  1: 360 Deg"), has an integer header of
         # 16 fields of 5 characters, and announces its data ("12000 points of accel data
         # ...", "13200 Accelerogram points ...") or, in Volume 3, its spectra
-        if lines[0].lower().lstrip().startswith("response and fourier amplitude spectra"):
-            return True  # Volume 3
+        if is_volume3(head):
+            return True
         if not any(_CHAN.match(ln) for ln in lines[1:30]):
             return False
         if any(_announces_data(ln) for ln in lines[1:100]):
@@ -76,6 +76,16 @@ def is_format(path: Path, head: bytes) -> bool:
         return len(head) < 8192 and len(lines) < 46
     except Exception:
         return False
+
+
+def is_volume3(head: bytes) -> bool:
+    """True if ``head`` (a file's first bytes) starts like a CSMIP Volume 3 file (never raises)."""
+    try:
+        first = head.decode("latin-1").splitlines()[:1]
+    except Exception:  # noqa: BLE001 - a detector never raises
+        return False
+    return bool(first) and first[0].lower().lstrip().startswith(
+        "response and fourier amplitude spectra")
 
 
 _INT_FIELD = re.compile(r"\s*-?\d+")
@@ -123,16 +133,16 @@ def _split_channels(lines: list[str], path: Path) -> list[_Channel]:
                 out.append(_channel(chunk, start + 1, path))
             start = i + 1
     if not out:
-        raise format_error(FORMAT, path, "no channel found")
+        raise FormatError(FORMAT, path, "no channel found")
     return out
 
 
 def _channel(chunk: list[str], first: int, path: Path) -> _Channel:
     m = _FIRST.match(chunk[0]) if chunk else None
     if not m:
-        raise format_error(FORMAT, path, "a channel must start with 'Corrected accelerogram', "
-                           "'Uncorrected Accelerogram' or 'Response and Fourier ...'", first,
-                           chunk[0] if chunk else "", part="line")
+        raise FormatError(FORMAT, path, "a channel must start with 'Corrected accelerogram', "
+                          "'Uncorrected Accelerogram' or 'Response and Fourier ...'", first,
+                          chunk[0] if chunk else "", part="line")
     word = m.group(1).lower()
     volume = 1 if word.startswith("uncorrected") else 2 if word.startswith("corrected") else 3
     # the text header ends where the first line of 16 integers begins
@@ -181,8 +191,8 @@ def _blocks(chunk: list[str], first: int, path: Path) -> list[_Block]:
             if mr and float(mr.group(1)) > 0:
                 step = 1.0 / float(mr.group(1))
         if not step or not step > 0:
-            raise format_error(FORMAT, path, "no time step ('spaced at ... sec' or "
-                               "'at ... pts/sec')", number, line)
+            raise FormatError(FORMAT, path, "no time step ('spaced at ... sec' or "
+                              "'at ... pts/sec')", number, line)
         mu = _UNITS.search(line)
         unit_text = mu.group(1).rstrip(".") if mu else ""
         mf = _FORTRAN.search(line)
@@ -333,21 +343,21 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     lines = path.read_text(encoding="latin-1").splitlines()
     channels = _split_channels(lines, path)
     if all(ch.volume == 3 for ch in channels):
-        raise format_error(FORMAT, path, "a Volume 3 file holds response spectra, not an "
-                           "acceleration record; read it with read_csmip_spectra", 1, lines[0])
+        raise FormatError(FORMAT, path, "a Volume 3 file holds response spectra, not an "
+                          "acceleration record; read it with read_csmip_spectra", 1, lines[0])
     given = user_units(units, where)
     records = []
     for ch in channels:
         acc = next((b for b in ch.blocks if b.kind == "accel"), None)
         if acc is None:
-            raise format_error(FORMAT, path, "the channel has no acceleration data block",
-                               ch.first_line, ch.lines[0])
+            raise FormatError(FORMAT, path, "the channel has no acceleration data block",
+                              ch.first_line, ch.lines[0])
         label = f"{where} (channel starting at line {ch.first_line})"
         try:
             file_units = canonical_units(acc.unit_text)
         except RecordError:
-            raise format_error(FORMAT, path, f"units {acc.unit_text!r} are not units of "
-                               "acceleration", acc.line, ch.lines[acc.line - ch.first_line]) from None
+            raise FormatError(FORMAT, path, f"units {acc.unit_text!r} are not units of "
+                              "acceleration", acc.line, ch.lines[acc.line - ch.first_line]) from None
         rec_units = resolve_units(file_units, given, label)
         check_dt(dt, acc.dt, label, "its data block")
         check_samples(acc.values, label)
@@ -407,8 +417,8 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
     out = []
     for ch in _split_channels(lines, path):
         if ch.volume != 2:
-            raise format_error(FORMAT, path, "not a Volume 2 (corrected) channel", ch.first_line,
-                               ch.lines[0])
+            raise FormatError(FORMAT, path, "not a Volume 2 (corrected) channel", ch.first_line,
+                              ch.lines[0])
         meta, component, _ = _meta(ch, path)
         series = {}
         for b in ch.blocks:
@@ -418,8 +428,8 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
                 series[{"veloc": "vel", "displ": "disp"}[b.kind]] = \
                     b.values * _si_factor(b.unit_text, b.kind, path, b.line)
         if "acc" not in series:
-            raise format_error(FORMAT, path, "the channel has no acceleration data block",
-                               ch.first_line, ch.lines[0])
+            raise FormatError(FORMAT, path, "the channel has no acceleration data block",
+                              ch.first_line, ch.lines[0])
         dt = next(b.dt for b in ch.blocks if b.kind == "accel")
         out.append(CsmipSeries(component, dt, series["acc"], series.get("vel", np.empty(0)),
                                series.get("disp", np.empty(0)), meta))
@@ -430,7 +440,7 @@ def _si_factor(unit_text: str, what: str, path: Path, line: int) -> float:
     """Factor from a data block's units to SI (m/s², m/s or m)."""
     f = _factor(unit_text, what)
     if f is None:
-        raise format_error(FORMAT, path, f"unknown units {unit_text!r}", line)
+        raise FormatError(FORMAT, path, f"unknown units {unit_text!r}", line)
     return f
 
 
@@ -498,27 +508,27 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
     out = []
     for ch in _split_channels(lines, path):
         if ch.volume != 3:
-            raise format_error(FORMAT, path, "not a Volume 3 (spectra) channel", ch.first_line,
-                               ch.lines[0])
+            raise FormatError(FORMAT, path, "not a Volume 3 (spectra) channel", ch.first_line,
+                              ch.lines[0])
         m = _NPER.search(ch.lines[0])
         if not m:
-            raise format_error(FORMAT, path, "no '(N periods' in the first line", ch.first_line,
-                               ch.lines[0])
+            raise FormatError(FORMAT, path, "no '(N periods' in the first line", ch.first_line,
+                              ch.lines[0])
         n = int(m.group(1))
         text = "\n".join(ch.lines).lower()
         inches = "inches" in text and "fraction of g" in text
         if not inches:
-            raise format_error(FORMAT, path, "the spectra's units are not stated as inches and "
-                               "seconds, Sa in fraction of g", ch.first_line, ch.lines[0])
+            raise FormatError(FORMAT, path, "the spectra's units are not stated as inches and "
+                              "seconds, Sa in fraction of g", ch.first_line, ch.lines[0])
         four = next((k for k, ln in enumerate(ch.lines) if ln.lower().startswith("fourier")), None)
         if four is None:
-            raise format_error(FORMAT, path, "no 'Fourier amplitude spectra' line", ch.first_line)
+            raise FormatError(FORMAT, path, "no 'Fourier amplitude spectra' line", ch.first_line)
         n_lines = -(-100 // 8)  # periods: 100 values, 8 a line, just before the Fourier block
         periods = fixed_width(ch.lines[four - n_lines:four], n, 10, 8, fmt=FORMAT, path=path,
                               first_line=ch.first_line + four - n_lines)
         if np.any(periods <= 0) or np.any(np.diff(periods) <= 0):
-            raise format_error(FORMAT, path, "periods must be > 0 and increasing",
-                               ch.first_line + four - n_lines)
+            raise FormatError(FORMAT, path, "periods must be > 0 and increasing",
+                              ch.first_line + four - n_lines)
         damp, sd, sv, sa, psv = [], [], [], [], []
         for k, line in enumerate(ch.lines):
             ms = _SPEC_LINE.match(line)
@@ -526,15 +536,15 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
                 continue
             # 100 values an array take 12.5 lines; each array starts on a new line (13 lines)
             per = [fixed_width(ch.lines[k + 1 + 13 * j:], n, 10, 8, fmt=FORMAT, path=path,
-                               first_line=ch.first_line + k + 1 + 13 * j) for j in range(4)]
+                              first_line=ch.first_line + k + 1 + 13 * j) for j in range(4)]
             damp.append(float(ms.group(1)))
             sd.append(per[0] * 0.0254)
             sv.append(per[1] * 0.0254)
             sa.append(per[2] * STANDARD_GRAVITY)
             psv.append(per[3] * 0.0254)
         if not damp:
-            raise format_error(FORMAT, path, "no 'Damping = ... Data of Sd,Sv,Sa,...' line",
-                               ch.first_line)
+            raise FormatError(FORMAT, path, "no 'Damping = ... Data of Sd,Sv,Sa,...' line",
+                              ch.first_line)
         meta, component, _ = _meta(ch, path)
         meta["source"] = where
         out.append(PublishedSpectrum(component, periods, np.array(damp), np.array(sd),

@@ -15,8 +15,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import (FormatError, check_dt, head_lines, make_record, numbers, read_lines,
-                      units_factor)
+from ._agency import head_lines, make_record, numbers, read_lines, units_factor
+from ._common import FormatError, check_dt
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -134,7 +134,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
             raise FormatError(FORMAT, path, f"#SampleRate {rate[0]} Hz disagrees with the time "
                               f"column's step {step:g} s", line=rate[1])
         step = header_step
-    step = check_dt(step, dt, path, FORMAT)
+    step = check_dt(dt, step, path, f"the {FORMAT} header",
+                    fmt=FORMAT, path=path)
     length = get("recordlength")
     if length is not None and numbers(length[0]):
         need = int(round(numbers(length[0])[0] / step))

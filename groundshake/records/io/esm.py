@@ -15,7 +15,7 @@ from pathlib import Path
 from ..._errors import RecordError
 from .._record import Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, format_error, free_numbers, iso_time,
+from ._common import (check_dt, check_samples, FormatError, free_numbers, iso_time,
                       orientation_metadata, resolve_units, to_si, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -61,10 +61,10 @@ def _header(lines: list[str], path: Path) -> tuple[dict, dict, int]:
         try:
             float(s.split()[0])
         except ValueError:
-            raise format_error(FORMAT, path, "neither a 'KEY: value' line nor a number", i + 1,
-                               line, part="header line") from None
+            raise FormatError(FORMAT, path, "neither a 'KEY: value' line nor a number", i + 1,
+                              line, part="header line") from None
         return values, where, i
-    raise format_error(FORMAT, path, "the header is not followed by any data")
+    raise FormatError(FORMAT, path, "the header is not followed by any data")
 
 
 def _number(values, where, key, path, *, positive=True) -> float | None:
@@ -74,11 +74,11 @@ def _number(values, where, key, path, *, positive=True) -> float | None:
     try:
         v = float(text)
     except ValueError:
-        raise format_error(FORMAT, path, f"{key} {text!r} is not a number", where[key],
-                           f"{key}: {text}", part="header line") from None
+        raise FormatError(FORMAT, path, f"{key} {text!r} is not a number", where[key],
+                          f"{key}: {text}", part="header line") from None
     if not math.isfinite(v) or (positive and v <= 0):
-        raise format_error(FORMAT, path, f"{key} must be a number > 0", where[key],
-                           f"{key}: {text}", part="header line")
+        raise FormatError(FORMAT, path, f"{key} must be a number > 0", where[key],
+                          f"{key}: {text}", part="header line")
     return v
 
 
@@ -115,32 +115,32 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     values, where, first = _header(lines, path)
     for key in _NEEDED:
         if not values.get(key):
-            raise format_error(FORMAT, path, f"the header has no {key} value")
+            raise FormatError(FORMAT, path, f"the header has no {key} value")
     kind = values.get("DATA_TYPE", "ACCELERATION").upper()
     if kind and "ACCELERATION" not in kind:
-        raise format_error(FORMAT, path, f"DATA_TYPE {kind}: only acceleration files are "
-                           "records", where["DATA_TYPE"], f"DATA_TYPE: {kind}", part="header line")
+        raise FormatError(FORMAT, path, f"DATA_TYPE {kind}: only acceleration files are "
+                          "records", where["DATA_TYPE"], f"DATA_TYPE: {kind}", part="header line")
     step = _number(values, where, "SAMPLING_INTERVAL_S", path)
     check_dt(dt, step, label, "its SAMPLING_INTERVAL_S header")
     npts = _number(values, where, "NDATA", path)
     if npts != int(npts):
-        raise format_error(FORMAT, path, "NDATA must be a whole number", where["NDATA"],
-                           f"NDATA: {values['NDATA']}", part="header line")
+        raise FormatError(FORMAT, path, "NDATA must be a whole number", where["NDATA"],
+                          f"NDATA: {values['NDATA']}", part="header line")
     npts = int(npts)
     try:
         file_units = canonical_units(values["UNITS"])
     except RecordError:
-        raise format_error(FORMAT, path, f"UNITS {values['UNITS']!r} are not units of "
-                           "acceleration", where["UNITS"], f"UNITS: {values['UNITS']}",
-                           part="header line") from None
+        raise FormatError(FORMAT, path, f"UNITS {values['UNITS']!r} are not units of "
+                          "acceleration", where["UNITS"], f"UNITS: {values['UNITS']}",
+                          part="header line") from None
     rec_units = resolve_units(file_units, user_units(units, label), label)
     body = [ln for ln in lines[first:]]
     data = free_numbers(body, npts, fmt=FORMAT, path=path, first_line=first + 1)
     extra = len(" ".join(body).split()) - npts
     if extra:
-        raise format_error(FORMAT, path, f"NDATA={npts} but the file holds {npts + extra} "
-                           "samples", where["NDATA"], f"NDATA: {values['NDATA']}",
-                           part="header line")
+        raise FormatError(FORMAT, path, f"NDATA={npts} but the file holds {npts + extra} "
+                          "samples", where["NDATA"], f"NDATA: {values['NDATA']}",
+                          part="header line")
     check_samples(data, label)
 
     stream = values.get("STREAM", "")

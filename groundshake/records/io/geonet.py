@@ -16,7 +16,7 @@ from pathlib import Path
 from ..._errors import RecordError
 from .._record import Record
 from .._units import UNITS, canonical_units
-from ._common import (check_dt, check_samples, fixed_width, format_error,
+from ._common import (check_dt, check_samples, fixed_width, FormatError,
                       orientation_metadata, resolve_units, to_si, unique_names, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -83,9 +83,9 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
               if _FIRST.match(lines[i]) and _SITE.match(lines[i + 1])]
     if not starts or any(s.strip() for s in lines[:starts[0]]):
         k = next((n for n, s in enumerate(lines) if s.strip()), 0)
-        raise format_error(FORMAT, path, "expected 'Uncorrected accelerogram' or 'Corrected "
-                           "accelerogram' and a 'Site' line to start a component", k + 1,
-                           lines[k] if lines else "")
+        raise FormatError(FORMAT, path, "expected 'Uncorrected accelerogram' or 'Corrected "
+                          "accelerogram' and a 'Site' line to start a component", k + 1,
+                          lines[k] if lines else "")
     records = []
     for i, j in zip(starts, starts[1:] + [len(lines)]):
         rec, end = _component(lines[:j], i, path, given, dt)
@@ -100,8 +100,8 @@ def _component(lines, i, path, given, dt):
     joined = "\n".join(text)
     label = f"{where} (component starting at line {first})"
     if len(text) < _TEXT_LINES:
-        raise format_error(FORMAT, path, f"the component ends inside its {_TEXT_LINES} text lines",
-                           first)
+        raise FormatError(FORMAT, path, f"the component ends inside its {_TEXT_LINES} text lines",
+                          first)
     ints = fixed_width(lines[i + _TEXT_LINES:], _INT_LINES * _PER, _WIDTH, _PER, fmt=FORMAT,
                        path=path, first_line=i + _TEXT_LINES + 1)
     start_reals = i + _TEXT_LINES + _INT_LINES
@@ -110,34 +110,34 @@ def _component(lines, i, path, given, dt):
     mu = _UNITS.search(joined)
     if not mu:
         k = next((n for n, t in enumerate(text) if "units" in t.lower()), 0)
-        raise format_error(FORMAT, path, "no '... in units of ... at intervals of ... s' line",
-                           first + k, text[k], part="header line")
+        raise FormatError(FORMAT, path, "no '... in units of ... at intervals of ... s' line",
+                          first + k, text[k], part="header line")
     scale = float(mu.group(1)) if mu.group(1) else 1.0
     try:
         file_units = canonical_units(mu.group(2))
     except RecordError:
-        raise format_error(FORMAT, path, f"units {mu.group(2)!r} are not units of acceleration",
-                           first, text[0], part="header line") from None
+        raise FormatError(FORMAT, path, f"units {mu.group(2)!r} are not units of acceleration",
+                          first, text[0], part="header line") from None
     rec_units = resolve_units(file_units, given, label)
     step = float(mu.group(3))
     if not step > 0:
-        raise format_error(FORMAT, path, f"interval {step:g} s must be > 0", first,
-                           part="header line")
+        raise FormatError(FORMAT, path, f"interval {step:g} s must be > 0", first,
+                          part="header line")
     check_dt(dt, step, label, "its header")
     counts = [int(v) for v in ints[30:33]]  # points of acceleration, velocity, displacement
     if any(v != int(v) or v < 0 for v in ints[30:33]):
-        raise format_error(FORMAT, path, "integer header values 31-33 (points of acceleration, "
-                           "velocity, displacement) are not counts", i + _TEXT_LINES + 4,
-                           lines[i + _TEXT_LINES + 3])
+        raise FormatError(FORMAT, path, "integer header values 31-33 (points of acceleration, "
+                          "velocity, displacement) are not counts", i + _TEXT_LINES + 4,
+                          lines[i + _TEXT_LINES + 3])
     mn = _NPTS.search(joined)
     n_acc = counts[0] or (int(mn.group(1)) if mn else 0)
     if n_acc <= 0:
-        raise format_error(FORMAT, path, "no number of points", first, part="header line")
+        raise FormatError(FORMAT, path, "no number of points", first, part="header line")
     if mn and counts[0] and int(mn.group(1)) != counts[0]:
         k = next(n for n, t in enumerate(text) if _NPTS.search(t))
-        raise format_error(FORMAT, path, f"'Number of points' says {mn.group(1)} but integer "
-                           f"header value 31 says {counts[0]}", first + k, text[k],
-                           part="header line")
+        raise FormatError(FORMAT, path, f"'Number of points' says {mn.group(1)} but integer "
+                          f"header value 31 says {counts[0]}", first + k, text[k],
+                          part="header line")
     data_start = start_reals + _REAL_LINES
     acc = fixed_width(lines[data_start:], n_acc, _WIDTH, _PER, fmt=FORMAT, path=path,
                       first_line=data_start + 1) * scale
@@ -148,9 +148,9 @@ def _component(lines, i, path, given, dt):
             end += -(-n // _PER)
     extra = [k for k in range(end, len(lines)) if lines[k].strip()]
     if extra:
-        raise format_error(FORMAT, path, f"more data lines than the header's counts "
-                           f"({', '.join(str(c) for c in counts)} points) announce",
-                           extra[0] + 1, lines[extra[0]])
+        raise FormatError(FORMAT, path, f"more data lines than the header's counts "
+                          f"({', '.join(str(c) for c in counts)} points) announce",
+                          extra[0] + 1, lines[extra[0]])
     meta: dict = {"format": FORMAT}
     ms = _SITE.match(text[1])
     station = ms.group(1) if ms else path.stem

@@ -18,7 +18,7 @@ from pathlib import Path
 from ..._errors import RecordError
 from .._record import Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, format_error, free_numbers,
+from ._common import (check_dt, check_samples, FormatError, free_numbers,
                       orientation_metadata, resolve_units, to_si, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -77,21 +77,21 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     where = str(path)
     lines = path.read_text(encoding="latin-1").splitlines()
     if len(lines) < 5:
-        raise format_error(FORMAT, path, "the four header lines and data are needed; the file "
-                           f"has {len(lines)} lines")
+        raise FormatError(FORMAT, path, "the four header lines and data are needed; the file "
+                          f"has {len(lines)} lines")
     kind = _KIND.match(lines[2])
     if not kind or kind.group(1).upper() != "ACCELERATION":
-        raise format_error(FORMAT, path, "not an acceleration time series (a .VT2 or .DT2 file?)",
-                           3, lines[2], part="header line")
+        raise FormatError(FORMAT, path, "not an acceleration time series (a .VT2 or .DT2 file?)",
+                          3, lines[2], part="header line")
     m = _UNITS.search(lines[2])
     if not m:
-        raise format_error(FORMAT, path, "no 'IN UNITS OF ...'", 3, lines[2], part="header line")
+        raise FormatError(FORMAT, path, "no 'IN UNITS OF ...'", 3, lines[2], part="header line")
     unit_text = m.group(1).rstrip(". ")
     try:
         file_units = canonical_units(unit_text)
     except RecordError:
-        raise format_error(FORMAT, path, f"units {unit_text!r} are not units of acceleration",
-                           3, lines[2], part="header line") from None
+        raise FormatError(FORMAT, path, f"units {unit_text!r} are not units of acceleration",
+                          3, lines[2], part="header line") from None
     rec_units = resolve_units(file_units, user_units(units, where), where)
     mn, md = _NPTS.search(lines[3]), _DT.search(lines[3])
     old = _OLD_NPTS_DT.search(lines[3])
@@ -100,22 +100,22 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     elif old:
         npts_text, dt_text = old.group(1), old.group(2)
     else:
-        raise format_error(FORMAT, path, "no NPTS= and DT=", 4, lines[3], part="header line")
+        raise FormatError(FORMAT, path, "no NPTS= and DT=", 4, lines[3], part="header line")
     npts = int(npts_text)
     try:
         step = float(dt_text)
     except ValueError:
-        raise format_error(FORMAT, path, f"DT {dt_text!r} is not a number", 4, lines[3],
-                           part="header line") from None
+        raise FormatError(FORMAT, path, f"DT {dt_text!r} is not a number", 4, lines[3],
+                          part="header line") from None
     if not step > 0:
-        raise format_error(FORMAT, path, f"DT={step:g} s must be > 0", 4, lines[3],
-                           part="header line")
+        raise FormatError(FORMAT, path, f"DT={step:g} s must be > 0", 4, lines[3],
+                          part="header line")
     check_dt(dt, step, where, "its DT= header")
     data = free_numbers(lines[4:], npts, fmt=FORMAT, path=path, first_line=5)
     extra = " ".join(lines[4:]).split()[npts:]
     if extra:
-        raise format_error(FORMAT, path, f"NPTS={npts} but the file holds {npts + len(extra)} "
-                           "values", 4, lines[3], part="header line")
+        raise FormatError(FORMAT, path, f"NPTS={npts} but the file holds {npts + len(extra)} "
+                          "values", 4, lines[3], part="header line")
     check_samples(data, where)
 
     parts = [p.strip() for p in lines[1].split(",")]

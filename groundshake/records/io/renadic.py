@@ -16,8 +16,8 @@ from pathlib import Path
 import numpy as np
 
 from .._record import STANDARD_GRAVITY
-from ._agency import (FormatError, check_dt, head_lines, make_record, numbers, read_lines,
-                      units_factor, volume1_data)
+from ._agency import head_lines, make_record, numbers, read_lines, units_factor, volume1_data
+from ._common import FormatError, check_dt
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -119,7 +119,8 @@ def _channel(lines, s, end, path, units, dt):
         if math.isclose(length_step, step, rel_tol=1e-3):
             step = length_step
     step = float(f"{step:.6g}")
-    step = check_dt(step, dt, path, FORMAT)
+    step = check_dt(dt, step, path, f"the {FORMAT} header",
+                    fmt=FORMAT, path=path)
     meta: dict = {"channel_number": int(_CHAN.match(lines[s + 6]).group(1))}
     station = lines[s + 5].split()[0] if lines[s + 5].split() else path.stem
     meta["station_line"] = lines[s + 5].strip()

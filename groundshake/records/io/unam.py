@@ -15,8 +15,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import (FormatError, check_dt, check_units, head_lines, make_record, numbers, read_lines,
-                      units_factor, warn)
+from ._agency import (check_units, head_lines, make_record, numbers, read_lines, units_factor,
+                      warn)
+from ._common import FormatError, check_dt
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -125,7 +126,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         raise FormatError(FORMAT, path, "no 'UNIDADES DE LOS DATOS' line; give the units (--units)")
     check_units(file_units, units, path, FORMAT)
     for step in step_values:
-        check_dt(step, dt, path, FORMAT)
+        check_dt(dt, step, path, f"the {FORMAT} header", fmt=FORMAT, path=path)
     width = 10
     fmt_line = find("FORMATO")
     if fmt_line:
@@ -179,7 +180,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
 
     records = []
     for k in range(nch):
-        step = check_dt(step_values[k], dt, path, FORMAT)
+        step = check_dt(dt, step_values[k], path, f"the {FORMAT} header",
+                        fmt=FORMAT, path=path)
         md = dict(meta)
         try:
             if k < len(peaks):

@@ -13,8 +13,8 @@ import math
 import re
 from pathlib import Path
 
-from ._agency import (FormatError, check_dt, fixed_width, head_lines, make_record, numbers,
-                      read_lines, units_factor)
+from ._agency import head_lines, make_record, numbers, read_lines, units_factor
+from ._common import FormatError, check_dt, fixed_width
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -113,12 +113,13 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     except ValueError:
         raise FormatError(FORMAT, path, f"time step {m.group(3)!r} is not a number",
                           line=start + 1, text=lines[start]) from None
-    step = check_dt(step, dt, path, FORMAT)
+    step = check_dt(dt, step, path, f"the {FORMAT} header",
+                    fmt=FORMAT, path=path)
     file_units, factor = units_factor(m.group(4), fmt=FORMAT, path=path, line=start + 1)
     n_lines = math.ceil(n / _PER_LINE)
     body = lines[start + 1:start + 1 + n_lines]
-    values = fixed_width(body, count=n, width=_WIDTH, fmt=FORMAT, path=path,
-                         first_line=start + 2, per_line=_PER_LINE)
+    values = fixed_width(body, n, _WIDTH, _PER_LINE, fmt=FORMAT, path=path,
+                         first_line=start + 2)
     for key, short in (("ACCELERATION", "pga"), ("VELOCITY", "pgv"), ("DISPLACEMENT", "pgd")):
         if key in peaks:
             pm, line = peaks[key]

@@ -15,7 +15,7 @@ import re
 from pathlib import Path
 
 from .._record import Record
-from ._common import (check_dt, check_samples, fixed_width, format_error,
+from ._common import (check_dt, check_samples, fixed_width, FormatError,
                       orientation_metadata, resolve_units, to_si, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -87,22 +87,22 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     lines = path.read_text(encoding="latin-1").splitlines()
     m = _FIRST.match(lines[0]) if lines else None
     if not m or m.group(3).upper() != "ACCELEROGRAM":
-        raise format_error(FORMAT, path, "only acceleration files (line 1 '... ACCELEROGRAM') "
-                           "are records", 1, lines[0] if lines else "", part="header line")
+        raise FormatError(FORMAT, path, "only acceleration files (line 1 '... ACCELEROGRAM') "
+                          "are records", 1, lines[0] if lines else "", part="header line")
     ints = fixed_width(lines[_TEXT:], _INTS, 10, 8, fmt=FORMAT, path=path, first_line=_TEXT + 1)
     r0 = _TEXT + 6
     reals = fixed_width(lines[r0:], _REALS, 15, 5, fmt=FORMAT, path=path, first_line=r0 + 1)
     rate = _real(reals, 2)
     if not rate or rate <= 0:
-        raise format_error(FORMAT, path, "no sample rate (real header value 2)", r0 + 1,
-                           lines[r0], part="header line")
+        raise FormatError(FORMAT, path, "no sample rate (real header value 2)", r0 + 1,
+                          lines[r0], part="header line")
     step = 1.0 / rate
     check_dt(dt, step, where, "its sample rate (real header value 2)")
     rec_units = resolve_units(_UNITS, user_units(units, where), where)
     npts = _int(ints, 17)
     if not npts or npts <= 0:
-        raise format_error(FORMAT, path, "no number of samples (integer header value 17)",
-                           _TEXT + 3, lines[_TEXT + 2], part="header line")
+        raise FormatError(FORMAT, path, "no number of samples (integer header value 17)",
+                          _TEXT + 3, lines[_TEXT + 2], part="header line")
     k = r0 + 10
     n_comments = _int(ints, 16) or 0
     k += n_comments
