@@ -100,7 +100,7 @@ def test_run_writes_every_file_with_the_contract_keys(run_dir):
     for key in ("scenario", "records", "model", "analysis", "stresses", "base", "floor_spectra",
                 "provenance"):
         assert key in s, key
-    assert s["scenario"]["analysis"]["method"] == "modal"        # defaults echoed
+    assert s["scenario"]["analysis"]["method"] == "auto"         # defaults echoed
     assert "not a code capacity check" in s["equipment"]["box"]["fp"]["note"]
     assert any(str(Path(run_dir[0]).resolve()) in k or k.endswith("case.toml")
                for k in s["provenance"]["inputs"])

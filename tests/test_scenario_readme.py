@@ -73,7 +73,7 @@ INTERNALS_DEFAULTS = {
     "damping.ratio_percent": "5", "damping.rayleigh_hz": "none",
     "equipment[].frequency_hz": "none", "equipment[].anchors": "[]",
     "equipment[].dead_load_factor": "0.9", "equipment[].capacity": "none", "equipment[].fp": "none",
-    "analysis.method": '"modal"', "analysis.cutoff_hz": "50", "analysis.modes": "none",
+    "analysis.method": '"auto"', "analysis.cutoff_hz": "50", "analysis.modes": "none",
     "analysis.hht_alpha": "0", "analysis.solver": '"auto"',
     "floor_spectra.damping_percent": "[2, 5]", "floor_spectra.broadening_percent": "15",
     "floor_spectra.periods.min": "0.02", "floor_spectra.periods.max": "5",

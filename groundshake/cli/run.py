@@ -22,7 +22,8 @@ def register(subparsers, parents) -> None:
     p.add_argument("-o", "--output", metavar="DIR", required=True,
                    help="output folder to create")
     p.add_argument("--force", action="store_true", help="replace DIR if it exists")
-    p.add_argument("--method", choices=("modal", "direct", "spectrum"), default=None,
+    p.add_argument("--method", choices=("auto", "modal", "coupled", "direct", "spectrum"),
+                   default=None,
                    help="override [analysis] method")
     p.add_argument("--no-report", action="store_true",
                    help="write summary.json and the CSV tables only (no report.html)")

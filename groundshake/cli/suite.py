@@ -31,7 +31,7 @@ def register(subparsers, parents) -> None:
                      help="local worker processes (default: the CPU count)")
     grp.add_argument("--scheduler", default=None, metavar="ADDRESS",
                      help="dask.distributed scheduler address, e.g. tcp://10.0.0.5:8786")
-    p.add_argument("--method", choices=("modal", "direct"), default=None,
+    p.add_argument("--method", choices=("auto", "modal", "coupled", "direct"), default=None,
                    help="override [analysis] method")
     p.add_argument("--target", default=None, metavar="SPEC",
                    help="target spectrum drawn with the ground-spectra band")

@@ -98,8 +98,8 @@ def _factor_of(A, solver):
 
 def lowest_modes(K, M, *, n_modes: int, factor=None, shift: float = 0.0,
                  solver: Literal["auto", "scipy", "pardiso"] = "auto",
-                 method: Literal["lanczos", "block", "amg"] = "lanczos",
-                 tol: float = 1e-10, ncv: int | None = None):
+                 method: Literal["auto", "lanczos", "block", "amg"] = "auto",
+                 tol: float = 1e-10, ncv: int | None = None, stats: dict | None = None):
     """The ``n_modes`` lowest eigenpairs of K φ = λ M φ.
 
     Parameters
@@ -108,10 +108,14 @@ def lowest_modes(K, M, *, n_modes: int, factor=None, shift: float = 0.0,
         definite (use a small negative ``shift`` [rad²/s²] for a free body).
     factor : a factorization of K − shift·M with ``.solve`` (built if None).
     method : ``"lanczos"`` (ARPACK shift-invert through scipy.sparse.linalg.eigsh),
-        ``"block"`` (block Krylov subspace with multi-column solves) or ``"amg"``
+        ``"block"`` (block shift-invert Lanczos with multi-column solves; ARPACK if it
+        does not converge), ``"auto"`` (block above 3,000 unknowns, else lanczos) or ``"amg"``
         (LOBPCG preconditioned by smoothed-aggregation algebraic multigrid, pyamg:
         no factorization, for models whose factor would not fit; K must be positive
         definite, so not for a free body).
+    stats : dict, optional
+        Filled with the block solver's times [s] (``solve_s``, ``orth_s``, ``ritz_s``) and
+        counts (``solves``, ``columns``, ``dim``, ``max_residual``).
 
     Returns
     -------
@@ -121,6 +125,8 @@ def lowest_modes(K, M, *, n_modes: int, factor=None, shift: float = 0.0,
     k = int(n_modes)
     if k < 1:
         raise InputError(f"n_modes: given {n_modes}; allowed >= 1")
+    if method == "auto":
+        method = "block" if n > 3000 else "lanczos"
     if method == "amg" and n > max(3 * k, 200):
         lam, phi = _amg_lobpcg(K, M, k, tol)
         return _normalised(lam, phi, M)
@@ -130,7 +136,8 @@ def lowest_modes(K, M, *, n_modes: int, factor=None, shift: float = 0.0,
     if n <= max(3 * k, 200):  # small: dense is exact and quick
         lam, phi = sla.eigh((K - shift * M).toarray() if shift else K.toarray(), M.toarray())
         lam, phi = lam[:k] + shift, phi[:, :k]
-    elif method == "block" and (out := _block_krylov(K, M, k, factor, shift, tol)) is not None:
+    elif method == "block" and (out := _block_krylov(K, M, k, factor, shift, tol,
+                                                     stats=stats)) is not None:
         lam, phi = out
     else:
         op = spla.LinearOperator((n, n), matvec=factor.solve, dtype=float)
@@ -190,59 +197,108 @@ def _normalised(lam, phi, M):
     return lam, phi
 
 
-def _block_krylov(K, M, k, factor, shift, tol, *, block=None, max_dim=None):
+def _block_krylov(K, M, k, factor, shift, tol, *, block=None, max_dim=None,
+                  stats: dict | None = None):
     """Block shift-invert Lanczos with full reorthogonalisation (no restart).
 
-    Works with A = (K − σM)⁻¹M, self-adjoint in the M inner product. The basis V is
-    M-orthonormal; AV is kept, so T = Vᵀ M (AV) gives the Ritz values θ = 1/(λ − σ) and
-    each Ritz pair's residual ‖Ay − θy‖_M needs no extra solve. A step is one solve
-    with a block of b right-hand sides, which a direct solver does faster per column
-    than b single solves (the cost that dominates ARPACK's shift-invert mode).
-    Converged when ‖Ay − θy‖_M ≤ 100·tol·θ for the k wanted pairs. Returns None when
+    Works with A = (K − σM)⁻¹M, self-adjoint in the M inner product. Blocks Q_j of b
+    M-orthonormal columns span the Krylov space of A; each step is one solve with b
+    right-hand sides (a direct solver does that faster per column than b single solves:
+    the factor is read once, BLAS-3 uses every core), then A Q_j is M-orthogonalised
+    against the basis V: first against the last two blocks (in exact arithmetic the only
+    components), then once against the whole basis (rounding). The projection T = Vᵀ M A V is built from the
+    orthogonalisation coefficients, so no product with the whole basis is repeated.
+    With W_{j+1} the orthogonalised remainder of A Q_j (Gram matrix G = Wᵀ M W), a Ritz
+    pair (θ, y = V c) has the residual ‖A y − θ y‖_M = ‖G^½ c_j‖ (c_j: the entries of c
+    on the last block), so convergence costs nothing extra. Converged when that is at
+    most 100·tol·θ for the k wanted pairs (the largest θ = 1/(λ − σ)). Returns None when
     ``max_dim`` columns were not enough (the caller falls back to ARPACK).
+
+    References: Golub & Underwood (1977), The block Lanczos method for computing
+    eigenvalues; Grimes, Lewis & Simon (1994), SIAM J. Matrix Anal. Appl. 15(1)
+    (shifted block Lanczos for vibration problems).
     """
+    import time
     n = K.shape[0]
-    b = block or int(min(max(8, (k + 1) // 2 + 4), 40))
-    max_dim = max_dim or int(min(n - 1, max(10 * k, 12 * b, 200)))
+    b = int(block or 10)
+    # (np.empty: columns never written cost no memory)
+    max_dim = int(max_dim or min(n - 1, max(16 * k, 16 * b, 200)))
+    st = stats if stats is not None else {}
+    st.update(solve_s=0.0, orth_s=0.0, ritz_s=0.0, solves=0, columns=0)
     rng = np.random.default_rng(12345)
+    t0 = time.perf_counter()
     W = factor.solve(M @ rng.standard_normal((n, b)))
-    blocks_v: list[np.ndarray] = []
-    blocks_av: list[np.ndarray] = []
-    V = np.zeros((n, 0))
+    st["solve_s"] += time.perf_counter() - t0
+    st["solves"] += 1
+    st["columns"] += b
+    V = np.empty((n, max_dim))
+    MQ = np.empty((n, 0))                  # M times the last two blocks (not the whole basis)
+    T = np.zeros((max_dim, max_dim))
     tol_r = max(tol, 1e-12) * 1e2
-    while V.shape[1] + b <= max_dim:
-        MW = M @ W
-        for _p in range(2):  # M-orthogonalise against V, twice
-            if V.shape[1]:
-                Cw = V.T @ MW
-                W = W - V @ Cw
-                MW = MW - M @ (V @ Cw) if _p == 0 else M @ W
-        G = W.T @ MW
+    d = 0                                  # columns in the basis
+    p0 = 0                                 # first column of the previous block
+    skip, last, n_step = 0, None, 0        # convergence checks skipped, last (residual, step)
+    t0 = time.perf_counter()
+    MW = M @ W
+    G = W.T @ MW
+    while True:
         G = 0.5 * (G + G.T)
         w, U = np.linalg.eigh(G)
         good = w > max(w.max(), 1e-300) * 1e-13
-        if not good.any():
+        if not good.any() or d + int(good.sum()) > max_dim:
             return None
         Sc = U[:, good] / np.sqrt(w[good])
-        Q = W @ Sc
-        AQ = factor.solve(MW @ Sc)
-        blocks_v.append(Q)
-        blocks_av.append(AQ)
-        V = np.hstack(blocks_v)
-        if V.shape[1] >= k:
-            AV = np.hstack(blocks_av)
-            T = V.T @ (M @ AV)
-            T = 0.5 * (T + T.T)
-            theta, C = np.linalg.eigh(T)
+        nb = Sc.shape[1]
+        j0, d = d, d + nb
+        V[:, j0:d] = W @ Sc
+        MQj = MW @ Sc
+        MQ = np.hstack([MQ[:, MQ.shape[1] - (j0 - p0):], MQj]) if j0 > p0 else MQj
+        st["orth_s"] += time.perf_counter() - t0
+        t0 = time.perf_counter()
+        AQ = factor.solve(MQj)
+        st["solve_s"] += time.perf_counter() - t0
+        st["solves"] += 1
+        st["columns"] += nb
+        n_step += 1
+        t0 = time.perf_counter()
+        # first pass against the last two blocks only (in exact arithmetic A Q_j has no
+        # other component), then one pass against the whole basis for rounding
+        H1 = MQ.T @ AQ                       # MQ = M V[:, p0:d]
+        W = AQ - V[:, p0:d] @ H1
+        H = V[:, :d].T @ (M @ W)             # (d, nb): column block of T = Vᵀ M A V
+        W -= V[:, :d] @ H
+        H[p0:d] += H1
+        T[:d, j0:d] = H
+        T[j0:d, :d] = H.T
+        p0 = j0
+        del AQ
+        MW = M @ W
+        G = W.T @ MW
+        st["orth_s"] += time.perf_counter() - t0
+        skip -= 1
+        if d >= 2 * k + b and skip <= 0:     # Lanczos rarely converges k pairs sooner
+            t0 = time.perf_counter()
+            Td = 0.5 * (T[:d, :d] + T[:d, :d].T)
+            theta, C = np.linalg.eigh(Td)
             theta, C = theta[::-1][:k], C[:, ::-1][:, :k]
-            Y = V @ C
-            R = AV @ C - Y * theta
-            res = np.sqrt(np.maximum(np.einsum("ij,ij->j", R, M @ R), 0.0)) / np.abs(theta)
+            Cl = C[j0:d]                      # coefficients on the last block
+            Gs = 0.5 * (G + G.T)
+            res = np.sqrt(np.maximum(np.sum((Cl.T @ Gs) * Cl.T, axis=1), 0.0)) / np.abs(theta)
+            st["ritz_s"] += time.perf_counter() - t0
+            st["max_residual"] = rmax = float(res.max())
+            # the residual falls about geometrically with the steps: from the last two
+            # checks, skip the steps that cannot reach the tolerance yet (at most 3)
+            if last is not None and 0 < rmax < last[0] and rmax > tol_r:
+                rate = (rmax / last[0]) ** (1.0 / max(1, n_step - last[1]))
+                skip = int(min(3, max(0, np.floor(np.log(tol_r / rmax) / np.log(rate)) - 1)))
+            last = (rmax, n_step)
             if np.all(res <= tol_r):
+                t0 = time.perf_counter()
+                Y = V[:, :d] @ C
+                st["ritz_s"] += time.perf_counter() - t0
+                st["dim"] = d
                 return shift + 1.0 / theta, Y
-            del AV
-        W = AQ
-    return None
+        t0 = time.perf_counter()
 
 
 def mass_captured_warnings(cumulative: np.ndarray, excited=(True, True, True), *,
@@ -260,7 +316,7 @@ def mass_captured_warnings(cumulative: np.ndarray, excited=(True, True, True), *
 
 
 def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None = None,
-                  method: Literal["lanczos", "block", "amg"] = "lanczos",
+                  method: Literal["auto", "lanczos", "block", "amg"] = "auto",
                   excited=(True, True, True), warn: bool = True) -> Modes:
     """Lowest modes of a :class:`~groundshake.model.BlockModel`.
 
@@ -281,12 +337,13 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     fac = None if method == "amg" else model.factor()
     t_factor = time.perf_counter() - t0
     n = model.n_dof
+    st: dict = {}               # the block solver's own times (its last call)
     K, M = model.K, model.M
     if n_modes is not None:
         if int(n_modes) < 1:
             raise InputError(f"analysis.modes: given {n_modes}; allowed >= 1")
         k = min(int(n_modes), n if n <= 200 else n - 1)  # all modes only by dense eigh
-        lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method)
+        lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method, stats=st)
     else:
         fc = cutoff_hz if cutoff_hz is not None else (model.cutoff_hz or 50.0)
         if not fc > 0:
@@ -294,7 +351,7 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
         lam_c = (2 * np.pi * fc) ** 2
         k = min(12, n - 1)
         while True:
-            lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method)
+            lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method, stats=st)
             if lam[-1] > lam_c or k >= n - 1 or k >= _MAX_MODES:
                 break
             k = min(2 * k, n - 1, _MAX_MODES)
@@ -337,5 +394,17 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     return Modes(omega=omega, frequency=freq, period=period, shapes=phi,
                  participation=gamma, effective_mass=meff, effective_mass_ratio=ratio,
                  cumulative_ratio=cum, damping=damping, total_mass=total, warnings=msgs,
-                 solver=f"{getattr(fac, 'kind', '')} + {method}",
-                 timings={"factor": t_factor, "eigen": t_eig}, rigid_mass=rigid)
+                 solver=f"{getattr(fac, 'kind', '')} + {_used(method, n, st)}",
+                 timings={"factor": t_factor, "eigen": t_eig,
+                          **{f"eigen_{k}": v for k, v in st.items()
+                             if k in ("solve_s", "orth_s", "ritz_s")}},
+                 rigid_mass=rigid)
+
+
+def _used(method: str, n: int, st: dict) -> str:
+    """The eigen-solver that gave the modes (``auto`` resolved, ARPACK fallback named)."""
+    if method == "auto":
+        method = "block" if n > 3000 else "lanczos"
+    if method == "block" and st and "dim" not in st:
+        return "block, then lanczos (ARPACK) as fallback"
+    return method

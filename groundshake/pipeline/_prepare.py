@@ -37,7 +37,7 @@ def prepare_model(scenario, *, method: str | None = None) -> PreparedModel:
     Parameters
     ----------
     scenario : Scenario
-    method : {"modal", "direct"}, optional
+    method : {"auto", "modal", "coupled", "direct"}, optional
         Overrides ``analysis.method``; no missing-mass shapes for "direct".
     """
     model = build_model(scenario)
@@ -50,7 +50,7 @@ def prepare_model(scenario, *, method: str | None = None) -> PreparedModel:
                               n_modes=n_req, excited=tuple(d in comps for d in DIRECTIONS),
                               warn=False)
     residual = None
-    if (method or analysis.method) == "modal":
+    if (method or analysis.method) in ("auto", "modal", "coupled"):
         residual = residual_vectors(model.M, model.influence, np.asarray(modes.shapes),
                                     np.asarray(modes.participation), model.factor().solve,
                                     load=model.ground_load)

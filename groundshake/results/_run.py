@@ -19,6 +19,7 @@ from .._errors import GroundshakeWarning, InputError
 from ..processing import intensity_measures
 from ..spectra import parse_target
 from .._progress import Progress
+from ..dynamics._coupled import coupled_response
 from ..dynamics._damping import damping_matrix, modal_damping_matrix
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modes import compute_modes
@@ -101,7 +102,8 @@ class _Response:
 
 
 def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
-            method: Literal["modal", "direct"] = "modal", cutoff_hz: float | None = None,
+            method: Literal["modal", "coupled", "direct"] = "modal",
+            cutoff_hz: float | None = None,
             hht_alpha: float = 0.0, missing_mass: bool = True, stresses: bool = True,
             progress: bool = False, residual: np.ndarray | None = None) -> _Response:
     """Response of the model to the motion, for the rows of ``output`` (k, n).
@@ -118,7 +120,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     S = sp.csr_matrix(model.stress)
     n_el = S.shape[0] // 6          # stress points (rows of six components)
     info: dict = {}
-    if method == "modal":
+    if method in ("modal", "coupled"):
         shapes = np.asarray(modes.shapes)
         gam = np.asarray(modes.participation)
         if not missing_mass:
@@ -128,7 +130,20 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                                         model.factor().solve,
                                         load=getattr(model, "ground_load", None))
         t0 = _time.perf_counter()
-        if getattr(model, "is_classically_damped", True):
+        if method == "coupled":   # the whole damping matrix on modes + missing-mass vectors
+            load = getattr(model, "ground_load", None)
+            if load is None:
+                load = model.M @ model.influence
+            r = coupled_response(model.K, model.M, damping_matrix(model, modes=modes), shapes,
+                                 residual, load, ag, dt,
+                                 damping_update=model.damping_update()
+                                 if hasattr(model, "damping_update") else None)
+            info["modal_damping"] = "whole damping matrix on the reduced basis"
+            info["reduced_basis"] = {"modes": int(shapes.shape[1]),
+                                     "missing_mass_vectors": int(r.shapes.shape[1]
+                                                                 - shapes.shape[1])}
+            info["rayleigh_hz"] = getattr(model, "rayleigh_used_hz", None)
+        elif getattr(model, "is_classically_damped", True):
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
         else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
@@ -150,9 +165,10 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                 peaks = modal_stress_peaks(r.coefficients(S), Z, n_el, progress=bar)
         info.update(n_modes=int(shapes.shape[1]), missing_mass=residual is not None,
                     timings={"time_history": t1 - t0, "stress_peaks": _time.perf_counter() - t1})
-        return _Response("modal", u, v, a, node_peak, peaks, r.assumptions, info)
+        return _Response(method, u, v, a, node_peak, peaks, r.assumptions, info)
     if method != "direct":
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct'")
+        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'coupled', "
+                         "'direct'")
     n_sub = substeps_for(dt, cutoff_hz)
     peaks = StressPeaks.empty(n_el) if (stresses and n_el) else None
 
@@ -220,7 +236,7 @@ def _get(obj, key, default=None):
 
 # --------------------------------------------------------------------------- the run
 def analyse(scenario, *, progress: bool = True,
-            method: Literal["modal", "direct", "spectrum"] | None = None,
+            method: Literal["auto", "modal", "coupled", "direct", "spectrum"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario on a given motion: model, modes, response and every result.
@@ -231,7 +247,7 @@ def analyse(scenario, *, progress: bool = True,
         From :func:`groundshake.load_scenario`.
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
-    method : {"modal", "direct", "spectrum"}, optional
+    method : {"auto", "modal", "coupled", "direct", "spectrum"}, optional
         Overrides ``analysis.method``. ``"spectrum"`` is response-spectrum analysis of
         ``[motion] target`` (records are not read; ``time`` and ``histories`` stay empty).
     motion : Motion
@@ -299,18 +315,18 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         return dt_
 
     analysis = _get(scenario, "analysis")
-    method = method or _get(analysis, "method", "modal") or "modal"
+    method = method or _get(analysis, "method", "auto") or "auto"
     if method == "spectrum":            # the design spectrum, no records
         if motion is not None:
             raise InputError("analysis.method: 'spectrum' takes the design spectrum of "
-                             "[motion] target, not records; allowed 'modal' or 'direct' with "
-                             "a given motion")
+                             "[motion] target, not records; allowed 'auto', 'modal', "
+                             "'coupled' or 'direct' with a given motion")
         return spectrum_analyse(scenario, progress=progress, model=model, modes=modes,
                                 stresses=stresses, collected=collected, residual=residual,
                                 timings=timings, analyse=analyse)
-    if method not in ("modal", "direct"):
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'direct', "
-                         "'spectrum'")
+    if method not in ("auto", "modal", "coupled", "direct"):
+        raise InputError(f"analysis.method: given {method!r}; allowed 'auto', 'modal', "
+                         "'coupled', 'direct', 'spectrum'")
     cutoff = _get(analysis, "cutoff_hz", 50.0)
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
@@ -322,6 +338,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     if model is None:
         model = build_model(scenario)
     timings["model"] = _tick()
+    if method == "auto":    # non-classical damping: the whole damping matrix, modal cost
+        method = "modal" if getattr(model, "is_classically_damped", True) else "coupled"
     if modes is None:
         with Progress("modes", total=None, enabled=progress):
             modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
@@ -721,7 +739,7 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
         # quasi-statically to any real ground motion anyway
         above = ((freq > f_band) & (freq <= RIGID_HZ)
                  & np.any((ratio >= 0.05) & excited[None, :], axis=1))
-        if method == "modal" and np.any(above):
+        if method in ("modal", "coupled") and np.any(above):
             share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
                                  * excited))
             collected.append(
@@ -739,19 +757,19 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                            / (total - rigid), 1.0)
         low = [f"{d} {100 * cum[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
                if excited[j] and cum[j] < 0.9]
-        if low and method == "modal" and f_hi < f_band:
+        if low and method in ("modal", "coupled") and f_hi < f_band:
             collected.append("Retained modal mass below 90 % of the mass free to move ("
                              + ", ".join(low) + ") while the modes left out start within the "
                              f"motion's band (the highest kept is {f_hi:.3g} Hz, the band reaches "
                              f"{f_band:.3g} Hz): the missing-mass correction treats them "
                              "statically; raise cutoff_hz or modes (ASCE 7-16 §12.9.1.1 asks "
                              "for 90 %).")
-        f_model = f_hi if method == "modal" else max(f_hi, float(cutoff or 0.0))
+        f_model = f_hi if method in ("modal", "coupled") else max(f_hi, float(cutoff or 0.0))
         f_use = min(f_model, f_band)
     else:
         f_use = min(float(cutoff or 0.0), f_band)
         collected.append("No mode below the cutoff: the block responds quasi-statically "
-                         "(missing mass only)." if method == "modal" else
+                         "(missing mass only)." if method in ("modal", "coupled") else
                          "No mode below the cutoff.")
     # elements per shear wavelength at the highest frequency retained
     try:

@@ -335,10 +335,12 @@ class Sensor:
 class AnalysisSettings:
     """The ``[analysis]`` table."""
 
-    method: Literal["modal", "direct", "spectrum"] = spec(
-        "choice", "modal", choices=("modal", "direct", "spectrum"),
-        doc="modal superposition with missing mass, direct integration, or response-spectrum "
-            "analysis of [motion] target (CQC, missing mass at the ZPA)")
+    method: Literal["auto", "modal", "coupled", "direct", "spectrum"] = spec(
+        "choice", "auto", choices=("auto", "modal", "coupled", "direct", "spectrum"),
+        doc="auto: coupled where damping is non-classical (soil or equipment dashpots), "
+            "else modal; modal superposition with missing mass; coupled: the whole damping "
+            "matrix on the modes and missing-mass vectors; direct integration; or "
+            "response-spectrum analysis of [motion] target (CQC, missing mass at the ZPA)")
     direction_combination: Literal["srss", "100-40-40"] = spec(
         "choice", "srss", choices=("srss", "100-40-40"),
         doc="spectrum method: how the peaks of ground x, y, z are combined")

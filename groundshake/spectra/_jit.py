@@ -314,75 +314,170 @@ def _visit(i, n, u1, u2, cs, sn, out, prev_i, prev_al):
 
 _NCLASS = 16    # length classes of the candidates (counting sort)
 _FIRST = 0.36   # candidates first: squared length at least 0.36 of the largest (0.6 R)
+_NSEC = 16      # direction sectors of a sample (mod 180°), 11.25° each
+_SEC_W = 180.0 / _NSEC
+# tan of the sector edges in the first quadrant: 11.25°, 22.5°, ... 78.75°
+_SEC_TAN = np.tan(np.deg2rad(_SEC_W * np.arange(1, _NSEC // 2)))
+_SEC_REFRESH = 64   # visits between refreshes of the sector bounds
+
+
+def sector_reach(na: int) -> np.ndarray:
+    """(_NSEC, na): 1 / max |cos(θ_k − ψ)| over ψ in each sector (widened by 0.01° on
+    each side, which covers the rounding of :func:`_sector`); angles θ_k = k° for k < na."""
+    th = np.arange(na, dtype=float)
+    lo = np.arange(_NSEC)[:, None] * _SEC_W - 0.01
+    hi = lo + _SEC_W + 0.02
+    d = np.abs(((th[None, :] - lo) + 90.0) % 180.0 - 90.0)      # distance to each edge
+    d = np.minimum(d, np.abs(((th[None, :] - hi) + 90.0) % 180.0 - 90.0))
+    inside = ((th[None, :] - lo) % 180.0) <= (hi - lo)
+    d = np.where(inside, 0.0, d)
+    c = np.cos(np.deg2rad(d))
+    return 1.0 / np.maximum(c, 1e-300)
+
+
+_REACH = sector_reach(180)
+
+
+@njit(cache=True, nogil=True)
+def _sector(a, b):
+    """The sector (0.._NSEC-1) of the direction of (a, b) modulo 180°, by comparisons."""
+    x = abs(a)
+    y = abs(b)
+    k = 0
+    for t in _SEC_TAN:
+        k += y > x * t
+    if (a >= 0.0) == (b >= 0.0):
+        return k
+    return _NSEC - 1 - k
+
+
+@njit(cache=True, nogil=True)
+def _sector_bounds(out, reach, bnd2):
+    """bnd2[s] = (min_k out[k]·reach[s, k])²: a sample of sector s no longer than that
+    cannot raise any rotated peak (|projection| ≤ r·max|cos| ≤ out[k] at every k).
+    For angles other than 0..179° (no ``reach``) every sector gets (min_k out[k])²."""
+    na = out.size
+    if reach.shape[1] != na:
+        m = np.inf
+        for k in range(na):
+            m = min(m, out[k])
+        for s in range(_NSEC):
+            bnd2[s] = m * m * (1.0 - 1e-12)
+        return
+    for s in range(_NSEC):
+        m = np.inf
+        for k in range(na):
+            m = min(m, out[k] * reach[s, k])
+        bnd2[s] = m * m * (1.0 - 1e-12)
+
+
+_RCH = 16       # samples per chunk of the rotated-peak search
+
+
+@njit(cache=True, nogil=True)
+def _visit_chunk(c0, c1, n, u1, u2, r2, cs, sn, out, reach, bnd2, low2, state):
+    """Visit the samples c0..c1-1 that the bounds cannot rule out; ``state`` holds
+    (previous sample visited, its segment direction, visits since the last refresh)."""
+    for i in range(c0, c1):
+        if r2[i] > low2 and r2[i] > bnd2[_sector(u1[i], u2[i])]:
+            state[1] = _visit(i, n, u1, u2, cs, sn, out, int(state[0]), state[1])
+            state[0] = i
+            state[2] += 1
+            if state[2] >= _SEC_REFRESH:
+                _sector_bounds(out, reach, bnd2)
+                state[2] = 0
+
+
+@njit(cache=True, nogil=True)
+def _lowest(bnd2):
+    low2 = bnd2[0]
+    for s in range(1, _NSEC):
+        low2 = min(low2, bnd2[s])
+    return low2
 
 
 @njit(cache=True, nogil=True, error_model="numpy")
 def rotated_peaks(u1, u2, cs, sn, out):
     """out[k] = max_i |u1[i]·cos k° + u2[i]·sin k°| for k = 0..len(cs)-1 (1° steps), exactly.
 
-    Two exact prunings. (1) For any angle the maximum over samples is a local maximum
+    Three exact prunings. (1) For any angle the maximum over samples is a local maximum
     in time of |projection|, so an interior sample can hold it only at the angles
     whose direction e satisfies e·(u_i - u_{i-1}) ≥ 0 ≥ e·(u_{i+1} - u_i) (or the
-    reverse): an arc as wide as the curve's turn at that sample. (2) Samples at least
-    0.6 of the longest are visited longest first (counting sort into length classes),
-    then the rest in time order; a sample no longer than the smallest running peak L
-    cannot raise any, so whole classes below L are skipped.
+    reverse): an arc as wide as the curve's turn at that sample. (2) Chunks of 16
+    samples whose longest is at least 0.6 of the longest of all are visited longest
+    first (counting sort into length classes), then the rest in time order; a chunk no
+    longer than the bound below is skipped whole. (3) A sample of length r whose
+    direction lies in a sector (11.25° wide, found by comparisons) projects on angle k
+    at most r·max|cos(k − sector)|: when that is no more than the running peak at every
+    k the sample cannot raise any peak and is skipped (the bounds per sector are
+    refreshed as the peaks grow; the smallest of them bounds a whole chunk).
     """
+    reach = _REACH
     n = u1.size
     na = cs.size
     for k in range(na):
         out[k] = 0.0
     if n == 0:
         return
+    n_ch = (n + _RCH - 1) // _RCH
     r2 = np.empty(n)
+    cm2 = np.empty(n_ch)
     rmax2 = 0.0
-    for i in range(n):
-        r2[i] = u1[i] * u1[i] + u2[i] * u2[i]
-        rmax2 = max(rmax2, r2[i])
+    for j in range(n_ch):
+        c0 = j * _RCH
+        c1 = min(n, c0 + _RCH)
+        m = 0.0
+        for i in range(c0, c1):
+            v = u1[i] * u1[i] + u2[i] * u2[i]
+            r2[i] = v
+            m = max(m, v)
+        cm2[j] = m
+        rmax2 = max(rmax2, m)
     if rmax2 == 0.0:
         return
     thr2 = _FIRST * rmax2
     scale = _NCLASS / (rmax2 - thr2)
     count = np.zeros(_NCLASS + 1, np.int64)
-    for i in range(n):
-        if r2[i] >= thr2:
-            c = min(_NCLASS - 1, int((rmax2 - r2[i]) * scale))
+    for j in range(n_ch):
+        if cm2[j] >= thr2:
+            c = min(_NCLASS - 1, int((rmax2 - cm2[j]) * scale))
             count[c + 1] += 1
     for c in range(_NCLASS):
         count[c + 1] += count[c]
     order = np.empty(count[_NCLASS], np.int64)
     fill = count[:_NCLASS].copy()
-    for i in range(n):
-        if r2[i] >= thr2:
-            c = min(_NCLASS - 1, int((rmax2 - r2[i]) * scale))
-            order[fill[c]] = i
+    for j in range(n_ch):
+        if cm2[j] >= thr2:
+            c = min(_NCLASS - 1, int((rmax2 - cm2[j]) * scale))
+            order[fill[c]] = j
             fill[c] += 1
+    bnd2 = np.zeros(_NSEC)
+    state = np.array([-2.0, np.nan, 0.0])
     low2 = 0.0
-    prev_i = -2
-    prev_al = np.nan
     for c in range(_NCLASS):
-        low = out[0]
-        for k in range(1, na):
-            low = min(low, out[k])
-        low2 = low * low
+        if state[2] > 0:                         # peaks raised since the last refresh
+            _sector_bounds(out, reach, bnd2)
+            state[2] = 0
+            low2 = _lowest(bnd2)
         if rmax2 - c / scale <= low2:            # the whole class is no longer than L
             break
         for m in range(count[c], count[c + 1]):
-            i = order[m]
-            if r2[i] > low2:
-                prev_al = _visit(i, n, u1, u2, cs, sn, out, prev_i, prev_al)
-                prev_i = i
-    low = out[0]
-    for k in range(1, na):
-        low = min(low, out[k])
-    low2 = low * low
+            j = order[m]
+            if cm2[j] > low2:
+                _visit_chunk(j * _RCH, min(n, (j + 1) * _RCH), n, u1, u2, r2, cs, sn, out,
+                             reach, bnd2, low2, state)
+                low2 = _lowest(bnd2)
+    _sector_bounds(out, reach, bnd2)
+    state[2] = 0
+    low2 = _lowest(bnd2)
     if low2 >= thr2:
         return
-    prev_i = -2
-    for i in range(n):
-        if r2[i] > low2 and r2[i] < thr2:
-            prev_al = _visit(i, n, u1, u2, cs, sn, out, prev_i, prev_al)
-            prev_i = i
+    state[0] = -2.0
+    for j in range(n_ch):
+        if cm2[j] > low2 and cm2[j] < thr2:
+            _visit_chunk(j * _RCH, min(n, (j + 1) * _RCH), n, u1, u2, r2, cs, sn, out,
+                         reach, bnd2, low2, state)
+            low2 = _lowest(bnd2)
 
 
 @njit(cache=True, nogil=True, fastmath={"contract"})
@@ -405,6 +500,27 @@ def _history_tm(row, S, H):
             H[i + 1, j] = xn
 
 
+@njit(cache=True, nogil=True, fastmath={"contract"})
+def _history_om(row, S, H):
+    """Displacement histories of NB oscillators, one row each of H (NB, n_t), packed S
+    (the same steps as :func:`_history_tm`, stored oscillator by oscillator)."""
+    for j in range(NB):
+        H[j, 0] = 0.0
+        S[_RX * NB + j] = 0.0
+        S[_RV * NB + j] = 0.0
+    for i in range(row.size - 1):
+        f0 = row[i]
+        f1 = row[i + 1]
+        for j in range(NB):
+            xo = S[_RX * NB + j]
+            vo = S[_RV * NB + j]
+            xn = S[j] * xo + S[NB + j] * vo + S[4 * NB + j] * f0 + S[5 * NB + j] * f1
+            S[_RV * NB + j] = S[2 * NB + j] * xo + S[3 * NB + j] * vo + S[6 * NB + j] * f0 \
+                + S[7 * NB + j] * f1
+            S[_RX * NB + j] = xn
+            H[j, i + 1] = xn
+
+
 @njit(cache=True, nogil=True)
 def _rotd_block(acc1, acc2, coef, k0, k1, cs, sn, out):
     n = acc1.size
@@ -412,17 +528,12 @@ def _rotd_block(acc1, acc2, coef, k0, k1, cs, sn, out):
     for r in range(8):
         for j in range(k1 - k0):
             S[r * NB + j] = coef[r, k0 + j]
-    H1 = np.empty((n, NB))
-    H2 = np.empty((n, NB))
-    _history_tm(acc1, S, H1)
-    _history_tm(acc2, S, H2)
-    u1 = np.empty(n)
-    u2 = np.empty(n)
+    H1 = np.empty((NB, n))
+    H2 = np.empty((NB, n))
+    _history_om(acc1, S, H1)
+    _history_om(acc2, S, H2)
     for j in range(k1 - k0):
-        for i in range(n):
-            u1[i] = H1[i, j]
-            u2[i] = H2[i, j]
-        rotated_peaks(u1, u2, cs, sn, out[k0 + j])
+        rotated_peaks(H1[j], H2[j], cs, sn, out[k0 + j])
 
 
 @njit(cache=True, nogil=True)
