@@ -12,6 +12,7 @@ import numpy as np
 from .._errors import InputError
 from ..dynamics._motion import DIRECTIONS, Motion
 from ..matching import match_record_to_target
+from ..matching._match import _shift_iso   # one helper for ISO times moved by a pad
 from ..processing import correct_record, resample
 from ..records import read_record
 from ..records._components import pick_component
@@ -128,16 +129,3 @@ def build_motion(scenario: Any) -> Motion:
     return Motion(acc=acc, dt=float(dt), components=tuple(d for d in DIRECTIONS if d in used),
                   raw=raw, corrected=used, notes=tuple(notes), matching=matching,
                   pad_before=float(lead))
-
-
-def _shift_iso(text: str, seconds: float) -> str:
-    """An ISO 8601 time moved by ``seconds`` ("" stays "", unreadable text unchanged)."""
-    from datetime import datetime, timedelta
-
-    if not text or not seconds:
-        return text
-    try:
-        t = datetime.fromisoformat(text.replace("Z", "+00:00"))
-    except ValueError:
-        return text
-    return (t + timedelta(seconds=seconds)).isoformat()
