@@ -64,6 +64,9 @@ LAYER_ALLOW = {
     "groundshake.suite._run -> groundshake.records",             # reading a set: over pipeline/
     "groundshake.suite._run -> groundshake.scenario",            # one run: over pipeline/
     "groundshake.suite._run -> groundshake.spectra",             # statistics: over pipeline/
+    "groundshake.suite._run -> groundshake.spectra._scaling",    # set scaling: over pipeline/
+    "groundshake.suite._scale -> groundshake.spectra",           # set scaling: over pipeline/
+    "groundshake.suite._scale -> groundshake.spectra._scaling",  # set scaling: over pipeline/
 }
 
 # Today's import cycles, each as the sorted tuple of its modules. Shrink only.

@@ -35,6 +35,22 @@ def register(subparsers, parents) -> None:
                    help="override [analysis] method")
     p.add_argument("--target", default=None, metavar="SPEC",
                    help="target spectrum drawn with the ground-spectra band")
+    p.add_argument("--scale-to", default=None, metavar="TARGET",
+                   help="scale each record set to this target spectrum before it runs "
+                        "(asce7:..., en1998:... or a CSV of period [s], PSA [g]); the results "
+                        "are then combined by the rule: the mean with 7 or more sets, else the "
+                        "maximum. Overrides [suite] scale_to")
+    p.add_argument("--scale-rule", choices=("asce7-16", "asce7-10", "en1998"), default=None,
+                   help="period band, share of the target and horizontal spectrum of the "
+                        "scaling (default asce7-16; from memory of the standards, verify)")
+    p.add_argument("--scale-mode", choices=("record", "set"), default=None,
+                   help="record: each set fitted to the target first, then one common factor "
+                        "(default); set: one common factor for all sets")
+    p.add_argument("--scale-range", default=None, metavar="LOW,HIGH",
+                   help="warn about scale factors outside this range (default 0.25,4)")
+    p.add_argument("--scale-period", type=float, default=None, metavar="S",
+                   help="fundamental period [s] that sets the scaling band (default: the "
+                        "model's first mode)")
     p.add_argument("--set-timeout", type=float, default=None, metavar="S",
                    help="time limit of one record set [s]; a set past it is reported failed "
                         "(default: 120 s + 1e-6 s x DOFs x record samples, x10 on the second "
@@ -73,6 +89,7 @@ def _suite(args) -> int:
     comps = tuple(scenario.motion.components()) if scenario.motion is not None else ("x", "y", "z")
     if args.dt is not None and not args.dt > 0:
         raise InputError(f"--dt {args.dt}: must be > 0")
+    scaling = _scaling_of(args, scenario)
     sets = discover_record_sets(args.records, components=comps, units=args.units, dt=args.dt)
     quiet = bool(getattr(args, "quiet", False))
     bar = Progress("records", total=len(sets)) if not quiet else None
@@ -83,12 +100,13 @@ def _suite(args) -> int:
         result = run_suite(scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
                            resume=args.resume, method=args.method,
                            set_timeout="auto" if args.set_timeout is None else args.set_timeout,
-                           retries=args.retries,
+                           retries=args.retries, scaling=scaling,
                            on_result=(lambda r: bar.advance()) if bar is not None else None)
     finally:
         if bar is not None:
             bar.__exit__(None, None, None)
-    write_suite_outputs(result, scenario, target=args.target)
+    write_suite_outputs(result, scenario,
+                        target=args.target or (scaling.target if scaling is not None else None))
     doc_path = out / "suite.json"
     if getattr(args, "json", False):
         import json
@@ -96,8 +114,56 @@ def _suite(args) -> int:
     else:
         rows = [(r["record"], r["status"], r.get("error", "")) for r in result.records]
         print(table(rows, ["record set", "status", "error"]))
+        if result.scaling is not None:
+            print("\n" + "\n".join(scaling_lines(result.scaling)))
         print(f"\n{result.engine.line()}")
         print(f"{len(result.records) - result.n_failed} ok, {result.n_failed} failed; "
               f"wrote {doc_path} and {out / 'suite.html'}")
         print("For screening only — not a design or a code check.")
     return 1 if result.n_failed else 0
+
+
+def _scaling_of(args, scenario):
+    """The scaling asked for: the command line's options over the scenario's ``[suite]``."""
+    from ..suite._scale import SuiteScaling
+
+    base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
+    options = (args.scale_rule, args.scale_mode, args.scale_range, args.scale_period)
+    if args.scale_to is None and base is None:
+        if any(v is not None for v in options):
+            raise InputError("--scale-rule/--scale-mode/--scale-range/--scale-period: given "
+                             "without a target; add --scale-to TARGET (or [suite] scale_to)")
+        return None
+    limits = base.limits if base is not None else (0.25, 4.0)
+    if args.scale_range is not None:
+        parts = str(args.scale_range).split(",")
+        try:
+            limits = tuple(float(v) for v in parts)
+        except ValueError:
+            limits = ()
+        if len(limits) != 2:
+            raise InputError(f"--scale-range {args.scale_range}: allowed two numbers LOW,HIGH "
+                             "with 0 < LOW < HIGH, e.g. 0.25,4")
+    return SuiteScaling(
+        target=args.scale_to if args.scale_to is not None else base.target,
+        rule=args.scale_rule or (base.rule if base is not None else "asce7-16"),
+        mode=args.scale_mode or (base.mode if base is not None else "record"),
+        limits=limits,
+        period=args.scale_period if args.scale_period is not None
+        else (base.period if base is not None else None))
+
+
+def scaling_lines(doc: dict) -> list[str]:
+    """The scale-factor table and the combination rule, for the terminal."""
+    lo, hi = doc["range"]
+    rows = [(f["record"], f"{f['factor']:.4g}", f"{f['own']:.4g}",
+             "" if f["in_range"] else f"outside {lo:g}-{hi:g}") for f in doc["factors"]]
+    lines = [f"scaled to {doc['target_label']} by {doc['rule']} ({doc['source']}):",
+             f"  mean {doc['spectrum'].split(' (')[0]} >= {100 * doc['share']:g} % of the target "
+             f"over {doc['band'][0]:.3g}-{doc['band'][1]:.3g} s (T = {doc['period_s']:.3g} s, "
+             f"{doc['period_from']});",
+             f"  mode {doc['mode']}, common factor {doc['set_factor']:.4g}",
+             table(rows, ["record set", "factor", "own fit", "note"])]
+    if "combination" in doc:
+        lines.append(f"results combined by the {doc['combination']}: {doc['combination_note']}")
+    return lines

@@ -31,6 +31,7 @@ __all__ = [
     "AnalysisSettings",
     "PeriodRange",
     "FloorSpectraSettings",
+    "SuiteSettings",
     "RECORD_UNITS",
 ]
 
@@ -379,6 +380,27 @@ class FloorSpectraSettings:
                                 doc="period range {min, max, count}")
 
 
+@dataclass(frozen=True, kw_only=True)
+class SuiteSettings:
+    """The ``[suite]`` table: used by ``groundshake suite`` only (its options override it)."""
+
+    scale_to: str | None = spec("target", None,
+                                doc="scale each record set to this target before it runs "
+                                    "(same forms as motion.target); none = records as given")
+    scale_rule: Literal["asce7-16", "asce7-10", "en1998"] = spec(
+        "choice", "asce7-16", choices=("asce7-16", "asce7-10", "en1998"),
+        doc="scaling band, share of the target and horizontal spectrum (from memory of the "
+            "standards)")
+    scale_mode: Literal["record", "set"] = spec(
+        "choice", "record", choices=("record", "set"),
+        doc="record: each set fitted first, then one common factor; set: one common factor")
+    scale_range: tuple[float, ...] = spec("numbers", (0.25, 4.0), gt=0.0,
+                                          doc="[low, high]: factors outside are warned about")
+    scale_period: float | None = spec("number", None, gt=0.0, unit="s",
+                                      doc="fundamental period that sets the band; none = the "
+                                          "model's first mode")
+
+
 # --- the scenario ------------------------------------------------------------------------
 
 @dataclass(frozen=True, kw_only=True)
@@ -410,6 +432,8 @@ class Scenario:
                                       doc="analysis")
     floor_spectra: FloorSpectraSettings = spec("table", factory=FloorSpectraSettings,
                                                cls=FloorSpectraSettings, doc="floor spectra")
+    suite: SuiteSettings | None = spec("table", None, cls=SuiteSettings,
+                                       doc="record suites: scaling to a target")
     source: str = _internal("<dict>")
     base_dir: Path = _internal(factory=Path.cwd)
     notes: tuple[str, ...] = _internal(())

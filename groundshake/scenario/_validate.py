@@ -31,6 +31,7 @@ def _build(data: Any, ctx: _Context) -> Scenario:
     _check_damping(values, ctx)
     _check_motion(values, ctx)
     _check_floor_spectra(values, ctx)
+    _check_suite(values, ctx)
     values["equipment"] = _complete_equipment(values, ctx)
     _check_names(values, "sensors", ctx)
     _geometry.check_geometry(values, ctx)
@@ -222,6 +223,17 @@ def _check_motion(values, ctx):
     if m.target_z is not None and m.target is None:
         raise ctx.bad(("motion", "target_z"), m.target_z, "a vertical target only beside a "
                       "horizontal target")
+
+
+def _check_suite(values, ctx):
+    st = values.get("suite")
+    if st is None:
+        return
+    r = st.scale_range
+    if len(r) != 2 or not r[0] < r[1]:
+        raise ctx.bad(("suite", "scale_range"), list(r), "two numbers [low, high], 0 < low < high")
+    if st.scale_to is not None:
+        _check_target(st.scale_to, ("suite", "scale_to"), ctx)
 
 
 def _components_of_file(m: MotionSettings, ctx) -> MotionSettings:

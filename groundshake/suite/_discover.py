@@ -73,6 +73,9 @@ class RecordSet:
         Units of every file of the set (None: from the file, or the suite's ``--units``).
     dt : float or None
         Time step [s] for one-column text files (None: from the file).
+    factor : float
+        Amplitude factor of the whole set from scaling to a target (1.0: not scaled);
+        it multiplies every component's ``scale``.
     """
 
     name: str
@@ -80,16 +83,21 @@ class RecordSet:
     scale: Mapping[str, float] = field(default_factory=dict)
     units: str | None = None
     dt: float | None = None
+    factor: float = 1.0
+
+    def scales(self) -> dict[str, float]:
+        """Component → the factor its record is multiplied by (``scale`` × ``factor``)."""
+        return {c: float(self.scale.get(c, 1.0)) * float(self.factor) for c in self.files}
 
     def to_dict(self) -> dict:
         return {"name": self.name, "files": dict(self.files),
                 "scale": {c: float(self.scale.get(c, 1.0)) for c in self.files},
-                "units": self.units, "dt": self.dt}
+                "units": self.units, "dt": self.dt, "factor": float(self.factor)}
 
     @classmethod
     def from_dict(cls, d: Mapping) -> "RecordSet":
         return cls(name=str(d["name"]), files=dict(d["files"]), scale=dict(d.get("scale", {})),
-                   units=d.get("units"), dt=d.get("dt"))
+                   units=d.get("units"), dt=d.get("dt"), factor=float(d.get("factor", 1.0)))
 
 
 def _component_of(path: Path) -> tuple[str, str] | None:

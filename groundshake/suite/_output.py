@@ -75,6 +75,26 @@ def _band_panels(spec: dict, key: str, names: Sequence[str], target=None) -> lis
     return panels
 
 
+def _scaling_html(doc: dict, esc, table) -> str:
+    """A plain paragraph and table: the rule, the band, each set's factor, the combination."""
+    lo, hi = doc["range"]
+    text = (f"<p>Each record set was scaled to {esc(doc['target_label'])} by the rule "
+            f"{esc(doc['rule'])} ({esc(doc['source'])}): the mean of the sets' "
+            f"{esc(doc['spectrum'])} at {100 * doc['damping']:g} % damping reaches "
+            f"{100 * doc['share']:g} % of the target at every period from "
+            f"{doc['band'][0]:.3g} s to {doc['band'][1]:.3g} s (T = {doc['period_s']:.3g} s, "
+            f"{esc(doc['period_from'])}; least ratio {doc['least_ratio']:.3f}). Mode "
+            f"{esc(doc['mode'])}; common factor {doc['set_factor']:.4g}. {esc(doc['note'])}.</p>")
+    rows = [(f["record"], f"{f['factor']:.4g}", f"{f['own']:.4g}",
+             "yes" if f["in_range"] else f"no — outside {lo:g}–{hi:g}") for f in doc["factors"]]
+    text += table(rows, ["record set", "scale factor", "own fit", f"within {lo:g}–{hi:g}"])
+    if "combination" in doc:
+        text += (f"<p>Results combined by the <strong>{esc(doc['combination'])}</strong> over "
+                 f"{doc['count']} set(s): {esc(doc['combination_note'])} (the last column of "
+                 "the statistics below).</p>")
+    return text
+
+
 def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[Path]:
     """Write the spectra statistics (CSV, PNG) and ``suite.html`` into ``result.out_dir``.
 
@@ -116,6 +136,12 @@ def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[
     stats_rows = [(k, v.get("count"), v.get("mean"), v.get("median"), v.get("p16"), v.get("p84"),
                    v.get("max"), v.get("lognormal_median"), v.get("beta"))
                   for k, v in result.statistics.items()]
+    scaling = getattr(result, "scaling", None)
+    stats_head = ["quantity", "n", "mean", "median", "16th", "84th", "max",
+                  "log-normal median", "β (ln)"]
+    if scaling is not None and "combined" in scaling:       # the value the rule keeps
+        stats_head.append(f"combined ({scaling['combination']})")
+        stats_rows = [row + (scaling["combined"].get(row[0]),) for row in stats_rows]
     failures = [(r["record"], r.get("error", "")) for r in result.records if r.get("status") != "ok"]
     warnings_ = sorted({w for r in result.records for w in r.get("warnings", [])})
     engine = getattr(result, "engine", None)
@@ -126,9 +152,10 @@ def write_suite_outputs(result, scenario, *, target: str | None = None) -> list[
                 table([(r["record"], r["status"], ", ".join(f"{c}: {Path(f).name}" for c, f in
                                                            r.get("files", {}).items()))
                        for r in result.records], ["record set", "status", "files"])),
+        *([section("suite-scaling", "Scaling to a target", _scaling_html(scaling, esc, table))]
+          if scaling is not None else []),
         section("suite-statistics", "Statistics of the peaks (SI units)",
-                table(stats_rows, ["quantity", "n", "mean", "median", "16th", "84th", "max",
-                                   "log-normal median", "β (ln)"])),
+                table(stats_rows, stats_head)),
         section("suite-spectra", "Spectra", "".join(figures_html) or "<p>No spectra.</p>"),
         section("suite-failures", "Record failures",
                 table(failures, ["record set", "error"]) if failures

@@ -27,10 +27,11 @@ from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ._discover import RecordSet
 from ._engine import EngineReport, SuiteStalled, run_tasks
 from ._plain import from_plain, to_plain
+from ._scale import SuiteScaling, scale_record_sets
 from ._stats import peak_statistics
 
 __all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks",
-           "default_set_timeout"]
+           "default_set_timeout", "combine_by_rule"]
 
 _PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
 
@@ -196,8 +197,9 @@ def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
     try:
         scenario, model, modes = _objects(shared)
         comps = {}
+        scales = rs.scales()          # the set's own scales times its target factor
         for c, f in rs.files.items():
-            comp = {"file": f, "scale": float(rs.scale.get(c, 1.0))}
+            comp = {"file": f, "scale": scales[c]}
             if rs.units:
                 comp["units"] = rs.units
             if rs.dt:
@@ -215,7 +217,8 @@ def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
     floor = res.floor
     out = {
         "record": rs.name, "status": "ok", "files": dict(rs.files),
-        "scale": {c: float(rs.scale.get(c, 1.0)) for c in rs.files},
+        "scale": rs.scales(),
+        "target_factor": float(rs.factor),
         "peaks": scalar_peaks(s),
         "warnings": list(s.get("warnings", [])),
         "records": s.get("records", []),
@@ -242,6 +245,7 @@ class SuiteResult:
     spectra_statistics: dict = field(default_factory=dict)
     out_dir: Path | None = None
     engine: EngineReport = field(default_factory=EngineReport)
+    scaling: dict | None = None
 
     @property
     def n_failed(self) -> int:
@@ -269,7 +273,7 @@ def _load_done(out_dir: Path, sets: Sequence[RecordSet]) -> dict[str, dict]:
         except (OSError, ValueError):
             continue
         same = (r.get("status") == "ok" and r.get("files") == dict(rs.files)
-                and r.get("scale") == {c: float(rs.scale.get(c, 1.0)) for c in rs.files})
+                and r.get("scale") == rs.scales())
         if same:
             done[rs.name] = r
     return done
@@ -306,7 +310,8 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
               workers: int | None = 1, scheduler: Any = None, resume: bool = False,
               method: str | None = None, shared: Mapping[str, Any] | None = None,
               on_result: Callable[[dict], None] | None = None,
-              set_timeout: float | str | None = "auto", retries: int = 2) -> SuiteResult:
+              set_timeout: float | str | None = "auto", retries: int = 2,
+              scaling: SuiteScaling | None = None) -> SuiteResult:
     """Run every record set through the scenario's model; write as results complete.
 
     Parameters
@@ -332,6 +337,11 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
         0 or None: no limit. A set past it is reported failed, with the reason.
     retries : int
         Times a set is run again after its worker was lost.
+    scaling : SuiteScaling, optional
+        Scale each set to a target before it runs (:func:`scale_record_sets`): the
+        factor travels with the set, the factors go to ``suite.json`` ``scaling``, and
+        the peaks are combined by the rule of :func:`groundshake.spectra._scaling.set_statistic`
+        (the mean with 7 or more sets run, else the maximum), in ``scaling.combined``.
 
     Raises
     ------
@@ -344,9 +354,25 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
     names = [rs.name for rs in sets]
     if len(set(names)) != len(names):
         raise InputError("record sets: names must be unique")
-    done = _load_done(out_dir, sets) if resume else {}
-    todo = [rs for rs in sets if rs.name not in done]
+    scale_doc = None
+    unreadable: list[dict] = []
+    if scaling is not None:
+        periods = None
+        if scaling.period is None:
+            if shared is None:
+                shared = prepare_suite(scenario, method=method)
+            periods = np.asarray(from_plain(shared["modes"]).period, dtype=float)
+        scaled, unreadable, scale_doc = scale_record_sets(scenario, sets, scaling,
+                                                          mode_periods=periods)
+        by_name = {rs.name: rs for rs in scaled}
+        sets = [by_name.get(rs.name, rs) for rs in sets]
+    skip = {f["record"] for f in unreadable}
+    done = _load_done(out_dir, [rs for rs in sets if rs.name not in skip]) if resume else {}
+    todo = [rs for rs in sets if rs.name not in done and rs.name not in skip]
     results: dict[str, dict] = dict(done)
+    for r in unreadable:
+        results[r["record"]] = r
+        atomic_write_text(_record_file(out_dir, r["record"]), json_dumps(r, indent=None))
     report = EngineReport()
     limits: list = []
     if todo:
@@ -367,30 +393,62 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
                     on_result(r)
                 if time.monotonic() - last > _PROGRESS_EVERY_S:   # a progress copy
                     _write_suite_json(out_dir, scenario, sets, results, complete=False,
-                                      engine=report)
+                                      engine=report, scaling=scale_doc)
                     last = time.monotonic()
         except SuiteStalled as e:       # say so in suite.json, keep what is done
             report.notes.append(str(e))
-            _write_suite_json(out_dir, scenario, sets, results, complete=False, engine=report)
+            _write_suite_json(out_dir, scenario, sets, results, complete=False, engine=report,
+                              scaling=scale_doc)
             raise
     ordered = [results[n] for n in names if n in results]
     report.failed = sum(1 for r in ordered if r.get("status") != "ok")
     known = [x for x in limits if x is not None]
     stats = peak_statistics([r["peaks"] for r in ordered if r.get("status") == "ok"])
     spec = spectra_statistics(ordered)
+    if scale_doc is not None:
+        scale_doc = {**scale_doc, **combine_by_rule(stats, report.failed, len(ordered))}
     result = SuiteResult(records=ordered, statistics=stats, spectra_statistics=spec,
-                         out_dir=out_dir, engine=report)
+                         out_dir=out_dir, engine=report, scaling=scale_doc)
     _write_suite_json(out_dir, scenario, sets, results, complete=True, stats=stats,
-                      engine=report, set_timeout_s=({"min": min(known), "max": max(known)}
-                                                    if known else None),
+                      engine=report, scaling=scale_doc,
+                      set_timeout_s=({"min": min(known), "max": max(known)}
+                                     if known else None),
                       resumed=sorted(done), method=method, workers=workers,
                       scheduler=None if scheduler is None else str(scheduler))
     return result
 
 
+def combine_by_rule(stats: Mapping[str, Mapping], n_failed: int, n_sets: int) -> dict:
+    """How a scaled suite's peaks are combined, and the combined values.
+
+    Parameters
+    ----------
+    stats : mapping
+        :func:`peak_statistics` of the sets run (quantity → statistics).
+    n_failed, n_sets : int
+        Sets that failed, and all sets.
+
+    Returns
+    -------
+    dict
+        ``combination`` (``"mean"`` or ``"max"``), ``combination_note`` (why, with the
+        source), ``count`` (sets that ran) and ``combined`` (quantity → the mean or the
+        maximum over the sets that ran) [SI units of each quantity].
+    """
+    from ..spectra._scaling import set_statistic
+
+    n_ok = n_sets - n_failed
+    how, why = set_statistic(n_ok)
+    if n_failed:
+        why += f"; {n_failed} of {n_sets} set(s) failed and are not counted"
+    combined = {k: v[how] for k, v in stats.items() if how in v}
+    return {"combination": how, "combination_note": why, "count": n_ok, "combined": combined}
+
+
 def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
                       stats: dict | None = None, engine: EngineReport | None = None,
-                      set_timeout_s: dict | None = None, **extra) -> None:
+                      set_timeout_s: dict | None = None, scaling: dict | None = None,
+                      **extra) -> None:
     from .. import __version__
 
     records = []
@@ -414,8 +472,10 @@ def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
         "statistics_note": "over the records with status ok: sample mean, std, median, "
                            "16th/84th percentiles, min, max; log-normal median and "
                            "16th/84th (exp(mu -/+ beta)) where every value is positive",
-        "warnings": sorted({w for r in records for w in r.get("warnings", [])}),
+        "warnings": sorted({w for r in records for w in r.get("warnings", [])}
+                           | set((scaling or {}).get("warnings", []))),
         "cautions": list(CAUTIONS),
+        **({"scaling": scaling} if scaling is not None else {}),
         "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
         "provenance": {"version": __version__, **{k: v for k, v in extra.items()}},
     }
