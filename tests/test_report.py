@@ -1,5 +1,5 @@
 """The HTML report built from a run's output folder (invented folders from
-test_report_fixture.py — INVENTED TEST DATA).
+_report_fixture.py — INVENTED TEST DATA).
 
 Sources: the HTML Living Standard (WHATWG) for what a self-contained page is (data: URLs,
 RFC 2397; no external src/href) parsed by Python's html.parser as an independent
@@ -11,6 +11,8 @@ the definition of a demand/capacity ratio (common practice); the four cautions o
 trade listed in issue 6.
 """
 from __future__ import annotations
+
+import csv
 
 import base64
 import html
@@ -28,8 +30,8 @@ from groundshake.report import CAUTIONS, SECTIONS, fp_force, write_report
 from groundshake.report._figures import exterior_faces, voxel_grid
 from groundshake.report._html import esc, toml_text
 
-from test_report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
-                                 HOSTILE_TITLE, make_output_folder)
+from _report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
+                             HOSTILE_TITLE, make_output_folder)
 
 SECTION_IDS = ["inputs", "model", "modes", "results", "anchorage", "floor-spectra",
                "warnings", "cautions", "provenance"]
@@ -326,3 +328,15 @@ def test_corrected_record_is_drawn_on_the_original_time(tmp_path):
     s["records"][0]["pad_before_s"] = 2.5                       # stated: taken as given
     (out / "summary.json").write_text(json.dumps(s))
     assert _Builder(load_output(out)).pad_before("x", cols, time_for) == 2.5
+
+
+def test_fixture_grid_counts(tmp_path):
+    out = make_output_folder(tmp_path / "o")
+    with open(out / "element_peaks.csv", newline="") as fh:
+        n_el = sum(1 for _ in csv.reader(fh)) - 1
+    with open(out / "mode_shapes.csv", newline="") as fh:
+        n_nodes = sum(1 for _ in csv.reader(fh)) - 1
+    # 12 x 8 x 2 mat cells + 4 x 4 x 2 pedestal cells (structured grid counting)
+    assert n_el == 12 * 8 * 2 + 4 * 4 * 2
+    # mat nodes (13 x 9 x 3) + pedestal nodes above the mat's top (5 x 5 x 2)
+    assert n_nodes == 13 * 9 * 3 + 5 * 5 * 2

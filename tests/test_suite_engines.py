@@ -88,7 +88,7 @@ def test_pool_after_a_run_in_this_process_twice(case, tmp_path):
     # on a pool of 2 in the same process; NUMBA_THREADING_LAYER is left alone
     import numba
 
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
 
     root, rec, scen, scenario, shared, sets = case
     with warnings.catch_warnings():

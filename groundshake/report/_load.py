@@ -19,6 +19,7 @@ from typing import Any, Iterable
 import numpy as np
 
 from .._errors import InputError
+from ..results._schema import CSV_FILES, SUMMARY_FILE  # the output contract
 
 __all__ = ["Table", "OutputFolder", "load_output", "split_header", "label_words",
            "damping_of"]
@@ -27,9 +28,6 @@ _UNIT = re.compile(r"\s*[\[(]([^\])]*)[\])]\s*$")
 _SPLIT = re.compile(r"[\s_:/,;|=]+")
 _DAMPING = re.compile(r"(\d+(?:\.\d+)?)\s*(?:%|pct|percent)")
 
-#: The files a run writes (INTERNALS.md "Files in DIR").
-CSV_FILES = ("histories", "records", "ground_spectra", "floor_spectra", "modes",
-             "element_peaks", "mode_shapes")
 
 
 def split_header(header: str) -> tuple[str, str]:
@@ -189,7 +187,7 @@ def load_output(out_dir: str | Path) -> OutputFolder:
         If the folder or its summary.json is missing or summary.json is not JSON.
     """
     out = Path(out_dir)
-    summary_path = out / "summary.json"
+    summary_path = out / SUMMARY_FILE
     if not out.is_dir():
         raise InputError(f"{out}: no such output folder")
     if not summary_path.is_file():

@@ -18,8 +18,9 @@ import numpy as np
 from .. import __version__
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
+from .._constants import STANDARD_GRAVITY
 from .._progress import Progress
-from ..records import STANDARD_GRAVITY
+from ..results._schema import REPORT_FILE
 from . import _figures as F
 from ._html import (CSS, esc, figure, key_values, num, section, table, toml_text,
                     unit_of_key, value_html)
@@ -70,7 +71,7 @@ def write_report(out_dir: str | Path, *, path: str | Path | None = None,
     """
     out = Path(out_dir)
     text = render_report(out, progress=progress)
-    target = out / "report.html" if path is None else Path(path)
+    target = out / REPORT_FILE if path is None else Path(path)
     return atomic_write_text(target, text)
 
 

@@ -5,19 +5,20 @@ import csv
 import io
 import os
 from pathlib import Path
-from typing import Iterable, Sequence
+from typing import Callable, Iterable, Sequence
 
 import numpy as np
 import scipy.sparse as sp
 
 from .._atomic import atomic_directory
-from .._cli_common import json_dumps
+from .._json import json_dumps
+from ._schema import OUTPUT_FILES, SCHEMA_VERSION, SUMMARY_FILE
 from ..dynamics._motion import DIRECTIONS
 
 __all__ = ["write_outputs", "OUTPUT_FILES"]
 
-OUTPUT_FILES = ("summary.json", "histories.csv", "records.csv", "ground_spectra.csv",
-                "floor_spectra.csv", "modes.csv", "element_peaks.csv", "mode_shapes.csv")
+# the file names come from the output contract (_schema.py)
+
 
 
 def _csv_text(header: Sequence[str], columns: Iterable[np.ndarray | Sequence], *,
@@ -44,7 +45,8 @@ def _damp_label(r: float) -> str:
 
 
 def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = False,
-                  n_shapes: int = 6, report: bool = True) -> Path:
+                  n_shapes: int = 6,
+                  also: Callable[[Path], object] | None = None) -> Path:
     """Write a run's files into ``out_dir`` (a new folder, moved into place when complete).
 
     Parameters
@@ -55,9 +57,10 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         The folder to create; an existing one is replaced only with ``overwrite``.
     n_shapes : int
         Mode shapes written to mode_shapes.csv.
-    report : bool
-        Also write report.html with ``groundshake.report.write_report`` when that
-        stage is installed (inside the same atomic folder).
+    also : callable, optional
+        Called with the temporary folder after the files are written, inside the same
+        atomic step (the application layer writes report.html this way:
+        :func:`groundshake.pipeline.write_run`).
 
     Returns
     -------
@@ -73,7 +76,8 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
     if out_dir.exists() and not overwrite:
         raise FileExistsError(17, "already exists (use --force to replace it)", str(out_dir))
     with atomic_directory(out_dir, overwrite=overwrite) as tmp:
-        _write(tmp, "summary.json", json_dumps(results.summary) + "\n")
+        summary = {"schema_version": SCHEMA_VERSION, **results.summary}
+        _write(tmp, SUMMARY_FILE, json_dumps(summary) + "\n")
         h = results.histories
         if h:           # a response-spectrum run has no histories and reads no records
             _write(tmp, "histories.csv", _csv_text(list(h), list(h.values())))
@@ -83,13 +87,8 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         _write(tmp, "modes.csv", _modes_csv(results.modes))
         _write(tmp, "element_peaks.csv", _elements_csv(results))
         _write(tmp, "mode_shapes.csv", _shapes_csv(results, n_shapes))
-        if report:
-            try:
-                from ..report import write_report
-            except ImportError:
-                write_report = None
-            if write_report is not None:
-                write_report(tmp)
+        if also is not None:
+            also(tmp)
     return out_dir
 
 

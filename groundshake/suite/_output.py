@@ -10,10 +10,10 @@ import numpy as np
 
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
+from .._constants import DIRECTIONS
 
 __all__ = ["write_suite_outputs"]
 
-DIRECTIONS = ("x", "y", "z")
 _STATS = ("median", "p16", "p84", "mean", "min", "max")
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from .._cautions import SCREENING_NOTE
-from .._cli_common import print_json
+from ._common import print_json
 from .._errors import InputError
 
 __all__ = ["register"]
@@ -33,7 +33,7 @@ def register(subparsers, parents) -> None:
 
 
 def _demo(args) -> int:
-    from ._demo import run_demo
+    from ..pipeline import run_demo
 
     quiet = bool(getattr(args, "quiet", False))
     run = run_demo(args.output, force=bool(args.force), progress=not quiet)
@@ -44,7 +44,7 @@ def _demo(args) -> int:
                     "warnings": s.get("warnings", []), "worst_dc": s.get("worst_dc")})
         return 0
     try:
-        from ..results._cli import _terminal_summary
+        from .run import _terminal_summary
         print(_terminal_summary(s, run.results))
     except Exception:  # the run's own table is a nicety here; the paths below are the point
         print(f"{s.get('title', 'demo')}: warnings: {len(s.get('warnings', []))}")
@@ -54,7 +54,7 @@ def _demo(args) -> int:
 
 
 def _report(args) -> int:
-    from ._report import write_report
+    from ..report._report import write_report
 
     quiet = bool(getattr(args, "quiet", False))
     if (Path(args.folder) / "report.html").exists() and not args.force:
