@@ -317,7 +317,7 @@ def _prepare_worker() -> dict:
     except Exception:  # noqa: BLE001
         pass
     try:
-        from ..spectra._kernel import kernel_threads
+        from ..pipeline import kernel_threads
 
         out["kernel_threads"] = kernel_threads()
     except Exception:  # noqa: BLE001 - a bad GROUNDSHAKE_THREADS is reported by the set
