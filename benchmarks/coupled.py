@@ -70,7 +70,8 @@ def main(argv=None) -> int:
     ap.add_argument("--whole", action="store_true", help="the whole record (direct is slow)")
     a = ap.parse_args(argv)
     from groundshake import load_scenario
-    from groundshake.dynamics import build_motion, compute_modes, motion_from_arrays
+    from groundshake.dynamics import compute_modes, motion_from_arrays
+    from groundshake.pipeline import build_motion
     from groundshake.model import build_model
     from groundshake.results import analyse
 

@@ -32,7 +32,7 @@ sys.path.insert(0, str(ROOT))
 
 from groundshake._errors import GroundshakeWarning  # noqa: E402
 from groundshake.dynamics import motion_from_arrays  # noqa: E402
-from groundshake.results import analyse  # noqa: E402
+from groundshake.pipeline import analyse  # noqa: E402
 from groundshake.scenario import Scenario  # noqa: E402
 
 

@@ -52,7 +52,7 @@ def histories() -> None:
 
 def cases() -> None:
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
     from groundshake.scenario import Scenario
 
     def scen(**extra):

@@ -3,9 +3,12 @@
 Runs the same suite serially (a plain loop: the reference), then in this process, on
 a local pool of 2 workers and on a 2-worker Dask LocalCluster (a warm-up on 2 sets,
 then the full run), and the whole sequence again (``--rounds``) on the same cluster;
-prints per-record times, the speed-up against the plain loop and which engine ran.
-The records are synthetic (Boore 2003 stochastic method, invented scenario), one
-seed per set.
+prints per-record times, the speed-up against the plain loop, which engine ran, and
+the CPU seconds per set summed over the worker's threads (measured inside each task by
+``_suite_probe.probed_set``: less sensitive to a loaded machine than wall time; the
+load average is printed beside it). A pool's figure includes its fresh workers'
+loading of the compiled kernels; Dask's warm-up is timed apart. The records are
+synthetic (Boore 2003 stochastic method, invented scenario), one seed per set.
 
     python benchmarks/suite.py [--records 100] [--duration 20] [--rounds 2] [--skip-dask]
 """
@@ -26,7 +29,10 @@ from groundshake.records import Record, write_record
 from groundshake.records.synthetic import stochastic_acceleration
 from groundshake.scenario import load_scenario
 from groundshake.suite import discover_record_sets
-from groundshake.suite._run import prepare_suite, run_record_set, run_suite
+from groundshake.suite import _run
+from groundshake.suite._run import prepare_suite, run_suite
+
+import _suite_probe  # noqa: E402 - beside this file; imported before the swap below
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -68,9 +74,16 @@ def main() -> None:
               f"load average at the start {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores")
         plain = dict(shared)
         t0 = time.perf_counter()
+        probes = []
         for rs in sets:        # the reference: a plain loop, no files, no engine
-            assert run_record_set(plain, rs.to_dict())["status"] == "ok"
+            r = _suite_probe.probed_set(plain, rs.to_dict())
+            assert r["status"] == "ok"
+            probes.append(r["_probe"])
         ref = time.perf_counter() - t0
+        ref_cpu = sum(p["user_s"] + p["sys_s"] for p in probes) / len(probes)
+        # every engine runs the measuring wrapper (it calls the real task and adds
+        # ``_probe``); workers import it by name from this folder
+        _run.run_record_set = _suite_probe.probed_set
         client = None
         if not args.skip_dask:
             from distributed import Client, LocalCluster
@@ -81,6 +94,8 @@ def main() -> None:
         n = args.records
         for rnd in range(1, args.rounds + 1):
             times = {"plain loop (reference)": ref}
+            cpu = {"plain loop (reference)": ref_cpu}
+            load = {"plain loop (reference)": None}
             engines = [("suite, 1 worker (in process)", dict(workers=1)),
                        ("local pool, 2 workers", dict(workers=2))]
             if client is not None:
@@ -98,17 +113,25 @@ def main() -> None:
                 res = run_suite(scenario, sets, tmp / f"{rnd}-{label.split(',')[0].replace(' ', '_')}",
                                 shared=shared, **kw)
                 times[label] = time.perf_counter() - t0
+                load[label] = os.getloadavg()[0]
+                got = [r["_probe"] for r in res.records]
+                cpu[label] = sum(p["user_s"] + p["sys_s"] for p in got) / len(got)
                 assert res.n_failed == 0, [r.get("error") for r in res.records
                                            if r["status"] != "ok"]
                 print(f"  {label}: {res.engine.line()}")
-            print(f"  {'engine':<32}{'total [s]':>10}{'per record [s]':>16}{'speed-up':>10}")
+            print(f"  {'engine':<32}{'total [s]':>10}{'per record [s]':>16}{'speed-up':>10}"
+                  f"{'CPU per set [s]':>17}{'load':>6}")
             for label, t in times.items():
-                print(f"  {label:<32}{t:>10.2f}{t / n:>16.3f}{ref / t:>10.2f}")
+                ld = f"{load[label]:>6.1f}" if load[label] is not None else f"{'':>6}"
+                print(f"  {label:<32}{t:>10.2f}{t / n:>16.3f}{ref / t:>10.2f}"
+                      f"{cpu[label]:>17.3f}{ld}")
             one, pool2 = times["suite, 1 worker (in process)"], times["local pool, 2 workers"]
             print(f"  2 workers vs 1: {one / pool2:.2f}x")
             if "dask LocalCluster, 2 workers" in times:
                 dask2 = times["dask LocalCluster, 2 workers"]
-                print(f"  Dask overhead over the 2-worker pool: {100 * (dask2 - pool2) / pool2:+.1f} %")
+                more = cpu["dask LocalCluster, 2 workers"] / cpu["local pool, 2 workers"] - 1
+                print(f"  Dask over the 2-worker pool: wall {100 * (dask2 - pool2) / pool2:+.1f} %,"
+                      f" CPU per set {100 * more:+.1f} %")
 
 
 if __name__ == "__main__":

@@ -10,6 +10,11 @@ Public API (SI units throughout: m, s, kg, N, Pa, m/s²):
 from __future__ import annotations
 
 import importlib
+import logging
+
+# A library logs and leaves the handlers to the program that uses it (Python's logging HOWTO,
+# "Configuring Logging for a Library").
+logging.getLogger("groundshake").addHandler(logging.NullHandler())
 
 __version__ = "0.1.0"
 
@@ -38,7 +43,7 @@ _LAZY = {
     "BlockModel": "groundshake.model",
     "compute_modes": "groundshake.dynamics",
     "Modes": "groundshake.dynamics",
-    "analyse": "groundshake.results",
+    "analyse": "groundshake.pipeline",
     "Scenario": "groundshake.scenario",
     "ScenarioError": "groundshake._errors",
     "CAUTIONS": "groundshake._cautions",

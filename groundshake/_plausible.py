@@ -12,6 +12,8 @@ import math
 from dataclasses import dataclass
 from typing import Literal
 
+from ._constants import STANDARD_GRAVITY
+
 __all__ = ["Range", "RANGES", "judge", "check_value"]
 
 
@@ -70,7 +72,7 @@ RANGES: dict[str, Range] = {
     "soil_density": Range("kg/m³", 300.0, 1200.0, 2900.0, 5000.0,
                           "any soil", "any soil or rock",
                           ((1e3, "t/m³ or g/cm³ typed as kg/m³"),
-                           (1.0 / 9.80665, "a unit weight in N/m³ typed as density"))),
+                           (1.0 / STANDARD_GRAVITY, "a unit weight in N/m³ typed as density"))),
     # Soil Poisson's ratio: 0.1-0.5 (common practice); near 0.5 the springs stiffen sharply.
     "soil_poisson_ratio": Range("", None, 0.1, 0.49, None, "", ""),
     # Anchored equipment on a foundation block: a control panel tens of kg, a large power
@@ -78,7 +80,7 @@ RANGES: dict[str, Range] = {
     "equipment_mass": Range("kg", 0.1, 50.0, 2e6, 1e8,
                             "any anchored equipment", "any anchored equipment",
                             ((1e3, "tonnes typed as kg"), (1e-3, "grams typed as kg"),
-                             (1.0 / 9.80665, "a weight in N typed as mass")),
+                             (1.0 / STANDARD_GRAVITY, "a weight in N typed as mass")),
                             hint_when_unusual=True),
     # A dimension of a foundation block or mat: pads of 0.1 m, mats of tens of metres;
     # a turbine-generator mat reaches about 100 m (common practice). 2000 is a block's
@@ -107,15 +109,15 @@ RANGES: dict[str, Range] = {
     # ASCE 7-16 §11.4.5 design spectral accelerations in g: mapped values stay below about
     # 3 g for SDS and 2 g for SD1 (from memory of the maps); 9.81 is m/s² typed for g.
     "sds": Range("g", None, 0.02, 2.5, 5.0, "", "any mapped design value (about 3 g)",
-                 ((1 / 9.80665, "m/s² typed for g"), (1 / 980.665, "cm/s² typed for g"))),
+                 ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
     "sd1": Range("g", None, 0.01, 2.0, 4.0, "", "any mapped design value (about 2 g)",
-                 ((1 / 9.80665, "m/s² typed for g"), (1 / 980.665, "cm/s² typed for g"))),
+                 ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
     # ASCE 7-16 Figures 22-14 to 22-17: TL maps hold 4 to 16 s.
     "tl": Range("s", 0.5, 4.0, 16.0, 100.0, "any mapped long-period transition",
                 "any mapped long-period transition (16 s)", ()),
     # EN 1998-1 ag in g: national zonation maps stay below about 0.5 g (from memory).
     "ag": Range("g", None, 0.02, 0.7, 2.0, "", "any design ground acceleration (about 0.5 g)",
-                ((1 / 9.80665, "m/s² typed for g"), (1 / 980.665, "cm/s² typed for g"))),
+                ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
     # --- foundation checks ([support]) ---
     # Base friction coefficient μ = tan δ of a block on soil or rock: about 0.25 (clay) to
     # 0.7 (clean gravel, rock) for mass concrete cast on the ground (NAVFAC DM-7.02 Table 1,
@@ -152,11 +154,11 @@ RANGES: dict[str, Range] = {
     # above 5 g it is m/s² or cm/s² typed for g.
     "shaking_g": Range("g", None, None, 1.5, 5.0, "",
                        "any recorded shaking (about 4 g)",
-                       ((1 / 9.80665, "m/s² typed for g"), (1 / 980.665, "cm/s² typed for g"))),
+                       ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
     # A target table's PSA in g: design spectra peak near 2.5 × PGA (ASCE 7-16 §11.4.6,
     # EN 1998-1 §3.2.2.2), so above about 10 g a table is in another unit.
     "target_psa": Range("g", None, None, 6.0, 15.0, "", "any design spectrum (in g)",
-                        ((1 / 9.80665, "m/s² typed for g"), (1 / 980.665, "cm/s² typed for g"))),
+                        ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
 }
 
 Level = Literal["ok", "warn", "error"]

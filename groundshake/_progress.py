@@ -1,18 +1,41 @@
-"""Progress on stderr for long steps; silent when stderr is not a terminal or when quiet."""
+"""Progress of long steps: logged by the library, drawn on stderr only for the CLI.
+
+The library never draws: a bar draws only after the command line has switched bars on
+(``show_progress(True)``), and then only on a terminal. Every finished step is logged at
+INFO on the ``groundshake`` logger (``logging.getLogger("groundshake")``), so a program
+that uses the library sees progress through its own logging setup.
+"""
 from __future__ import annotations
 
+import logging
 import sys
 import time
 
-__all__ = ["Progress", "set_quiet"]
+__all__ = ["Progress", "show_progress", "progress_shown", "set_quiet"]
 
-_QUIET = False
+log = logging.getLogger("groundshake")
+
+_SHOW = False
+
+
+def show_progress(show: bool) -> bool:
+    """Switch the drawing of progress bars on or off for this process; return the old state.
+
+    The CLI switches them on (unless ``--quiet``); the library leaves them off.
+    """
+    global _SHOW
+    old, _SHOW = _SHOW, bool(show)
+    return old
+
+
+def progress_shown() -> bool:
+    """True while progress bars may draw (the CLI asked for them)."""
+    return _SHOW
 
 
 def set_quiet(quiet: bool) -> None:
-    """Silence (or restore) every progress bar of this process."""
-    global _QUIET
-    _QUIET = bool(quiet)
+    """Silence (or allow) every progress bar of this process: ``show_progress(not quiet)``."""
+    show_progress(not quiet)
 
 
 class Progress:
@@ -31,7 +54,7 @@ class Progress:
         self.stream = sys.stderr if stream is None else stream
         isatty = getattr(self.stream, "isatty", lambda: False)
         # ``enabled=False`` makes a bar that never draws (a caller that was asked for none)
-        self.enabled = bool(enabled) and (not _QUIET) and bool(isatty())
+        self.enabled = bool(enabled) and _SHOW and bool(isatty())
         self._last = 0.0
         self._t0 = time.perf_counter()
 
@@ -40,6 +63,8 @@ class Progress:
         return self
 
     def __exit__(self, *exc) -> None:
+        if exc[0] is None:
+            log.info("%s: done in %.2f s", self.label, time.perf_counter() - self._t0)
         if self.enabled:
             if exc[0] is None and self.total is not None:
                 self.done = self.total

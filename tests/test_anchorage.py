@@ -2,7 +2,7 @@
 
 Sources: the rigid-plate hand formulas of common practice — overturning moment
 M = m·a·h resisted by bolt pairs, T = M/(n_row · lever) − f_d·W/n; direct shear V/n
-plus torsional shear T·r/Σr² — and ASCE 7-16 §13.3.1 for Fp (REFERENCES.md §5).
+plus torsional shear T·r/Σr² — and ASCE 7-16 §13.3.1 for Fp (docs/references.md §5).
 """
 from __future__ import annotations
 

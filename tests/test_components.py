@@ -147,7 +147,7 @@ def _rec(name, comp, station, seed=0, n=300):
 
 
 def test_pairs_by_station_when_every_record_names_one():
-    from groundshake.spectra._cli import _horizontal_pairs
+    from groundshake.cli.spectrum import _horizontal_pairs
 
     recs = [_rec("A E", "E", "A"), _rec("B E", "E", "B"), _rec("A Z", "Z", "A"),
             _rec("A N", "N", "A"), _rec("B N", "N", "B")]
@@ -157,7 +157,7 @@ def test_pairs_by_station_when_every_record_names_one():
 
 
 def test_skewed_pair_warns():
-    from groundshake.spectra._cli import _horizontal_pairs
+    from groundshake.cli.spectrum import _horizontal_pairs
 
     with pytest.warns(GroundshakeWarning, match="not at right angles"):
         _horizontal_pairs([_rec("A 0", "0", "A"), _rec("A 45", "45", "A")])

@@ -6,7 +6,7 @@ motion (Chopra, Dynamics of Structures, ch. 9 and 11; Rayleigh coefficients
 a0 = 2ξω1ω2/(ω1+ω2), a1 = 2ξ/(ω1+ω2), Chopra §11.4) and integrated exactly for
 linear-between-samples input by scipy.signal.lsim (independent of our integrator);
 Gazetas (1991) Kz = 2GL/(1−ν)(0.73 + 1.54χ^0.75) and Lysmer's analog Cz = ρ·VLa·A,
-VLa = 3.4Vs/(π(1−ν)) (REFERENCES.md §8); Newton's second law (a rigid body's base
+VLa = 3.4Vs/(π(1−ν)) (docs/references.md §8); Newton's second law (a rigid body's base
 resultant is m·a_cg). Records here are invented test signals.
 """
 from __future__ import annotations
@@ -19,7 +19,8 @@ from scipy import signal
 
 from groundshake._errors import GroundshakeWarning
 from groundshake.dynamics import motion_from_arrays
-from groundshake.results import analyse, base_resultants
+from groundshake.pipeline import analyse
+from groundshake.results import base_resultants
 from groundshake.scenario import Scenario
 
 DT = 0.005
@@ -142,14 +143,14 @@ def test_low_rank_bed_dashpots_equal_the_assembled_matrix():
     # the low-rank dashpots equals solving with C + U·diag(c)·Uᵀ assembled, to round-off
     import scipy.sparse as sp
 
-    from groundshake.dynamics import direct_response
+    from groundshake.dynamics import damping_matrix, direct_response
     from groundshake.model import build_model
     support = {"kind": "soil", "shear_wave_velocity": VS, "poisson_ratio": NU_S,
                "density": RHO_S, "springs": "distributed"}
     model = build_model(_scenario(support=support,
                                   materials={"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2,
                                                    "density": 2400.0}}))
-    C = model.damping_matrix(frequencies_hz=(5.0, 30.0))
+    C = damping_matrix(model, frequencies_hz=(5.0, 30.0))
     U, c = model.damping_update()
     full = sp.csr_matrix(C + U @ sp.diags(c) @ U.T)
     ag = np.vstack([record(6, n_t=120), record(7, n_t=120), record(8, n_t=120)])

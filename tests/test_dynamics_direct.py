@@ -3,30 +3,20 @@
 Sources: the independent reference is scipy.signal.cont2discrete(method="foh") of
 the full state-space system (exact for ground acceleration linear between samples);
 Newmark (1959) and Hilber, Hughes & Taylor (1977) for the scheme's parameters and
-period error (REFERENCES.md §2).
+period error (docs/references.md §2).
 """
 from __future__ import annotations
 
 import numpy as np
 import pytest
 import scipy.sparse as sp
-from scipy import signal
+
+from _oracles import foh_chain
 
 from groundshake._errors import InputError
 from groundshake.dynamics._direct import direct_response, newmark_parameters, substeps_for
 
 
-def foh_reference(K, M, C, iota, ag, dt):
-    """Relative displacement (n, n_t) of M ü + C u̇ + K u = −M ι a_g, exact for linear a_g."""
-    K, M, C = (np.asarray(x.toarray() if sp.issparse(x) else x, float) for x in (K, M, C))
-    n = K.shape[0]
-    Mi = np.linalg.inv(M)
-    A = np.block([[np.zeros((n, n)), np.eye(n)], [-Mi @ K, -Mi @ C]])
-    B = np.vstack([np.zeros((n, 3)), -iota])
-    Cm = np.hstack([np.eye(n), np.zeros((n, n))])
-    sysd = signal.cont2discrete((A, B, Cm, np.zeros((n, 3))), dt, method="foh")
-    _, y, _ = signal.dlsim(sysd[:4] + (dt,), ag.T)
-    return y.T
 
 
 def chain(n=3, k=4.0e6, m=1.0e3):
@@ -53,9 +43,9 @@ def test_newmark_sdof_matches_exact_foh():
     dt = 0.0025                                       # T/200
     ag = pulse(1200, dt)
     res = direct_response(K, M, C, iota, ag, dt, output=sp.identity(1, format="csr"))
-    ref = foh_reference(K, M, C, iota, ag, dt)
+    ref = foh_chain(K, M, C, iota, ag, dt)
     # scipy cont2discrete foh is exact; Newmark period error (Ω/2)/atan(Ω/2) − 1 ≈ 8e-5
-    # at T/200 (Newmark 1959, REFERENCES.md §2), so 0.5 % on the peak is ample.
+    # at T/200 (Newmark 1959, docs/references.md §2), so 0.5 % on the peak is ample.
     assert np.max(np.abs(res.disp)) == pytest.approx(np.max(np.abs(ref)), rel=5e-3)
     np.testing.assert_allclose(res.disp[0], ref[0], atol=5e-3 * np.max(np.abs(ref)))
 
@@ -66,7 +56,7 @@ def test_non_classical_damping_chain_matches_foh():
     dt = 0.002
     ag = pulse(1500, dt)
     res = direct_response(K, M, C, iota, ag, dt, output=sp.identity(3, format="csr"))
-    ref = foh_reference(K, M, C, iota, ag, dt)
+    ref = foh_chain(K, M, C, iota, ag, dt)
     # exact state-space reference (scipy cont2discrete foh); full damping matrix kept
     for i in range(3):
         assert np.max(np.abs(res.disp[i])) == pytest.approx(np.max(np.abs(ref[i])), rel=1e-2)
@@ -79,7 +69,7 @@ def test_substeps_recover_accuracy_on_coarse_record():
     C = sp.csr_matrix(2 * 0.02 * (2 * np.pi * 15.0) * M.toarray())
     dt = 0.01                                                # T/6.7: too coarse for Newmark
     ag = pulse(600, dt, f=12.0)
-    ref = foh_reference(K, M, C, iota, ag, dt)
+    ref = foh_chain(K, M, C, iota, ag, dt)
     n_sub = substeps_for(dt, 15.0)
     assert n_sub == 2                                        # ceil(0.01 / (1/150))
     one = direct_response(K, M, C, iota, ag, dt, output=sp.identity(1, format="csr"))
@@ -108,7 +98,7 @@ def test_hht_parameters_and_low_frequency_accuracy():
     ag = pulse(1200, dt)
     res = direct_response(K, M, C, iota, ag, dt, output=sp.identity(1, format="csr"),
                           hht_alpha=-0.1)
-    ref = foh_reference(K, M, C, iota, ag, dt)
+    ref = foh_chain(K, M, C, iota, ag, dt)
     # HHT-α damps only high frequencies; at T/200 the response is within 1 % (HHT 1977)
     assert np.max(np.abs(res.disp)) == pytest.approx(np.max(np.abs(ref)), rel=1e-2)
 
@@ -116,7 +106,7 @@ def test_hht_parameters_and_low_frequency_accuracy():
 def test_hht_spectral_radius_at_high_frequency():
     # free vibration of a stiff undamped oscillator stepped far beyond its period: each step
     # multiplies the amplitude by about the spectral radius (1 + α)/(1 − α) (HHT 1977, §2 of
-    # REFERENCES.md); start it with a ground step and watch the decay
+    # docs/references.md); start it with a ground step and watch the decay
     w = 2 * np.pi * 200.0
     K, M, iota = chain(1, k=w * w * 1.0, m=1.0)
     dt = 0.01                                             # ωΔt ≈ 12.6

@@ -1,8 +1,8 @@
 """Brick elements and assembly against independent references.
 
 Sources: scikit-fem (ElementVector(ElementHex1), linear_elasticity, vector mass form)
-as an independent assembler; Euler-Bernoulli cantilever (βL = 1.8751041, REFERENCES.md
-§7); axial rod fn = (2n−1)/(4L)·√(E/ρ) (REFERENCES.md §7); consistent mass δij·∫ρN_AN_B
+as an independent assembler; Euler-Bernoulli cantilever (βL = 1.8751041, docs/references.md
+§7); axial rod fn = (2n−1)/(4L)·√(E/ρ) (docs/references.md §7); consistent mass δij·∫ρN_AN_B
 carries ρV per direction (common practice); a free elastic body has six rigid-body modes
 (common practice); Wilson et al. (1973) / Taylor et al. (1976): trilinear bricks lock in
 bending, incompatible modes cure it; Hooke's law (isotropic); pure bending of a prismatic
@@ -135,7 +135,7 @@ def _cantilever_f1(element, n_len, ratio=20.0, nu=NU):
 def test_slender_cantilever_incompatible_vs_euler_bernoulli_and_hex8_locks():
     f_inc, f_eb = _cantilever_f1("hex8-incompatible", 20)
     f_h8, _ = _cantilever_f1("hex8", 20)
-    # Euler-Bernoulli cantilever, βL = 1.8751041 (REFERENCES.md §7): within 3 % (issue spec)
+    # Euler-Bernoulli cantilever, βL = 1.8751041 (docs/references.md §7): within 3 % (issue spec)
     assert f_inc == pytest.approx(f_eb, rel=0.03)
     # trilinear bricks lock in bending (Wilson et al. 1973): > 10 % too stiff on this mesh,
     # and at least 5 times the error of the incompatible-mode brick
@@ -161,7 +161,7 @@ def test_axial_rod_frequencies_and_convergence_rate():
         ref = np.array([1, 3]) / (4 * L) * np.sqrt(E / RHO)
         errs.append(abs(f[0] - ref[0]) / ref[0])
         if h == hs[-1]:
-            # rod closed form (REFERENCES.md §7) within 1 % for the first two modes
+            # rod closed form (docs/references.md §7) within 1 % for the first two modes
             np.testing.assert_allclose(f, ref, rtol=1e-2)
     rate = np.polyfit(np.log(hs), np.log(errs), 1)[0]
     # linear elements: eigenvalue error O(h²) (Strang & Fix; scikit-fem-style fitted rate)

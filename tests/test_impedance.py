@@ -2,7 +2,7 @@
 
 Sources: Gazetas (1991), J. Geotech. Eng. ASCE 117(9), Table 1 (dynamic stiffness
 coefficients of a surface rectangle) and Table 2 (embedded foundations) — written from
-memory (REFERENCES.md §11 marks them [S] for the paper, the numbers here [M]); ASCE 7-16
+memory (docs/references.md §11 marks them [S] for the paper, the numbers here [M]); ASCE 7-16
 Table 19.2-1 effective shear modulus ratios — from memory, verify.
 """
 import math
@@ -195,7 +195,7 @@ def test_scenario_support_key_errors():
 @pytest.mark.filterwarnings("ignore::groundshake._errors.GroundshakeWarning")
 def test_run_reports_each_case_and_the_envelope():
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
     scen = _scenario({**SOIL, "variation": 0.5, "friction_coefficient": 0.6})
     dt = 0.01
     t = np.arange(300) * dt

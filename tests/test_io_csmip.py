@@ -17,7 +17,7 @@ import pytest
 from groundshake import InputError
 from groundshake.records import read_record
 from groundshake.records.io.csmip import read_csmip_spectra, read_csmip_v2_series
-from groundshake.spectra import response_spectrum
+from groundshake.spectra import published_target, response_spectrum
 
 from _strong_motion import DATA, round_trip
 
@@ -119,7 +119,7 @@ def test_v3_spectra_reproduced_from_the_v2_record():
         keep = sp.periods >= 10 * rec.dt
         # the agency computes on the samples as given, joined by straight lines: the
         # same convention is interpolate=False (our default reads the record as
-        # band-limited and is up to 2.5 % higher here at 0.05-0.2 s, README "Coarse
+        # band-limited and is up to 2.5 % higher here at 0.05-0.2 s, docs/guide/spectra.md "Coarse
         # records")
         ours = response_spectrum(rec.acc, rec.dt, sp.periods[keep], 0.05, interpolate=False)
         for name, unit in (("sa", G), ("sd", INCH), ("sv", INCH), ("psv", INCH)):
@@ -131,13 +131,13 @@ def test_v3_spectra_reproduced_from_the_v2_record():
 
 def test_v3_as_target():
     (sp, *_) = read_csmip_spectra(V3)
-    target = sp.as_target(0.05)
+    target = published_target(sp, 0.05)
     t = sp.periods[10:20]
     # at the published periods the target is the published PSA = (2π/T)·PSV
     np.testing.assert_allclose(target.psa(t), sp.psv[0][10:20] * 2 * np.pi / t, rtol=1e-12)
     assert np.isnan(target.psa(np.array([10.0])))[0]  # undefined beyond the table
     with pytest.raises(InputError, match="no 2 % damping"):
-        sp.as_target(0.02)
+        published_target(sp, 0.02)
 
 
 def test_v3_is_not_a_record():

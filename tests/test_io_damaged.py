@@ -3,7 +3,7 @@ line dropped. Each is either still read or refused with the project's InputError
 file cut short is refused with a message that names its format.
 
 Sources: the error contract of this project (bad input raises InputError naming the
-file, the format and the line; DEVELOPERS.md); the real files of tests/data/strong-motion/.
+file, the format and the line; CONTRIBUTING.md); the real files of tests/data/strong-motion/.
 The damage is made here with a fixed random seed.
 """
 from __future__ import annotations

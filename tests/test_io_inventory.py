@@ -121,7 +121,7 @@ def test_cli_inventory_option(capsys):
 
 
 def test_scenario_inventory(tmp_path):
-    from groundshake.dynamics import build_motion
+    from groundshake.pipeline import build_motion
     from groundshake.scenario import parse_scenario_text
 
     text = f"""title = "inventory test (invented block)"
@@ -141,7 +141,7 @@ enabled = false
                                  source=str(tmp_path / "s.toml"), base_dir=tmp_path)
     with pytest.raises(RecordError, match="look like raw counts|raw counts, most likely"):
         build_motion(no_inv)
-    from groundshake.results._cli import _with_inventory
+    from groundshake.cli.run import _with_inventory
 
     assert _with_inventory(no_inv, XML).motion.inventory == XML.resolve()
 

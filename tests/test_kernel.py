@@ -2,16 +2,17 @@
 
 Sources:
 - scipy.signal.cont2discrete(method="foh") + dlsim: an independent exact first-order-hold
-  discretisation of x'' + 2ξωx' + ω²x = -a(t) (REFERENCES.md §1 [C]).
+  discretisation of x'' + 2ξωx' + ω²x = -a(t) (docs/references.md §1 [C]).
 - Chopra, Dynamics of Structures, ch. 3: harmonic steady state and transmissibility.
 - Chopra §4.7-4.8: undamped half-sine and rectangular pulse shock spectra
-  (values listed in REFERENCES.md §1).
+  (values listed in docs/references.md §1).
 - mpmath 40-digit matrix exponential for the step coefficients.
 The excitation called "noise" below is invented test data (seeded random numbers).
 """
 import numpy as np
 import pytest
-from scipy import signal
+
+from _oracles import sdof_foh
 
 from groundshake import InputError
 from groundshake.spectra import kernel_engine, oscillator_history, oscillator_peaks
@@ -37,15 +38,6 @@ def _noise(n, seed=1):
     return np.convolve(rng.standard_normal(n), np.ones(5) / 5, "same")
 
 
-def _scipy_foh(acc, dt, omega, xi):
-    """Reference response (x, v, absolute acceleration) by scipy's first-order hold."""
-    a = np.array([[0.0, 1.0], [-omega ** 2, -2 * xi * omega]])
-    b = np.array([[0.0], [-1.0]])
-    c = np.array([[1.0, 0.0], [0.0, 1.0], [-omega ** 2, -2 * xi * omega]])
-    sysd = signal.cont2discrete((a, b, c, np.zeros((3, 1))), dt, method="foh")
-    # scipy's foh state is x - D u; start from rest: x0 = -D[:2] u0
-    _, y, _ = signal.dlsim(sysd, acc, x0=-sysd[3][:2, 0] * acc[0])
-    return y
 
 
 PERIODS = np.array([0.05, 0.1, 0.3, 1.0, 3.0, 10.0])
@@ -59,18 +51,18 @@ def scipy_case():
     acc = _noise(n)
     tt, zz = np.meshgrid(PERIODS, DAMPING)
     omega, xi = 2 * np.pi / tt.ravel(), zz.ravel()
-    refs = [_scipy_foh(acc, dt, omega[k], xi[k]) for k in range(omega.size)]
+    refs = [sdof_foh(acc, dt, omega[k], xi[k]) for k in range(omega.size)]
     return dt, acc, omega, xi, refs
 
 
-def test_peaks_and_histories_match_scipy_foh(engine, scipy_case):
+def test_peaks_and_histories_matchsdof_foh(engine, scipy_case):
     dt, acc, omega, xi, refs = scipy_case
     p = oscillator_peaks(acc, dt, omega, xi)
     d, v, aa = oscillator_history(acc, dt, omega, xi)
     for k in range(omega.size):
         y = refs[k]
         ref = np.abs(y).max(axis=0)
-        # scipy foh reference, tolerance 1e-9 relative (issue 3; REFERENCES.md §1)
+        # scipy foh reference, tolerance 1e-9 relative (issue 3; docs/references.md §1)
         np.testing.assert_allclose([p.disp[k], p.vel[k], p.abs_acc[k]], ref, rtol=1e-9)
         for got, col in ((d[k], 0), (v[k], 1), (aa[k], 2)):
             err = np.abs(got - y[:, col]).max() / np.abs(y[:, col]).max()
@@ -82,11 +74,11 @@ def test_peaks_and_histories_match_scipy_foh(engine, scipy_case):
 
 def test_long_period_undamped_matches_scipy(engine):
     # T = 10 s at dt = 0.005 s: where the closed-form coefficients lose digits
-    # (REFERENCES.md §1); scipy foh reference, 1e-9 relative
+    # (docs/references.md §1); scipy foh reference, 1e-9 relative
     dt, n = 0.005, 3000
     acc = _noise(n, seed=7)
     omega = 2 * np.pi / 10.0
-    y = _scipy_foh(acc, dt, omega, 0.0)
+    y = sdof_foh(acc, dt, omega, 0.0)
     p = oscillator_peaks(acc, dt, np.array([omega]), 0.0)
     np.testing.assert_allclose([p.disp[0], p.vel[0], p.abs_acc[0]], np.abs(y).max(0), rtol=1e-9)
 
@@ -126,13 +118,13 @@ def test_harmonic_steady_state_and_transmissibility(r):
     assert np.abs(d[0, last]).max() == pytest.approx(u0, rel=2e-4)
     assert np.abs(aa[0, last]).max() / a0 == pytest.approx(tr, rel=2e-4)
     if r == 1.0:
-        # REFERENCES.md §1 [C]: at r = 1, ξ = 5 %: 10.00 and 10.05
+        # docs/references.md §1 [C]: at r = 1, ξ = 5 %: 10.00 and 10.05
         assert u0 * wn ** 2 / a0 == pytest.approx(10.00, abs=5e-3)
         assert np.abs(aa[0, last]).max() / a0 == pytest.approx(10.05, abs=5e-3)
 
 
 def test_half_sine_shock_spectrum():
-    # Chopra §4.8, values in REFERENCES.md §1: undamped, Rd = u0 ω² / a0
+    # Chopra §4.8, values in docs/references.md §1: undamped, Rd = u0 ω² / a0
     ratios = np.array([0.10, 0.25, 0.50, 0.75, 1.0, 1.5, 2.0, 3.0])
     rd_ref = np.array([0.3963, 0.9428, 1.5708, 1.7634, 1.7321, 1.5000, 1.2681, 1.1699])
     td, a0 = 1.0, 3.0

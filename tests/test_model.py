@@ -2,7 +2,7 @@
 
 Sources: Kramer (1996) Geotechnical Earthquake Engineering ch. 7, shear column
 fn = (2n−1)Vs/(4H); Gazetas (1991) J. Geotech. Eng. 117(9), rigid rectangle and circle
-(REFERENCES.md §8, square vs circle of equal area within 1 % translation, 10 % rocking);
+(docs/references.md §8, square vs circle of equal area within 1 % translation, 10 % rocking);
 rigid-body dynamics (parallel-axis theorem, common practice) for the 6×6 check;
 Chopra, Dynamics of Structures: SDOF f = √(k/m)/2π (§2.1), Rayleigh damping
 (§11.4), effective modal masses sum to the total mass (§13.2); statics/D'Alembert for
@@ -20,6 +20,7 @@ import scipy.sparse as sp
 
 from groundshake._errors import GroundshakeWarning, ModelTooLargeError, ScenarioError
 from groundshake.dynamics import compute_modes, lowest_modes
+from groundshake.dynamics import damping_matrix, rayleigh_coefficients
 from groundshake.model import build_model, circle_stiffness, gazetas_rectangle
 from groundshake.model._assembly import assemble, element_keys
 from groundshake.model._elements import brick_matrices
@@ -77,7 +78,7 @@ def test_axial_rod_through_build_model():
         md = compute_modes(m, n_modes=12)
     iz = np.flatnonzero(md.effective_mass_ratio[:, 2] > 0.5)[0]
     ref = 1 / (4 * 8.0) * np.sqrt(30e9 / 2400.0)
-    # rod closed form (REFERENCES.md §7), 1 %
+    # rod closed form (docs/references.md §7), 1 %
     assert md.frequency[iz] == pytest.approx(ref, rel=0.01)
     # first axial mode carries 8/π² of the rod's mass (rod modal analysis, closed form);
     # here the base-node mass is not driven, so compare with the model's total
@@ -131,7 +132,7 @@ def test_gazetas_square_vs_circle_of_equal_area():
     assert imp.shear_modulus == pytest.approx(G, rel=1e-12)
     R = np.sqrt(4 * half ** 2 / np.pi)
     ref = circle_stiffness(R, shear_modulus=G, poisson_ratio=nu)
-    # REFERENCES.md §8: a square agrees with the circle of equal area within about 1 %
+    # docs/references.md §8: a square agrees with the circle of equal area within about 1 %
     # (translations) and 10 % (rocking)
     np.testing.assert_allclose(imp.stiffness[:3], ref[:3], rtol=0.01)
     np.testing.assert_allclose(imp.stiffness[3:5], ref[3:5], rtol=0.10)
@@ -147,7 +148,7 @@ def test_gazetas_orientation_and_dashpots():
     np.testing.assert_allclose(b.stiffness, a.stiffness[[1, 0, 2, 4, 3, 5]], rtol=1e-12)
     # Gazetas (1991): Kx ≤ Ky with x along the long side; rocking about the long axis softer
     assert a.stiffness[0] < a.stiffness[1] and a.stiffness[3] < a.stiffness[4]
-    # REFERENCES.md §8 dashpots: Cz = ρ·VLa·A, VLa = 3.4Vs/(π(1−ν)); Ch = ρVs·A
+    # docs/references.md §8 dashpots: Cz = ρ·VLa·A, VLa = 3.4Vs/(π(1−ν)); Ch = ρVs·A
     area = 12.0
     assert a.damping[2] == pytest.approx(1900 * 3.4 * 200 / (np.pi * 0.65) * area, rel=1e-12)
     assert a.damping[0] == pytest.approx(1900 * 200 * area, rel=1e-12)
@@ -248,12 +249,12 @@ def test_consistent_mass_total_and_sensor_interpolation():
 def test_rayleigh_damping_gives_the_ratio_at_both_frequencies():
     s = scenario(damping={"ratio_percent": 4.0, "rayleigh_hz": [5.0, 40.0]})
     model = build_model(s)
-    a, b = model.rayleigh_coefficients()
+    a, b = rayleigh_coefficients(model)
     for f in (5.0, 40.0):
         w = 2 * np.pi * f
         # Chopra §11.4: ξ(ω) = a/(2ω) + bω/2 equals the ratio at f1 and f2
         assert a / (2 * w) + b * w / 2 == pytest.approx(0.04, rel=1e-12)
-    C = model.damping_matrix()
+    C = damping_matrix(model)
     assert C.shape == model.K.shape and model.is_classically_damped
 
 
@@ -328,7 +329,7 @@ def test_distributed_bed_is_uniform_and_keeps_gazetas_totals():
     one = model.influence[:, 2]
     assert one @ (Kb @ one) == pytest.approx(kz, rel=1e-10)
     # radiation dashpots act on the averaged translation: Cz = ρ·VLa·A for a translation,
-    # nothing for a rigid rocking or twist (as with lumped springs; REFERENCES.md §8)
+    # nothing for a rigid rocking or twist (as with lumped springs; docs/references.md §8)
     U, c = model.damping_update()
     vla = 3.4 * 150.0 / (np.pi * 0.7)
     assert c[2] * (U.T @ one)[2] ** 2 == pytest.approx(1800.0 * vla * 24.0, rel=1e-10)

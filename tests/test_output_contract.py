@@ -18,7 +18,7 @@ from groundshake.report._units import SYSTEMS, display_unit, fmt, to_display
 from groundshake.results._schema import (COLUMNS, FILES, SUMMARY_KINDS, UNITS, header, iter_values,
                                          kind_of, parse_header)
 
-from test_report_fixture import demo_run, pipeline_available
+from _report_fixture import demo_run
 
 #: The summary.json keys every run must carry (DESIGN contract, "run SCENARIO -o DIR").
 DESIGN_KEYS = {
@@ -102,8 +102,6 @@ def _summary_numbers(summary: dict):
 
 @pytest.mark.slow
 def test_every_number_of_the_demo_summary_has_a_kind():
-    if not pipeline_available():
-        pytest.skip("run pipeline not importable")
     status, _, folder = demo_run()
     assert status == 0
     out = folder / "results"

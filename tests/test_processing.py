@@ -1,7 +1,7 @@
 """Correction, integration, resampling and intensity measures against outside sources.
 
 Sources named beside each check: closed forms of integrals of sines (calculus), the
-Arias intensity / CAV closed forms of REFERENCES.md §3 (Arias 1970; EPRI 1988, 1991),
+Arias intensity / CAV closed forms of docs/references.md §3 (Arias 1970; EPRI 1988, 1991),
 the Husid-curve definition of significant duration (Trifunac & Brady 1975), Rathje et
 al. (1998) mean period, Butterworth's definition (half power, -3.01 dB, at the corner;
 |H|² = 1/(1 + (f/fc)^±2n)), forward-backward filtering squares the gain and has zero
@@ -35,7 +35,7 @@ def _sine(amplitude=1.0, f=2.0, duration=10.0, dt=0.001):
     return t, amplitude * np.sin(2 * np.pi * f * t)
 
 
-# -- closed forms for a whole-cycle sine (REFERENCES.md §3) ------------------------------
+# -- closed forms for a whole-cycle sine (docs/references.md §3) ------------------------------
 
 def test_arias_and_cav_of_a_sine():
     A, D = 3.0, 10.0

@@ -2,7 +2,7 @@
 file (and line), no traceback, input unchanged.
 
 Sources: the exit-status convention of Unix command-line tools (2 = usage/input error,
-common practice) and the error contract in DEVELOPERS.md; the expected line numbers
+common practice) and the error contract in CONTRIBUTING.md; the expected line numbers
 and values are those written into each test file by the test itself.
 """
 from __future__ import annotations
@@ -117,7 +117,7 @@ def test_debug_shows_traceback(tmp_path):
     path.write_text("")
     from groundshake import InputError
 
-    with pytest.raises(InputError):  # --debug lets the exception through (DEVELOPERS.md)
+    with pytest.raises(InputError):  # --debug lets the exception through (CONTRIBUTING.md)
         main(["--debug", "info", str(path)])
 
 

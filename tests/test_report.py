@@ -29,7 +29,7 @@ from groundshake.results._anchorage import fp_comparison
 from groundshake.report._figures import exterior_faces
 from groundshake.report._html import esc, toml_text
 
-from test_report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
+from _report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
                                  HOSTILE_TITLE, make_output_folder)
 
 SECTION_IDS = ["summary", "model", "modes", "response", "anchorage", "floor-spectra",

@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from test_report_fixture import demo_run, make_output_folder, pipeline_available
+from _report_fixture import demo_run
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
@@ -46,15 +46,9 @@ def _flags(profile: Path) -> list[str]:
 def report_file(tmp_path_factory) -> Path:
     if _chromium() is None:
         pytest.skip("chromium is not installed (apt-get install chromium); .ci/run installs it")
-    if pipeline_available():
-        status, _, folder = demo_run()
-        assert status == 0
-        return folder / "results" / "report.html"
-    # Without the run pipeline, the invented folder of test_report_fixture stands in.
-    from groundshake.report import write_report
-
-    out = make_output_folder(tmp_path_factory.mktemp("browser") / "run")
-    return write_report(out, progress=False)
+    status, _, folder = demo_run()
+    assert status == 0
+    return folder / "results" / "report.html"
 
 
 def _run(args: list[str], profile: Path) -> subprocess.CompletedProcess:

@@ -17,15 +17,13 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from test_report_fixture import demo_run, pipeline_available
+from _report_fixture import demo_run, make_output_folder
 
 ROOT = Path(__file__).resolve().parents[1]
-needs_pipeline = pytest.mark.skipif(not pipeline_available(),
-                                    reason="the run pipeline (results, spectra) is not installed")
 
 
 def test_packaged_example_equals_the_repository_example():
-    from groundshake.report._demo import DEMO_SCENARIO, example_scenario_text
+    from groundshake.pipeline import DEMO_SCENARIO, example_scenario_text
 
     repo = (ROOT / "examples" / DEMO_SCENARIO).read_text(encoding="utf-8")
     assert example_scenario_text() == repo                      # byte-for-byte copy
@@ -78,7 +76,6 @@ def test_regenerated_demo_records_equal_the_shipped_ones(tmp_path):
                                        atol=REL_TOL * np.abs(b.data).max())  # REL_TOL above
 
 
-@needs_pipeline
 def test_demo_writes_the_report_and_says_where():
     status, out, folder = demo_run()
     assert status == 0                                          # Unix convention: success
@@ -97,7 +94,6 @@ def test_demo_writes_the_report_and_says_where():
     assert not [p for p in folder.iterdir() if p.name.startswith(".")]
 
 
-@needs_pipeline
 def test_demo_refuses_an_existing_folder_without_force(capsys):
     from groundshake.cli import main
 
@@ -120,7 +116,6 @@ def test_demo_into_a_file_is_refused(tmp_path, capsys):
 
 def test_report_command_refuses_to_overwrite_without_force(tmp_path, capsys):
     from groundshake.cli import main
-    from test_report_fixture import make_output_folder
 
     out = make_output_folder(tmp_path / "run", files=())
     assert main(["report", str(out), "--quiet"]) == 0
@@ -133,10 +128,9 @@ def test_report_command_refuses_to_overwrite_without_force(tmp_path, capsys):
 def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
     """The demo's own steps with the analysis stubbed by an invented output folder
     (INVENTED TEST DATA), so --force can be checked without a full run."""
-    import groundshake.results as results
+    import groundshake.pipeline._demo as demo
     from groundshake.cli import main
     from groundshake.report import write_report
-    from test_report_fixture import make_output_folder
 
     class Fake:
         summary = {"title": "stub", "warnings": [], "provenance": {}}
@@ -146,8 +140,8 @@ def test_demo_force_replaces_the_demo(tmp_path, monkeypatch, capsys):
         write_report(out, progress=False)
         return out
 
-    monkeypatch.setattr(results, "analyse", lambda scenario, **kw: Fake())
-    monkeypatch.setattr(results, "write_outputs", fake_write)
+    monkeypatch.setattr(demo, "analyse", lambda scenario, **kw: Fake())
+    monkeypatch.setattr(demo, "write_run", fake_write)
     folder = tmp_path / "demo"
     assert main(["demo", "-o", str(folder), "--quiet"]) == 0    # Unix convention: success
     assert (folder / "results" / "report.html").is_file()

@@ -2,7 +2,7 @@
 
 Source: Kramer (1996), Geotechnical Earthquake Engineering, ch. 7 — uniform damped
 soil on rigid rock: surface/base amplitude ratio |1/cos(ωH/Vs*)|, Vs* = Vs·√(1 + 2iξ);
-resonances at fₙ = (2n − 1)·Vs/(4H) (REFERENCES.md §7). The column is a chain of
+resonances at fₙ = (2n − 1)·Vs/(4H) (docs/references.md §7). The column is a chain of
 two-node shear elements (consistent mass) driven through our modal time history.
 """
 from __future__ import annotations

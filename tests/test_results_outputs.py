@@ -180,7 +180,7 @@ def test_json_output_and_direct_method(tmp_path, capsys):
 
 
 def test_components_resampled_to_the_finest_step(tmp_path):
-    from groundshake.dynamics import build_motion
+    from groundshake.pipeline import build_motion
     from groundshake.scenario import load_scenario
     scen = load_scenario(write_case(tmp_path, n_y=300, dt_y=0.02))
     m = build_motion(scen)

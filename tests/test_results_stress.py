@@ -8,7 +8,7 @@ Euler-Bernoulli beam theory σ = M·c/I at the extreme fibre (exact in elasticit
 bending, and for the axial stress of a cantilever under an end load away from its ends:
 Saint-Venant's flexure solution, Timoshenko & Goodier, Theory of Elasticity); torsion of
 a square shaft, τ_max = T/(k·a³) with the series of Timoshenko & Goodier for a rectangle
-(k = 0.208 for a square, their table); REFERENCES.md §10 for the 1×1×3 m pedestal
+(k = 0.208 for a square, their table); docs/references.md §10 for the 1×1×3 m pedestal
 (M/S = 635.5 kPa under 1 g).
 """
 from __future__ import annotations
@@ -191,8 +191,8 @@ def test_pedestal_under_1g_lateral_peak_tension_not_below_beam_theory(n):
     peaks = StressPeaks.empty(sig.shape[0])
     peaks.update(0, np.ascontiguousarray(sig), np.array([0]))
     out, cautions = stress_summary(peaks, model.stress_points, 0.01)
-    ms = 2400 * 1.0 * 3.0 * G * 1.5 / (1.0 / 6.0)     # M/S at the base, REFERENCES.md §10
-    assert ms == pytest.approx(635.5e3, rel=1e-3)       # REFERENCES.md §10: 635.5 kPa
+    ms = 2400 * 1.0 * 3.0 * G * 1.5 / (1.0 / 6.0)     # M/S at the base, docs/references.md §10
+    assert ms == pytest.approx(635.5e3, rel=1e-3)       # docs/references.md §10: 635.5 kPa
     pt = out["principal_tension"]
     # Euler-Bernoulli M/S at the fixed end's extreme fibre: the surface value is not below
     # it (the element-centre reading was 0.72 of it with 4 elements across); the clamped
@@ -323,7 +323,7 @@ def test_uniform_strain_is_exact_at_every_surface_point_of_two_materials():
 @pytest.mark.parametrize("method", ["modal", "direct"])
 def test_run_reports_surface_peaks_and_how_they_were_recovered(method):
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
 
     scen = Scenario.from_dict({
         "title": "test block (invented)",

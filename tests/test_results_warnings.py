@@ -4,7 +4,7 @@ Sources (rules of thumb of the trade): elements no larger than about 1/10 of the
 shear wavelength (Kuhlemeyer & Lysmer 1973, "1/8 to 1/10 of the wavelength", from
 memory) at the highest frequency both modelled and carried by the record; a sampled
 record carries nothing above its Nyquist frequency 1/(2·dt) (sampling theorem); 90 % of the mass in the retained modes
-(ASCE 7-16 §12.9.1.1, REFERENCES.md §6); a linear soil-spring model needs the base to
+(ASCE 7-16 §12.9.1.1, docs/references.md §6); a linear soil-spring model needs the base to
 stay in compression (common practice). Records are invented test signals.
 """
 from __future__ import annotations
@@ -16,7 +16,7 @@ import pytest
 
 from groundshake._errors import GroundshakeWarning
 from groundshake.dynamics import motion_from_arrays
-from groundshake.results import analyse
+from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
 

@@ -237,3 +237,24 @@ def test_symlink_leaving_the_folder_is_noted(site, tmp_path):
     s = parse_scenario_text(text, source=str(site), base_dir=site.parent)
     # Issue 8: a path that looks local but resolves elsewhere must be shown, too.
     assert any("motion.x.file" in n and str(outside.resolve()) in n for n in s.notes)
+
+
+def test_one_processing_schema_and_one_spelling_of_no_high_pass():
+    # design rule (docs/architecture.md): the scenario's [processing] table and the
+    # processing stage's settings have the same names and defaults, and "no high-pass" is
+    # 0 in the scenario as on the command line (--highpass 0), None in Python
+    import dataclasses
+
+    from groundshake.processing import ProcessingSettings
+    from groundshake.scenario import ProcessingOptions, parse_scenario_text
+    from _blocks import concrete_block
+
+    assert ([f.name for f in dataclasses.fields(ProcessingOptions)]
+            == [f.name for f in dataclasses.fields(ProcessingSettings)])
+    assert ProcessingSettings(highpass_hz=0).highpass_hz is None
+    assert ProcessingSettings(highpass_hz=0.0, lowpass_hz=0).lowpass_hz is None
+    scen = parse_scenario_text("[processing]\nhighpass_hz = 0\nlowpass_hz = 25.0\n"
+                               + concrete_block())
+    settings = scen.processing_settings()
+    assert settings.highpass_hz is None and settings.lowpass_hz == 25.0
+    assert "high-pass" not in settings.describe() and "low-pass 25 Hz" in settings.describe()

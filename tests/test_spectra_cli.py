@@ -5,7 +5,7 @@ Sources:
   "sv", "sa", "psv", "psa"}]} in SI, status 2 with one line on stderr for bad input.
 - Chopra, Dynamics of Structures, ch. 3: at resonance the steady-state amplitude of
   a damped oscillator is 1/(2ξ) times the static one, so PSA = a0/(2ξ).
-- REFERENCES.md §4 [C]: RotD50 = 0.7071·RotD100 for linearly polarised motion.
+- docs/references.md §4 [C]: RotD50 = 0.7071·RotD100 for linearly polarised motion.
 - PNG file signature (common practice: the 8 bytes 89 50 4E 47 0D 0A 1A 0A).
 Records here are invented test data written by the tests.
 """
@@ -93,7 +93,7 @@ def test_rotd_of_a_polarised_pair(tmp_path, capsys):
     doc = json.loads(capsys.readouterr().out)
     rd = doc["rotd"][0]
     ratio = np.array(rd["psa"]["50"]) / np.array(rd["psa"]["100"])
-    # REFERENCES.md §4 [C]: 0.7071 for polarised motion (text output rounds inputs to
+    # docs/references.md §4 [C]: 0.7071 for polarised motion (text output rounds inputs to
     # 12 digits, hence 1e-4)
     np.testing.assert_allclose(ratio, 0.7071, rtol=1e-4)
     assert "statistics" in doc and len(doc["statistics"]["by_damping"]) == 1

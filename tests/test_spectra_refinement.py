@@ -5,7 +5,7 @@ Sources:
   band-limited signal through its samples; that signal is the reference here.
 - Independent band-limited reference: scipy.signal.resample (FFT) to 64 times the
   rate, then each oscillator by scipy.signal.cont2discrete(method="foh") (exact for
-  a piecewise-linear input, REFERENCES.md §1) run with scipy.signal.lfilter.
+  a piecewise-linear input, docs/references.md §1) run with scipy.signal.lfilter.
 - Issue 14 acceptance: continuous at 10·dt within 0.5 %, independent of the period
   set within 0.1 %.
 - The record is invented test data (seeded noise with content up to the Nyquist
@@ -101,7 +101,7 @@ def test_zero_period_value_is_the_band_limited_pga():
 
 
 def test_refinement_factors_follow_the_rule():
-    # the rule stated in the README: smallest power of two giving 40 samples a period,
+    # the rule stated in docs/guide/spectra.md: smallest power of two giving 40 samples a period,
     # at most 16 (40·dt/T = 40, 4.0, 1.0, 0.4 and 2000 samples short)
     f = refinement_factors([DT, 10 * DT, 40 * DT, 100 * DT, 0.02 * DT], DT)
     assert f.tolist() == [16, 4, 1, 1, 16]

@@ -4,7 +4,7 @@ Sources:
 - Boore (2010), BSSA 100(4): RotDnn is the nn-th percentile over rotation angles of the
   spectrum of a1·cosθ + a2·sinθ; RotD100 the maximum; θ = 0 is component 1.
 - Boore, Watson-Lamprey & Abrahamson (2006), BSSA 96(4A): GMRotD50.
-- REFERENCES.md §4 [C]: linearly polarised motion, RotD50 = 0.7071·RotD100 and
+- docs/references.md §4 [C]: linearly polarised motion, RotD50 = 0.7071·RotD100 and
   GMRotD50 = 0.5946·RotD100.
 - Rotational symmetry (common practice): circularly polarised motion has the same
   spectrum at every angle.
@@ -41,9 +41,9 @@ def test_linearly_polarised_motion(engine):
     phi = np.deg2rad(30.0)
     r = rotd(a * np.cos(phi), a * np.sin(phi), dt, [0.1, 0.5, 2.0], [0.02, 0.05], (50, 100))
     rot50, rot100 = r.psa_for(50), r.psa_for(100)
-    # REFERENCES.md §4 [C]: RotD50 = 0.7071·RotD100 for polarised motion; 1e-4
+    # docs/references.md §4 [C]: RotD50 = 0.7071·RotD100 for polarised motion; 1e-4
     np.testing.assert_allclose(rot50 / rot100, 0.7071, rtol=1e-4)
-    # REFERENCES.md §4 [C]: GMRotD50 = 0.5946·RotD100 (continuous angles; 1° steps give
+    # docs/references.md §4 [C]: GMRotD50 = 0.5946·RotD100 (continuous angles; 1° steps give
     # 0.59456), 2e-4
     np.testing.assert_allclose(r.gmrotd50 / rot100, 0.5946, rtol=2e-4)
     # Boore 2010: RotD100 is the spectrum along the direction of motion

@@ -1,10 +1,10 @@
 """Target spectra and suite statistics.
 
 Sources:
-- ASCE 7-16 §11.4.6 design spectrum; check values in REFERENCES.md §5 [C]
+- ASCE 7-16 §11.4.6 design spectrum; check values in docs/references.md §5 [C]
   (SDS = 1.0, SD1 = 0.6, TL = 8: 0.40, 0.70, 1.00, 0.50, 0.048 g).
 - EN 1998-1:2004 §3.2.2.2, Tables 3.2/3.3 and η = √(10/(5+ξ)) ≥ 0.55; check values in
-  REFERENCES.md §5 [C] (type 1, ground C, ag = 0.3 g: 0.345, 0.60375, 0.8625, 0.43125,
+  docs/references.md §5 [C] (type 1, ground C, ag = 0.3 g: 0.345, 0.60375, 0.8625, 0.43125,
   0.115 g).
 - Log-normal distribution (common practice; e.g. Benjamin & Cornell 1970): median =
   exp(mean ln), 16th/84th percentiles = exp(μ ∓ σ) since Φ(±1) = 0.8413/0.1587.
@@ -24,7 +24,7 @@ G = 9.80665
 def test_asce7_check_values():
     t = parse_target("asce7:sds=1.0,sd1=0.6,tl=8")
     got = t.psa([0.0, 0.06, 0.3, 1.2, 10.0]) / G
-    # ASCE 7-16 §11.4.6, REFERENCES.md §5 [C]
+    # ASCE 7-16 §11.4.6, docs/references.md §5 [C]
     np.testing.assert_allclose(got, [0.40, 0.70, 1.00, 0.50, 0.048], rtol=1e-12)
     # ASCE 7-16 §11.4.6: continuous at T0 = 0.12, Ts = 0.6 and TL = 8 s
     for tt in (0.12, 0.6, 8.0):
@@ -36,7 +36,7 @@ def test_asce7_check_values():
 def test_en1998_check_values():
     t = parse_target("en1998:type=1,ground=C,ag=0.3")
     got = t.psa([0.0, 0.1, 0.4, 1.2, 3.0]) / G
-    # EN 1998-1 §3.2.2.2, REFERENCES.md §5 [C]
+    # EN 1998-1 §3.2.2.2, docs/references.md §5 [C]
     np.testing.assert_allclose(got, [0.345, 0.60375, 0.8625, 0.43125, 0.115], rtol=1e-12)
 
 

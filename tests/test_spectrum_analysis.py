@@ -20,7 +20,7 @@ def _equal_damping_rho(r, xi):
 @pytest.mark.parametrize("xi", [0.02, 0.05, 0.10])
 def test_cqc_equal_damping_closed_form(r, xi):
     rho = cqc_correlation(np.array([10.0, 10.0 * r]), np.array([xi, xi]))
-    # Der Kiureghian (1981) closed form for equal damping (REFERENCES.md §12)
+    # Der Kiureghian (1981) closed form for equal damping (docs/references.md §12)
     assert rho[0, 1] == pytest.approx(_equal_damping_rho(r, xi), rel=1e-12)
     assert rho[1, 0] == pytest.approx(rho[0, 1], rel=1e-12)   # symmetry of the form
 
@@ -28,7 +28,7 @@ def test_cqc_equal_damping_closed_form(r, xi):
 def test_cqc_tabulated_values_at_5_percent():
     beta = np.array([1.0, 0.95, 0.9, 0.8, 0.5])
     rho = cqc_correlation(np.concatenate([[1.0], beta[1:]]), 0.05)[0]
-    # REFERENCES.md §6: 5 % damping, β = 1, .95, .9, .8, .5 → 1.000, .7914, .4730, .1656, .0185
+    # docs/references.md §6: 5 % damping, β = 1, .95, .9, .8, .5 → 1.000, .7914, .4730, .1656, .0185
     np.testing.assert_allclose(rho, [1.0, 0.7914, 0.4730, 0.1656, 0.0185], atol=6e-5)
 
 
@@ -88,7 +88,7 @@ def test_asce7_target_scaled_to_mode_damping():
     tgt = parse_target("asce7:sds=1.0,sd1=0.6,tl=8")
     sa, notes = spectral_accelerations(tgt, np.array([0.3, 1.2]), np.array([0.02, 0.05]))
     g = 9.80665
-    # ASCE 7-16 §11.4.6: Sa(0.3) = SDS = 1.0 g, Sa(1.2) = SD1/T = 0.5 g (REFERENCES.md §5);
+    # ASCE 7-16 §11.4.6: Sa(0.3) = SDS = 1.0 g, Sa(1.2) = SD1/T = 0.5 g (docs/references.md §5);
     # the 2 % mode times η(2 %) = √(10/7) (EN 1998-1 §3.2.2.2)
     np.testing.assert_allclose(sa, [1.0 * g * math.sqrt(10 / 7), 0.5 * g], rtol=1e-12)
     assert notes

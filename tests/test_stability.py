@@ -143,7 +143,7 @@ def test_shape_mismatch_is_an_error():
 # ---- through a whole run: a near-rigid block under slow x-only shaking
 def _rigid_block_run(support_kind="fixed", **support):
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
     from groundshake.scenario import Scenario
     L, B, H = 3.0, 2.0, 1.2
     d = {"title": "stability test block (invented)",
@@ -187,7 +187,7 @@ def test_run_sliding_and_overturning_against_statics(kind, soil):
 @pytest.mark.filterwarnings("ignore::groundshake._errors.GroundshakeWarning")
 def test_run_bolt_interaction_between_its_bounds():
     from groundshake.dynamics import motion_from_arrays
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
     from groundshake.scenario import Scenario
     scen = Scenario.from_dict({
         "title": "bolt interaction test (invented)",

@@ -88,7 +88,7 @@ def test_pool_after_a_run_in_this_process_twice(case, tmp_path):
     # on a pool of 2 in the same process; NUMBA_THREADING_LAYER is left alone
     import numba
 
-    from groundshake.results import analyse
+    from groundshake.pipeline import analyse
 
     root, rec, scen, scenario, shared, sets = case
     with warnings.catch_warnings():
@@ -366,3 +366,33 @@ def test_dask_cluster_that_loses_the_shared_model_scatters_it_again(case, long_s
     _all_ok(res, 3)                                                   # contract: no set lost
     assert sorted(seen) == sorted(rs.name for rs in long_sets[:3])   # each exactly once
     assert res.engine.retries >= 1
+
+
+def _settings(shared, item):
+    """A test task: the thread settings in force where it runs."""
+    import numba
+
+    from groundshake.spectra._kernel import kernel_threads
+
+    return {"record": item["name"], "status": "ok", "numba": numba.get_num_threads(),
+            "kernel": kernel_threads(), "env": os.environ.get("GROUNDSHAKE_THREADS"),
+            "malloc": _engine._malloc_tuned}
+
+
+def test_workers_run_compiled_kernels_on_one_thread():
+    # the workers are the parallelism: inside a pool worker and a Dask task, numba's
+    # thread count (numba docs: set_num_threads, per calling thread) and the oscillator
+    # kernel's are 1; on glibc the allocator settings were applied (mallopt returns 1)
+    distributed = pytest.importorskip("distributed")
+    items = [{"name": f"s{k}"} for k in range(3)]
+    runs = {"pool": list(run_tasks(_settings, {}, items, workers=2))}
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster:
+        with distributed.Client(cluster) as client:
+            runs["dask"] = list(run_tasks(_settings, {}, items, scheduler=client))
+    glibc = _engine._glibc() is not None
+    for name, out in runs.items():
+        assert len(out) == 3, name
+        for r in out:
+            assert r["numba"] == 1 and r["kernel"] == 1 and r["env"] == "1", (name, r)
+            assert r["malloc"] == glibc, (name, r)

@@ -1,7 +1,7 @@
 """One time base: components in step, every time counted from the first sample as read.
 
 Sources:
-- Issue 14 (the rule the README states): every reported time and every written time
+- Issue 14 (the rule docs/guide/run.md states): every reported time and every written time
   column is counted from the first sample as read, pads at negative times; matched and
   unmatched components share their onset (first exceedance of 5 % of the peak).
 - The demo records' own time column (records/demo-*.csv, "time [s]" from 0.0): the
@@ -28,7 +28,7 @@ from _blocks import concrete_block
 
 from groundshake._errors import GroundshakeWarning
 from groundshake.cli import main
-from groundshake.dynamics import build_motion
+from groundshake.pipeline import build_motion
 from groundshake.processing import correct_record, intensity_measures
 from groundshake.records import read_record, write_record
 from groundshake.scenario import parse_scenario_text

@@ -19,10 +19,10 @@ from typing import Callable
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from .._errors import InputError
 from .._progress import Progress
+from ..model._factor import factorize, pardiso_available
 
 __all__ = ["DirectResponse", "direct_response", "newmark_parameters", "substeps_for"]
 
@@ -58,23 +58,14 @@ def substeps_for(dt: float, highest_hz: float | None, *, per_period: int = 10) -
 class _Factor:
     """A factorized SPD sparse matrix with ``solve(b)``.
 
-    The model's factorization (PARDISO where it loads, else SuperLU) when that
-    stage is installed; scipy's SuperLU otherwise.
+    The model's factorization (PARDISO where it loads, else scipy's SuperLU).
     """
 
     def __init__(self, A: sp.spmatrix, *, solver: str = "auto"):
         A = sp.csr_matrix(A)
-        try:
-            from ..model._factor import factorize, pardiso_available
-        except ImportError:  # pragma: no cover - model stage absent
-            factorize = None
-        if factorize is not None:
-            self._f = factorize(A, solver=solver)
-            self.name = "pardiso" if (solver == "pardiso" or
-                                      (solver == "auto" and pardiso_available())) else "scipy"
-        else:  # pragma: no cover
-            self._f = spla.splu(sp.csc_matrix(A))
-            self.name = "scipy"
+        self._f = factorize(A, solver=solver)
+        self.name = "pardiso" if (solver == "pardiso" or
+                                  (solver == "auto" and pardiso_available())) else "scipy"
 
     def solve(self, b: np.ndarray) -> np.ndarray:
         return np.asarray(self._f.solve(b)).reshape(b.shape)

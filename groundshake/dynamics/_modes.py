@@ -16,6 +16,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .._errors import GroundshakeWarning, InputError
+from ._damping import MODAL_DAMPING_CAP, modal_damping
 
 __all__ = ["Modes", "compute_modes", "lowest_modes", "mass_captured_warnings"]
 
@@ -382,8 +383,7 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     if warn:
         for msg in msgs:
             warnings.warn(msg, GroundshakeWarning, stacklevel=2)
-    damping = model.modal_damping(phi)
-    from ..model._build import MODAL_DAMPING_CAP
+    damping = modal_damping(model, phi)
     capped = np.flatnonzero(damping >= MODAL_DAMPING_CAP - 1e-12)
     if capped.size:
         msgs.append(f"modal damping of mode(s) {', '.join(str(i + 1) for i in capped[:10])} "

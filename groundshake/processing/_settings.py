@@ -27,7 +27,7 @@ class ProcessingSettings:
         derivative (order k-1) is removed from acceleration. 0 or ``None``: no fit.
     highpass_hz, lowpass_hz : float or None
         Corners [Hz] of the acausal Butterworth low-cut / high-cut filter; ``None``
-        for none.
+        or 0 for none (0 is stored as ``None``, as the CLI and the scenario spell it).
     filter_order : int
         Order n (1-12) of each Butterworth pass; applied forward and backward, so
         the gain is |H|² with -6 dB (one half) at the corner.
@@ -50,6 +50,10 @@ class ProcessingSettings:
 
     def __post_init__(self) -> None:
         where = "processing"
+        for key in ("highpass_hz", "lowpass_hz"):      # one spelling of "no filter": None
+            value = getattr(self, key)
+            if isinstance(value, (int, float)) and not isinstance(value, bool) and value == 0:
+                object.__setattr__(self, key, None)
         if not isinstance(self.enabled, bool):
             raise InputError(f"{where}.enabled: given {self.enabled!r}; allowed true or false")
         if self.mean_removal not in ("whole", "pre-event"):

@@ -13,6 +13,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, RecordError
 from ._record import Record
 from ._units import canonical_units
@@ -24,7 +25,7 @@ from .io.text import STEP_TOLERANCE
 __all__ = ["read_record", "MIN_SAMPLES", "STEP_TOLERANCE", "PLAUSIBLE_PEAK"]
 
 #: Peak ground acceleration above which the units are probably wrong [m/s²] (5 g).
-PLAUSIBLE_PEAK = 5 * 9.80665
+PLAUSIBLE_PEAK = 5 * STANDARD_GRAVITY
 
 
 def read_record(path, *, units: str | None = None, dt: float | None = None,
@@ -127,7 +128,7 @@ def _check_inventory_applies(path: Path) -> None:
 def _warn_if_implausible(rec: Record) -> None:
     peak = float(np.max(np.abs(rec.acc - np.mean(rec.acc))))
     if peak > PLAUSIBLE_PEAK:
-        warnings.warn(f"{rec.source}: {rec.name}: peak {peak:.4g} m/s2 ({peak / 9.80665:.3g} g) "
+        warnings.warn(f"{rec.source}: {rec.name}: peak {peak:.4g} m/s2 ({peak / STANDARD_GRAVITY:.3g} g) "
                       f"is beyond any recorded ground motion; check the units (read as "
                       f"{rec.units}) or whether the file holds raw counts",
                       GroundshakeWarning, stacklevel=3)

@@ -7,12 +7,11 @@ from typing import Any, Mapping
 
 import numpy as np
 
+from .._constants import STANDARD_GRAVITY
 from .._errors import RecordError
 
 __all__ = ["Record", "STANDARD_GRAVITY"]
 
-#: Standard acceleration of gravity [m/s²] (3rd CGPM, 1901).
-STANDARD_GRAVITY = 9.80665
 
 
 def _frozen_array(a) -> np.ndarray:

@@ -22,7 +22,7 @@ from typing import Any
 
 import numpy as np
 
-from .._errors import GroundshakeWarning
+from .._errors import GroundshakeWarning, InputError
 from ..model._impedance import modulus_ratio_of
 
 __all__ = ["soil_cases", "needs_soil_cases", "analyse_cases", "consistent_soil_model",
@@ -312,7 +312,6 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         ``equipment``, ``stability``, ``worst_dc``, ``worst_interaction`` and the floor
         spectra.
     """
-    from ..dynamics._motion import build_motion
     from ..model import build_model
     cases = soil_cases(scenario.support)
     cv = _get(scenario.support, "variation")
@@ -322,7 +321,8 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
                      "for where the soil is not well investigated (from memory)")
     spectrum = (method or _get(_get(scenario, "analysis"), "method", "modal")) == "spectrum"
     if motion is None and not spectrum:      # the spectrum method reads no records
-        motion = build_motion(scenario)
+        raise InputError("motion: none given; groundshake.analyse (the application layer) "
+                         "reads it from the scenario's [motion] files")
     run_method = method or _get(_get(scenario, "analysis"), "method", "modal")
     results = []
     for c in cases:

@@ -5,22 +5,19 @@ import csv
 import io
 import os
 from pathlib import Path
-from typing import Iterable, Sequence
+from typing import Callable, Iterable, Sequence
 
 import numpy as np
 import scipy.sparse as sp
 
 from .._atomic import atomic_directory
-from .._cli_common import json_dumps
-from ._schema import COLUMNS, DIRECTIONS, FILES, SCHEMA_VERSION, UNITS
+from .._json import json_dumps
+from ._schema import COLUMNS, DIRECTIONS, FILES, OUTPUT_FILES, SCHEMA_VERSION, UNITS
 
 __all__ = ["write_outputs", "OUTPUT_FILES", "rotational_participation", "dominant_direction",
            "mesh_description"]
 
-#: The files a run writes besides the report (names from the output contract).
-OUTPUT_FILES = tuple(FILES[k] for k in ("summary", "histories", "records", "ground_spectra",
-                                        "floor_spectra", "modes", "element_peaks",
-                                        "mode_shapes", "mesh"))
+# the file names come from the output contract (_schema.py)
 
 
 def _csv_text(header: Sequence[str], columns: Iterable[np.ndarray | Sequence], *,
@@ -47,7 +44,8 @@ def _damp_label(r: float) -> str:
 
 
 def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = False,
-                  n_shapes: int = 6, report: bool = True, report_units: str | None = None) -> Path:
+                  n_shapes: int = 6,
+                  also: Callable[[Path], object] | None = None) -> Path:
     """Write a run's files into ``out_dir`` (a new folder, moved into place when complete).
 
     Parameters
@@ -58,11 +56,10 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         The folder to create; an existing one is replaced only with ``overwrite``.
     n_shapes : int
         Mode shapes written to mode_shapes.csv.
-    report : bool
-        Also write report.html with ``groundshake.report.write_report`` when that
-        stage is installed (inside the same atomic folder).
-    report_units : {"si", "us"}, optional
-        Display units of the report (default: the scenario's ``[report] units``).
+    also : callable, optional
+        Called with the temporary folder after the files are written, inside the same
+        atomic step (the application layer writes report.html this way:
+        :func:`groundshake.pipeline.write_run`).
 
     Returns
     -------
@@ -91,10 +88,8 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
         _write(tmp, FILES["element_peaks"], _elements_csv(results))
         _write(tmp, FILES["mode_shapes"], _shapes_csv(results, n_shapes))
         _write(tmp, FILES["mesh"], json_dumps(mesh_description(results.model), indent=None) + "\n")
-        if report:
-            from ..report import write_report
-
-            write_report(tmp, progress=False, units=report_units)
+        if also is not None:
+            also(tmp)
     return out_dir
 
 
@@ -103,6 +98,7 @@ def _summary_with_contract(summary: dict, rot: np.ndarray) -> dict:
     rotational participation and dominant direction filled in (the run's dict is not
     changed)."""
     out = dict(summary)
+    out = {"schema_version": SCHEMA_VERSION, **out}
     out["schema"] = {"version": SCHEMA_VERSION, "files": dict(FILES),
                      "units": {k: v for k, v in UNITS.items() if v}}
     modes = out.get("modes")

@@ -14,13 +14,20 @@ import numpy as np
 import scipy.sparse as sp
 
 from .._cautions import CAUTIONS
+from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
+from ..processing import intensity_measures
+from ..spectra import parse_target
 from .._progress import Progress
 from ..dynamics._coupled import coupled_response
+from ..dynamics._damping import damping_matrix, modal_damping_matrix
 from ..dynamics._direct import direct_response, substeps_for
+from ..dynamics._modes import compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
-from ..dynamics._motion import DIRECTIONS, Motion, build_motion
+from ..dynamics._motion import DIRECTIONS, Motion
+from ._common import RunResults, _modes_dict, _sha256
+from ._spectrum_run import spectrum_analyse
 from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
                          fp_comparison)
 from ._stability import base_stability
@@ -35,41 +42,6 @@ RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
 RIGID_HZ = 33.0
 
 
-@dataclass
-class RunResults:
-    """Everything a run produced.
-
-    Attributes
-    ----------
-    summary : dict
-        The summary (as written to summary.json), SI units.
-    motion : Motion
-    model : BlockModel
-    modes : Modes
-    time : ndarray (n_t,) [s]
-    histories : dict str -> ndarray (n_t,)
-        Named time histories (column name with unit → values).
-    ground_spectra : dict
-        ``periods``, ``damping``, ``psa`` (3, n_d, n_p) of the ground motion.
-    floor : dict
-        Output of :func:`floor_spectra` plus ``points`` (names).
-    stress : StressPeaks
-        Per element: the largest peaks of its corner stress points (NaN for an element
-        with no corner on the surface).
-    """
-
-    summary: dict
-    motion: Motion
-    model: Any
-    modes: Any
-    time: np.ndarray
-    histories: dict
-    ground_spectra: dict
-    floor: dict
-    stress: StressPeaks | None
-    target_psa: np.ndarray | None = None
-    inputs: dict = field(default_factory=dict)
-    base: np.ndarray | None = None
 
 
 def base_resultants(results: RunResults) -> dict[str, np.ndarray]:
@@ -107,17 +79,6 @@ def _peak(x: np.ndarray, time: np.ndarray) -> dict:
         return {"value": 0.0, "time": 0.0, "signed": 0.0}
     i = int(np.argmax(np.abs(x)))
     return {"value": float(abs(x[i])), "time": float(time[i]), "signed": float(x[i])}
-
-
-def _sha256(path: Path) -> str | None:
-    try:
-        h = hashlib.sha256()
-        with open(path, "rb") as fh:
-            for chunk in iter(lambda: fh.read(1 << 20), b""):
-                h.update(chunk)
-        return h.hexdigest()
-    except OSError:
-        return None
 
 
 def _mount_operator(model, position) -> sp.csr_matrix:
@@ -173,7 +134,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             load = getattr(model, "ground_load", None)
             if load is None:
                 load = model.M @ model.influence
-            r = coupled_response(model.K, model.M, model.damping_matrix(modes=modes), shapes,
+            r = coupled_response(model.K, model.M, damping_matrix(model, modes=modes), shapes,
                                  residual, load, ag, dt,
                                  damping_update=model.damping_update()
                                  if hasattr(model, "damping_update") else None)
@@ -182,12 +143,11 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                                      "missing_mass_vectors": int(r.shapes.shape[1]
                                                                  - shapes.shape[1])}
             info["rayleigh_hz"] = getattr(model, "rayleigh_used_hz", None)
-        elif getattr(model, "is_classically_damped", True) or not hasattr(model,
-                                                                          "modal_damping_matrix"):
+        elif getattr(model, "is_classically_damped", True):
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
         else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
-            r = coupled_modal_response(shapes, modes.omega, model.modal_damping_matrix(shapes),
+            r = coupled_modal_response(shapes, modes.omega, modal_damping_matrix(model, shapes),
                                        gam, ag, dt, residual=residual)
             info["modal_damping"] = "coupled"
             info["modal_damping_diagonal_ratios"] = [float(v) for v in r.damping]
@@ -215,7 +175,9 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     def on_block(ub, steps):
         peaks.update(0, (S @ ub).reshape(n_el, 6, -1), steps)
 
-    C = model.damping_matrix(modes=modes)
+    if modes is None and model.rayleigh_hz is None:   # the Rayleigh anchors need the modes
+        modes = compute_modes(model, n_modes=min(12, model.n_dof - 1), warn=False)
+    C = damping_matrix(model, modes=modes)
     update = model.damping_update() if hasattr(model, "damping_update") else None
     K, M, iota, load = model.K, model.M, model.influence, getattr(model, "ground_load", None)
     block_fn, rows, peak_rows = (on_block if peaks is not None else None), output, node_map
@@ -277,19 +239,22 @@ def analyse(scenario, *, progress: bool = True,
             method: Literal["auto", "modal", "coupled", "direct", "spectrum"] | None = None,
             motion: Motion | None = None, model=None, modes=None,
             stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
-    """Run a scenario: motion, model, modes, response and every result.
+    """Run a scenario on a given motion: model, modes, response and every result.
 
     Parameters
     ----------
     scenario : Scenario
-        From :func:`groundshake.load_scenario` (needs a ``[motion]`` section
-        unless ``motion`` is given).
+        From :func:`groundshake.load_scenario`.
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
     method : {"auto", "modal", "coupled", "direct", "spectrum"}, optional
         Overrides ``analysis.method``. ``"spectrum"`` is response-spectrum analysis of
         ``[motion] target`` (records are not read; ``time`` and ``histories`` stay empty).
-    motion, model, modes : optional
+    motion : Motion
+        The base motion (:func:`groundshake.dynamics.motion_from_arrays`, or from the
+        scenario's files by :func:`groundshake.pipeline.build_motion`;
+        :func:`groundshake.analyse` does that for you); none for ``"spectrum"``.
+    model, modes : optional
         Precomputed pieces (e.g. a suite reuses the model and modes).
     stresses : bool
         Compute stress peaks (at the surface stress points).
@@ -356,10 +321,9 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
             raise InputError("analysis.method: 'spectrum' takes the design spectrum of "
                              "[motion] target, not records; allowed 'auto', 'modal', "
                              "'coupled' or 'direct' with a given motion")
-        from ._spectrum_run import spectrum_analyse
         return spectrum_analyse(scenario, progress=progress, model=model, modes=modes,
                                 stresses=stresses, collected=collected, residual=residual,
-                                timings=timings)
+                                timings=timings, analyse=analyse)
     if method not in ("auto", "modal", "coupled", "direct"):
         raise InputError(f"analysis.method: given {method!r}; allowed 'auto', 'modal', "
                          "'coupled', 'direct', 'spectrum'")
@@ -367,10 +331,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
     if motion is None:
-        if _get(scenario, "motion") is None:
-            raise InputError(f"{_get(scenario, 'source', 'scenario')}: [motion]: missing; "
-                             "allowed x, y, z = { file = ... } (at least one)")
-        motion = build_motion(scenario)
+        raise InputError("motion: none given; groundshake.analyse (the application layer) "
+                         "reads it from the scenario's [motion] files")
     timings["motion"] = _tick()
     collected.extend(motion.notes)
     if model is None:
@@ -532,7 +494,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                   "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
-            d_["fp"] = fp_comparison(weight=e.mass * 9.80665, sds=float(_get(fp, "sds")),
+            d_["fp"] = fp_comparison(weight=e.mass * STANDARD_GRAVITY, sds=float(_get(fp, "sds")),
                                      ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
                                      ip=float(_get(fp, "ip", 1.0)),
                                      z_over_h=float(_get(fp, "z_over_h", 0.0)),
@@ -647,12 +609,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     target_psa = None
     target_spec = _get(_get(scenario, "motion"), "target")
     if target_spec:
-        try:
-            from ..spectra import parse_target
-            tgt = parse_target(target_spec, base_dir=_get(scenario, "base_dir"))
-            target_psa = np.asarray(tgt.psa(periods), dtype=float)
-        except ImportError:  # pragma: no cover - stage not installed
-            target_psa = None
+        tgt = parse_target(target_spec, base_dir=_get(scenario, "base_dir"))
+        target_psa = np.asarray(tgt.psa(periods), dtype=float)
 
     # ---- warnings
     _auto_warnings(collected, scenario=scenario, model=model, modes=modes, motion=motion,
@@ -721,27 +679,8 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                       target_psa=target_psa, inputs=inputs, base=base)
 
 
-def _modes_dict(modes, model) -> dict:
-    if hasattr(modes, "to_dict"):
-        d = modes.to_dict()
-        if isinstance(d, dict):
-            d.setdefault("total_mass", [float(v) for v in model.total_mass])
-            return d
-        return {"total_mass": [float(v) for v in model.total_mass], "modes": d}
-    out = []
-    for i in range(np.asarray(modes.omega).size):
-        out.append({"frequency": float(modes.frequency[i]), "period": float(modes.period[i]),
-                    "effective_mass_ratio": {d: float(modes.effective_mass_ratio[i, j])
-                                             for j, d in enumerate(DIRECTIONS)}})
-    return {"total_mass": [float(v) for v in model.total_mass], "modes": out}
-
-
 def _records_summary(motion: Motion) -> list:
     out = []
-    try:
-        from ..processing import intensity_measures
-    except ImportError:  # pragma: no cover
-        intensity_measures = None
     for d in motion.components:
         rec = motion.corrected.get(d)
         if rec is None:
@@ -754,12 +693,11 @@ def _records_summary(motion: Motion) -> list:
                  # component (one grid); every output counts time from the first sample
                  # as read, so the pad lies at negative times
                  "pad_before_s": float(rec.metadata.get("pad_before_s", 0.0))}
-        if intensity_measures is not None:
-            try:
-                entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
-                                     if np.ndim(v) == 0}     # scalars; curves stay in the CSVs
-            except Exception as exc:  # noqa: BLE001 - measures are informative only
-                entry["measures_error"] = str(exc)
+        try:
+            entry["measures"] = {k: v for k, v in intensity_measures(rec).items()
+                                 if np.ndim(v) == 0}     # scalars; curves stay in the CSVs
+        except Exception as exc:  # noqa: BLE001 - measures are informative only
+            entry["measures_error"] = str(exc)
         out.append(entry)
     return out
 

@@ -16,7 +16,7 @@ import re
 from dataclasses import dataclass
 from typing import Any, Iterator, Mapping
 
-__all__ = ["SCHEMA_VERSION", "FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
+__all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPORT_FILE", "FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
            "kind_of", "header", "parse_header", "history_label", "HISTORY_BASE",
            "iter_values", "DIRECTIONS"]
 
@@ -38,6 +38,12 @@ FILES: dict[str, str] = {
     "mesh": "mesh.json",
     "report": "report.html",
 }
+
+#: The names the application layer and the docs use (derived from FILES).
+SUMMARY_FILE = FILES["summary"]
+CSV_FILES = tuple(k for k, v in FILES.items() if v.endswith(".csv"))
+OUTPUT_FILES = (SUMMARY_FILE, *(FILES[k] for k in CSV_FILES), FILES["mesh"])
+REPORT_FILE = FILES["report"]
 
 #: SI unit of each quantity kind, as written in files ("" for a plain number).
 UNITS: dict[str, str] = {
@@ -321,6 +327,7 @@ SUMMARY_KINDS: dict[str, str] = {
     "provenance.settings.modes": "count",
     "provenance.timings_s.*": "time",
     "schema.version": "number",
+    "schema_version": "number",
     "soil_cases.*.shear_modulus": "modulus",
     "soil_cases.*.modulus_ratio": "ratio",
     "soil_cases.*.modes.*.frequency": "frequency",

@@ -12,6 +12,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from .._cautions import CAUTIONS
+from .._constants import STANDARD_GRAVITY
 from .._errors import InputError
 from .._progress import Progress
 from ..dynamics._modal import residual_vectors
@@ -21,14 +22,9 @@ from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, VON_MISES_
                                            spectral_accelerations)
 from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
 
-try:                                    # stages that arrived later; optional here
-    from ._anchorage import INTERACTION_FORMS, bolt_interaction
-except ImportError:  # pragma: no cover
-    INTERACTION_FORMS, bolt_interaction = None, None
-try:
-    from ._stability import base_stability
-except ImportError:  # pragma: no cover
-    base_stability = None
+from ._anchorage import INTERACTION_FORMS, bolt_interaction
+from ._common import RunResults, _modes_dict, _sha256
+from ._stability import base_stability
 from ._stress import StressPeaks
 
 __all__ = ["spectrum_analyse", "stress_bounds", "stress_envelope", "SIGNS_LOST", "STRESS_RULE"]
@@ -164,7 +160,7 @@ def _targets(scenario):
 
 def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
                      collected: list, residual: np.ndarray | None = None,
-                     timings: dict | None = None):
+                     timings: dict | None = None, analyse=None):
     """Run a scenario by response-spectrum analysis (``[analysis] method = "spectrum"``).
 
     Parameters
@@ -183,6 +179,9 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         Missing-mass shapes for ``modes``.
     timings : dict, optional
         Filled with the stage times [s].
+    analyse : callable
+        :func:`groundshake.results.analyse`, for the time-history runs of the invented
+        matched motions (passed in so that this module does not import the run's).
 
     Returns
     -------
@@ -194,7 +193,6 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
 
     from ..dynamics import compute_modes
     from ..model import build_model
-    from ._run import RunResults, _modes_dict
 
     timings = {} if timings is None else timings
     clock = [_time.perf_counter()]
@@ -314,7 +312,7 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
                                           interaction_formula=INTERACTION_FORMS[form])
         if e.fp is not None and anchors.shape[0]:
             fp = e.fp
-            d_["fp"] = fp_comparison(weight=e.mass * 9.80665, sds=float(_get(fp, "sds")),
+            d_["fp"] = fp_comparison(weight=e.mass * STANDARD_GRAVITY, sds=float(_get(fp, "sds")),
                                      ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
                                      ip=float(_get(fp, "ip", 1.0)),
                                      z_over_h=float(_get(fp, "z_over_h", 0.0)),
@@ -450,8 +448,12 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     side = None
     if n_mot > 0:
         with Progress("spectrum-compatible motions", total=None, enabled=progress):
+            if analyse is None:
+                raise InputError("analysis.spectrum_motions: the matched motions need the "
+                                 "time-history run (pass analyse=groundshake.results.analyse)")
             floor, floor_out, side = _matched_floor(
-                scenario, n_mot, targets, scales, model=model, modes=modes, residual=residual)
+                scenario, n_mot, targets, scales, model=model, modes=modes, residual=residual,
+                analyse=analyse)
         timings["spectrum_motions"] = _tick()
 
     # ---- assumptions and warnings
@@ -553,7 +555,6 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     from pathlib import Path
 
     from .. import __version__
-    from ._run import _sha256
 
     inputs = {}
     for src in (_get(scenario, "source", None), th.parameters.get("path"),
@@ -615,7 +616,7 @@ def _with_bolt_maxima(summary) -> dict:
     return summary
 
 
-def _matched_floor(scenario, n, targets, scales, *, model, modes, residual,
+def _matched_floor(scenario, n, targets, scales, *, model, modes, residual, analyse,
                    dt: float = 0.002, duration: float = 30.0):
     """Floor spectra (mean over ``n`` spectrum-compatible motions) and the side-by-side rows.
 
@@ -632,7 +633,6 @@ def _matched_floor(scenario, n, targets, scales, *, model, modes, residual,
     from ..matching import match_spectrum_report
     from ..records import Record
     from ..records.synthetic import stochastic_acceleration
-    from ._run import analyse
 
     band = (max(0.02, 10 * dt), 4.0)
     th_scen = dataclasses.replace(

@@ -38,10 +38,12 @@ def _jit():
     """The compiled fold module, or None where numba is missing."""
     if not _JIT:
         try:
-            from . import _stress_jit
-            _JIT.append(_stress_jit)
+            import numba  # noqa: F401  (only numba's absence is a fallback)
         except ImportError:  # pragma: no cover - numba is a dependency
             _JIT.append(None)
+        else:
+            from . import _stress_jit
+            _JIT.append(_stress_jit)
     return _JIT[0]
 
 

@@ -8,7 +8,8 @@ damping is in percent, as in the file. Errors are one-line
 ``FILE:LINE: key.path: given VALUE; allowed WHAT``.
 """
 from ._geometry import MAX_ESTIMATED_DOFS, estimated_dofs
-from ._load import box_rotary_inertia, load_scenario, parse_scenario_text
+from ._load import load_scenario, parse_scenario_text
+from ._validate import box_rotary_inertia
 from ._schema import schema_rows
 from ._types import (
     RECORD_UNITS,

@@ -1,9 +1,10 @@
-"""The schema as rows, for the README table and its test (so they cannot drift)."""
+"""The schema as rows, for the key tables of docs/guide/scenario.md and docs/reference/scenario.md
+and their tests (so they cannot drift)."""
 from __future__ import annotations
 
 import dataclasses
 
-from ._load import _schema_fields, allowed_text
+from ._spec import _schema_fields, allowed_text
 from ._types import MotionComponent, Scenario
 
 __all__ = ["schema_rows", "schema_markdown"]
@@ -74,7 +75,7 @@ def schema_rows() -> list[tuple[str, str, str, str]]:
 
 
 def schema_markdown() -> str:
-    """The README's key table (Markdown), generated from the schema."""
+    """The key table (Markdown) of the scenario guide and reference, generated from the schema."""
     out = ["| key | default | allowed | meaning |", "|---|---|---|---|"]
     for key, default, allowed, doc in schema_rows():
         cells = [f"`{key}`", default, allowed, doc]

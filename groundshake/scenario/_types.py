@@ -41,6 +41,10 @@ RECORD_UNITS = ("g", "m/s2", "cm/s2", "mm/s2", "ft/s2", "in/s2")
 _MISSING = dataclasses.MISSING
 _KEEP_MARK = object()  # "leave as it is" for Scenario.with_motion
 
+#: The reading and writing functions of the loader (``_load.py``), registered there when the
+#: package is imported, so that these data types do not import their loader (no cycle).
+_CODEC: dict[str, Any] = {}
+
 
 def spec(kind: str, default: Any = _MISSING, *, doc: str, unit: str = "",
          factory: Any = _MISSING, derived: str | None = None, **rules: Any):
@@ -138,9 +142,10 @@ class ProcessingOptions:
                               doc="length of the pre-event part")
     baseline_order: int = spec("integer", 1, ge=0, le=6,
                                doc="order of the polynomial baseline removed")
-    highpass_hz: float = spec("number", 0.1, gt=0.0, unit="Hz", doc="high-pass corner")
-    lowpass_hz: float | None = spec("number", None, gt=0.0, unit="Hz",
-                                    doc="low-pass corner; none = no low-pass")
+    highpass_hz: float = spec("number", 0.1, ge=0.0, unit="Hz",
+                              doc="high-pass corner; 0 = no high-pass")
+    lowpass_hz: float | None = spec("number", None, ge=0.0, unit="Hz",
+                                    doc="low-pass corner; none or 0 = no low-pass")
     filter_order: int = spec("integer", 4, ge=1, le=12, doc="Butterworth filter order")
     taper_percent: float = spec("number", 5.0, ge=0.0, le=25.0, unit="%",
                                 doc="cosine taper at each end, percent of the length")
@@ -451,8 +456,7 @@ class Scenario:
         ``base_dir`` (default: the current folder) resolves relative paths; ``None``
         values count as absent keys. Raises ``ScenarioError`` like :func:`load_scenario`.
         """
-        from ._load import scenario_from_dict
-        return scenario_from_dict(d, source=source, base_dir=base_dir)
+        return _CODEC["from_dict"](d, source=source, base_dir=base_dir)
 
     def to_dict(self) -> dict:
         """Every key with its value or default (JSON-able; paths as absolute strings).
@@ -461,8 +465,7 @@ class Scenario:
         carries ``"notes"`` (list of str, see :attr:`notes`), so any output that echoes
         the scenario shows them; ``from_dict`` ignores that entry.
         """
-        from ._load import scenario_to_dict
-        return scenario_to_dict(self)
+        return _CODEC["to_dict"](self)
 
     def with_motion(self, *, x: Any = None, y: Any = None, z: Any = None,
                     target: Any = _KEEP_MARK, match_target: Any = _KEEP_MARK) -> "Scenario":
@@ -474,10 +477,8 @@ class Scenario:
         ``match_target`` are kept from this scenario unless given. With no
         component at all the copy has ``motion = None``.
         """
-        from ._load import _KEEP, replace_motion
-        return replace_motion(self, {"x": x, "y": y, "z": z},
-                              _KEEP if target is _KEEP_MARK else target,
-                              _KEEP if match_target is _KEEP_MARK else match_target)
+        return _CODEC["replace_motion"](self, {"x": x, "y": y, "z": z},
+                                        target, match_target, _KEEP_MARK)
 
     def processing_settings(self):
         """``groundshake.processing.ProcessingSettings`` built from :attr:`processing`."""

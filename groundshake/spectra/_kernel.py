@@ -56,10 +56,11 @@ def _jit():
         return None
     if _jit_module is None and not _jit_failed:
         try:
-            from . import _jit as module
+            import numba  # noqa: F401  (only numba's absence is a fallback)
         except ImportError:
             _jit_failed = True
             return None
+        from . import _jit as module
         _jit_module = module
     return _jit_module
 

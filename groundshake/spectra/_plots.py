@@ -8,10 +8,11 @@ import numpy as np
 
 from .._atomic import atomic_savefig
 from .._cautions import SCREENING_NOTE
+from .._constants import STANDARD_GRAVITY
 
 __all__ = ["plot_spectra"]
 
-G = 9.80665
+G = STANDARD_GRAVITY
 _STYLES = ("-", "--", ":", "-.")
 
 

@@ -28,6 +28,7 @@ from typing import Callable
 
 import numpy as np
 
+from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
 from .._plausible import check_value
 
@@ -35,7 +36,7 @@ __all__ = ["TargetSpectrum", "parse_target", "asce7_spectrum", "en1998_spectrum"
            "table_spectrum", "published_target", "volume3_target", "target_ratio",
            "EN1998_GROUND"]
 
-G = 9.80665  # m/s² per g (standard gravity)
+G = STANDARD_GRAVITY  # m/s² per g
 
 #: EN 1998-1 Tables 3.2 and 3.3: ground type -> (S, TB, TC, TD) [-, s, s, s].
 EN1998_GROUND = {

@@ -24,6 +24,10 @@ again and the waiting sets resubmitted. Each task announces its start (a Dask
 event), so a set past its limit is cancelled and reported failed, and silence from
 the scheduler for longer than any set may take ends the run with a clear error.
 
+Every worker (pool or Dask) is set up by :func:`_prepare_worker` before a set:
+compiled kernels on one thread, and (glibc) an allocator that keeps medium-sized
+arrays on its heap, with free memory given back after each set.
+
 The time limit inside a worker is soft: the computing thread receives an exception
 at the limit (delivered between Python steps, so one long compiled call finishes
 first). The hard stop (above) catches what the soft one cannot; in this process
@@ -251,9 +255,90 @@ def _one_compiled_thread() -> None:
     try:
         import numba
 
-        numba.set_num_threads(1)
+        numba.set_num_threads(1)    # per thread in numba: called in the computing one
     except Exception as e:  # noqa: BLE001 - an optional speed setting, never fatal
         log.debug("suite: numba threads left as they are (%s)", e)
+
+
+#: glibc ``mallopt`` parameters and the values a worker uses (bytes)
+_M_TRIM_THRESHOLD, _M_MMAP_THRESHOLD = -1, -3
+_MMAP_THRESHOLD_B = 32 * 1024 * 1024     # glibc's own ceiling for its sliding threshold
+_TRIM_THRESHOLD_B = 2 * _MMAP_THRESHOLD_B
+_libc: Any = None
+_process_ready = False
+_malloc_tuned = False
+
+
+def _glibc():
+    """The C library when it is glibc (it has ``mallopt`` and ``malloc_trim``), else None."""
+    global _libc
+    if _libc is None:
+        _libc = False
+        try:
+            lib = ctypes.CDLL(None)
+            if hasattr(lib, "mallopt") and hasattr(lib, "malloc_trim"):
+                _libc = lib
+        except OSError:
+            pass
+    return _libc or None
+
+
+def _prepare_worker() -> dict:
+    """Set up the calling worker process and thread for suite sets; cheap to repeat.
+
+    * compiled kernels on one thread (numba, this thread) and the oscillator
+      kernel on one thread (``GROUNDSHAKE_THREADS``, unless already set);
+    * glibc's allocator keeps blocks below 32 MiB on its heap and returns free
+      memory above 64 MiB only. A set allocates and frees several hundred MB of
+      medium-sized arrays; with a small trim threshold (Dask's nannies start
+      workers with ``MALLOC_TRIM_THRESHOLD_=65536``) each of them is a fresh
+      mapping, zero-filled page by page, which measured as a third of a set's CPU
+      time. :func:`_release_memory` gives the free memory back once per set.
+
+    Returns what is in force (for tests and the benchmark): ``numba_threads``,
+    ``kernel_threads`` and ``malloc_tuned``.
+    """
+    global _process_ready, _malloc_tuned
+    _one_compiled_thread()
+    if not _process_ready:
+        _process_ready = True
+        os.environ.setdefault("GROUNDSHAKE_THREADS", "1")
+        lib = _glibc()
+        if lib is not None:
+            _malloc_tuned = (lib.mallopt(_M_MMAP_THRESHOLD, _MMAP_THRESHOLD_B) == 1
+                             and lib.mallopt(_M_TRIM_THRESHOLD, _TRIM_THRESHOLD_B) == 1)
+            if not _malloc_tuned:
+                log.debug("suite: the allocator settings were not taken")
+    out = {"numba_threads": None, "kernel_threads": None, "malloc_tuned": _malloc_tuned}
+    try:
+        import numba
+
+        out["numba_threads"] = int(numba.get_num_threads())
+    except Exception:  # noqa: BLE001
+        pass
+    try:
+        from ..pipeline import kernel_threads
+
+        out["kernel_threads"] = kernel_threads()
+    except Exception:  # noqa: BLE001 - a bad GROUNDSHAKE_THREADS is reported by the set
+        pass
+    return out
+
+
+def _release_memory() -> None:
+    """Give the allocator's free memory back to the system (once per set)."""
+    lib = _glibc()
+    if lib is not None:
+        lib.malloc_trim(0)
+
+
+def _run_prepared(fn: TaskFn, shared, item, limit) -> dict:
+    """One set in a prepared worker: :func:`_limited`, then free memory returned."""
+    _prepare_worker()
+    try:
+        return _limited(fn, shared, item, limit)
+    finally:
+        _release_memory()
 
 
 def _worker_main(conn, fn: TaskFn, shared: dict) -> None:
@@ -261,8 +346,7 @@ def _worker_main(conn, fn: TaskFn, shared: dict) -> None:
 
     Says ``("started", i)`` when it takes set ``i`` and ``("done", i, result)`` at the end.
     """
-    _one_compiled_thread()
-    os.environ.setdefault("GROUNDSHAKE_THREADS", "1")   # the oscillator kernel too, unless set
+    _prepare_worker()
     try:
         while True:
             try:
@@ -273,7 +357,7 @@ def _worker_main(conn, fn: TaskFn, shared: dict) -> None:
                 return
             task_id, item, limit = msg
             conn.send(("started", task_id))
-            conn.send(("done", task_id, _limited(fn, shared, item, limit)))
+            conn.send(("done", task_id, _run_prepared(fn, shared, item, limit)))
     except KeyboardInterrupt:   # the parent handles Ctrl-C
         return
 
@@ -429,8 +513,7 @@ def _dask_task(fn: TaskFn, shared, item, limit, topic: str, index: int) -> dict:
         w.log_event(topic, {"index": index, "worker": w.address})
     except Exception:     # no worker context (e.g. a synchronous scheduler): run anyway
         pass
-    _one_compiled_thread()    # per thread: this task's kernels
-    return _limited(fn, shared, item, limit)
+    return _run_prepared(fn, shared, item, limit)
 
 
 def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator[dict]:

@@ -12,7 +12,7 @@ from .._atomic import atomic_write_text
 
 __all__ = ["write_suite_outputs"]
 
-DIRECTIONS = ("x", "y", "z")
+from .._constants import DIRECTIONS
 _STATS = ("median", "p16", "p84", "mean", "min", "max")
 
 

@@ -21,7 +21,8 @@ import numpy as np
 
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS
-from .._cli_common import json_dumps
+from .._json import json_dumps
+from .._constants import DIRECTIONS
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ._discover import RecordSet
 from ._engine import EngineReport, SuiteStalled, run_tasks
@@ -32,7 +33,6 @@ from ._stats import peak_statistics
 __all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks",
            "default_set_timeout", "combine_by_rule"]
 
-DIRECTIONS = ("x", "y", "z")
 _PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
 
 
@@ -45,27 +45,10 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
     missing-mass shapes (n, 3) from one static solve; nothing that depends on a
     record.
     """
-    from ..dynamics import compute_modes
-    from ..model import build_model
+    from ..pipeline import prepare_model
 
-    model = build_model(scenario)
-    analysis = scenario.analysis
-    cutoff = analysis.cutoff_hz
-    n_req = analysis.modes
-    comps = tuple(scenario.motion.components()) if scenario.motion is not None else DIRECTIONS
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", GroundshakeWarning)
-        modes = compute_modes(model, cutoff_hz=None if n_req else cutoff, n_modes=n_req,
-                              excited=tuple(d in comps for d in DIRECTIONS), warn=False)
-    residual = None
-    if (method or analysis.method) in ("auto", "modal", "coupled"):
-        # the missing-mass shapes depend on the model only: one static solve here,
-        # so workers never factorize K
-        from ..dynamics._modal import residual_vectors
-
-        residual = residual_vectors(model.M, model.influence, np.asarray(modes.shapes),
-                                    np.asarray(modes.participation), model.factor().solve,
-                                    load=model.ground_load)
+    prepared = prepare_model(scenario, method=method)    # workers never factorize K
+    model, modes, residual = prepared.model, prepared.modes, prepared.residual
     return {"scenario": scenario.to_dict(), "source": str(scenario.source),
             "base_dir": str(scenario.base_dir), "model": to_plain(model),
             "modes": to_plain(modes), "method": method, "residual": residual,
@@ -207,7 +190,7 @@ def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
     Never raises for a bad record: the result then has ``status = "failed"`` and
     the one-line ``error``.
     """
-    from ..results import analyse
+    from ..pipeline import analyse
 
     rs = RecordSet.from_dict(item)
     started = _dt.datetime.now(_dt.timezone.utc)

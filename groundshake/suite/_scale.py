@@ -160,7 +160,7 @@ def set_spectrum(acc: Mapping[str, np.ndarray], dt: float, periods: np.ndarray, 
 def _set_motion(scenario, rs: RecordSet):
     """The set's motion read and corrected as a run reads it (no matching, unscaled by
     the target factor)."""
-    from ..dynamics import build_motion
+    from ..pipeline import build_motion
 
     comps = {}
     for c, f in rs.files.items():

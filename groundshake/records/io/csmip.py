@@ -477,24 +477,6 @@ class PublishedSpectrum:
         """Pseudo-acceleration (2π/T)·PSV [m/s²], shape (n_damping, n_periods)."""
         return self.psv * (2.0 * np.pi / self.periods)
 
-    def as_target(self, damping: float = 0.05):
-        """This spectrum's PSA as a target curve (log-log interpolation between periods).
-
-        Parameters
-        ----------
-        damping : float
-            Which of the published damping ratios to use.
-
-        Returns
-        -------
-        groundshake.spectra.TargetSpectrum
-            Undefined (NaN) outside the published periods; see
-            :func:`groundshake.spectra.published_target`.
-        """
-        from ...spectra._targets import published_target  # later stage, imported on use
-
-        return published_target(self, damping)
-
 
 _SPEC_LINE = re.compile(r"^\s*damping\s*=\s*([0-9]*\.?[0-9]+)\s*\.?\s*data of\s*(.*?)\s*:?\s*$", re.I)
 _NPER = re.compile(r"\((\d+)\s+periods", re.I)

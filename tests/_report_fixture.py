@@ -252,18 +252,6 @@ def make_output_folder(path, *, hostile: bool = False, capacity: bool = True,
     return out
 
 
-def test_fixture_grid_counts(tmp_path):
-    out = make_output_folder(tmp_path / "o")
-    with open(out / "element_peaks.csv", newline="") as fh:
-        n_el = sum(1 for _ in csv.reader(fh)) - 1
-    with open(out / "mode_shapes.csv", newline="") as fh:
-        n_nodes = sum(1 for _ in csv.reader(fh)) - 1
-    # 12 x 8 x 2 mat cells + 4 x 4 x 2 pedestal cells (structured grid counting)
-    assert n_el == 12 * 8 * 2 + 4 * 4 * 2
-    # mat nodes (13 x 9 x 3) + pedestal nodes above the mat's top (5 x 5 x 2)
-    assert n_nodes == 13 * 9 * 3 + 5 * 5 * 2
-
-
 _DEMO_CACHE: dict[str, object] = {}
 
 
@@ -283,13 +271,3 @@ def demo_run():
             status = main(["demo", "-o", str(folder), "--quiet"])
         _DEMO_CACHE["run"] = (status, buf.getvalue(), folder)
     return _DEMO_CACHE["run"]
-
-
-def pipeline_available() -> bool:
-    """True when the run pipeline (results stage) can be imported."""
-    try:
-        from groundshake.results import analyse, write_outputs  # noqa: F401
-        from groundshake.spectra import response_spectrum  # noqa: F401
-    except ImportError:
-        return False
-    return True

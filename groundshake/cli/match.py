@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import check_damping_percent, float_list, print_json, table
+from ._common import check_damping_percent, float_list, print_json, table
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_match"]
@@ -33,10 +33,10 @@ def _check_outputs(src: Path, out: Path | None, plot: Path | None) -> None:
 
 
 def cmd_match(args: argparse.Namespace) -> int:
-    from ..records._cli import _correct_all, read_records_from_args, settings_from_args
+    from .records import _correct_all, read_records_from_args, settings_from_args
     from ..spectra import parse_target
-    from ._acceptance import AcceptanceCriteria
-    from ._match import match_spectrum_report
+    from ..matching._acceptance import AcceptanceCriteria
+    from ..matching._match import match_spectrum_report
 
     src = Path(args.record)
     out = Path(args.output) if args.output else None
@@ -158,7 +158,7 @@ def _plot(results, path: Path) -> None:
     import matplotlib.ticker
 
     from .._atomic import atomic_savefig
-    from ._measures import integrate_motion
+    from ..matching._measures import integrate_motion
 
     n = len(results)
     fig = plt.figure(figsize=(12, 6.5 * n))
@@ -211,8 +211,8 @@ def _plot(results, path: Path) -> None:
 
 def register(subparsers, parents) -> None:
     """Add ``match`` to the ``groundshake`` command line."""
-    from ..records._cli import add_processing_options, add_reading_options
-    from ._acceptance import AcceptanceCriteria
+    from .records import add_processing_options, add_reading_options
+    from ..matching._acceptance import AcceptanceCriteria
 
     d = AcceptanceCriteria()  # one place for the defaults and their sources
     p = subparsers.add_parser(

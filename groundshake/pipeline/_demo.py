@@ -14,6 +14,10 @@ from pathlib import Path
 
 from .._atomic import atomic_write_text
 from .._errors import InputError
+from ..records.synthetic import make_demo_records
+from ..scenario import load_scenario
+from ._run import analyse
+from ._write import write_run
 
 __all__ = ["DEMO_SCENARIO", "DemoRun", "example_scenario_text", "run_demo"]
 
@@ -66,10 +70,6 @@ def run_demo(out_dir: str | Path = "groundshake-demo", *, force: bool = False,
     InputError
         ``out_dir`` exists and ``force`` is false, or it is a file.
     """
-    from ..records.synthetic import make_demo_records
-    from ..results import analyse, write_outputs
-    from ..scenario import load_scenario
-
     out = Path(out_dir)
     if out.exists() and not out.is_dir():
         raise InputError(f"-o {out}: exists and is not a folder")
@@ -83,10 +83,7 @@ def run_demo(out_dir: str | Path = "groundshake-demo", *, force: bool = False,
     prov = results.summary.setdefault("provenance", {})
     prov["command"] = f"groundshake demo -o {out}"
     res_dir = out / "results"
-    write_outputs(results, res_dir, overwrite=True)
+    write_run(results, res_dir, overwrite=True, progress=progress)
     report = res_dir / "report.html"
-    if not report.is_file():                      # outputs written without the report
-        from ._report import write_report
-        write_report(res_dir, progress=progress)
     return DemoRun(folder=out, scenario=scen, results=res_dir, report=report,
                    summary=results.summary)

@@ -11,13 +11,14 @@ import numpy as np
 
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import check_damping_percent, float_list, print_json, table
-from ._spectrum import SAMPLES_PER_PERIOD
+from ._common import check_damping_percent, float_list, print_json, table
+from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
+from ..spectra._spectrum import SAMPLES_PER_PERIOD
 
 __all__ = ["register", "cmd_spectrum"]
 
-G = 9.80665
+G = STANDARD_GRAVITY
 _PLOT_SUFFIXES = (".png", ".pdf", ".svg")
 _SHOWN_PERIODS = (0.01, 0.02, 0.05, 0.1, 0.2, 0.3, 0.5, 1.0, 2.0, 3.0, 5.0, 10.0)
 #: Largest departure from a right angle between two paired horizontals [deg] before a warning.
@@ -125,12 +126,12 @@ def _check_outputs(args, sources):
 
 
 def cmd_spectrum(args: argparse.Namespace) -> int:
-    from ..records._cli import read_records_from_args, settings_from_args
+    from .records import read_records_from_args, settings_from_args
     from ..processing import correct_record
-    from ._rotd import rotd
-    from ._spectrum import check_damping, check_periods, default_periods, response_spectrum
-    from ._statistics import spectrum_statistics
-    from ._targets import parse_target
+    from ..spectra._rotd import rotd
+    from ..spectra._spectrum import check_damping, check_periods, default_periods, response_spectrum
+    from ..spectra._statistics import spectrum_statistics
+    from ..spectra._targets import parse_target
 
     damping_pct = float_list(args.damping, name="--damping", minimum=0.0)
     if any(d >= 100 for d in damping_pct):
@@ -172,7 +173,7 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
         if args.output is not None:
             atomic_write_text(args.output, _csv_text(spectra, rotds, target_psa))
         if args.plot is not None:
-            from ._plots import plot_spectra
+            from ..spectra._plots import plot_spectra
 
             jb = _band_index(damping, target)
             plot_spectra(args.plot, spectra, target=target, rotds=rotds,
@@ -329,7 +330,7 @@ def _print_text(spectra, rotds, target, target_psa, settings, args, *, left_out=
 
 def register(subparsers, parents) -> None:
     """Add ``spectrum`` to the ``groundshake`` command line."""
-    from ..records._cli import add_processing_options, add_reading_options
+    from .records import add_processing_options, add_reading_options
 
     p = subparsers.add_parser(
         "spectrum", parents=parents,

@@ -15,10 +15,10 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import SCREENING_NOTE
-from .._cli_common import print_json, table
+from ._common import print_json, table
 from .._errors import GroundshakeWarning, InputError
-from ._record import STANDARD_GRAVITY, Record
-from ._units import UNIT_NAMES
+from ..records._record import STANDARD_GRAVITY, Record
+from ..records._units import UNIT_NAMES
 
 __all__ = ["register", "add_reading_options", "add_processing_options", "settings_from_args",
            "distinct_names",
@@ -113,7 +113,7 @@ def _correct_all(records, settings):
 
 def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
     """Read every file of ``paths`` with the options of :func:`add_reading_options`."""
-    from ._read import read_record
+    from ..records._read import read_record
 
     out = []
     for path in paths:
@@ -227,7 +227,7 @@ def _same_file(a: Path, b: Path) -> bool:
 
 def cmd_correct(args: argparse.Namespace) -> int:
     from ..processing import integrate
-    from ._write import WRITE_FORMATS
+    from ..records._write import WRITE_FORMATS
 
     src, dst = Path(args.record), Path(args.output)
     if dst.suffix.lower() not in WRITE_FORMATS:
@@ -243,7 +243,7 @@ def cmd_correct(args: argparse.Namespace) -> int:
         if _same_file(src, plot) or plot.resolve() in (src.resolve(), dst.resolve()):
             raise InputError(f"--plot {plot}: would overwrite the input or the output")
     settings = settings_from_args(args)
-    from ._write import write_record
+    from ..records._write import write_record
 
     with _collect_warnings() as found:
         raws = read_records_from_args([src], args)

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .._cli_common import print_json
+from ._common import print_json
 from .._errors import InputError
 
 __all__ = ["register"]
@@ -35,7 +35,7 @@ def register(subparsers, parents) -> None:
 
 
 def _demo(args) -> int:
-    from ._demo import run_demo
+    from ..pipeline import run_demo
 
     quiet = bool(getattr(args, "quiet", False))
     run = run_demo(args.output, force=bool(args.force), progress=not quiet)
@@ -45,7 +45,7 @@ def _demo(args) -> int:
                     "results": str(run.results), "report": str(run.report),
                     "warnings": s.get("warnings", []), "worst_dc": s.get("worst_dc")})
         return 0
-    from ..results._cli import _terminal_summary
+    from .run import _terminal_summary
 
     print(_terminal_summary(s, run.results, report=False))
     print(f"report: {run.report}")
@@ -53,7 +53,7 @@ def _demo(args) -> int:
 
 
 def _report(args) -> int:
-    from ._report import write_report
+    from ..report._report import write_report
 
     quiet = bool(getattr(args, "quiet", False))
     if (Path(args.folder) / "report.html").exists() and not args.force:

@@ -2,14 +2,14 @@
 from __future__ import annotations
 
 import argparse
-import json
 import math
 import sys
 from typing import Any, Iterable
 
 import numpy as np
 
-from ._errors import InputError
+from .._errors import InputError
+from .._json import json_dumps, to_jsonable
 
 __all__ = ["common_options", "print_json", "to_jsonable", "float_list", "json_dumps",
            "check_damping_percent"]
@@ -25,34 +25,6 @@ def common_options() -> argparse.ArgumentParser:
     p.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
                    help="show a traceback on errors")
     return p
-
-
-def to_jsonable(obj: Any) -> Any:
-    """Convert numpy scalars/arrays, tuples and dataclass-likes to JSON types.
-
-    Non-finite floats become ``None`` (JSON has no NaN).
-    """
-    if isinstance(obj, dict):
-        return {str(k): to_jsonable(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [to_jsonable(v) for v in obj]
-    if isinstance(obj, np.ndarray):
-        return to_jsonable(obj.tolist())
-    if isinstance(obj, (np.bool_, bool)):
-        return bool(obj)
-    if isinstance(obj, (np.integer,)):
-        return int(obj)
-    if isinstance(obj, (float, np.floating)):
-        f = float(obj)
-        return f if math.isfinite(f) else None
-    if hasattr(obj, "to_dict"):
-        return to_jsonable(obj.to_dict())
-    return obj
-
-
-def json_dumps(obj: Any, *, indent: int | None = 2) -> str:
-    """Deterministic JSON text (sorted keys off: insertion order is the schema order)."""
-    return json.dumps(to_jsonable(obj), indent=indent, allow_nan=False, ensure_ascii=False)
 
 
 def print_json(obj: Any) -> None:
@@ -90,7 +62,7 @@ def check_damping_percent(values: Iterable[float], *, name: str = "--damping") -
     name : str
         The option, for the message.
     """
-    from ._plausible import check_value
+    from .._plausible import check_value
 
     for v in values:
         check_value("damping_percent", float(v), key=name, stacklevel=2)

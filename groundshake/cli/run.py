@@ -5,7 +5,7 @@ import sys
 from pathlib import Path
 
 from .._cautions import SCREENING_NOTE
-from .._cli_common import print_json, table
+from ._common import print_json, table
 from .._errors import InputError
 
 __all__ = ["register"]
@@ -39,8 +39,7 @@ def register(subparsers, parents) -> None:
 
 def _run(args) -> int:
     from ..scenario import load_scenario
-    from ._outputs import write_outputs
-    from ._run import analyse
+    from ..pipeline import analyse, write_run
 
     scen_path = Path(args.scenario)
     out = Path(args.output)
@@ -59,8 +58,8 @@ def _run(args) -> int:
     results.summary["provenance"]["command"] = " ".join(["groundshake", *sys.argv[1:]]) \
         if sys.argv and sys.argv[0].endswith("groundshake") else f"groundshake run {args.scenario}"
     units = args.report_units or getattr(getattr(scenario, "report", None), "units", None) or "si"
-    write_outputs(results, out, overwrite=bool(args.force), report=not args.no_report,
-                  report_units=units)
+    write_run(results, out, overwrite=bool(args.force), report=not args.no_report,
+              progress=not quiet, report_units=units)
     s = results.summary
     if getattr(args, "json", False):
         print_json(s)

@@ -1,8 +1,10 @@
 """The ``groundshake`` command line: ``main(argv) -> int``.
 
-Each pipeline stage contributes its commands from a ``_cli`` module exposing
-``register(subparsers, parents)``; a handler takes the parsed arguments and
-returns the exit status. The library never prints; only handlers do.
+Each module of this package holds the commands of one stage (``records``: info and
+correct, ``spectrum``, ``match``, ``modes``, ``run``, ``suite``, ``report``: demo and
+report) and exposes ``register(subparsers, parents)``; options shared by several commands
+are built in ``_common`` and ``records``. A handler takes the parsed arguments and returns
+the exit status. The library never prints; only handlers do.
 
 Exit status: 0 success, 1 a run finished but some part failed (suites),
 2 bad input (one line on stderr, no traceback unless ``--debug``), 130 interrupted.
@@ -16,22 +18,22 @@ import signal
 import sys
 import warnings
 
-from . import __version__
-from ._cli_common import common_options
-from ._errors import GroundshakeError, GroundshakeWarning
-from ._progress import set_quiet
+from .. import __version__
+from .._errors import GroundshakeError, GroundshakeWarning
+from .._progress import show_progress
+from ._common import common_options
 
 __all__ = ["main", "build_parser"]
 
 # Modules that add subcommands, in the order they appear in --help.
 _COMMAND_MODULES = (
-    "groundshake.records._cli",      # info, correct
-    "groundshake.spectra._cli",      # spectrum
-    "groundshake.matching._cli",     # match
-    "groundshake.model._cli",        # modes
-    "groundshake.results._cli",      # run
-    "groundshake.suite._cli",        # suite
-    "groundshake.report._cli",       # demo
+    "groundshake.cli.records",       # info, correct
+    "groundshake.cli.spectrum",      # spectrum
+    "groundshake.cli.match",         # match
+    "groundshake.cli.modes",         # modes
+    "groundshake.cli.run",           # run
+    "groundshake.cli.suite",         # suite
+    "groundshake.cli.report",        # demo, report
 )
 
 
@@ -46,13 +48,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     parents = [common_options()]
     for name in _COMMAND_MODULES:
-        try:
-            module = importlib.import_module(name)
-        except ModuleNotFoundError as e:
-            if e.name and (name == e.name or name.startswith(e.name + ".")):  # stage not built yet
-                continue
-            raise
-        module.register(sub, parents)
+        importlib.import_module(name).register(sub, parents)
     return parser
 
 
@@ -71,10 +67,10 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as e:          # argparse: --help, --version, usage errors
         return int(e.code or 0)
     debug = bool(getattr(args, "debug", False))
-    set_quiet(bool(getattr(args, "quiet", False)))
     if not getattr(args, "command", None):
         parser.print_help(sys.stderr)
         return 2
+    old_progress = show_progress(not bool(getattr(args, "quiet", False)))  # the CLI draws
     old_show = warnings.showwarning
     warnings.showwarning = _show_warning
     old_term = _term_as_interrupt()
@@ -104,6 +100,7 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write("groundshake: interrupted; earlier output was left as it was\n")
         return 130
     finally:
+        show_progress(old_progress)
         warnings.showwarning = old_show
         if old_term is not None:
             signal.signal(signal.SIGTERM, old_term)

@@ -6,7 +6,7 @@ import warnings
 from pathlib import Path
 
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from .._cli_common import print_json, table
+from ._common import print_json, table
 from .._errors import InputError
 from .._progress import Progress
 
@@ -16,7 +16,7 @@ __all__ = ["register", "cmd_modes"]
 def cmd_modes(args) -> int:
     from ..dynamics import compute_modes
     from ..scenario import load_scenario
-    from ._build import build_model
+    from ..model._build import build_model
 
     scenario = load_scenario(args.scenario)
     n_modes = args.modes if args.modes is not None else scenario.analysis.modes
@@ -44,7 +44,7 @@ def cmd_modes(args) -> int:
     caught.extend(n for n in getattr(scenario, "notes", ()) if n not in caught)
     figures = []
     if args.plot:
-        from ._plot import plot_mode, plot_model
+        from ..model._plot import plot_mode, plot_model
         out = Path(args.plot)
         out.mkdir(parents=True, exist_ok=True)
         figures.append(str(plot_model(model, out / "model.png", title=scenario.title)))

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .._cli_common import print_json, table
+from ._common import print_json, table
 from .._errors import InputError
 from .._progress import Progress
 
@@ -69,9 +69,9 @@ def register(subparsers, parents) -> None:
 
 def _suite(args) -> int:
     from ..scenario import load_scenario
-    from ._discover import discover_record_sets
-    from ._output import write_suite_outputs
-    from ._run import run_suite
+    from ..suite._discover import discover_record_sets
+    from ..suite._output import write_suite_outputs
+    from ..suite._run import run_suite
 
     out = Path(args.output)
     scen_path = Path(args.scenario)
@@ -129,7 +129,7 @@ def _suite(args) -> int:
 
 def _scaling_of(args, scenario):
     """The scaling asked for: the command line's options over the scenario's ``[suite]``."""
-    from ._scale import SuiteScaling
+    from ..suite._scale import SuiteScaling
 
     base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
     options = (args.scale_rule, args.scale_mode, args.scale_range, args.scale_period)

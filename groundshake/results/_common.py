@@ -1,0 +1,78 @@
+"""What a run produced (``RunResults``) and small helpers shared by the run's methods."""
+from __future__ import annotations
+
+import hashlib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .._constants import DIRECTIONS
+from ..dynamics._motion import Motion
+from ._stress import StressPeaks
+
+__all__ = ["RunResults"]
+
+
+@dataclass
+class RunResults:
+    """Everything a run produced.
+
+    Attributes
+    ----------
+    summary : dict
+        The summary (as written to summary.json), SI units.
+    motion : Motion
+    model : BlockModel
+    modes : Modes
+    time : ndarray (n_t,) [s]
+    histories : dict str -> ndarray (n_t,)
+        Named time histories (column name with unit → values).
+    ground_spectra : dict
+        ``periods``, ``damping``, ``psa`` (3, n_d, n_p) of the ground motion.
+    floor : dict
+        Output of :func:`floor_spectra` plus ``points`` (names).
+    stress : StressPeaks
+        Per element: the largest peaks of its corner stress points (NaN for an element
+        with no corner on the surface).
+    """
+
+    summary: dict
+    motion: Motion
+    model: Any
+    modes: Any
+    time: np.ndarray
+    histories: dict
+    ground_spectra: dict
+    floor: dict
+    stress: StressPeaks | None
+    target_psa: np.ndarray | None = None
+    inputs: dict = field(default_factory=dict)
+    base: np.ndarray | None = None
+
+
+def _sha256(path: Path) -> str | None:
+    try:
+        h = hashlib.sha256()
+        with open(path, "rb") as fh:
+            for chunk in iter(lambda: fh.read(1 << 20), b""):
+                h.update(chunk)
+        return h.hexdigest()
+    except OSError:
+        return None
+
+
+def _modes_dict(modes, model) -> dict:
+    if hasattr(modes, "to_dict"):
+        d = modes.to_dict()
+        if isinstance(d, dict):
+            d.setdefault("total_mass", [float(v) for v in model.total_mass])
+            return d
+        return {"total_mass": [float(v) for v in model.total_mass], "modes": d}
+    out = []
+    for i in range(np.asarray(modes.omega).size):
+        out.append({"frequency": float(modes.frequency[i]), "period": float(modes.period[i]),
+                    "effective_mass_ratio": {d: float(modes.effective_mass_ratio[i, j])
+                                             for j, d in enumerate(DIRECTIONS)}})
+    return {"total_mass": [float(v) for v in model.total_mass], "modes": out}
