@@ -60,6 +60,8 @@ LAYER_ALLOW = {
     "groundshake.suite._discover -> groundshake.records._components",  # component codes
     "groundshake.suite._output -> groundshake.report._figures",  # suite report: report/
     "groundshake.suite._output -> groundshake.report._html",     # suite report: report/
+    "groundshake.suite._output -> groundshake.report._suite_page",  # suite report: report/
+    "groundshake.suite._output -> groundshake.report._units",    # suite report: report/
     "groundshake.suite._output -> groundshake.spectra",          # target: over pipeline/
     "groundshake.suite._run -> groundshake.records",             # reading a set: over pipeline/
     "groundshake.suite._run -> groundshake.scenario",            # one run: over pipeline/
