@@ -2,7 +2,7 @@
 
 Sources: Newton's second law (a rigid body on a moving base carries m times the ground's
 acceleration; at the zero-period end every mode is rigid); the design spectrum formulas of
-ASCE 7-16 §11.4.6 (computed in the tests from the formula, REFERENCES.md §5); the damping
+ASCE 7-16 §11.4.6 (computed in the tests from the formula, docs/references.md §5); the damping
 factor η = √(10/(5+ξ%)) of EN 1998-1 §3.2.2.2; a single-degree-of-freedom oscillator's
 peak absolute acceleration is its spectral acceleration (definition of the response
 spectrum; Chopra, Dynamics of Structures, ch. 6). The blocks, targets and equipment are
@@ -18,7 +18,7 @@ import numpy as np
 import pytest
 
 from groundshake._errors import GroundshakeWarning, InputError
-from groundshake.results import analyse
+from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
 G = 9.80665
@@ -118,7 +118,7 @@ def test_spectrum_method_refuses_a_given_motion():
 
 
 def test_summary_keys_and_notes(tmp_path):
-    from groundshake.results._outputs import write_outputs
+    from groundshake.pipeline import write_run
     eq = {"name": "unit", "mass": 500.0, "mount": [1.0, 1.0], "footprint": [0.6, 0.6],
           "cg_height": 0.6, "frequency_hz": [8.0, 8.0, 30.0],
           "anchors": [[-0.2, -0.2], [0.2, -0.2], [0.2, 0.2], [-0.2, 0.2]],
@@ -140,7 +140,7 @@ def test_summary_keys_and_notes(tmp_path):
     # EN 1998-1 §3.2.2.2: S·ag for type 1 ground C, 1.15 × 0.3 g; type 2 ground C 1.5 × 0.2 g
     assert s["analysis"]["zero_period_acceleration"]["x"] == pytest.approx(1.15 * 0.3 * G)
     assert s["analysis"]["zero_period_acceleration"]["z"] == pytest.approx(1.5 * 0.2 * G)
-    out = write_outputs(res, tmp_path / "run", report=True)
+    out = write_run(res, tmp_path / "run")
     names = {p.name for p in out.iterdir()}
     assert "summary.json" in names and "report.html" in names
     assert "histories.csv" not in names          # no time histories in a spectrum run
@@ -183,7 +183,7 @@ def test_time_history_of_a_target_only_motion_says_what_to_do():
 
 
 def test_spectrum_compatible_motions_give_floor_spectra_and_a_side_by_side(tmp_path):
-    from groundshake.results._outputs import write_outputs
+    from groundshake.pipeline import write_run
     eq = {"name": "unit", "mass": 500.0, "mount": [1.0, 1.0], "footprint": [0.6, 0.6],
           "cg_height": 0.6, "frequency_hz": [8.0, 8.0, 30.0]}
     scen = _scenario(motion={"target": "asce7:sds=1.0,sd1=0.6,tl=8"}, equipment=[eq],
@@ -204,7 +204,7 @@ def test_spectrum_compatible_motions_give_floor_spectra_and_a_side_by_side(tmp_p
     # on a rigid base the floor spectrum is the ground's: its peak is the plateau SDS
     # (ASCE 7-16 §11.4.6) within the match tolerance and the 15 % broadening's envelope
     assert fl["peak_psa"] == pytest.approx(1.0 * G, rel=0.15)
-    out = write_outputs(res, tmp_path / "run", report=True)
+    out = write_run(res, tmp_path / "run")
     lines = (out / "floor_spectra.csv").read_text(encoding="utf-8").splitlines()
     # long format of the output contract: point, direction, damping [ratio], period, psa...
     assert lines[0] == "point,direction,damping [ratio],period [s],psa [m/s2],psa broadened [m/s2]"
@@ -236,7 +236,7 @@ def test_soil_cases_stability_and_interaction_by_the_spectrum_method():
     assert best["stability"]["sliding"]["min_safety_factor"] == pytest.approx(fs, rel=1e-9)
     assert st["sliding"]["min_safety_factor"] <= best["stability"]["sliding"]["min_safety_factor"]
     b = s["equipment"]["unit"]["anchors"][0]
-    # 5/3-power interaction (T/Tc)^(5/3) + (V/Vc)^(5/3) (ACI 318-19 R17.8, REFERENCES.md):
+    # 5/3-power interaction (T/Tc)^(5/3) + (V/Vc)^(5/3) (ACI 318-19 R17.8, docs/references.md):
     # at least that of the peak tension alone and at most the sum at both peaks
     lo = (b["peak_tension"] / 1e4) ** (5 / 3)
     hi = lo + (b["peak_shear"] / 1e4) ** (5 / 3)
