@@ -100,7 +100,7 @@ def test_a_station_file_by_orientation(v2):
 
 
 def test_scenario_file_given_once_is_written_out_and_run(tmp_path):
-    from groundshake.dynamics._motion import build_motion
+    from groundshake.pipeline import build_motion
 
     shutil.copy(V2, tmp_path / "station.V2")
     text = BASE + '[motion]\nfile = "station.V2"\n'
@@ -121,7 +121,7 @@ def test_scenario_file_given_once_is_written_out_and_run(tmp_path):
 
 
 def test_scenario_channel_and_azimuth_keys(tmp_path):
-    from groundshake.dynamics._motion import build_motion
+    from groundshake.pipeline import build_motion
 
     shutil.copy(V2, tmp_path / "station.V2")
     text = BASE + ('[motion]\nx = { file = "station.V2", azimuth = 90 }\n'
