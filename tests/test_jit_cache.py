@@ -2,6 +2,11 @@
 
 Each check runs a fresh interpreter on a copy of the package (so leftovers of other
 runs in the checkout cannot hide or fake a result) with its own cache folders.
+
+Sources: numba's documentation on caching (``cache=True`` writes index and data files,
+``*.nbi``/``*.nbc``, into the module's ``__pycache__`` unless ``NUMBA_CACHE_DIR`` names
+another folder) and the XDG Base Directory Specification (``$XDG_CACHE_HOME``, default
+``~/.cache``); keeping caches out of installed packages is common practice.
 """
 from __future__ import annotations
 
