@@ -26,7 +26,7 @@ import numpy as np
 from ..records import STANDARD_GRAVITY
 
 __all__ = ["BoltForces", "bolt_forces", "plate_loads", "fp_comparison", "bolt_interaction",
-           "INTERACTION_FORMS", "SCREENING_WORDING"]
+           "INTERACTION_FORMS", "SCREENING_WORDING", "worst_entries"]
 
 SCREENING_WORDING = "screening comparison, not a code capacity check"
 
@@ -230,3 +230,20 @@ def bolt_interaction(tension: np.ndarray, shear: np.ndarray, *, tension_capacity
     if form == "trilinear":
         return np.where(v <= 0.2, t, np.where(t <= 0.2, v, (t + v) / 1.2))
     raise ValueError(f"form: given {form!r}; allowed one of {tuple(INTERACTION_FORMS)}")
+
+
+def worst_entries(worst_dc, worst_ir) -> dict:
+    """The summary's ``worst_dc`` and ``worst_interaction`` entries (None where absent).
+
+    ``worst_dc`` is (ratio, equipment name, bolt number) and ``worst_ir`` is (ratio,
+    equipment name, bolt number, interaction form key); both ratios are screening
+    comparisons with user capacities, never a code check.
+    """
+    return {
+        "worst_dc": None if worst_dc is None else
+        {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
+         "note": SCREENING_WORDING},
+        "worst_interaction": None if worst_ir is None else
+        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
+         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
+    }

@@ -29,7 +29,7 @@ from ..dynamics._motion import DIRECTIONS, Motion
 from ._common import RunResults, _modes_dict, _sha256
 from ._spectrum_run import spectrum_analyse
 from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
-                         fp_comparison)
+                         fp_comparison, worst_entries)
 from ._stability import base_stability
 from ._floor import floor_spectra
 from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_peaks, stress_summary
@@ -637,12 +637,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         "peaks": peaks,
         "sensors": summary_sensors,
         "equipment": equip_out,
-        "worst_dc": None if worst_dc is None else
-        {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
-         "note": SCREENING_WORDING},
-        "worst_interaction": None if worst_ir is None else
-        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
-         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
+        **worst_entries(worst_dc, worst_ir),
         "stresses": stress_out,
         "base": base_out,
         "stability": stability_out,

@@ -20,7 +20,7 @@ from ..dynamics._motion import DIRECTIONS, Motion
 from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, VON_MISES_FORM,
                                            ellipsoid_quadratic_max, modal_spectrum,
                                            spectral_accelerations)
-from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison
+from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison, worst_entries
 
 from ._anchorage import INTERACTION_FORMS, bolt_interaction
 from ._common import RunResults, _modes_dict, _sha256
@@ -533,12 +533,7 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         "peaks": peaks,
         "sensors": sensors_out,
         "equipment": equip_out,
-        "worst_dc": None if worst_dc is None else
-        {"value": worst_dc[0], "equipment": worst_dc[1], "bolt": worst_dc[2],
-         "note": SCREENING_WORDING},
-        "worst_interaction": None if worst_ir is None else
-        {"value": worst_ir[0], "equipment": worst_ir[1], "bolt": worst_ir[2],
-         "form": INTERACTION_FORMS[worst_ir[3]], "note": SCREENING_WORDING},
+        **worst_entries(worst_dc, worst_ir),
         "stresses": stress_out,
         "base": base_out,
         **({"stability": stability_out} if stability_out is not None else {}),
