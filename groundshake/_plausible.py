@@ -14,7 +14,7 @@ from typing import Literal
 
 from ._constants import STANDARD_GRAVITY
 
-__all__ = ["Range", "RANGES", "judge", "check_value"]
+__all__ = ["Range", "RANGES", "judge", "verdict", "check_value"]
 
 
 @dataclass(frozen=True)
@@ -193,12 +193,17 @@ def judge(quantity: str, value: float, *, key: str | None = None) -> tuple[Level
     text : str
         Empty when ``"ok"``; otherwise ``"KEY = VALUE UNIT is ..."`` with the likely slip.
     """
+    level, text = verdict(quantity, value)
+    return level, (f"{key or quantity} = {text}" if text else "")
+
+
+def verdict(quantity: str, value: float) -> tuple[Level, str]:
+    """As :func:`judge`, with the text neutral: ``"VALUE UNIT is ..."`` (no name in front)."""
     r = RANGES[quantity]
-    key = key or quantity
     if not math.isfinite(value):
         return "ok", ""                     # finiteness is the caller's own check
     unit = f" {r.unit}" if r.unit and r.unit != "%" else (" %" if r.unit == "%" else "")
-    shown = f"{key} = {_number_text(value)}{unit}"
+    shown = f"{_number_text(value)}{unit}"
     low_ok = r.warn_below if r.warn_below is not None else r.error_below
     high_ok = r.warn_above if r.warn_above is not None else r.error_above
 
@@ -242,7 +247,9 @@ def check_value(quantity: str, value: float, *, key: str | None = None,
     quantity, value, key
         As for :func:`judge`.
     where : str
-        Prefix naming the file/line or option (``"scenario.toml:12: "``).
+        Prefix of the location (``"target asce7: "``); the error's location is
+        ``where + key`` and its message the neutral text (:func:`verdict`), joined by
+        ``" = "``, so callers may locate it again (``error.located("--damping")``).
     error : type, optional
         The exception class to raise (default :class:`~groundshake.InputError`).
     stacklevel : int
@@ -257,8 +264,10 @@ def check_value(quantity: str, value: float, *, key: str | None = None,
 
     from ._errors import GroundshakeWarning, InputError
 
-    level, text = judge(quantity, value, key=key)
+    level, text = verdict(quantity, value)
     if level == "error":
-        raise (error or InputError)(where + text)
+        raise (error or InputError)(text, param=quantity, value=value,
+                                    where=where + (key or quantity), sep=" = ")
     if level == "warn":
-        warnings.warn(where + text, GroundshakeWarning, stacklevel=stacklevel + 1)
+        warnings.warn(f"{where}{key or quantity} = {text}", GroundshakeWarning,
+                      stacklevel=stacklevel + 1)

@@ -21,7 +21,7 @@ import warnings
 from .. import __version__
 from .._errors import GroundshakeError, GroundshakeWarning
 from .._progress import show_progress
-from ._common import common_options
+from ._common import common_options, option_table
 
 __all__ = ["main", "build_parser"]
 
@@ -49,6 +49,8 @@ def build_parser() -> argparse.ArgumentParser:
     parents = [common_options()]
     for name in _COMMAND_MODULES:
         importlib.import_module(name).register(sub, parents)
+    for command in sub.choices.values():  # each command's own option table (errors name options)
+        command.set_defaults(option_of=option_table(command))
     return parser
 
 

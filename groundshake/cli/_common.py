@@ -2,9 +2,10 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
 import math
 import sys
-from typing import Any, Iterable
+from typing import Any, Iterable, Mapping
 
 import numpy as np
 
@@ -12,7 +13,7 @@ from .._errors import InputError
 from .._json import json_dumps, to_jsonable
 
 __all__ = ["common_options", "print_json", "to_jsonable", "float_list", "json_dumps",
-           "check_damping_percent"]
+           "check_damping_percent", "option_table", "options_named"]
 
 
 def common_options() -> argparse.ArgumentParser:
@@ -25,6 +26,39 @@ def common_options() -> argparse.ArgumentParser:
     p.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
                    help="show a traceback on errors")
     return p
+
+
+def option_table(parser: argparse.ArgumentParser) -> dict[str, str]:
+    """Each option's destination → the option as typed (``"highpass_hz"`` →
+    ``"--highpass"``), read from the parser's own definitions.
+
+    Options whose value a library function takes as a parameter of the same name use
+    that name as their ``dest``, so a library error's ``param`` finds its option here.
+    """
+    table = {}
+    for action in parser._actions:            # argparse keeps no public list of actions
+        if action.option_strings and action.dest not in (argparse.SUPPRESS, "help"):
+            long = [o for o in action.option_strings if o.startswith("--")]
+            table.setdefault(action.dest, (long or action.option_strings)[0])
+    return table
+
+
+@contextlib.contextmanager
+def options_named(args: argparse.Namespace, *, table: Mapping[str, str] | None = None):
+    """Run library code on the options' values: an :class:`InputError` whose ``param`` is
+    an option's destination is shown at that option (``--highpass: given -1; ...``).
+
+    ``table`` defaults to the command's own (``args.option_of``, set by
+    :func:`groundshake.cli.build_parser` from :func:`option_table`).
+    """
+    table = getattr(args, "option_of", None) or {} if table is None else table
+    try:
+        yield
+    except InputError as e:
+        option = table.get(e.param) if e.param is not None else None
+        if option is None:
+            raise
+        raise e.located(option) from None
 
 
 def print_json(obj: Any) -> None:

@@ -80,7 +80,7 @@ def cmd_match(args: argparse.Namespace) -> int:
                                   max_husid_change=args.max_husid_change)
 
     raws = read_records_from_args([src], args)
-    records = _correct_all(raws, settings_from_args(args))
+    records = _correct_all(raws, settings_from_args(args), args)
     results = []
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", GroundshakeWarning)

@@ -15,7 +15,7 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import SCREENING_NOTE
-from ._common import print_json, table
+from ._common import options_named, print_json, table
 from .._errors import GroundshakeWarning, InputError
 from ..records._record import STANDARD_GRAVITY, Record
 from ..records._units import UNIT_NAMES
@@ -44,23 +44,33 @@ def add_reading_options(p: argparse.ArgumentParser) -> None:
 
 
 def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> None:
-    """Add the correction options (defaults: published practice)."""
+    """Add the correction options (defaults: published practice).
+
+    Each option's ``dest`` is the :class:`~groundshake.processing.ProcessingSettings` field
+    it sets, so that an error about a field names its option (:func:`options_named`).
+    """
     g = p.add_argument_group("correction (defaults follow Boore & Bommer 2005)")
     if raw:
         g.add_argument("--raw", action="store_true",
                        help="use each record exactly as read (no correction)")
-    g.add_argument("--highpass", type=float, metavar="HZ",
+    g.add_argument("--highpass", dest="highpass_hz", type=float, metavar="HZ",
                    help="low-cut corner [Hz] (default 0.1; 0 for none)")
-    g.add_argument("--lowpass", type=float, metavar="HZ",
+    g.add_argument("--lowpass", dest="lowpass_hz", type=float, metavar="HZ",
                    help="high-cut corner [Hz] (default none)")
-    g.add_argument("--order", type=int, metavar="N", help="Butterworth order of each pass (default 4)")
-    g.add_argument("--baseline-order", type=int, metavar="K",
+    g.add_argument("--order", dest="filter_order", type=int, metavar="N",
+                   help="Butterworth order of each pass (default 4)")
+    g.add_argument("--baseline-order", dest="baseline_order", type=int, metavar="K",
                    help="order of the polynomial fitted to velocity, 0-6 (default 1; 0 for none)")
-    g.add_argument("--taper", type=float, metavar="PCT",
+    g.add_argument("--taper", dest="taper_percent", type=float, metavar="PCT",
                    help="cosine taper at each end, percent of the record (default 5)")
-    g.add_argument("--pre-event", type=float, metavar="S",
+    g.add_argument("--pre-event", dest="pre_event_s", type=float, metavar="S",
                    help="remove the mean of the first S seconds instead of the whole record")
     g.add_argument("--no-pad", action="store_true", help="no zero pads before the low-cut filter")
+
+
+#: ProcessingSettings fields set from options of the same ``dest`` (0 for a corner is "none").
+_SETTING_OPTIONS = ("highpass_hz", "lowpass_hz", "filter_order", "baseline_order",
+                    "taper_percent", "pre_event_s")
 
 
 def settings_from_args(args: argparse.Namespace):
@@ -69,46 +79,21 @@ def settings_from_args(args: argparse.Namespace):
 
     if getattr(args, "raw", False):
         return ProcessingSettings(enabled=False)
-    kw = {}
-    if getattr(args, "highpass", None) is not None:
-        kw["highpass_hz"] = None if args.highpass == 0 else args.highpass
-    if getattr(args, "lowpass", None) is not None:
-        kw["lowpass_hz"] = None if args.lowpass == 0 else args.lowpass
-    if getattr(args, "order", None) is not None:
-        kw["filter_order"] = args.order
-    if getattr(args, "baseline_order", None) is not None:
-        kw["baseline_order"] = args.baseline_order
-    if getattr(args, "taper", None) is not None:
-        kw["taper_percent"] = args.taper
-    if getattr(args, "pre_event", None) is not None:
+    kw = {name: getattr(args, name) for name in _SETTING_OPTIONS
+          if getattr(args, name, None) is not None}
+    if "pre_event_s" in kw:
         kw["mean_removal"] = "pre-event"
-        kw["pre_event_s"] = args.pre_event
     if getattr(args, "no_pad", False):
         kw["pad"] = False
-    try:
+    with options_named(args):
         return ProcessingSettings(**kw)
-    except InputError as e:  # name the option rather than the scenario key
-        raise InputError(_option_names(str(e))) from e
 
 
-_OPTION_OF_KEY = {"highpass_hz": "--highpass", "lowpass_hz": "--lowpass",
-                  "filter_order": "--order", "baseline_order": "--baseline-order",
-                  "taper_percent": "--taper", "pre_event_s": "--pre-event"}
-
-
-def _option_names(msg: str) -> str:
-    for key, opt in _OPTION_OF_KEY.items():
-        msg = msg.replace(f"processing.{key}", opt)
-    return msg
-
-
-def _correct_all(records, settings):
+def _correct_all(records, settings, args: argparse.Namespace):
     from ..processing import correct_record
 
-    try:
+    with options_named(args):
         return [correct_record(r, settings) for r in records]
-    except InputError as e:
-        raise InputError(_option_names(str(e))) from e
 
 
 def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
@@ -191,7 +176,7 @@ def _info(args: argparse.Namespace) -> dict:
     settings = settings_from_args(args)
     records = read_records_from_args(args.records, args)
     out = []
-    for raw, rec in zip(records, _correct_all(records, settings)):
+    for raw, rec in zip(records, _correct_all(records, settings, args)):
         m = intensity_measures(rec)
         entry = {"name": rec.name, "component": rec.component, "source": rec.source,
                  "units_read": raw.units, "dt": rec.dt, "n_read": raw.n, "n": rec.n,
@@ -247,7 +232,7 @@ def cmd_correct(args: argparse.Namespace) -> int:
 
     with _collect_warnings() as found:
         raws = read_records_from_args([src], args)
-        corrected = _correct_all(raws, settings)
+        corrected = _correct_all(raws, settings, args)
         write_record(corrected, dst)
         if args.plot is not None:
             _plot_correction(raws, corrected, Path(args.plot), integrate)

@@ -126,8 +126,7 @@ def _check_outputs(args, sources):
 
 
 def cmd_spectrum(args: argparse.Namespace) -> int:
-    from .records import read_records_from_args, settings_from_args
-    from ..processing import correct_record
+    from .records import _correct_all, read_records_from_args, settings_from_args
     from ..spectra._rotd import rotd
     from ..spectra._spectrum import check_damping, check_periods, default_periods, response_spectrum
     from ..spectra._statistics import spectrum_statistics
@@ -150,7 +149,7 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
     found: list[str] = []
     with _collect(found):
         raws = read_records_from_args(args.records, args)
-        records = [correct_record(r, settings) for r in raws] if settings.enabled else raws
+        records = _correct_all(raws, settings, args) if settings.enabled else raws
         spectra = [response_spectrum(r.acc, r.dt, periods, damping, name=r.name,
                                      interpolate=not args.no_interpolation) for r in records]
         rotds = []

@@ -16,6 +16,7 @@ from ..matching._match import _shift_iso   # one helper for ISO times moved by a
 from ..processing import correct_record, resample
 from ..records import read_record
 from ..records._components import pick_component
+from ..scenario import errors_at_key
 
 __all__ = ["build_motion"]
 
@@ -67,13 +68,15 @@ def build_motion(scenario: Any) -> Motion:
         path = _get(spec, "file")
         recs = read_record(path, units=_get(spec, "units"), dt=_get(spec, "dt"),
                            inventory=_get(motion, "inventory"))
-        rec = pick_component(recs, trace=_get(spec, "trace"), channel=_get(spec, "channel"),
-                             azimuth=_get(spec, "azimuth"), where=where)
+        with errors_at_key(scenario, ("motion", d)):     # names the scenario file and key
+            rec = pick_component(recs, trace=_get(spec, "trace"), channel=_get(spec, "channel"),
+                                 azimuth=_get(spec, "azimuth"), where=where)
         scale = float(_get(spec, "scale", 1.0) or 1.0)
         if scale != 1.0:
             rec = rec.replace(acc=rec.acc * scale, step=f"scaled by {scale:g}")
         raw[d] = rec
-        used[d] = correct_record(rec, settings) if enabled else rec
+        with errors_at_key(scenario, ("processing",)):
+            used[d] = correct_record(rec, settings) if enabled else rec
     if not used:
         raise InputError("motion: no component given; allowed keys x, y, z (at least one), "
                          'or method = "spectrum" for a [motion] with only a target')

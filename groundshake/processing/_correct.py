@@ -137,10 +137,10 @@ def correct_record(record: Record, settings: ProcessingSettings | None = None) -
     for key in ("highpass_hz", "lowpass_hz"):
         value = getattr(s, key)
         if value is not None and value >= 0.95 * nyquist:
-            raise InputError(f"{record.source or record.name}: processing.{key} = {value:g} Hz "
-                             f"must be below "
-                             f"0.95 x the Nyquist frequency {nyquist:g} Hz of this record "
-                             f"(dt = {dt:g} s)")
+            what = "high-pass" if key == "highpass_hz" else "low-pass"
+            raise InputError(f"{what} corner {value:g} Hz must be below 0.95 x the Nyquist "
+                             f"frequency {nyquist:g} Hz of {record.source or record.name} "
+                             f"(dt = {dt:g} s)", param=key, value=value)
     rec = record
     acc = np.array(record.acc, dtype=float)
 
@@ -148,9 +148,9 @@ def correct_record(record: Record, settings: ProcessingSettings | None = None) -
     if s.mean_removal == "pre-event":
         m = int(math.floor(s.pre_event_s / dt)) + 1
         if m < 2 or m > acc.size:
-            raise InputError(f"{record.source or record.name}: processing.pre_event_s = "
-                             f"{s.pre_event_s:g} s gives "
-                             f"{m} samples; need 2 to {acc.size}")
+            raise InputError(f"a pre-event length of {s.pre_event_s:g} s gives {m} samples of "
+                             f"{record.source or record.name}; need 2 to {acc.size}",
+                             param="pre_event_s", value=s.pre_event_s)
         mean = float(np.mean(acc[:m]))
         acc = acc - mean
         rec = rec.replace(acc=acc, step=f"removed the pre-event mean ({s.pre_event_s:g} s): "

@@ -9,6 +9,10 @@ from .._errors import InputError
 
 __all__ = ["ProcessingSettings", "DEFAULT_PROCESSING"]
 
+#: The name these settings go by (the scenario's ``[processing]`` table has the same keys);
+#: an error of a field is shown at ``processing.FIELD`` until a caller locates it.
+SECTION = "processing"
+
 
 @dataclass(frozen=True)
 class ProcessingSettings:
@@ -49,49 +53,45 @@ class ProcessingSettings:
     pad: bool = True
 
     def __post_init__(self) -> None:
-        where = "processing"
         for key in ("highpass_hz", "lowpass_hz"):      # one spelling of "no filter": None
             value = getattr(self, key)
             if isinstance(value, (int, float)) and not isinstance(value, bool) and value == 0:
                 object.__setattr__(self, key, None)
         if not isinstance(self.enabled, bool):
-            raise InputError(f"{where}.enabled: given {self.enabled!r}; allowed true or false")
+            raise _bad("enabled", self.enabled, "true or false")
         if self.mean_removal not in ("whole", "pre-event"):
-            raise InputError(f"{where}.mean_removal: given {self.mean_removal!r}; allowed "
-                             f"'whole' or 'pre-event'")
-        _number(self.pre_event_s, f"{where}.pre_event_s", minimum=0.0)
+            raise _bad("mean_removal", self.mean_removal, "'whole' or 'pre-event'")
+        _number("pre_event_s", self.pre_event_s, minimum=0.0)
         if self.mean_removal == "pre-event" and self.pre_event_s <= 0:
-            raise InputError(f"{where}.pre_event_s: given {self.pre_event_s!r}; a 'pre-event' "
-                             f"mean needs a pre-event length > 0 s")
+            raise _bad("pre_event_s", self.pre_event_s, "a pre-event length > 0 s "
+                       "(a 'pre-event' mean needs one)")
         if self.baseline_order is not None and (
                 isinstance(self.baseline_order, bool) or not isinstance(self.baseline_order, int)
                 or not 0 <= self.baseline_order <= 6):
-            raise InputError(f"{where}.baseline_order: given {self.baseline_order!r}; allowed "
-                             f"an integer 0-6")
+            raise _bad("baseline_order", self.baseline_order, "an integer 0-6")
         for key in ("highpass_hz", "lowpass_hz"):
             value = getattr(self, key)
             if value is not None:
-                _number(value, f"{where}.{key}", minimum=0.0, strict=True)
+                _number(key, value, minimum=0.0, strict=True)
         if (self.highpass_hz is not None and self.lowpass_hz is not None
                 and self.lowpass_hz <= self.highpass_hz):
-            raise InputError(f"{where}.lowpass_hz: given {self.lowpass_hz!r}; it must be above "
-                             f"highpass_hz = {self.highpass_hz!r}")
+            raise _bad("lowpass_hz", self.lowpass_hz,
+                       f"a corner above the high-pass corner {self.highpass_hz!r} Hz")
         if (isinstance(self.filter_order, bool) or not isinstance(self.filter_order, int)
                 or not 1 <= self.filter_order <= 12):
-            raise InputError(f"{where}.filter_order: given {self.filter_order!r}; allowed an "
-                             f"integer 1-12")
-        _number(self.taper_percent, f"{where}.taper_percent", minimum=0.0, maximum=25.0)
+            raise _bad("filter_order", self.filter_order, "an integer 1-12")
+        _number("taper_percent", self.taper_percent, minimum=0.0, maximum=25.0)
         if not isinstance(self.pad, bool):
-            raise InputError(f"{where}.pad: given {self.pad!r}; allowed true or false")
+            raise _bad("pad", self.pad, "true or false")
 
     @classmethod
-    def from_dict(cls, values: dict[str, Any], *, where: str = "processing") -> "ProcessingSettings":
+    def from_dict(cls, values: dict[str, Any], *, where: str = SECTION) -> "ProcessingSettings":
         """Settings from a mapping of the field names; unknown keys are errors."""
         names = {f.name for f in fields(cls)}
         unknown = sorted(set(values) - names)
         if unknown:
-            raise InputError(f"{where}: unknown key {unknown[0]!r}; allowed: "
-                             f"{', '.join(sorted(names))}")
+            raise InputError(f"unknown key {unknown[0]!r}; allowed: {', '.join(sorted(names))}",
+                             param=unknown[0], value=values[unknown[0]], where=where)
         return cls(**values)
 
     def to_dict(self) -> dict[str, Any]:
@@ -120,7 +120,14 @@ class ProcessingSettings:
         return "; ".join(parts) + " (Boore & Bommer 2005; Boore 2005)"
 
 
-def _number(value, where: str, *, minimum=None, maximum=None, strict=False) -> None:
+def _bad(param: str, value, allowed: str) -> InputError:
+    """The error of one field: ``given VALUE; allowed WHAT``, at ``processing.FIELD`` until
+    a caller locates it elsewhere (the command line names its option)."""
+    return InputError(f"given {value!r}; allowed {allowed}", param=param, value=value,
+                      where=f"{SECTION}.{param}")
+
+
+def _number(param: str, value, *, minimum=None, maximum=None, strict=False) -> None:
     ok = isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
     if ok and minimum is not None:
         ok = value > minimum if strict else value >= minimum
@@ -132,7 +139,7 @@ def _number(value, where: str, *, minimum=None, maximum=None, strict=False) -> N
             rng.append(f"{'>' if strict else '>='} {minimum:g}")
         if maximum is not None:
             rng.append(f"<= {maximum:g}")
-        raise InputError(f"{where}: given {value!r}; allowed a number {' and '.join(rng)}")
+        raise _bad(param, value, f"a number {' and '.join(rng)}")
 
 
 #: The defaults (published practice).

@@ -223,7 +223,8 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
     orientation : {"vertical", "horizontal"}, optional
         The file's only channel of that kind (vertical → z).
     where : str
-        The scenario key, for messages (``"motion.x"``).
+        The location of the component in messages (``"motion.x"``); an error about one
+        choice is located at ``where.CHOICE`` and carries ``param`` = the choice's name.
 
     Returns
     -------
@@ -238,20 +239,21 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
     given = {k: v for k, v in (("trace", trace), ("channel", channel), ("azimuth", azimuth),
                                ("orientation", orientation)) if v is not None}
     if len(given) > 1:
-        raise InputError(f"{where}: {' and '.join(given)} given together; allowed: one of "
-                         "trace, channel, azimuth, orientation")
+        raise InputError(f"{' and '.join(given)} given together; allowed: one of "
+                         "trace, channel, azimuth, orientation", where=where)
     if not given:
         if len(records) != 1:
-            raise InputError(f"{where}: the file holds {len(records)} channels "
+            raise InputError(f"the file holds {len(records)} channels "
                              f"({_listing(records)}); give channel = code, azimuth = degrees "
-                             "or trace = index")
+                             "or trace = index", where=where)
         return records[0]
     key, value = next(iter(given.items()))
     if key == "trace" and isinstance(value, numbers.Integral) and not isinstance(value, bool):
         value = int(value)
         if not 0 <= value < len(records):
-            raise InputError(f"{where}.trace: given {value}; allowed 0..{len(records) - 1} "
-                             f"({_listing(records)})")
+            raise InputError(f"given {value}; allowed 0..{len(records) - 1} "
+                             f"({_listing(records)})", param="trace", value=value,
+                             where=f"{where}.trace")
         return records[value]
     if key in ("trace", "channel"):
         text = str(value).strip().lower()
@@ -260,7 +262,8 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
     elif key == "azimuth":
         az = float(value)
         if not math.isfinite(az):
-            raise InputError(f"{where}.azimuth: given {value!r}; allowed: degrees from north")
+            raise InputError(f"given {value!r}; allowed: degrees from north", param="azimuth",
+                             value=value, where=f"{where}.azimuth")
         found = []
         for r in records:
             o = describe(str(r.component or ""), getattr(r, "metadata", None))
@@ -270,15 +273,15 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
                     found.append(r)
     elif key == "orientation":
         if value not in ("vertical", "horizontal"):
-            raise InputError(f"{where}.orientation: given {value!r}; allowed 'vertical', "
-                             "'horizontal'")
+            raise InputError(f"given {value!r}; allowed 'vertical', 'horizontal'",
+                             param="orientation", value=value, where=f"{where}.orientation")
         found = [r for r in records
                  if describe(str(r.component or ""), getattr(r, "metadata", None)).kind == value]
     if len(found) == 1:
         return found[0]
     what = "no channel matches" if not found else f"{len(found)} channels match"
-    raise InputError(f"{where}.{key}: given {value!r}; {what}; the file holds "
-                     f"{_listing(records)}")
+    raise InputError(f"given {value!r}; {what}; the file holds {_listing(records)}",
+                     param=key, value=value, where=f"{where}.{key}")
 
 
 def components_by_orientation(records: Sequence[Any], *, where: str = "motion.file"
@@ -309,9 +312,10 @@ def components_by_orientation(records: Sequence[Any], *, where: str = "motion.fi
     vertical = [r for r, k in zip(records, kinds) if k == "vertical"]
     horizontal = [r for r, k in zip(records, kinds) if k == "horizontal"]
     if "unknown" in kinds or len(vertical) > 1 or len(horizontal) > 2 or not records:
-        raise InputError(f"{where}: cannot tell x, y and z apart by orientation: the file "
+        raise InputError(f"cannot tell x, y and z apart by orientation: the file "
                          f"holds {_listing(records) or 'no channels'}; allowed: one vertical "
-                         "and at most two horizontals, else give x, y, z with channel = code")
+                         "and at most two horizontals, else give x, y, z with channel = code",
+                         where=where)
     out = dict(zip(("x", "y"), horizontal))
     if vertical:
         out["z"] = vertical[0]

@@ -6,16 +6,17 @@ Every check runs up front and the first failure raises one
 """
 from __future__ import annotations
 
+import contextlib
 import os
 import re
 import tomllib
 from pathlib import Path
 
-from .._errors import ScenarioError
+from .._errors import InputError, ScenarioError
 from . import _geometry
 from ._types import Scenario
 from ._codec import scenario_from_dict, scenario_to_dict
-from ._spec import _Context, _show, format_path
+from ._spec import _Context, _show, format_path, table_keys
 from ._validate import _build
 
 __all__ = [
@@ -24,6 +25,7 @@ __all__ = [
     "scenario_from_dict",
     "scenario_to_dict",
     "format_path",
+    "errors_at_key",
     "MAX_ESTIMATED_DOFS",
 ]
 
@@ -118,3 +120,31 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     if text.startswith("\ufeff"):
         text = text[1:]
     return parse_scenario_text(text, source=str(p), base_dir=p.resolve().parent)
+
+
+@contextlib.contextmanager
+def errors_at_key(scenario, path: tuple):
+    """Run library code on behalf of the scenario key ``path`` (``("motion", "x")``,
+    ``("processing",)``): an :class:`~groundshake.InputError` raised inside becomes a
+    :class:`~groundshake.ScenarioError` naming the scenario file, line and key.
+
+    An error whose ``param`` is a key of that table is shown at that key
+    (``case.toml:14: motion.x.trace: given 5; allowed 0..2 ...``); any other at ``path``
+    itself. Errors that already name a scenario file, and every error of a scenario
+    without a source file, pass unchanged.
+    """
+    try:
+        yield
+    except InputError as e:
+        source = getattr(scenario, "source", None)
+        if not source or getattr(e, "file", None) is not None:
+            raise
+        raise _context_of(scenario).keyed(e, tuple(path), table_keys(path)) from None
+
+
+def _context_of(scenario) -> _Context:
+    """The message context of a loaded scenario (file name and the lines of its keys)."""
+    ctx = _Context(str(scenario.source), None,
+                   Path(getattr(scenario, "base_dir", None) or Path.cwd()))
+    ctx.lines = getattr(scenario, "key_lines", None)
+    return ctx

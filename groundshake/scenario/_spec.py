@@ -14,7 +14,7 @@ import warnings
 from pathlib import Path
 from typing import Any
 
-from .._errors import GroundshakeWarning, ScenarioError
+from .._errors import GroundshakeError, GroundshakeWarning, ScenarioError
 from ._lines import key_lines, line_of
 from ._types import Scenario
 
@@ -66,12 +66,33 @@ class _Context:
         return f"{self.source}:{line}" if line is not None else self.source
 
     def error(self, path: tuple, given: str, allowed: str) -> ScenarioError:
+        names = [k for k in path if isinstance(k, str)]
+        e = ScenarioError(f"given {given}; allowed {allowed}",
+                          param=names[-1] if names else None)
+        return self.located(e, path)
+
+    def located(self, err: GroundshakeError, path: tuple) -> ScenarioError:
+        """``err`` shown at the key ``path``: ``FILE:LINE: key.path`` in front of its message,
+        as a :class:`ScenarioError` that keeps its ``param`` and ``value`` and gains
+        ``key``, ``line`` and ``file``."""
         key = format_path(path)
-        e = ScenarioError(f"{self.where(path)}: {key}: given {given}; allowed {allowed}")
-        e.key = key
-        e.line = line_of(self.lines, path)
-        e.file = self.source
-        return e
+        return err.located(f"{self.where(path)}: {key}", cls=ScenarioError, key=key,
+                           line=line_of(self.lines, path), file=self.source)
+
+    def keyed(self, err: GroundshakeError, path: tuple, params=()) -> ScenarioError:
+        """A library error met while checking the key ``path``.
+
+        Its ``param`` names a key of that table (one of ``params``): shown at that key.
+        Otherwise it is shown at ``path`` itself, its own location (a parameter of a target
+        spec, a record file) kept after the key.
+        """
+        if err.param is not None and err.param in params:
+            return self.located(err, tuple(path) + (err.param,))
+        inner = err.location
+        out = self.located(err, path)
+        if inner and inner != out.key:
+            out.where = f"{out.where}: {inner}"
+        return out
 
     def bad(self, path: tuple, value: Any, allowed: str) -> ScenarioError:
         return self.error(path, _show(value), allowed)
@@ -366,6 +387,20 @@ def _parse_obj(cls, data: Any, path: tuple, ctx: _Context):
         return cls(**values) if cls is not Scenario else values
     except TypeError as e:  # pragma: no cover - schema error
         raise ctx.error(path, "an incomplete table", str(e)) from None
+
+
+def table_keys(path: tuple) -> tuple[str, ...]:
+    """The keys of the scenario table at ``path`` (``("motion", "x")`` → file, channel,
+    trace, ...); empty when ``path`` is no table of the schema."""
+    cls = Scenario
+    for k in path:
+        if isinstance(k, int):
+            continue
+        hit = next((f for f in _schema_fields(cls) if f.name == k), None)
+        if hit is None or "cls" not in hit.metadata:
+            return ()
+        cls = hit.metadata["cls"]
+    return tuple(f.name for f in _schema_fields(cls))
 
 
 # --- the scenario as a whole -------------------------------------------------------------

@@ -447,6 +447,10 @@ class Scenario:
     source: str = _internal("<dict>")
     base_dir: Path = _internal(factory=Path.cwd)
     notes: tuple[str, ...] = _internal(())
+    #: Line of each key in the scenario text (key path → 1-based line), for messages of
+    #: errors met after loading (:func:`groundshake.scenario.errors_at_key`); None for a
+    #: scenario built from a dict.
+    key_lines: dict | None = _internal(None)
 
     @classmethod
     def from_dict(cls, d: dict, *, source: str = "<dict>",

@@ -9,9 +9,8 @@ from pathlib import Path
 from typing import Any
 
 from .._errors import GroundshakeWarning, ScenarioError
-from .._plausible import judge
+from .._plausible import verdict
 from . import _geometry
-from ._lines import line_of
 from ._types import Equipment, MotionComponent, MotionSettings, Scenario
 from ._spec import (_Context, _did_you_mean, _fmt, _parse_obj, _schema_fields, allowed_text,
                     format_path)
@@ -35,7 +34,8 @@ def _build(data: Any, ctx: _Context) -> Scenario:
     values["equipment"] = _complete_equipment(values, ctx)
     _check_names(values, "sensors", ctx)
     _geometry.check_geometry(values, ctx)
-    return Scenario(**values, source=ctx.source, base_dir=ctx.base_dir, notes=tuple(ctx.notes))
+    return Scenario(**values, source=ctx.source, base_dir=ctx.base_dir, notes=tuple(ctx.notes),
+                    key_lines=ctx.lines)
 
 
 def _check_processing(values, ctx):
@@ -112,13 +112,11 @@ def _plausible(quantity: str, value, path: tuple, ctx: _Context) -> None:
     """Error for a value no real case has (a unit slip), warning for an unusual one."""
     if value is None:
         return
-    level, text = judge(quantity, float(value), key=format_path(path))
+    level, text = verdict(quantity, float(value))
     if level == "error":
-        e = ScenarioError(f"{ctx.where(path)}: {text}")
-        e.key, e.line, e.file = format_path(path), line_of(ctx.lines, path), ctx.source
-        raise e
+        raise ctx.located(ScenarioError(text, param=quantity, value=value, sep=" = "), path)
     if level == "warn":
-        msg = f"{ctx.where(path)}: {text}"
+        msg = f"{ctx.where(path)}: {format_path(path)} = {text}"
         ctx.notes.append(msg)
         warnings.warn(msg, GroundshakeWarning, stacklevel=5)
 
@@ -178,9 +176,10 @@ def _check_target(spec: str, path: tuple, ctx: _Context) -> None:
 
 
 @contextlib.contextmanager
-def _keyed(path: tuple, ctx: _Context):
+def _keyed(path: tuple, ctx: _Context, params=()):
     """Run a check of one key: its InputError becomes that key's ScenarioError (file and
-    line), its GroundshakeWarnings that key's warnings and notes."""
+    line; an error whose ``param`` is one of ``params`` at the key ``path + (param,)``),
+    its GroundshakeWarnings that key's warnings and notes."""
     from .._errors import InputError
 
     with warnings.catch_warnings(record=True) as caught:
@@ -188,9 +187,7 @@ def _keyed(path: tuple, ctx: _Context):
         try:
             yield
         except InputError as e:
-            err = ScenarioError(f"{ctx.where(path)}: {format_path(path)}: {e}")
-            err.key, err.line, err.file = format_path(path), line_of(ctx.lines, path), ctx.source
-            raise err from None
+            raise ctx.keyed(e, path, params) from None
     for w in caught:
         if issubclass(w.category, GroundshakeWarning):
             ctx.warn(path, str(w.message))

@@ -1,0 +1,191 @@
+"""One library error, three places: a Python call names the parameter, a scenario the file,
+line and key, the command line the option.
+
+Sources: the project's contract for bad input (docs/DESIGN.md: one line naming the
+file/line/key or option and what is allowed, exit status 2, no traceback); the sampling
+theorem (a record of step dt carries nothing above its Nyquist frequency 1/(2·dt)); the
+``pickle`` module's documented round trip of exceptions (standard library), which the suite
+uses to send a worker's errors back; the header of tests/data/strong-motion/
+dmg_nc71734741_CE89146.V2 ("Chan 1: 360 Deg", "Chan 2: Up", "Chan 3: 90 Deg", so traces
+0..2).
+"""
+from __future__ import annotations
+
+import pickle
+import shutil
+import warnings
+
+import numpy as np
+import pytest
+
+from groundshake._errors import InputError, RecordError, ScenarioError
+from groundshake.cli import main
+from groundshake.processing import ProcessingSettings, correct_record
+from groundshake.records._record import Record
+from groundshake.records._write import write_record
+from groundshake.scenario import load_scenario, parse_scenario_text
+
+from _strong_motion import DATA
+
+BLOCK = """\
+title = "Error locations (invented block)"
+
+[materials.concrete]
+youngs_modulus = 30e9
+poisson_ratio = 0.2
+density = 2400
+
+[[parts]]
+name = "pad"
+material = "concrete"
+origin = [0.0, 0.0, 0.0]
+size = [2.0, 2.0, 1.0]
+
+[mesh]
+element_size = 1.0
+
+[support]
+kind = "fixed"
+"""
+
+
+def _line(text: str, marker: str) -> int:
+    """1-based line of the first line holding ``marker`` (found by hand, not by the loader)."""
+    return next(i for i, ln in enumerate(text.splitlines(), 1) if marker in ln)
+
+
+@pytest.fixture
+def record(tmp_path):
+    """An invented 20-s record at dt = 0.01 s: Nyquist frequency 1/(2·0.01) = 50 Hz."""
+    path = tmp_path / "rec.csv"
+    write_record(Record(acc=0.5 * np.sin(np.arange(2000) / 5.0), dt=0.01), path)
+    return path
+
+
+def _run_cli(capsys, argv):
+    status = main(argv)
+    err = capsys.readouterr().err
+    lines = [ln for ln in err.splitlines() if ln.strip()]
+    return status, lines, err
+
+
+# -- the error itself ------------------------------------------------------------------------
+
+def test_message_is_neutral_and_the_location_goes_in_front():
+    e = InputError("given -1; allowed a number > 0", param="highpass_hz", value=-1.0)
+    assert str(e) == "highpass_hz: given -1; allowed a number > 0"       # Python: the parameter
+    at_key = e.located("case.toml:7: processing.highpass_hz", cls=ScenarioError,
+                       key="processing.highpass_hz", line=7, file="case.toml")
+    assert str(at_key) == "case.toml:7: processing.highpass_hz: given -1; allowed a number > 0"
+    assert isinstance(at_key, ScenarioError) and isinstance(at_key, ValueError)
+    assert str(e.located("--highpass")) == "--highpass: given -1; allowed a number > 0"
+    assert str(e) == "highpass_hz: given -1; allowed a number > 0"       # the original unchanged
+    assert str(InputError("no location")) == "no location"
+
+
+@pytest.mark.parametrize("err", [
+    InputError("given 3; allowed 0..2", param="trace", value=3, where="motion.x.trace"),
+    InputError("given 80; allowed < 47.5", param="lowpass_hz", value=80.0).located(
+        "case.toml:9: processing.lowpass_hz", cls=ScenarioError, key="processing.lowpass_hz",
+        line=9, file="case.toml"),
+    RecordError("no samples", param="dt").located("--dt"),
+    InputError("30 Pa is below any structural material", param="youngs_modulus", value=30.0,
+               sep=" = ").located("case.toml:5: materials.concrete.youngs_modulus"),
+], ids=["plain", "scenario", "record-option", "plausibility"])
+def test_pickling_keeps_param_value_and_location(err):
+    # pickle round trip (standard library), as a suite worker sends its errors back
+    back = pickle.loads(pickle.dumps(err))
+    assert type(back) is type(err) and str(back) == str(err)
+    assert (back.param, back.value, back.where, back.sep) == (err.param, err.value, err.where,
+                                                              err.sep)
+    for attr in ("key", "line", "file"):
+        assert getattr(back, attr, None) == getattr(err, attr, None)
+
+
+# -- the same library error via Python, the scenario and the command line ----------------------
+
+def test_corner_above_nyquist_named_by_parameter_key_and_option(record, tmp_path, capsys):
+    rec = Record(acc=np.sin(np.arange(2000) / 5.0), dt=0.01)
+    # Python: the parameter (sampling theorem: Nyquist 1/(2·0.01 s) = 50 Hz)
+    with pytest.raises(InputError, match=r"^lowpass_hz: low-pass corner 80 Hz must be below "
+                                         r"0\.95 x the Nyquist frequency 50 Hz") as info:
+        correct_record(rec, ProcessingSettings(lowpass_hz=80.0))
+    assert info.value.param == "lowpass_hz" and info.value.value == 80.0
+
+    # scenario: file, line and key
+    from groundshake.pipeline import build_motion
+
+    text = BLOCK + ('\n[processing]\nlowpass_hz = 80\n\n'
+                    f'[motion]\nx = {{ file = "{record.name}" }}\n')
+    scen = tmp_path / "case.toml"
+    scen.write_text(text, encoding="utf-8")
+    s = load_scenario(scen)
+    with pytest.raises(ScenarioError) as info:
+        build_motion(s)
+    msg = str(info.value)
+    assert msg.startswith(f"{scen}:{_line(text, 'lowpass_hz')}: processing.lowpass_hz: "
+                          "low-pass corner 80 Hz must be below"), msg
+    assert "Nyquist frequency 50 Hz" in msg and "\n" not in msg
+    assert (info.value.key, info.value.line, info.value.param) == (
+        "processing.lowpass_hz", _line(text, "lowpass_hz"), "lowpass_hz")
+
+    # command line: the option, one line, status 2, no traceback
+    status, lines, err = _run_cli(capsys, ["info", str(record), "--lowpass", "80"])
+    assert status == 2 and len(lines) == 1 and "Traceback" not in err
+    assert lines[0].startswith("groundshake: error: --lowpass: low-pass corner 80 Hz must be "
+                               "below 0.95 x the Nyquist frequency 50 Hz"), lines[0]
+    assert str(record) in lines[0]                           # and the record it is about
+
+
+@pytest.mark.parametrize("argv, option, allowed", [
+    (["--highpass", "-1"], "--highpass", "allowed a number > 0"),
+    (["--order", "0"], "--order", "allowed an integer 1-12"),
+    (["--taper", "40"], "--taper", "allowed a number >= 0 and <= 25"),
+    (["--pre-event", "0"], "--pre-event", "allowed a pre-event length > 0 s"),
+    (["--highpass", "1", "--lowpass", "0.5"], "--lowpass", "above the high-pass corner 1"),
+])
+def test_settings_errors_name_the_option(record, capsys, argv, option, allowed):
+    status, lines, err = _run_cli(capsys, ["info", str(record), *argv])
+    assert status == 2 and len(lines) == 1 and "Traceback" not in err
+    assert lines[0].startswith(f"groundshake: error: {option}: given "), lines[0]
+    assert allowed in lines[0]
+    assert "processing." not in lines[0]                     # no scenario key on the command line
+
+
+def test_settings_error_in_python_names_the_setting():
+    with pytest.raises(InputError) as info:
+        ProcessingSettings(filter_order=0)
+    assert str(info.value) == "processing.filter_order: given 0; allowed an integer 1-12"
+    assert info.value.param == "filter_order" and info.value.value == 0
+
+
+# -- a wrong trace names the scenario file and key --------------------------------------------
+
+def test_wrong_trace_names_scenario_file_line_and_key(tmp_path, capsys):
+    from groundshake.pipeline import build_motion
+
+    shutil.copy(DATA / "dmg_nc71734741_CE89146.V2", tmp_path / "station.V2")
+    text = BLOCK + '\n[motion]\nx = { file = "station.V2", trace = 5 }\n'
+    scen = tmp_path / "case.toml"
+    scen.write_text(text, encoding="utf-8")
+    line = _line(text, "trace = 5")
+    s = load_scenario(scen)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(ScenarioError) as info:
+            build_motion(s)
+    # the file's header lists three channels: traces 0..2
+    assert str(info.value).startswith(f"{scen}:{line}: motion.x.trace: given 5; allowed 0..2 ")
+    assert (info.value.file, info.value.line, info.value.key) == (str(scen), line,
+                                                                  "motion.x.trace")
+    # from text in memory too (the loader keeps the lines of the keys)
+    s = parse_scenario_text(text, source="mem.toml", base_dir=tmp_path)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(ScenarioError, match=rf"^mem\.toml:{line}: motion\.x\.trace: given 5"):
+            build_motion(s)
+    # the command line: one line, status 2, no traceback
+    status, lines, err = _run_cli(capsys, ["run", str(scen), "-o", str(tmp_path / "out"),
+                                           "--quiet", "--no-report"])
+    assert status == 2 and len(lines) == 1 and "Traceback" not in err, err
+    assert f"{scen}:{line}: motion.x.trace: given 5; allowed 0..2" in lines[0]
