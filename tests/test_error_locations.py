@@ -189,3 +189,37 @@ def test_wrong_trace_names_scenario_file_line_and_key(tmp_path, capsys):
                                            "--quiet", "--no-report"])
     assert status == 2 and len(lines) == 1 and "Traceback" not in err, err
     assert f"{scen}:{line}: motion.x.trace: given 5; allowed 0..2" in lines[0]
+
+
+# -- model errors met during a command name the scenario key ------------------------------------
+
+def test_overlapping_footprints_name_scenario_file_line_and_key(tmp_path, capsys):
+    def equipment(name, mount):
+        return (f'\n[[equipment]]\nname = "{name}"\nmass = 100.0\nmount = {mount}\n'
+                'footprint = [1.0, 1.0]\ncg_height = 0.3\nanchors = [[-0.4, -0.4]]\n')
+
+    # two 1 × 1 m footprints whose centres are 0.2 m apart overlap (geometry, by hand)
+    text = BLOCK + equipment("a", "[1.0, 1.0]") + equipment("b", "[1.2, 1.2]")
+    scen = tmp_path / "case.toml"
+    scen.write_text(text, encoding="utf-8")
+    line = _line(text, 'name = "b"') - 1                     # the second [[equipment]] header
+    status, lines, err = _run_cli(capsys, ["modes", str(scen), "--quiet"])
+    assert status == 2 and len(lines) == 1 and "Traceback" not in err, err
+    assert lines[0].startswith(f"groundshake: error: {scen}:{line}: equipment[1]: footprint of "
+                               "'b' overlaps"), lines[0]
+
+
+def test_spectrum_command_names_the_option(record, capsys):
+    status, lines, err = _run_cli(capsys, ["spectrum", str(record), "--lowpass", "80"])
+    assert status == 2 and len(lines) == 1 and "Traceback" not in err
+    assert lines[0].startswith("groundshake: error: --lowpass: low-pass corner 80 Hz"), lines[0]
+
+
+def test_option_table_is_read_from_the_parser():
+    from groundshake.cli import build_parser
+    from groundshake.cli._common import option_table
+
+    sub = next(a for a in build_parser()._actions if a.dest == "command")
+    table = option_table(sub.choices["correct"])
+    assert table["highpass_hz"] == "--highpass" and table["pre_event_s"] == "--pre-event"
+    assert table["output"] == "--output" and "record" not in table   # positionals have none

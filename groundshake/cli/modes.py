@@ -15,7 +15,7 @@ __all__ = ["register", "cmd_modes"]
 
 def cmd_modes(args) -> int:
     from ..dynamics import compute_modes
-    from ..scenario import load_scenario
+    from ..scenario import errors_at_key, load_scenario
     from ..model._build import build_model
 
     scenario = load_scenario(args.scenario)
@@ -30,7 +30,8 @@ def cmd_modes(args) -> int:
         warnings.simplefilter("always")
         t0 = time.perf_counter()
         with Progress("model", total=1) as bar:
-            model = build_model(scenario)
+            with errors_at_key(scenario, ()):    # a model error names the scenario key
+                model = build_model(scenario)
             bar.advance()
         t_build = time.perf_counter() - t0
         with Progress("modes", total=1) as bar:

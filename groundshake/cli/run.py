@@ -38,7 +38,7 @@ def register(subparsers, parents) -> None:
 
 
 def _run(args) -> int:
-    from ..scenario import load_scenario
+    from ..scenario import errors_at_key, load_scenario
     from ..pipeline import analyse, write_run
 
     scen_path = Path(args.scenario)
@@ -54,7 +54,8 @@ def _run(args) -> int:
     if getattr(args, "inventory", None):
         scenario = _with_inventory(scenario, Path(args.inventory))
     quiet = bool(getattr(args, "quiet", False))
-    results = analyse(scenario, progress=not quiet, method=args.method)
+    with errors_at_key(scenario, ()):              # a library error names the scenario key
+        results = analyse(scenario, progress=not quiet, method=args.method)
     results.summary["provenance"]["command"] = " ".join(["groundshake", *sys.argv[1:]]) \
         if sys.argv and sys.argv[0].endswith("groundshake") else f"groundshake run {args.scenario}"
     units = args.report_units or getattr(getattr(scenario, "report", None), "units", None) or "si"

@@ -39,7 +39,8 @@ def newmark_parameters(hht_alpha: float = 0.0) -> tuple[float, float, float]:
     """
     a = float(hht_alpha)
     if not (-1.0 / 3.0 - 1e-12 <= a <= 0.0):
-        raise InputError(f"analysis.hht_alpha: given {hht_alpha!r}; allowed -1/3 <= alpha <= 0")
+        raise InputError(f"given {hht_alpha!r}; allowed -1/3 <= alpha <= 0", param="hht_alpha",
+                         value=hht_alpha)
     return a, (1.0 - a) ** 2 / 4.0, 0.5 - a
 
 

@@ -124,7 +124,7 @@ def lowest_modes(K, M, *, n_modes: int, factor=None, shift: float = 0.0,
     n = K.shape[0]
     k = int(n_modes)
     if k < 1:
-        raise InputError(f"n_modes: given {n_modes}; allowed >= 1")
+        raise InputError(f"given {n_modes}; allowed >= 1", param="n_modes", value=n_modes)
     if method == "auto":
         method = "block" if n > 3000 else "lanczos"
     if method == "amg" and n > max(3 * k, 200):
@@ -341,13 +341,13 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     K, M = model.K, model.M
     if n_modes is not None:
         if int(n_modes) < 1:
-            raise InputError(f"analysis.modes: given {n_modes}; allowed >= 1")
+            raise InputError(f"given {n_modes}; allowed >= 1", param="n_modes", value=n_modes)
         k = min(int(n_modes), n if n <= 200 else n - 1)  # all modes only by dense eigh
         lam, phi = lowest_modes(K, M, n_modes=k, factor=fac, method=method, stats=st)
     else:
         fc = cutoff_hz if cutoff_hz is not None else (model.cutoff_hz or 50.0)
         if not fc > 0:
-            raise InputError(f"analysis.cutoff_hz: given {fc}; allowed > 0")
+            raise InputError(f"given {fc}; allowed > 0 [Hz]", param="cutoff_hz", value=fc)
         lam_c = (2 * np.pi * fc) ** 2
         k = min(12, n - 1)
         while True:

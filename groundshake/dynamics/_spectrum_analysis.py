@@ -321,8 +321,8 @@ def combine_directions(per_direction: np.ndarray,
     if rule == "100-40-40":
         s = np.sum(R, axis=0)
         return np.max(0.6 * R + 0.4 * s[None], axis=0)
-    raise InputError(f"analysis.direction_combination: given {rule!r}; allowed "
-                     + ", ".join(repr(r) for r in DIRECTION_RULES))
+    raise InputError(f"given {rule!r}; allowed " + ", ".join(repr(r) for r in DIRECTION_RULES),
+                     param="direction_combination", value=rule)
 
 
 def _dense(a) -> np.ndarray:
@@ -440,7 +440,8 @@ class ModalSpectrum:
             G = np.zeros((k, 3)) if ground is None else np.asarray(ground, float).reshape(k, 3)
             res = G - A @ self.participation if self.residual is not None else None
         else:
-            raise InputError(f"kind: given {kind!r}; allowed 'displacement', 'acceleration'")
+            raise InputError(f"given {kind!r}; allowed 'displacement', 'acceleration'",
+                             param="kind", value=kind)
         for d in range(3):
             if self.zpa[d] == 0 and not np.any(spec[d]):
                 continue

@@ -156,9 +156,10 @@ def _periods_and_band(periods, band, dt: float) -> tuple[np.ndarray, tuple[float
         try:
             lo, hi = (float(b) for b in band)
         except (TypeError, ValueError):
-            raise InputError(f"band: {band!r}; allowed: two periods [s], shortest first") from None
+            raise InputError(f"given {band!r}; allowed: two periods [s], shortest first",
+                             param="band") from None
         if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
-            raise InputError(f"band: {band!r}; allowed: two periods 0 < T1 < T2 [s]")
+            raise InputError(f"given {band!r}; allowed: two periods 0 < T1 < T2 [s]", param="band")
     if periods is None:
         lo, hi = (lo, hi) if band is not None else default_band(dt)
         count = max(int(math.ceil(PERIODS_PER_DECADE * math.log10(hi / lo))) + 1, 8)
@@ -166,16 +167,17 @@ def _periods_and_band(periods, band, dt: float) -> tuple[np.ndarray, tuple[float
     else:
         periods = np.unique(np.asarray(periods, dtype=float).ravel())
         if periods.size == 0 or not np.all(np.isfinite(periods)) or periods[0] <= 0:
-            raise InputError(f"periods: {periods!r}; allowed: finite periods > 0 [s]")
+            raise InputError(f"given {periods!r}; allowed: finite periods > 0 [s]", param="periods")
         if band is None:
             lo, hi = float(periods[0]), float(periods[-1])
         else:
             periods = periods[(periods >= lo * (1 - 1e-12)) & (periods <= hi * (1 + 1e-12))]
             if periods.size == 0:
-                raise InputError(f"periods: none fall in the band {lo:g}-{hi:g} s")
+                raise InputError(f"none fall in the band {lo:g}-{hi:g} s", param="periods")
     if periods[0] <= 2.0 * dt:
-        raise InputError(f"band: shortest period {periods[0]:g} s is at or below the Nyquist "
-                         f"period 2·dt = {2 * dt:g} s of the record; allowed: > {2 * dt:g} s")
+        raise InputError(f"shortest period {periods[0]:g} s is at or below the Nyquist "
+                         f"period 2·dt = {2 * dt:g} s of the record; allowed: > {2 * dt:g} s",
+                         param="band")
     return periods, (lo, hi)
 
 
@@ -241,9 +243,10 @@ def _fit_band(target, periods, band, dt: float, warn: list):
 def _damping_array(damping) -> np.ndarray:
     d = np.atleast_1d(np.asarray(damping, dtype=float)).ravel()
     if d.size == 0 or not np.all(np.isfinite(d)) or np.any(d <= 0) or np.any(d >= 1):
-        raise InputError(f"damping: {damping!r}; allowed: ratios 0 < ξ < 1 (e.g. 0.05)")
+        raise InputError(f"given {damping!r}; allowed: ratios 0 < ξ < 1 (e.g. 0.05)",
+                         param="damping")
     if np.unique(d).size != d.size:
-        raise InputError(f"damping: {damping!r}; give each damping ratio once")
+        raise InputError(f"given {damping!r}; give each damping ratio once", param="damping")
     return d
 
 
@@ -273,20 +276,21 @@ def _target_matrix(target: TargetLike, periods: np.ndarray, damping: np.ndarray,
         if values.shape == (n_p,) and n_d == 1:
             values = values[None, :]
         if values.shape != (n_d, n_p):
-            raise InputError(f"target: array of shape {values.shape}; allowed: (n_damping, "
-                             f"n_periods) = ({n_d}, {n_p}) PSA values [m/s²]")
+            raise InputError(f"array of shape {values.shape}; allowed: (n_damping, "
+                             f"n_periods) = ({n_d}, {n_p}) PSA values [m/s²]", param="target")
         label = "target values"
     elif isinstance(target, (list, tuple)):
         if len(target) != n_d:
-            raise InputError(f"target: {len(target)} targets for {n_d} damping values; "
-                             "allowed: one target per damping value")
+            raise InputError(f"{len(target)} targets for {n_d} damping values; "
+                             "allowed: one target per damping value", param="target")
         rows = [_one_target(t, periods, float(d), warn) for t, d in zip(target, damping)]
         values = np.vstack([r[0] for r in rows])
         label = "; ".join(r[1] for r in rows)
     else:
         if n_d != 1:
-            raise InputError(f"target: one target for {n_d} damping values; allowed: one "
-                             "target per damping value (a list), or an array (n_damping, n_periods)")
+            raise InputError(f"one target for {n_d} damping values; allowed: one "
+                             "target per damping value (a list), or an array (n_damping, n_periods)",
+                             param="target")
         v, label = _one_target(target, periods, float(damping[0]), warn)
         values = v.reshape(1, -1)
     if values.shape != (n_d, n_p) or not np.all(np.isfinite(values)) or np.any(values <= 0):
@@ -449,13 +453,15 @@ def match_spectrum_report(record: Record, target: TargetLike,
     matching", Earthquake Spectra 26(3), 601-617.
     """
     if not isinstance(record, Record):
-        raise InputError(f"record: {type(record).__name__}; allowed: a groundshake Record")
+        raise InputError(f"{type(record).__name__}; allowed: a groundshake Record", param="record")
     if not (math.isfinite(tolerance) and tolerance > 0):
-        raise InputError(f"tolerance: {tolerance!r}; allowed: a ratio > 0 (0.05 = 5 %)")
+        raise InputError(f"given {tolerance!r}; allowed: a ratio > 0 (0.05 = 5 %)",
+                         param="tolerance")
     if int(max_iterations) < 0:
-        raise InputError(f"max_iterations: {max_iterations!r}; allowed: an integer >= 0")
+        raise InputError(f"given {max_iterations!r}; allowed: an integer >= 0",
+                         param="max_iterations")
     if not (0 < relaxation <= 1):
-        raise InputError(f"relaxation: {relaxation!r}; allowed: 0 < relaxation <= 1")
+        raise InputError(f"given {relaxation!r}; allowed: 0 < relaxation <= 1", param="relaxation")
     if np.max(np.abs(record.acc), initial=0.0) == 0:
         raise InputError(f"{record.name}: the record is all zeros; nothing to match")
     dt = record.dt

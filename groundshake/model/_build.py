@@ -417,7 +417,8 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
             slave_rows.append(base_dofs)
             slave_maps.append((base_master, rigid_link(nodes[base_nodes] - centre)))
     else:
-        raise ScenarioError(f"support.kind: given {kind!r}; allowed 'fixed', 'soil'")
+        raise ScenarioError(f"given {kind!r}; allowed 'fixed', 'soil'", param="support.kind",
+                            value=kind)
 
     # ---- equipment mounts
     eq_info = []
@@ -430,29 +431,30 @@ def build_model(scenario, *, solver: Literal["auto", "scipy", "pardiso"] | None 
         ci = np.flatnonzero(((xs[:-1] + xs[1:]) / 2 > x0) & ((xs[:-1] + xs[1:]) / 2 < x1))
         cj = np.flatnonzero(((ys[:-1] + ys[1:]) / 2 > y0) & ((ys[:-1] + ys[1:]) / 2 < y1))
         if ci.size == 0 or cj.size == 0:
-            raise ScenarioError(f"equipment[{q}] ({name}): footprint {bxf:g} × {byf:g} m at "
-                                f"mount [{mx:g}, {my:g}] covers no element; allowed a footprint "
-                                "on the block's top face")
+            raise ScenarioError(f"footprint of {name!r}, {bxf:g} × {byf:g} m at mount "
+                                f"[{mx:g}, {my:g}] covers no element; allowed a footprint "
+                                "on the block's top face", param=f"equipment[{q}]")
         col = mesh.filled[:, cj[:, None], ci[None, :]]  # (nez, nj, ni)
         has = col.any(axis=0)
         topk = np.where(has, col.shape[0] - 1 - np.argmax(col[::-1], axis=0), -1)
         if not has.all() or np.unique(topk).size != 1:
-            raise ScenarioError(f"equipment[{q}] ({name}): footprint at mount [{mx:g}, {my:g}] "
-                                "does not lie on one flat top face of the block; allowed a "
-                                "footprint within a single top surface")
+            raise ScenarioError(f"footprint of {name!r} at mount [{mx:g}, {my:g}] does not lie "
+                                "on one flat top face of the block; allowed a footprint within "
+                                "a single top surface", param=f"equipment[{q}]")
         ztop = zs[int(topk.flat[0]) + 1]
         if int(topk.flat[0]) + 1 < len(zs) - 1 and mesh.filled[int(topk.flat[0]) + 1:,
                                                              cj[:, None], ci[None, :]].any():
-            raise ScenarioError(f"equipment[{q}] ({name}): footprint is not on a top face")
+            raise ScenarioError(f"footprint of {name!r} is not on a top face",
+                                param=f"equipment[{q}]")
         sel = ((np.abs(nodes[:, 2] - ztop) <= top_tol)
                & (nodes[:, 0] >= x0 - 1e-9) & (nodes[:, 0] <= x1 + 1e-9)
                & (nodes[:, 1] >= y0 - 1e-9) & (nodes[:, 1] <= y1 + 1e-9))
         fp_nodes = np.flatnonzero(sel)
         fp_dofs = (3 * fp_nodes[:, None] + np.arange(3)).ravel()
         if np.any(status[fp_dofs] != 0):
-            raise ScenarioError(f"equipment[{q}] ({name}): footprint overlaps the base or "
-                                "another equipment footprint; allowed separate footprints "
-                                "on the top face")
+            raise ScenarioError(f"footprint of {name!r} overlaps the base or another equipment "
+                                "footprint; allowed separate footprints on the top face",
+                                param=f"equipment[{q}]")
         mount_pt = np.array([mx, my, ztop])
         mo = n_extra
         n_extra += 6

@@ -313,7 +313,8 @@ def modulus_ratio_of(support) -> tuple[float, str]:
         try:
             ratio = shear_modulus_ratio(cls, g)
         except ValueError as exc:
-            raise ScenarioError(f"support.strain_compatible: {exc}") from exc
+            raise ScenarioError(str(exc), param="support.strain_compatible",
+                                value=(cls, g)) from exc
         return ratio, (f"ASCE 7-16 Table 19.2-1 (from memory), site class {cls}, "
                        f"S_DS/2.5 = {g:g} g")
     return 1.0, "small-strain modulus (no reduction asked for)"

@@ -132,7 +132,7 @@ def check_parts(boxes, *, where: str = "parts") -> None:
     """Parts must not overlap and must form one piece touching face to face."""
     n = len(boxes)
     if n == 0:
-        raise ScenarioError(f"{where}: no parts given; allowed: one or more boxes")
+        raise ScenarioError("no parts given; allowed: one or more boxes", where=where)
     lo = np.array([b.lo for b in boxes])
     hi = np.array([b.hi for b in boxes])
     tol = 1e-9 * max(1.0, float(np.max(hi - lo)))
@@ -140,8 +140,8 @@ def check_parts(boxes, *, where: str = "parts") -> None:
     for a in range(n):
         for c in range(a + 1, n):
             if np.all(ov[a, c] > tol):
-                raise ScenarioError(f"{where}: parts {boxes[a].name!r} and {boxes[c].name!r} "
-                                    "overlap; allowed: boxes that touch face to face")
+                raise ScenarioError(f"parts {boxes[a].name!r} and {boxes[c].name!r} overlap; "
+                                    "allowed: boxes that touch face to face", where=where)
     # face contact: overlap zero in one axis, positive in the other two
     touch = (np.sum(np.abs(ov) <= tol, axis=2) == 1) & (np.sum(ov > tol, axis=2) == 2)
     seen = {0}
@@ -154,8 +154,8 @@ def check_parts(boxes, *, where: str = "parts") -> None:
                 todo.append(int(c))
     if len(seen) != n:
         lone = [boxes[i].name for i in range(n) if i not in seen]
-        raise ScenarioError(f"{where}: part(s) {lone} do not touch the others face to face; "
-                            "allowed: one connected block")
+        raise ScenarioError(f"part(s) {lone} do not touch the others face to face; "
+                            "allowed: one connected block", where=where)
 
 
 def mesh_boxes(boxes, element_size: float, soft_points=((), (), ())) -> GridMesh:
@@ -168,7 +168,8 @@ def mesh_boxes(boxes, element_size: float, soft_points=((), (), ())) -> GridMesh
     soft_points : three sequences of coordinates [m] (x, y, z) that should be grid lines.
     """
     if not (element_size > 0):
-        raise ScenarioError(f"mesh.element_size: given {element_size}; allowed > 0")
+        raise ScenarioError(f"given {element_size}; allowed > 0", param="mesh.element_size",
+                            value=element_size)
     check_parts(boxes)
     xs, ys, zs = _axis_lines(boxes, element_size, soft_points)
     cx, cy, cz = (xs[:-1] + xs[1:]) / 2, (ys[:-1] + ys[1:]) / 2, (zs[:-1] + zs[1:]) / 2

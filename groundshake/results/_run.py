@@ -167,8 +167,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                     timings={"time_history": t1 - t0, "stress_peaks": _time.perf_counter() - t1})
         return _Response(method, u, v, a, node_peak, peaks, r.assumptions, info)
     if method != "direct":
-        raise InputError(f"analysis.method: given {method!r}; allowed 'modal', 'coupled', "
-                         "'direct'")
+        raise InputError(f"given {method!r}; allowed 'modal', 'coupled', 'direct'",
+                         param="analysis.method", value=method)
     n_sub = substeps_for(dt, cutoff_hz)
     peaks = StressPeaks.empty(n_el) if (stresses and n_el) else None
 
@@ -318,21 +318,21 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     method = method or _get(analysis, "method", "auto") or "auto"
     if method == "spectrum":            # the design spectrum, no records
         if motion is not None:
-            raise InputError("analysis.method: 'spectrum' takes the design spectrum of "
-                             "[motion] target, not records; allowed 'auto', 'modal', "
-                             "'coupled' or 'direct' with a given motion")
+            raise InputError("'spectrum' takes the design spectrum of [motion] target, not "
+                             "records; allowed 'auto', 'modal', 'coupled' or 'direct' with a "
+                             "given motion", param="analysis.method", value=method)
         return spectrum_analyse(scenario, progress=progress, model=model, modes=modes,
                                 stresses=stresses, collected=collected, residual=residual,
                                 timings=timings, analyse=analyse)
     if method not in ("auto", "modal", "coupled", "direct"):
-        raise InputError(f"analysis.method: given {method!r}; allowed 'auto', 'modal', "
-                         "'coupled', 'direct', 'spectrum'")
+        raise InputError(f"given {method!r}; allowed 'auto', 'modal', 'coupled', 'direct', "
+                         "'spectrum'", param="analysis.method", value=method)
     cutoff = _get(analysis, "cutoff_hz", 50.0)
     n_modes_req = _get(analysis, "modes", None)
     hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
     if motion is None:
-        raise InputError("motion: none given; groundshake.analyse (the application layer) "
-                         "reads it from the scenario's [motion] files")
+        raise InputError("none given; groundshake.analyse (the application layer) reads it "
+                         "from the scenario's [motion] files", param="motion")
     timings["motion"] = _tick()
     collected.extend(motion.notes)
     if model is None:

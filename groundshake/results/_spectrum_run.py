@@ -26,6 +26,7 @@ from ._anchorage import INTERACTION_FORMS, bolt_interaction
 from ._common import RunResults, _modes_dict, _sha256
 from ._stability import base_stability
 from ._stress import StressPeaks
+from ..scenario import located_at
 
 __all__ = ["spectrum_analyse", "stress_bounds", "stress_envelope", "SIGNS_LOST", "STRESS_RULE"]
 
@@ -141,9 +142,9 @@ def _targets(scenario):
     base_dir = _get(scenario, "base_dir")
     spec_h = _get(m, "target")
     if not spec_h:
-        raise InputError(f"{_get(scenario, 'source', 'scenario')}: motion.target: missing; "
-                         'allowed a design spectrum (asce7:..., en1998:..., or a CSV table) '
-                         'for [analysis] method = "spectrum"')
+        raise located_at(scenario, ("motion", "target"), InputError(
+            'missing; allowed a design spectrum (asce7:..., en1998:..., or a CSV table) '
+            'for [analysis] method = "spectrum"', param="target"))
     th = parse_target(str(spec_h), base_dir=base_dir)
     spec_z = _get(m, "target_z")
     frac = _get(m, "vertical_fraction", DEFAULT_VERTICAL_FRACTION)
@@ -449,8 +450,9 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     if n_mot > 0:
         with Progress("spectrum-compatible motions", total=None, enabled=progress):
             if analyse is None:
-                raise InputError("analysis.spectrum_motions: the matched motions need the "
-                                 "time-history run (pass analyse=groundshake.results.analyse)")
+                raise InputError("the matched motions of analysis.spectrum_motions need the "
+                                 "time-history run (pass analyse=groundshake.results.analyse)",
+                                 param="analyse")
             floor, floor_out, side = _matched_floor(
                 scenario, n_mot, targets, scales, model=model, modes=modes, residual=residual,
                 analyse=analyse)

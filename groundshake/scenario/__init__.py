@@ -8,7 +8,7 @@ damping is in percent, as in the file. Errors are one-line
 ``FILE:LINE: key.path: given VALUE; allowed WHAT``.
 """
 from ._geometry import MAX_ESTIMATED_DOFS, estimated_dofs
-from ._load import errors_at_key, load_scenario, parse_scenario_text
+from ._load import errors_at_key, load_scenario, located_at, parse_scenario_text
 from ._validate import box_rotary_inertia
 from ._schema import schema_rows
 from ._types import (
@@ -36,6 +36,7 @@ from ._types import (
 __all__ = [
     "load_scenario",
     "errors_at_key",
+    "located_at",
     "parse_scenario_text",
     "Scenario",
     "MotionComponent",

@@ -16,7 +16,7 @@ from .._errors import InputError, ScenarioError
 from . import _geometry
 from ._types import Scenario
 from ._codec import scenario_from_dict, scenario_to_dict
-from ._spec import _Context, _show, format_path, table_keys
+from ._spec import _Context, _show, format_path, schema_path, table_keys
 from ._validate import _build
 
 __all__ = [
@@ -26,6 +26,7 @@ __all__ = [
     "scenario_to_dict",
     "format_path",
     "errors_at_key",
+    "located_at",
     "MAX_ESTIMATED_DOFS",
 ]
 
@@ -139,7 +140,21 @@ def errors_at_key(scenario, path: tuple):
         source = getattr(scenario, "source", None)
         if not source or getattr(e, "file", None) is not None:
             raise
-        raise _context_of(scenario).keyed(e, tuple(path), table_keys(path)) from None
+        ctx = _context_of(scenario)
+        full = schema_path(e.param) if e.param else None
+        if full is not None and len(full) > 1:      # a key path of the scenario: "support.kind"
+            raise ctx.located(e, full) from None
+        if not path:
+            raise
+        raise ctx.keyed(e, tuple(path), table_keys(path)) from None
+
+
+def located_at(scenario, path: tuple, err: InputError) -> InputError:
+    """``err`` shown at the scenario key ``path``: ``FILE:LINE: key.path`` in front (a
+    :class:`~groundshake.ScenarioError`), or the key alone for a scenario without a file."""
+    if not getattr(scenario, "source", None):
+        return err.located(format_path(path))
+    return _context_of(scenario).located(err, tuple(path))
 
 
 def _context_of(scenario) -> _Context:

@@ -403,4 +403,35 @@ def table_keys(path: tuple) -> tuple[str, ...]:
     return tuple(f.name for f in _schema_fields(cls))
 
 
+_PATH_PART = re.compile(r"\[(\d+)\]|([A-Za-z0-9_-]+)")
+
+
+def schema_path(text: str) -> tuple | None:
+    """``"equipment[0].footprint"`` → ``("equipment", 0, "footprint")`` when it names a key
+    of the scenario schema (names of ``[materials.NAME]`` tables taken as given); else None."""
+    if not isinstance(text, str) or not text or _PATH_PART.sub("", text).strip(".") != "":
+        return None
+    parts = [int(m.group(1)) if m.group(1) is not None else m.group(2)
+             for m in _PATH_PART.finditer(text)]
+    cls, expect = Scenario, "key"
+    for part in parts:
+        if isinstance(part, int):
+            if expect not in ("index", "leaf"):
+                return None
+            expect = "key" if expect == "index" else "leaf"
+            continue
+        if expect == "name":
+            expect = "key"
+            continue
+        if expect != "key":
+            return None
+        hit = next((f for f in _schema_fields(cls) if f.name == part), None)
+        if hit is None:
+            return None
+        kind = hit.metadata["kind"]
+        cls = hit.metadata.get("cls")
+        expect = {"array": "index", "named": "name", "table": "key"}.get(kind, "leaf")
+    return tuple(parts)
+
+
 # --- the scenario as a whole -------------------------------------------------------------

@@ -117,10 +117,11 @@ def _check_percentiles(percentiles) -> np.ndarray:
     try:
         q = np.atleast_1d(np.asarray(percentiles, dtype=float))
     except (TypeError, ValueError):
-        raise InputError(f"percentiles: {percentiles!r} is not a list of numbers") from None
+        raise InputError(f"given {percentiles!r}; allowed a list of numbers",
+                         param="percentiles") from None
     if q.ndim != 1 or q.size == 0 or not np.all(np.isfinite(q) & (q >= 0) & (q <= 100)):
-        raise InputError(f"percentiles: {percentiles!r}; allowed: numbers from 0 to 100 "
-                         "(50 for RotD50, 100 for RotD100)")
+        raise InputError(f"given {percentiles!r}; allowed: numbers from 0 to 100 "
+                         "(50 for RotD50, 100 for RotD100)", param="percentiles")
     return q
 
 

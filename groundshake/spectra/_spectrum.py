@@ -47,13 +47,16 @@ def check_periods(periods, *, name: str = "periods") -> np.ndarray:
     try:
         p = np.atleast_1d(np.asarray(periods, dtype=float))
     except (TypeError, ValueError):
-        raise InputError(f"{name}: {periods!r} is not a list of numbers of seconds") from None
+        raise InputError(f"given {periods!r}; allowed a list of numbers of seconds",
+                         param="periods", value=periods, where=name) from None
     if p.ndim != 1 or p.size == 0:
-        raise InputError(f"{name}: give a 1-D list of at least one period, got shape {p.shape}")
+        raise InputError(f"give a 1-D list of at least one period, got shape {p.shape}",
+                         param="periods", where=name)
     bad = ~(np.isfinite(p) & (p > 0))
     if bad.any():
-        raise InputError(f"{name}: {p[bad][0]:g} s is not allowed; periods must be finite "
-                         "and > 0 s (PGA is reported separately as the zero-period value)")
+        raise InputError(f"{p[bad][0]:g} s is not allowed; periods must be finite and > 0 s "
+                         "(PGA is reported separately as the zero-period value)",
+                         param="periods", value=float(p[bad][0]), where=name)
     return p
 
 
@@ -62,13 +65,16 @@ def check_damping(damping, *, name: str = "damping") -> np.ndarray:
     try:
         z = np.atleast_1d(np.asarray(damping, dtype=float))
     except (TypeError, ValueError):
-        raise InputError(f"{name}: {damping!r} is not a list of damping ratios") from None
+        raise InputError(f"given {damping!r}; allowed a list of damping ratios",
+                         param="damping", value=damping, where=name) from None
     if z.ndim != 1 or z.size == 0:
-        raise InputError(f"{name}: give a 1-D list of at least one ratio, got shape {z.shape}")
+        raise InputError(f"give a 1-D list of at least one ratio, got shape {z.shape}",
+                         param="damping", where=name)
     bad = ~(np.isfinite(z) & (z >= 0) & (z < 1))
     if bad.any():
-        raise InputError(f"{name}: ratio {z[bad][0]:g} is outside [0, 1) "
-                         "(the Python API takes ratios: 0.05 for 5 %)")
+        raise InputError(f"ratio {z[bad][0]:g} is outside [0, 1) (the Python API takes "
+                         "ratios: 0.05 for 5 %)", param="damping", value=float(z[bad][0]),
+                         where=name)
     return z
 
 
