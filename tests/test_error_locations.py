@@ -19,34 +19,15 @@ import numpy as np
 import pytest
 
 from groundshake._errors import InputError, RecordError, ScenarioError
-from groundshake.cli import main
 from groundshake.processing import ProcessingSettings, correct_record
 from groundshake.records._record import Record
 from groundshake.records._write import write_record
 from groundshake.scenario import load_scenario, parse_scenario_text
 
+from _blocks import concrete_block
 from _strong_motion import DATA
 
-BLOCK = """\
-title = "Error locations (invented block)"
-
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-
-[[parts]]
-name = "pad"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [2.0, 2.0, 1.0]
-
-[mesh]
-element_size = 1.0
-
-[support]
-kind = "fixed"
-"""
+BLOCK = 'title = "Error locations (invented block)"\n' + concrete_block()
 
 
 def _line(text: str, marker: str) -> int:
@@ -62,11 +43,13 @@ def record(tmp_path):
     return path
 
 
-def _run_cli(capsys, argv):
-    status = main(argv)
-    err = capsys.readouterr().err
-    lines = [ln for ln in err.splitlines() if ln.strip()]
-    return status, lines, err
+def _one_line_refusal(run_cli, *argv) -> str:
+    """Run the command line; check the bad-input contract (status 2, one line on stderr,
+    no traceback) and return that line."""
+    res = run_cli(*argv)
+    lines = [ln for ln in res.err.splitlines() if ln.strip()]
+    assert res.status == 2 and len(lines) == 1 and "Traceback" not in res.err, res.err
+    return lines[0]
 
 
 # -- the error itself ------------------------------------------------------------------------
@@ -104,7 +87,7 @@ def test_pickling_keeps_param_value_and_location(err):
 
 # -- the same library error via Python, the scenario and the command line ----------------------
 
-def test_corner_above_nyquist_named_by_parameter_key_and_option(record, tmp_path, capsys):
+def test_corner_above_nyquist_named_by_parameter_key_and_option(record, tmp_path, run_cli):
     rec = Record(acc=np.sin(np.arange(2000) / 5.0), dt=0.01)
     # Python: the parameter (sampling theorem: Nyquist 1/(2·0.01 s) = 50 Hz)
     with pytest.raises(InputError, match=r"^lowpass_hz: low-pass corner 80 Hz must be below "
@@ -130,11 +113,10 @@ def test_corner_above_nyquist_named_by_parameter_key_and_option(record, tmp_path
         "processing.lowpass_hz", _line(text, "lowpass_hz"), "lowpass_hz")
 
     # command line: the option, one line, status 2, no traceback
-    status, lines, err = _run_cli(capsys, ["info", str(record), "--lowpass", "80"])
-    assert status == 2 and len(lines) == 1 and "Traceback" not in err
-    assert lines[0].startswith("groundshake: error: --lowpass: low-pass corner 80 Hz must be "
-                               "below 0.95 x the Nyquist frequency 50 Hz"), lines[0]
-    assert str(record) in lines[0]                           # and the record it is about
+    line = _one_line_refusal(run_cli, "info", record, "--lowpass", "80")
+    assert line.startswith("groundshake: error: --lowpass: low-pass corner 80 Hz must be "
+                           "below 0.95 x the Nyquist frequency 50 Hz"), line
+    assert str(record) in line                               # and the record it is about
 
 
 @pytest.mark.parametrize("argv, option, allowed", [
@@ -144,12 +126,11 @@ def test_corner_above_nyquist_named_by_parameter_key_and_option(record, tmp_path
     (["--pre-event", "0"], "--pre-event", "allowed a pre-event length > 0 s"),
     (["--highpass", "1", "--lowpass", "0.5"], "--lowpass", "above the high-pass corner 1"),
 ])
-def test_settings_errors_name_the_option(record, capsys, argv, option, allowed):
-    status, lines, err = _run_cli(capsys, ["info", str(record), *argv])
-    assert status == 2 and len(lines) == 1 and "Traceback" not in err
-    assert lines[0].startswith(f"groundshake: error: {option}: given "), lines[0]
-    assert allowed in lines[0]
-    assert "processing." not in lines[0]                     # no scenario key on the command line
+def test_settings_errors_name_the_option(record, run_cli, argv, option, allowed):
+    line = _one_line_refusal(run_cli, "info", record, *argv)
+    assert line.startswith(f"groundshake: error: {option}: given "), line
+    assert allowed in line
+    assert "processing." not in line                         # no scenario key on the command line
 
 
 def test_settings_error_in_python_names_the_setting():
@@ -161,7 +142,7 @@ def test_settings_error_in_python_names_the_setting():
 
 # -- a wrong trace names the scenario file and key --------------------------------------------
 
-def test_wrong_trace_names_scenario_file_line_and_key(tmp_path, capsys):
+def test_wrong_trace_names_scenario_file_line_and_key(tmp_path, run_cli):
     from groundshake.pipeline import build_motion
 
     shutil.copy(DATA / "dmg_nc71734741_CE89146.V2", tmp_path / "station.V2")
@@ -185,15 +166,14 @@ def test_wrong_trace_names_scenario_file_line_and_key(tmp_path, capsys):
         with pytest.raises(ScenarioError, match=rf"^mem\.toml:{line}: motion\.x\.trace: given 5"):
             build_motion(s)
     # the command line: one line, status 2, no traceback
-    status, lines, err = _run_cli(capsys, ["run", str(scen), "-o", str(tmp_path / "out"),
-                                           "--quiet", "--no-report"])
-    assert status == 2 and len(lines) == 1 and "Traceback" not in err, err
-    assert f"{scen}:{line}: motion.x.trace: given 5; allowed 0..2" in lines[0]
+    refusal = _one_line_refusal(run_cli, "run", scen, "-o", tmp_path / "out", "--quiet",
+                                "--no-report")
+    assert f"{scen}:{line}: motion.x.trace: given 5; allowed 0..2" in refusal
 
 
 # -- model errors met during a command name the scenario key ------------------------------------
 
-def test_overlapping_footprints_name_scenario_file_line_and_key(tmp_path, capsys):
+def test_overlapping_footprints_name_scenario_file_line_and_key(tmp_path, run_cli):
     def equipment(name, mount):
         return (f'\n[[equipment]]\nname = "{name}"\nmass = 100.0\nmount = {mount}\n'
                 'footprint = [1.0, 1.0]\ncg_height = 0.3\nanchors = [[-0.4, -0.4]]\n')
@@ -203,16 +183,14 @@ def test_overlapping_footprints_name_scenario_file_line_and_key(tmp_path, capsys
     scen = tmp_path / "case.toml"
     scen.write_text(text, encoding="utf-8")
     line = _line(text, 'name = "b"') - 1                     # the second [[equipment]] header
-    status, lines, err = _run_cli(capsys, ["modes", str(scen), "--quiet"])
-    assert status == 2 and len(lines) == 1 and "Traceback" not in err, err
-    assert lines[0].startswith(f"groundshake: error: {scen}:{line}: equipment[1]: footprint of "
-                               "'b' overlaps"), lines[0]
+    refusal = _one_line_refusal(run_cli, "modes", scen, "--quiet")
+    assert refusal.startswith(f"groundshake: error: {scen}:{line}: equipment[1]: footprint of "
+                              "'b' overlaps"), refusal
 
 
-def test_spectrum_command_names_the_option(record, capsys):
-    status, lines, err = _run_cli(capsys, ["spectrum", str(record), "--lowpass", "80"])
-    assert status == 2 and len(lines) == 1 and "Traceback" not in err
-    assert lines[0].startswith("groundshake: error: --lowpass: low-pass corner 80 Hz"), lines[0]
+def test_spectrum_command_names_the_option(record, run_cli):
+    line = _one_line_refusal(run_cli, "spectrum", record, "--lowpass", "80")
+    assert line.startswith("groundshake: error: --lowpass: low-pass corner 80 Hz"), line
 
 
 def test_option_table_is_read_from_the_parser():
