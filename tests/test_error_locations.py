@@ -12,6 +12,7 @@ dmg_nc71734741_CE89146.V2 ("Chan 1: 360 Deg", "Chan 2: Up", "Chan 3: 90 Deg", so
 from __future__ import annotations
 
 import pickle
+import re
 import shutil
 import warnings
 
@@ -165,6 +166,14 @@ def test_wrong_trace_names_scenario_file_line_and_key(tmp_path, run_cli):
         warnings.simplefilter("ignore")
         with pytest.raises(ScenarioError, match=rf"^mem\.toml:{line}: motion\.x\.trace: given 5"):
             build_motion(s)
+    # a suite's copy with another motion: that motion has no line in the file
+    moved = load_scenario(scen).with_motion(x={"file": str(tmp_path / "station.V2"),
+                                               "trace": 7})
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(ScenarioError, match=rf"^{re.escape(str(scen))}: motion\.x\.trace: "
+                                                r"given 7; allowed 0\.\.2"):
+            build_motion(moved)
     # the command line: one line, status 2, no traceback
     refusal = _one_line_refusal(run_cli, "run", scen, "-o", tmp_path / "out", "--quiet",
                                 "--no-report")

@@ -94,7 +94,11 @@ def replace_motion(scenario: Scenario, components: dict, target, match_target,
     values = {"motion": motion, "analysis": scenario.analysis}
     _check_motion(values, ctx)
     keep = [n for n in scenario.notes if "motion." not in n]
-    return dataclasses.replace(scenario, motion=motion, notes=tuple(keep + ctx.notes))
+    lines = scenario.key_lines                  # the new motion has no lines in the file
+    if lines:
+        lines = {k: v for k, v in lines.items() if not (k and k[0] == "motion")}
+    return dataclasses.replace(scenario, motion=motion, notes=tuple(keep + ctx.notes),
+                               key_lines=lines)
 
 
 class _Keep:
