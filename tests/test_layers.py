@@ -4,7 +4,7 @@ Every import of a groundshake module — at the top of a file or inside a functi
 from the source with the standard library's ``ast`` and checked against the layer order:
 
     records → processing → spectra → matching;  scenario;  model → dynamics → results;
-    pipeline (the application layer);  report;  suite;  cli
+    plots (figures);  pipeline (the application layer);  report;  suite;  cli
 
 A module may import its own stage, the shared base modules and the stages below it. Today's
 exceptions are listed by name below, as an allow-list that may only shrink: a new violation
@@ -37,14 +37,18 @@ ALLOWED: dict[str, set[str]] = {
     "dynamics": {"model", "scenario", "spectra"},
     "results": {"dynamics", "model", "scenario", "records", "processing", "spectra",
                 "matching"},
+    # figures of every stage: may read the data stages' objects, never the other way round
+    "plots": {"records", "processing", "spectra", "matching", "scenario", "model", "dynamics",
+              "results"},
     "pipeline": {"records", "processing", "spectra", "matching", "scenario", "model",
-                 "dynamics", "results", "report"},
-    # the report reads a run's output folder through the output contract only
-    "report": set(),
+                 "dynamics", "results", "plots", "report"},
+    # the report reads a run's output folder through the output contract only, and draws
+    # what it read through plots
+    "report": {"plots"},
     # many records through one model, over the application layer
     "suite": {"pipeline"},
     "cli": {"records", "processing", "spectra", "matching", "scenario", "model",
-            "dynamics", "results", "pipeline", "report", "suite"},
+            "dynamics", "results", "plots", "pipeline", "report", "suite"},
 }
 ALLOWED["cli"] |= {"cli"}
 
@@ -270,3 +274,60 @@ def test_no_import_error_fallback_around_own_modules():
     # design rule (issue 15): a failed import of the package's own code is an error, never a
     # silent fallback; optional third-party packages (pyamg, distributed) may fall back
     assert import_fallbacks() == sorted(IMPORT_FALLBACK_ALLOW)
+
+
+# ----------------------------------------------------------------------------- matplotlib
+PLOTTING = ("matplotlib", "mpl_toolkits")
+
+
+def plotting_imports() -> dict[str, list[tuple[str, bool]]]:
+    """Module -> [(imported plotting module, at module level?)] for every import of
+    matplotlib or mpl_toolkits anywhere in its source (function-level imports included)."""
+    found: dict[str, list[tuple[str, bool]]] = {}
+    for path in sorted(PACKAGE.rglob("*.py")):
+        tree = ast.parse(path.read_text(encoding="utf-8"), str(path))
+        top = {id(n) for n in tree.body}
+        for node in ast.walk(tree):
+            if isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom) and node.level == 0:
+                names = [node.module or ""]
+            else:
+                continue
+            for n in names:
+                if n.split(".")[0] in PLOTTING:
+                    found.setdefault(module_name(path), []).append((n, id(node) in top))
+    return found
+
+
+def test_only_plots_imports_matplotlib():
+    # design rule (docs/architecture.md): one plotting package; the numerical stages
+    # (records, processing, spectra, matching, scenario, model, dynamics, results), the
+    # shared modules, the report, the pipeline, the suite and the commands draw through it
+    outside = sorted(m for m in plotting_imports() if stage_of(m) != "plots")
+    assert outside == []
+
+
+def test_plots_imports_matplotlib_lazily():
+    # design rule (docs/architecture.md): matplotlib is imported inside the functions
+    # that draw, so importing a stage (or the report) loads no plotting library
+    eager = sorted(f"{m}: {n}" for m, found in plotting_imports().items()
+                   for n, at_top in found if at_top)
+    assert eager == []
+
+
+def test_importing_the_stages_loads_no_matplotlib():
+    # the same rule, seen from a fresh interpreter (sys.modules, Python language reference
+    # §5, the import system)
+    import subprocess
+    import sys
+
+    stages = sorted(p.name for p in PACKAGE.iterdir()
+                    if (p / "__init__.py").is_file() and p.name != "cli")
+    code = ("import sys\n" + "".join(f"import groundshake.{s}\n" for s in stages)
+            + "print(sorted(m for m in sys.modules if m.split('.')[0] in "
+            + repr(PLOTTING) + "))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         cwd=PACKAGE.parent, check=True,
+                         env={**__import__("os").environ, "PYTHONPATH": str(PACKAGE.parent)})
+    assert out.stdout.strip() == "[]"

@@ -12,7 +12,7 @@ from typing import Any, Callable, Mapping
 import numpy as np
 
 from ..results._schema import DIRECTIONS, SCHEMA_VERSION, iter_values, kind_of
-from . import _figures as F
+from ..plots import to_data_uri
 from ._html import esc, figure, raw
 from ._load import OutputFolder
 from ._units import display_unit, fmt
@@ -116,7 +116,7 @@ class Context:
             fig = make()
             if fig is None:
                 return ""
-            return figure(F.data_uri(fig), caption, fid=fid)
+            return figure(to_data_uri(fig), caption, fid=fid)
         except Exception as e:  # a figure must never sink the report
             self.notes.append(f"The figure '{caption[:60]}' could not be drawn "
                               f"({type(e).__name__}: {e}).")
