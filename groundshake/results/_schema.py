@@ -16,7 +16,7 @@ import re
 from dataclasses import dataclass
 from typing import Any, Iterator, Mapping
 
-__all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPORT_FILE", "FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
+__all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPORT_FILE", "FILES", "SUITE_FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
            "kind_of", "header", "parse_header", "history_label", "HISTORY_BASE",
            "iter_values", "DIRECTIONS"]
 
@@ -37,6 +37,20 @@ FILES: dict[str, str] = {
     "mode_shapes": "mode_shapes.csv",
     "mesh": "mesh.json",
     "report": "report.html",
+}
+
+#: The files of a suite's output folder (``groundshake suite``), by role: ``records`` is the
+#: folder of each set's ``NAME.json``. In suite.json, ``statistics`` is keyed by the path of
+#: each value in a run's summary.json, list positions counted from 0 as in its JSON
+#: (``equipment.NAME.anchors[0].peak_tension``, kind from :func:`kind_of`); bolt numbers
+#: count from 1 as in a run's files (``worst_dc.bolt``, the histories.csv columns), so
+#: ``anchors[0]`` is bolt 1, and every page numbers bolts from 1.
+SUITE_FILES: dict[str, str] = {
+    "suite": "suite.json",
+    "records": "records",
+    "ground_spectra_statistics": "ground_spectra_statistics.csv",
+    "floor_spectra_statistics": "floor_spectra_statistics.csv",
+    "page": "suite.html",
 }
 
 #: The names the application layer and the docs use (derived from FILES).
