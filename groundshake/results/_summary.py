@@ -27,7 +27,7 @@ __all__ = ["RESULTANTS", "Clock", "WorstBolts", "summary_head", "floor_grid", "s
            "equipment_entry", "anchorage_entries", "fp_entry", "base_entry", "base_geometry",
            "contact_entry", "stability_entry", "base_peak_entries", "displacement_peak",
            "stress_peak_entries", "retained_mass", "free_mass_ratio", "assemble",
-           "input_hashes", "provenance", "dense"]
+           "input_hashes", "provenance", "dense", "low_mass_text", "BASE_RESULTANTS"]
 
 #: The six base resultants, in the order of every (6, …) array of them.
 RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
