@@ -18,7 +18,7 @@ from .._components import describe
 from .._inventory import check_not_counts
 from .._record import Record
 from .._units import UNITS, canonical_units
-from ._common import check_samples, resolve_units, to_si, user_units
+from ._common import check_samples, detector, resolve_units, to_si, user_units
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -47,16 +47,14 @@ def _obspy_format_of(path: Path) -> str | None:
     return None
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if one of ObsPy's waveform formats claims the file (never raises)."""
-    try:
-        if Path(path).suffix.lower() in _TEXT_ONLY_SUFFIXES:
-            return False
-        if head.startswith(_PACKED_MAGIC) or head[257:262] == b"ustar":
-            return True
-        return _obspy_format_of(Path(path)) is not None
-    except Exception:
+    if Path(path).suffix.lower() in _TEXT_ONLY_SUFFIXES:
         return False
+    if head.startswith(_PACKED_MAGIC) or head[257:262] == b"ustar":
+        return True
+    return _obspy_format_of(Path(path)) is not None
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None,

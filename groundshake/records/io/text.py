@@ -19,7 +19,8 @@ from ..._errors import RecordError
 from .._record import Record
 from .._units import canonical_units
 from ._common import check_samples as _check_samples
-from ._common import looks_binary, resolve_units as _resolve_units, to_si as _to_si, user_units
+from ._common import detector, is_number as _is_float, looks_binary
+from ._common import resolve_units as _resolve_units, to_si as _to_si, user_units
 
 __all__ = ["FORMAT", "EXTENSIONS", "STEP_TOLERANCE", "is_format", "read"]
 
@@ -34,12 +35,10 @@ _META_RE = re.compile(r"^\s*([A-Za-z][A-Za-z _-]*?)\s*[:=]\s*(.+?)\s*$")
 _BRACKET_RE = re.compile(r"[\[(]\s*([^\])]+?)\s*[\])]")
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for any file whose beginning is text (never raises)."""
-    try:
-        return bool(head.strip()) and not looks_binary(head[:8192])
-    except Exception:
-        return False
+    return bool(head.strip()) and not looks_binary(head[:8192])
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None,
@@ -299,14 +298,6 @@ def _merge_brackets(cells: list[str]) -> list[str]:
         else:
             out.append(c)
     return out
-
-
-def _is_float(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True
 
 
 def _bracket_units(name: str) -> str | None:
