@@ -16,7 +16,7 @@ from groundshake import InputError
 from groundshake.records import read_record
 from groundshake.records.io import HEAD_BYTES, READERS, detect, formats_read, reader
 
-from _strong_motion import DATA
+from _strong_motion import DATA, head, record_files
 
 
 def test_every_reader_follows_the_interface():
@@ -63,6 +63,15 @@ FILES = {  # file -> reader module, per tests/data/strong-motion/SOURCES.md
     "bhrc_usp000jq5p_5522-1.V1": "bhrc",
     "cwb_us1000chhc_1-EAS.dat": "cwb",
 }
+
+
+@pytest.mark.parametrize("module", sorted(set(FILES.values())))
+def test_each_reader_claims_its_files_and_no_other(module):
+    # every real file of the folder (MiniSEED and K-NET ones too): claimed by its own
+    # format's reader only
+    for path in record_files():
+        assert reader(module).is_format(path, head(path)) is (FILES.get(path.name) == module), \
+            path.name
 
 
 @pytest.mark.parametrize("name", sorted(FILES))

@@ -7,7 +7,12 @@ Each reader module ``groundshake.records.io.<name>`` has
 - ``is_format(path, head) -> bool``: decides from the content (``head`` = the first
   8192 bytes) and never raises;
 - ``read(path, *, units=None, dt=None) -> list[Record]``: one Record per channel,
-  ``acc`` in m/s².
+  ``acc`` in m/s², shape (n,). ``path`` is the file (str or path-like); ``units``
+  (str, any spelling :func:`groundshake.records.canonical_units` knows) are the units
+  of the file's values: where the header states units, a check (an error if they
+  differ), else needed; ``dt`` [s] is a check against the step the file states (an
+  error if it differs by more than 1e-6 relative) or, for a one-column text file, the
+  step itself. Each reader's docstring says what it checks them against.
 
 :data:`READERS` is the order they are asked in: strong-motion text formats first,
 ObsPy's formats next, delimited text last. Modules are imported when first asked.
