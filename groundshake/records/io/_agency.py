@@ -18,7 +18,7 @@ from ..._errors import GroundshakeWarning, RecordError
 from .._components import describe
 from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
-from ._common import MIN_SAMPLES, FormatError, head_lines, is_number, read_lines
+from ._common import file_stem, FormatError, head_lines, is_number, MIN_SAMPLES, read_lines
 
 __all__ = ["read_lines", "head_lines", "numbers", "make_record", "units_factor", "warn",
            "volume1_data", "channel_spans", "points_pattern", "check_units", "G10"]
@@ -92,7 +92,7 @@ def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float
     canon = file_units if file_units in UNITS else ("g" if file_units == "g/10" else "m/s2")
     if file_units not in UNITS:
         meta["file_units"] = file_units
-    name = f"{station} {component}".strip() or Path(path).stem
+    name = f"{station} {component}".strip() or file_stem(path)
     return Record(acc=acc, dt=dt, name=name, component=component, source=str(path),
                   units=canon, start_time=start_time, metadata=meta)
 

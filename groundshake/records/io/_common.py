@@ -1,7 +1,8 @@
 """Checks, conversions and parsing pieces shared by the readers of ``groundshake.records.io``.
 
 Every reader uses these for what all formats have in common: a detector that never
-raises (:func:`detector`), the file's lines (:func:`read_lines`, :func:`head_lines`),
+raises (:func:`detector`), the file's content (:func:`read_bytes`, :func:`read_lines`,
+:func:`read_head`, :func:`head_lines`; a gzip-compressed file decompressed),
 numbers in fixed or free layout (:func:`fixed_width`, :func:`free_numbers`), a time
 column's step (:func:`even_step`), units (:func:`header_units`, :func:`to_si`,
 :func:`resolve_units`), the checks of ``dt`` and samples, and the Record in m/s²
@@ -9,10 +10,15 @@ column's step (:func:`even_step`), units (:func:`header_units`, :func:`to_si`,
 """
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import functools
+import gzip
 import math
+import os
+import zlib
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any, Callable, Iterator
 
 import numpy as np
 
@@ -24,7 +30,8 @@ __all__ = ["MIN_SAMPLES", "TIME_TOLERANCE", "PEAK_NAMES", "LENGTH_TO_M", "to_si"
            "resolve_units", "check_samples", "check_dt", "FormatError", "user_units",
            "looks_binary", "fixed_width", "free_numbers", "iso_time", "azimuth_from_code",
            "orientation_metadata", "unique_names", "detector", "read_lines", "head_lines",
-           "is_number", "header_units", "peak_factor", "even_step", "si_record"]
+           "is_number", "header_units", "peak_factor", "even_step", "si_record", "GZIP_MAGIC",
+           "is_gzip", "unpacked", "read_bytes", "read_head", "file_stem"]
 
 #: Fewest samples a record may have.
 MIN_SAMPLES = 16
@@ -313,6 +320,103 @@ def detector(check: Callable[[Path, bytes], Any]) -> Callable[[Path, bytes], boo
     return is_format
 
 
+#: The first two bytes of a gzip stream (RFC 1952).
+GZIP_MAGIC = b"\x1f\x8b"
+
+# content of the gzip-compressed files being read, by absolute path (see unpacked)
+_UNPACKED: contextvars.ContextVar[dict[str, bytes]] = contextvars.ContextVar("unpacked",
+                                                                            default={})
+
+
+def is_gzip(path) -> bool:
+    """True if the file starts like a gzip stream (False also if it cannot be opened)."""
+    try:
+        with open(path, "rb") as fh:
+            return fh.read(2) == GZIP_MAGIC
+    except OSError:
+        return False
+
+
+def _gunzip(raw: bytes, path) -> bytes:
+    try:
+        return gzip.decompress(raw)
+    except (OSError, EOFError, zlib.error) as e:
+        raise RecordError(f"{path}: gzip-compressed, but it does not decompress ({e})") from None
+
+
+@contextlib.contextmanager
+def unpacked(path) -> Iterator[None]:
+    """Within the block, a gzip-compressed ``path`` is read decompressed once, from memory.
+
+    :func:`read_bytes`, :func:`read_lines` and :func:`read_head` of ``path`` give the
+    decompressed content; a file that is not gzip-compressed is read as it is.
+
+    Raises
+    ------
+    RecordError
+        A gzip file that does not decompress.
+    """
+    key = os.path.abspath(path)
+    if key in _UNPACKED.get() or not is_gzip(path):
+        yield
+        return
+    content = _gunzip(Path(path).read_bytes(), path)
+    token = _UNPACKED.set({**_UNPACKED.get(), key: content})
+    try:
+        yield
+    finally:
+        _UNPACKED.reset(token)
+
+
+def read_bytes(path) -> bytes:
+    """The file's content; a gzip-compressed file's decompressed.
+
+    Raises
+    ------
+    OSError
+        The file cannot be read.
+    RecordError
+        A gzip file that does not decompress.
+    """
+    content = _UNPACKED.get().get(os.path.abspath(path))
+    if content is not None:
+        return content
+    raw = Path(path).read_bytes()
+    return _gunzip(raw, path) if raw.startswith(GZIP_MAGIC) else raw
+
+
+def read_head(path, size: int) -> bytes:
+    """The first ``size`` bytes of the file's content, decompressed if gzip.
+
+    Raises
+    ------
+    OSError
+        The file cannot be opened.
+    RecordError
+        A gzip file whose beginning does not decompress.
+    """
+    content = _UNPACKED.get().get(os.path.abspath(path))
+    if content is not None:
+        return content[:size]
+    with open(path, "rb") as fh:
+        head = fh.read(size)
+    if not head.startswith(GZIP_MAGIC):
+        return head
+    try:
+        with gzip.open(path, "rb") as fh:
+            return fh.read(size)
+    except (OSError, EOFError, zlib.error) as e:
+        raise RecordError(f"{path}: gzip-compressed, but it does not decompress ({e})") from None
+
+
+def file_stem(path) -> str:
+    """The file's name without its extension, and without ``.gz`` before that."""
+    name = Path(path).name
+    if name.lower().endswith(".gz"):
+        name = name[:-3]
+    return Path(name).stem
+
+
 def read_lines(path, *, encoding: str | None = None, fallback: str = "latin-1") -> list[str]:
     """The file's lines, line ends removed.
 
@@ -330,7 +434,7 @@ def read_lines(path, *, encoding: str | None = None, fallback: str = "latin-1") 
     -------
     list of str
     """
-    raw = Path(path).read_bytes()
+    raw = read_bytes(path)
     if encoding is not None:
         return raw.decode(encoding).splitlines()
     try:

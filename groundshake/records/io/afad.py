@@ -14,7 +14,7 @@ from pathlib import Path
 import numpy as np
 
 from ._agency import make_record, numbers, units_factor, warn
-from ._common import FormatError, check_dt, detector, head_lines, is_number, read_lines
+from ._common import check_dt, detector, file_stem, FormatError, head_lines, is_number, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -142,7 +142,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
              "are read")
         table = table[:n]
     station = get("STATION ID")[0].split()[0] if any(k.startswith("STATION ID") for k in header) \
-        else path.stem
+        else file_stem(path)
     start = _iso(header["RECORD TIME"][0]) if "RECORD TIME" in header else ""
     meta: dict = {}
     for key, out in (("PLACE", "station_name"), ("EARTHQUAKE DATE", "event_time"),

@@ -14,7 +14,7 @@ import re
 from pathlib import Path
 
 from ._agency import channel_spans, make_record, points_pattern, units_factor, volume1_data
-from ._common import FormatError, check_dt, detector, head_lines, read_lines
+from ._common import check_dt, detector, file_stem, FormatError, head_lines, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -97,7 +97,7 @@ def _channel(lines, s, end, path, units, dt):
     values, _ = volume1_data(lines, uline + 1, end, n, fmt=FORMAT, path=path, width=13)
 
     meta: dict = {}
-    station = path.stem
+    station = file_stem(path)
     for k in range(s, min(end, s + 14)):
         ln = lines[k]
         if re.search(r"\bStation\b", ln, re.I) and not ln.upper().lstrip().startswith("STATION NO"):

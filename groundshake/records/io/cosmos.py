@@ -25,9 +25,9 @@ import numpy as np
 from ..._errors import GroundshakeWarning, RecordError
 from .._record import Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, detector, fixed_width, FormatError, head_lines,
-                      iso_time, orientation_metadata, read_lines, resolve_units, si_record,
-                      unique_names, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      head_lines, iso_time, orientation_metadata, read_lines, resolve_units,
+                      si_record, unique_names, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -210,7 +210,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                 meta["network"] = ms.group(3)
                 meta.update(orientation_metadata(ms.group(2)) if not component else {})
         meta.setdefault("channel", component)
-        meta["station"] = station or path.stem
+        meta["station"] = station or file_stem(path)
         if len(ch["text"]) > 4:
             meta["station_name"] = re.sub(r"^.*?Code:\s*\S+\s*", "", ch["text"][4]).strip()
         if len(ch["text"]) > 1:

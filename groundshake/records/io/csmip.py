@@ -21,9 +21,10 @@ from pathlib import Path
 import numpy as np
 
 from .._record import STANDARD_GRAVITY, Record
-from ._common import (check_dt, check_samples, detector, fixed_width, FormatError, free_numbers,
-                      head_lines, header_units, iso_time, orientation_metadata, PEAK_NAMES,
-                      peak_factor, read_lines, resolve_units, si_record, unique_names, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      free_numbers, head_lines, header_units, iso_time, orientation_metadata,
+                      peak_factor, PEAK_NAMES, read_lines, resolve_units, si_record, unique_names,
+                      user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "is_volume3", "read", "read_csmip_v2_series",
            "read_csmip_spectra", "CsmipSeries", "PublishedSpectrum"]
@@ -334,7 +335,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         check_samples(acc.values, label)
         meta, component, start = _meta(ch, path)
         records.append(si_record(acc.values, units=rec_units, dt=acc.dt,
-                                 station=meta.get("station", path.stem), component=component,
+                                 station=meta.get("station", file_stem(path)), component=component,
                                  source=where, label=label, start_time=start, metadata=meta))
     return unique_names(records)
 

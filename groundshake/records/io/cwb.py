@@ -16,7 +16,8 @@ from pathlib import Path
 import numpy as np
 
 from ._agency import make_record, numbers, units_factor
-from ._common import FormatError, check_dt, detector, even_step, head_lines, is_number, read_lines
+from ._common import (check_dt, detector, even_step, file_stem, FormatError, head_lines, is_number,
+                      read_lines)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -126,7 +127,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
             raise FormatError(FORMAT, path, f"{table.shape[0]} data rows; #RecordLength "
                               f"{length[0]} s at {1 / step:g} Hz needs {need}", line=length[1])
 
-    station = (get("stationcode") or (path.stem, 0))[0].split()[0]
+    station = (get("stationcode") or (file_stem(path), 0))[0].split()[0]
     meta: dict = {}
     sname = get("stationname")
     if sname:

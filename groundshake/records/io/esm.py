@@ -13,9 +13,9 @@ import re
 from pathlib import Path
 
 from .._record import Record
-from ._common import (check_dt, check_samples, detector, FormatError, free_numbers, header_units,
-                      iso_time, orientation_metadata, read_lines, resolve_units, si_record,
-                      user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, FormatError, free_numbers,
+                      header_units, iso_time, orientation_metadata, read_lines, resolve_units,
+                      si_record, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -131,7 +131,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     check_samples(data, label)
 
     stream = values.get("STREAM", "")
-    station = values.get("STATION_CODE", "") or path.stem
+    station = values.get("STATION_CODE", "") or file_stem(path)
     meta: dict = {"format": FORMAT, "station": station, "network": values.get("NETWORK", ""),
                   "location": values.get("LOCATION", ""), "channel": stream,
                   "station_name": values.get("STATION_NAME", "")}

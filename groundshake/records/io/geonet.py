@@ -14,9 +14,9 @@ import re
 from pathlib import Path
 
 from .._record import Record
-from ._common import (check_dt, check_samples, detector, fixed_width, FormatError, head_lines,
-                      header_units, orientation_metadata, PEAK_NAMES, peak_factor, read_lines,
-                      resolve_units, si_record, unique_names, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      head_lines, header_units, orientation_metadata, peak_factor, PEAK_NAMES,
+                      read_lines, resolve_units, si_record, unique_names, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -140,7 +140,7 @@ def _component(lines, i, path, given, dt):
                           extra[0] + 1, lines[extra[0]])
     meta: dict = {"format": FORMAT}
     ms = _SITE.match(text[1])
-    station = ms.group(1) if ms else path.stem
+    station = ms.group(1) if ms else file_stem(path)
     meta["station"] = station
     meta["station_name"] = text[2].strip()
     mc = next((_COMP.match(t) for t in text if _COMP.match(t)), None)

@@ -16,9 +16,9 @@ import re
 from pathlib import Path
 
 from .._record import Record
-from ._common import (check_dt, check_samples, detector, FormatError, free_numbers, head_lines,
-                      header_units, orientation_metadata, read_lines, resolve_units, si_record,
-                      user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, FormatError, free_numbers,
+                      head_lines, header_units, orientation_metadata, read_lines, resolve_units,
+                      si_record, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -115,5 +115,5 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         meta["station"] = parts[0]
     meta["channel"] = component
     meta.update(orientation_metadata(component))
-    return [si_record(data, units=rec_units, dt=step, station=meta.get("station", path.stem),
+    return [si_record(data, units=rec_units, dt=step, station=meta.get("station", file_stem(path)),
                       component=component, source=where, label=where, metadata=meta)]

@@ -16,7 +16,7 @@ from pathlib import Path
 from .._record import STANDARD_GRAVITY
 from ._agency import (channel_spans, make_record, numbers, points_pattern, units_factor,
                       volume1_data)
-from ._common import FormatError, check_dt, detector, even_step, head_lines, read_lines
+from ._common import check_dt, detector, even_step, file_stem, FormatError, head_lines, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -96,7 +96,7 @@ def _channel(lines, s, end, path, units, dt):
     step = check_dt(dt, step, path, f"the {FORMAT} header",
                     fmt=FORMAT, path=path)
     meta: dict = {"channel_number": int(_CHAN.match(lines[s + 6]).group(1))}
-    station = lines[s + 5].split()[0] if lines[s + 5].split() else path.stem
+    station = lines[s + 5].split()[0] if lines[s + 5].split() else file_stem(path)
     meta["station_line"] = lines[s + 5].strip()
     mm = _MAX.search(text)
     if mm:

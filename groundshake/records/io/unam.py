@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from ._agency import check_units, make_record, numbers, units_factor, warn
-from ._common import FormatError, check_dt, detector, head_lines, read_lines
+from ._common import check_dt, detector, file_stem, FormatError, head_lines, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -143,7 +143,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         warn(f"{path}: {table.shape[0]} data rows but NUM. TOTAL DE MUESTRAS says {need}; "
              f"the first {need} are read")
 
-    station = (find("CLAVE DE LA ESTACION") or [(path.stem, 0)])[0][0].split()[0]
+    station = (find("CLAVE DE LA ESTACION") or [(file_stem(path), 0)])[0][0].split()[0]
     meta: dict = {}
     name = find("NOMBRE DE LA ESTACION")
     if name:

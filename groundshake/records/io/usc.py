@@ -14,8 +14,8 @@ import re
 from pathlib import Path
 
 from ._agency import make_record, numbers, units_factor
-from ._common import (FormatError, LENGTH_TO_M, PEAK_NAMES, check_dt, detector, fixed_width,
-                      head_lines, read_lines)
+from ._common import (check_dt, detector, fixed_width, FormatError, head_lines, LENGTH_TO_M,
+                      PEAK_NAMES, read_lines)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 

@@ -15,8 +15,9 @@ import re
 from pathlib import Path
 
 from .._record import Record
-from ._common import (check_dt, check_samples, detector, fixed_width, FormatError, head_lines,
-                      orientation_metadata, read_lines, resolve_units, si_record, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      head_lines, orientation_metadata, read_lines, resolve_units, si_record,
+                      user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -104,7 +105,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     check_samples(data, where)
 
     meta: dict = {"format": FORMAT, "data_kind": lines[0].strip()}
-    station = lines[2].strip() or path.stem
+    station = lines[2].strip() or file_stem(path)
     meta["station"] = station
     ms = _STATION.search(lines[5])
     if ms:
