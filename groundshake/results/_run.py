@@ -581,8 +581,7 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     pr = _get(fs, "periods")
     periods = np.geomspace(float(_get(pr, "min", 0.02)), float(_get(pr, "max", 5.0)),
                            int(_get(pr, "count", 120)))
-    damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
-    frac = float(_get(fs, "broadening_percent", 15.0)) / 100.0
+    damp, frac = np.asarray(fs.damping_ratios, dtype=float), fs.broadening_ratio
     with Progress("spectra", total=None, enabled=progress):
         gsp = response_spectrum(ag, dt, periods, damp)
         ground_spectra = {"periods": np.asarray(gsp.periods), "damping": damp,

@@ -428,7 +428,7 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     pr = _get(fs, "periods")
     periods = np.geomspace(float(_get(pr, "min", 0.02)), float(_get(pr, "max", 5.0)),
                            int(_get(pr, "count", 120)))
-    damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
+    damp = np.asarray(fs.damping_ratios, dtype=float)
     gpsa = np.zeros((3, damp.size, periods.size))
     for j in range(3):
         if targets[j] is None:
