@@ -20,11 +20,12 @@ from .._errors import ScenarioError
 from ..linalg import check_memory
 from ..scenario import Scenario
 from ._assembly import assemble, element_keys
-from ._base import base_cones, base_face, base_reactions, place_support, support_matrices
+from ._base import (BaseFace, SupportMatrices, base_cones, base_face, base_reactions,
+                    place_support, support_matrices)
 from ._elements import brick_matrices
-from ._equipment import equipment_matrices, place_mounts
+from ._equipment import EquipmentMatrices, equipment_matrices, place_mounts
 from ._inertia import ground_load, inertia_reaction, influence
-from ._links import Links
+from ._links import Links, Reduction
 from ._mesh import Box, count_grid, mesh_boxes
 from ._recovery import surface_stress_points
 from ._sensors import place_sensors
@@ -97,6 +98,32 @@ def _grid(scenario: Scenario, check_memory_first: bool) -> _Grid:
     return _Grid(boxes, mesh, key_grid, mats, kmat, Kn, Mn, materials)
 
 
+def _reduced_matrices(grid: _Grid, red: Reduction, soil: SupportMatrices,
+                      eq: EquipmentMatrices):
+    """K and M (n, n) sparse: the grid's reduced, the soil's springs and the equipment's
+    masses and springs added; the discrete dashpots (n, n) or None (no master DOFs)."""
+    K, M = red.reduce(grid.Kn), red.reduce(grid.Mn)
+    if soil.K_bed is not None:
+        K = K + soil.K_bed
+    dash = None
+    if red.n_extra:
+        K = sp.csr_matrix(K + red.extra(soil.Kx + eq.Kx))
+        M = sp.csr_matrix(M + red.extra(eq.Mx))
+        dash = red.extra(soil.Cx + eq.Cx)
+    K.sort_indices()
+    M.sort_indices()
+    return K, M, dash
+
+
+def _stress_points(grid: _Grid, red: Reduction, face: BaseFace):
+    """The surface stress points, nodes held by the base (1) or a mount (2) marked."""
+    held = red.status.reshape(-1, 3).max(axis=1)            # 1 fixed, 2 slaved
+    constraint = np.where(held > 0, 2, 0)
+    constraint[face.nodes[held[face.nodes] > 0]] = 1          # fixed or rigid base
+    return surface_stress_points(grid.mesh, grid.key_grid, grid.mats, grid.kmat,
+                                 constrained=constraint)
+
+
 def as_scenario(scenario: Scenario | dict) -> Scenario:
     """A :class:`~groundshake.scenario.Scenario` as it is, or one validated from a dict of
     the scenario's keys (ScenarioError as for a scenario file)."""
@@ -140,24 +167,13 @@ def build_model(scenario: Scenario | dict, *,
     mounts = place_mounts(mesh, scenario.equipment, links)
     red = links.reduce()
 
-    # stiffness and mass: the grid's, the soil's springs, the equipment's
     soil = support_matrices(support, face, red)
     eq = equipment_matrices(mounts, ratio, red)
-    K, M = red.reduce(grid.Kn), red.reduce(grid.Mn)
-    if soil.K_bed is not None:
-        K = K + soil.K_bed
-    dash = None
-    if red.n_extra:
-        K = sp.csr_matrix(K + red.extra(soil.Kx + eq.Kx))
-        M = sp.csr_matrix(M + red.extra(eq.Mx))
-        dash = red.extra(soil.Cx + eq.Cx)
-    stiff_parts = ([(None, soil.stiffness)] if soil.stiffness is not None else []) + eq.parts
-    K.sort_indices()
-    M.sort_indices()
+    K, M, dash = _reduced_matrices(grid, red, soil, eq)
 
     # the ground's load, the masses, the reactions on the support
-    iota = influence(red, ([] if support.master is None else [support.master])
-                     + [mt.master for mt in mounts]
+    rigid_base = [] if support.master is None else [support.master]
+    iota = influence(red, rigid_base + [mt.master for mt in mounts]
                      + [mt.cg_master for mt in mounts if mt.cg_master is not None])
     gl = ground_load(M, grid.Mn, iota, red, fixed=kind == "fixed", mass_kind=scenario.mesh.mass)
     if gl.note:
@@ -166,19 +182,13 @@ def build_model(scenario: Scenario | dict, *,
     weight = G_STANDARD * (float(grid.Mn.sum() / 3.0) + sum(e.mass for e in equipment))
     reaction = base_reactions(support, face, red, soil, grid.Kn, grid.Mn, mesh)
     inertia = inertia_reaction(
-        M, gl.load, red, nodes, face.centre,
-        [] if support.master is None else [support.master],
+        M, gl.load, red, nodes, face.centre, rigid_base,
         [(mt.master, mt.point, True) for mt in mounts]
         + [(mt.cg_master, item.cg, False) for mt, item in zip(mounts, equipment)
            if mt.cg_master is not None],
         reaction if kind == "fixed" else None)
 
-    # stress recovery points; nodes held by the base or a mount are marked
-    held = red.status.reshape(-1, 3).max(axis=1)            # 1 fixed, 2 slaved
-    constraint = np.where(held > 0, 2, 0)
-    constraint[face.nodes[held[face.nodes] > 0]] = 1          # fixed or rigid base
-    stress_points = surface_stress_points(mesh, grid.key_grid, grid.mats, grid.kmat,
-                                          constrained=constraint)
+    stress_points = _stress_points(grid, red, face)
     cone_model = rotation_dofs = None
     if kind == "soil":
         notes.extend(support.impedance.notes)
@@ -197,7 +207,9 @@ def build_model(scenario: Scenario | dict, *,
         part_names=tuple(b.name for b in grid.boxes), materials=grid.materials,
         node_map=red.P, impedance=support.impedance,
         solver=solver or scenario.analysis.solver or "auto",
-        cutoff_hz=scenario.analysis.cutoff_hz, _stiff_parts=tuple(stiff_parts),
+        cutoff_hz=scenario.analysis.cutoff_hz,
+        _stiff_parts=tuple(([(None, soil.stiffness)] if soil.stiffness is not None else [])
+                           + eq.parts),
         _dashpots=dash, _radiation=soil.radiation, notes=tuple(notes), mesh=mesh,
         inertia_reaction=inertia, _radiation_lowrank=soil.lowrank,
         _equipment_mass=red.extra(eq.M_flexible) if red.n_extra else None,

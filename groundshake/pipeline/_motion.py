@@ -73,7 +73,8 @@ def build_motion(scenario: Scenario | dict) -> Motion:
                 used[d], matching[d] = match_record_to_target(
                     used[d], str(motion.target), base_dir=scenario.base_dir)
         if "z" in used:
-            notes.append("motion.z: not matched (the target is a horizontal spectrum); used as corrected")
+            notes.append("motion.z: not matched (the target is a horizontal spectrum); "
+                         "used as corrected")
     dts = {d: r.dt for d, r in used.items()}
     dt = min(dts.values())
     if max(dts.values()) - dt > 1e-9 * dt:
