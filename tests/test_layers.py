@@ -3,7 +3,7 @@
 Every import of a groundshake module — at the top of a file or inside a function — is read
 from the source with the standard library's ``ast`` and checked against the layer order:
 
-    records → processing → spectra → matching;  scenario;  model → dynamics → results;
+    records → processing → spectra → matching;  scenario;  linalg → model → dynamics → results;
     plots (figures);  pipeline (the application layer);  report;  suite;  cli
 
 A module may import its own stage, the shared base modules and the stages below it. Today's
@@ -29,25 +29,27 @@ BASE = {"_errors", "_atomic", "_cautions", "_constants", "_progress", "_plausibl
 # Stage -> the stages it may import (besides itself and BASE).
 ALLOWED: dict[str, set[str]] = {
     "records": set(),
+    # sparse linear algebra (factorizations, mass solves, memory estimate) under the model
+    "linalg": set(),
     "processing": {"records"},
     "spectra": {"records", "processing"},
     "matching": {"records", "processing", "spectra"},
     "scenario": {"records", "processing", "spectra", "matching"},
-    "model": {"scenario"},
-    "dynamics": {"model", "scenario", "spectra"},
+    "model": {"scenario", "linalg"},
+    "dynamics": {"model", "scenario", "spectra", "linalg"},
     "results": {"dynamics", "model", "scenario", "records", "processing", "spectra",
-                "matching"},
+                "matching", "linalg"},
     # figures of every stage: may read the data stages' objects, never the other way round
-    "plots": {"records", "processing", "spectra", "matching", "scenario", "model", "dynamics",
-              "results"},
-    "pipeline": {"records", "processing", "spectra", "matching", "scenario", "model",
-                 "dynamics", "results", "plots", "report"},
+    "plots": {"records", "processing", "spectra", "matching", "scenario", "linalg", "model",
+              "dynamics", "results"},
+    "pipeline": {"records", "processing", "spectra", "matching", "scenario", "linalg",
+                 "model", "dynamics", "results", "plots", "report"},
     # the report reads a run's output folder through the output contract only, and draws
     # what it read through plots
     "report": {"plots"},
     # many records through one model, over the application layer
     "suite": {"pipeline"},
-    "cli": {"records", "processing", "spectra", "matching", "scenario", "model",
+    "cli": {"records", "processing", "spectra", "matching", "scenario", "linalg", "model",
             "dynamics", "results", "plots", "pipeline", "report", "suite"},
 }
 ALLOWED["cli"] |= {"cli"}

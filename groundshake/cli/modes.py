@@ -16,7 +16,7 @@ __all__ = ["register", "cmd_modes"]
 def cmd_modes(args) -> int:
     from ..dynamics import compute_modes
     from ..scenario import load_scenario
-    from ..model._build import build_model
+    from ..model import build_model
 
     scenario = load_scenario(args.scenario)
     n_modes = args.modes if args.modes is not None else scenario.analysis.modes

@@ -17,7 +17,7 @@ from ..scenario import Scenario
 from ..spectra import parse_target
 from .._progress import Progress
 from ..dynamics._coupled import coupled_response
-from ..dynamics._damping import damping_matrix, modal_damping_matrix
+from ..dynamics._damping import damping_matrix, modal_damping_matrix, rayleigh_coefficients
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modes import compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
@@ -151,15 +151,16 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             load = getattr(model, "ground_load", None)
             if load is None:
                 load = model.M @ model.influence
-            r = coupled_response(model.K, model.M, damping_matrix(model, modes=modes), shapes,
-                                 residual, load, ag, dt,
+            rayleigh = rayleigh_coefficients(model, modes=modes)
+            r = coupled_response(model.K, model.M, damping_matrix(model, rayleigh=rayleigh),
+                                 shapes, residual, load, ag, dt,
                                  damping_update=model.damping_update()
                                  if hasattr(model, "damping_update") else None)
             info["modal_damping"] = "whole damping matrix on the reduced basis"
             info["reduced_basis"] = {"modes": int(shapes.shape[1]),
                                      "missing_mass_vectors": int(r.shapes.shape[1]
                                                                  - shapes.shape[1])}
-            info["rayleigh_hz"] = getattr(model, "rayleigh_used_hz", None)
+            info["rayleigh_hz"] = rayleigh.frequencies_hz
         elif getattr(model, "is_classically_damped", True):
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
@@ -190,7 +191,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
 
     if modes is None and model.rayleigh_hz is None:   # the Rayleigh anchors need the modes
         modes = compute_modes(model, n_modes=min(12, model.n_dof - 1), warn=False)
-    C = damping_matrix(model, modes=modes)
+    rayleigh = rayleigh_coefficients(model, modes=modes)
+    C = damping_matrix(model, rayleigh=rayleigh)
     update = model.damping_update() if hasattr(model, "damping_update") else None
     K, M, iota, load = model.K, model.M, model.influence, getattr(model, "ground_load", None)
     block_fn, rows, peak_rows = (on_block if peaks is not None else None), output, node_map
@@ -207,14 +209,13 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     info.update(timings={"time_history": _time.perf_counter() - t0,
                          "factorization": res.factor_time},
                 substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
-                solver=res.solver, rayleigh_hz=getattr(model, "rayleigh_used_hz", None))
+                solver=res.solver, rayleigh_hz=rayleigh.frequencies_hz)
     assumptions = list(res.assumptions)
     if n_sub > 1:
         assumptions.append(f"The record step {dt:g} s was subdivided into {n_sub} steps so that "
                            f"the step is at most 1/10 of the period at {cutoff_hz:g} Hz.")
-    fr = getattr(model, "rayleigh_used_hz", None)
-    fr_txt = "?" if fr is None else f"{fr[0]:.3g} and {fr[1]:.3g} Hz"
-    why = getattr(model, "rayleigh_choice", "") or ""
+    fr, why = rayleigh.frequencies_hz, rayleigh.why
+    fr_txt = f"{fr[0]:.3g} and {fr[1]:.3g} Hz"
     assumptions.append(
         f"Damping matrix: Rayleigh a·M + b·K of the block alone, {100 * model.damping_ratio:g} % "
         f"at {fr_txt}" + (f" ({why})" if why else "") + "; the soil springs sit in the "

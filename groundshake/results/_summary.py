@@ -85,8 +85,7 @@ def floor_grid(scenario: Scenario) -> tuple[np.ndarray, np.ndarray, float]:
     scenario's ``[floor_spectra]``."""
     fs = scenario.floor_spectra
     periods = np.geomspace(float(fs.periods.min), float(fs.periods.max), int(fs.periods.count))
-    damp = np.asarray(fs.damping_percent, dtype=float) / 100.0
-    return periods, damp, float(fs.broadening_percent) / 100.0
+    return periods, np.asarray(fs.damping_ratios, dtype=float), float(fs.broadening_ratio)
 
 
 def _by_direction(values) -> dict[str, float]:
