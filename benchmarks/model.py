@@ -65,7 +65,7 @@ def _reference_pipeline(mesh, n_modes: int) -> dict:
     import scipy.sparse.linalg as spla
     from groundshake.model._assembly import assemble, element_keys
     from groundshake.model._elements import brick_matrices
-    from groundshake.model._factor import factorize
+    from groundshake.linalg import factorize
     out = {}
     c0 = time.process_time()
     t0 = time.perf_counter()

@@ -55,7 +55,54 @@ def head(path: Path) -> bytes:
         return fh.read(8192)
 
 
-def other_files(name: str) -> list[Path]:
-    """Every record file of tests/data/strong-motion except ``name`` (for detection checks)."""
-    return [p for p in sorted(DATA.iterdir())
-            if p.name != name and p.suffix.lower() not in (".md", ".xml")]
+def record_files() -> list[Path]:
+    """Every record file of tests/data/strong-motion (for detection checks)."""
+    return [p for p in sorted(DATA.iterdir()) if p.suffix.lower() not in (".md", ".xml")]
+
+
+def assert_columns(records, table: np.ndarray, factor: float, *, dt: float | None = None) -> None:
+    """Record k holds column k of ``table`` (values as written) times ``factor`` (to m/s²).
+
+    The reader and this check multiply the same doubles by the same factor, so they agree
+    to 1e-15 m/s² (far below any value written); with ``dt`` given, each record also has
+    that step [s] and one sample per row.
+    """
+    assert len(records) == table.shape[1]
+    for k, rec in enumerate(records):
+        np.testing.assert_allclose(rec.acc, table[:, k] * factor, rtol=0, atol=1e-15)
+        if dt is not None:
+            assert rec.dt == dt and rec.n == table.shape[0]
+
+
+def assert_channels(records, components, orientations, azimuths=None) -> None:
+    """The records' components as written, their orientation ("horizontal"/"vertical"),
+    and ``azimuth_deg`` (degrees from north) of those ``azimuths`` lists by index."""
+    assert [r.component for r in records] == list(components)
+    assert [r.metadata["orientation"] for r in records] == list(orientations)
+    for k, deg in (azimuths or {}).items():
+        assert records[k].metadata["azimuth_deg"] == deg
+
+
+def assert_options_checked(path: Path, error: type, dt: tuple[float, str],
+                           units: tuple[str, str]) -> None:
+    """A ``dt`` [s] and ``units`` that contradict the file are refused with ``error``.
+
+    ``dt`` and ``units`` are (value given, regex the message must match).
+    """
+    import pytest
+
+    with pytest.raises(error, match=dt[1]):
+        read_record(path, dt=dt[0])
+    with pytest.raises(error, match=units[1]):
+        read_record(path, units=units[0])
+
+
+def assert_text_refused(path: Path, text: str, message: str) -> None:
+    """A file of ``text`` written at ``path`` is refused with a RecordError matching ``message``."""
+    import pytest
+
+    from groundshake._errors import RecordError
+
+    path.write_text(text)
+    with pytest.raises(RecordError, match=message):
+        read_record(path)

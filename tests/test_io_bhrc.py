@@ -13,28 +13,20 @@ import pytest
 
 from groundshake._errors import RecordError
 from groundshake.records import read_record
-from groundshake.records.io import bhrc
 
-from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
+from _strong_motion import (assert_channels, assert_options_checked, data_file, round_trip,
+                            round_trip_sac)
 
 NAME = "bhrc_usp000jq5p_5522-1.V1"
 G = 9.80665
 
 
-def test_detects_its_file_and_no_other():
-    path = data_file(NAME)
-    assert bhrc.is_format(path, head(path))
-    for other in other_files(NAME):
-        assert not bhrc.is_format(other, head(other)), other.name
-
-
 def test_real_file_matches_its_header():
     recs = read_record(data_file(NAME))
     # "COMP L1", "COMP V2", "COMP T3" (lines 7, 1034, 2061)
-    assert [r.component for r in recs] == ["L1", "V2", "T3"]
-    assert [r.metadata["orientation"] for r in recs] == ["horizontal", "vertical", "horizontal"]
     # station line: "Ajab Shir  Station ... Azimuth L 324   T 54"
-    assert recs[0].metadata["azimuth_deg"] == 324.0 and recs[2].metadata["azimuth_deg"] == 54.0
+    assert_channels(recs, ["L1", "V2", "T3"], ["horizontal", "vertical", "horizontal"],
+                    {0: 324.0, 2: 54.0})
     assert "azimuth_deg" not in recs[1].metadata
     assert [r.name for r in recs] == ["Ajab Shir L1", "Ajab Shir V2", "Ajab Shir T3"]
     for rec in recs:
@@ -97,10 +89,9 @@ def test_synthetic_file_of_other_numbers(tmp_path):
 
 
 def test_options_and_broken_files(tmp_path):
-    with pytest.raises(RecordError, match=r"dt=0.01 s was given but the BHRC .* header says 0.005 s"):
-        read_record(data_file(NAME), dt=0.01)
-    with pytest.raises(RecordError, match=r"units cm/s2 were given but the BHRC .* header says g/10"):
-        read_record(data_file(NAME), units="gal")
+    assert_options_checked(data_file(NAME), RecordError,
+                           dt=(0.01, r"dt=0.01 s was given but the BHRC .* header says 0.005 s"),
+                           units=("gal", r"units cm/s2 were given but the BHRC .* header says g/10"))
     lines = _channel("L1", np.zeros(40), 0.01)
     del lines[-2]  # the last data line
     path = tmp_path / "short.V1"

@@ -74,3 +74,44 @@ def test_format_error_keeps_its_fields_through_pickling():
     back = pickle.loads(pickle.dumps(err))
     assert isinstance(back, InputError) and str(back) == str(err)
     assert (back.fmt, back.line, back.part) == ("TEST", 3, "header line")
+
+
+def test_even_step_of_a_time_column():
+    from groundshake.records.io._common import even_step
+
+    lines = {k: 20 + k for k in range(5)}.__getitem__  # sample k on file line 20 + k
+    # times 0, 0.01, ... 0.04 s: the step is their spacing, 0.01 s (the numbers written)
+    assert even_step(np.arange(5) * 0.01, fmt="TEST", path="f.txt",
+                     line_of=lines) == pytest.approx(0.01, rel=1e-12)
+    # the fourth time repeats the third: the message names it and its line (line 23)
+    with pytest.raises(FormatError, match=r"time 0\.02 s repeats or runs backwards "
+                                          r"\(line 23\)"):
+        even_step(np.array([0.0, 0.01, 0.02, 0.02, 0.04]), fmt="TEST", path="f.txt",
+                  line_of=lines)
+    # steps 0.01 and 0.012 s lie 9 % off their mean 0.011 s, more than the 1 % read as even
+    with pytest.raises(FormatError, match="time steps vary by"):
+        even_step(np.array([0.0, 0.01, 0.022]), fmt="TEST", path="f.txt", line_of=lines)
+    # one time value has no step: a clear message, not an index error
+    with pytest.raises(FormatError, match=r"1 time value\(s\); at least 2 are needed"):
+        even_step(np.array([0.0]), fmt="TEST", path="f.txt", line_of=lines)
+
+
+def test_a_detector_never_raises():
+    from groundshake.records.io._common import detector
+
+    @detector
+    def is_format(path, head):
+        return head.decode("ascii").startswith("OK")
+
+    # True/False as the check says; a check that raises (bytes that are not ASCII) is False
+    assert is_format("f", b"OK here") is True and is_format("f", b"no") is False
+    assert is_format("f", b"\xff\xfe") is False
+
+
+def test_channel_spans_of_a_volume1_file():
+    from groundshake.records.io._agency import channel_spans
+
+    lines = ["A", "1", "/&", "A", "2", "", ""]
+    # the first channel ends at its "/&" line (index 2), the second at its last line that
+    # is not blank (the lines listed above)
+    assert channel_spans(lines, [0, 3]) == [(0, 2), (3, 5)]

@@ -11,26 +11,18 @@ import pytest
 
 from groundshake._errors import RecordError
 from groundshake.records import read_record
-from groundshake.records.io import cwb
 
-from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
+from _strong_motion import (assert_channels, assert_columns, assert_options_checked,
+                            assert_text_refused, data_file, round_trip, round_trip_sac)
 
 NAME = "cwb_us1000chhc_1-EAS.dat"
-
-
-def test_detects_its_file_and_no_other():
-    path = data_file(NAME)
-    assert cwb.is_format(path, head(path))
-    for other in other_files(NAME):
-        assert not cwb.is_format(other, head(other)), other.name
 
 
 def test_real_file_matches_its_header():
     recs = read_record(data_file(NAME))
     # "#DataSequence: Time U(+); N(+); E(+)"
-    assert [r.component for r in recs] == ["U", "N", "E"]
-    assert [r.metadata["orientation"] for r in recs] == ["vertical", "horizontal", "horizontal"]
-    assert recs[1].metadata["azimuth_deg"] == 0.0 and recs[2].metadata["azimuth_deg"] == 90.0
+    assert_channels(recs, ["U", "N", "E"], ["vertical", "horizontal", "horizontal"],
+                    {1: 0.0, 2: 90.0})
     # "#AmplitudeMAX. U:    0.658~   -0.837", "N:    1.256~   -2.273", "E:    1.017~   -0.778"
     # with "#AmplitudeUnit:  gal."
     for rec, pga in zip(recs, (0.837, 2.273, 1.017)):
@@ -76,24 +68,20 @@ def test_synthetic_file_of_other_numbers(tmp_path):
     path = tmp_path / "mine.dat"
     path.write_text(_synthetic(table, 200.0))
     recs = read_record(path)
+    assert_columns(recs, table, 0.01, dt=0.005)  # our numbers, gal
     for k, rec in enumerate(recs):
-        np.testing.assert_allclose(rec.acc, table[:, k] * 0.01, atol=1e-15)  # our numbers, gal
-        assert rec.dt == 0.005 and rec.n == 90
         assert rec.metadata["header_pga"] == pytest.approx(np.abs(table[:, k]).max() * 0.01)
     assert recs[0].start_time == "2010-03-04T00:18:40.500Z"  # 08:18:40.5 at UTC+8
 
 
 def test_options_and_broken_files(tmp_path):
-    with pytest.raises(RecordError, match=r"dt=0.01 s was given but the CWB \(Taiwan\) text header says 0.02 s"):
-        read_record(data_file(NAME), dt=0.01)
-    with pytest.raises(RecordError, match=r"units g were given but the CWB \(Taiwan\) text header says cm/s2"):
-        read_record(data_file(NAME), units="g")
+    assert_options_checked(data_file(NAME), RecordError,
+                           dt=(0.01, r"dt=0.01 s was given but the CWB \(Taiwan\) text header says 0.02 s"),
+                           units=("g", r"units g were given but the CWB \(Taiwan\) text header says cm/s2"))
     text = _synthetic(np.zeros((30, 3)), 100.0).replace("#SampleRate(Hz): 100", "#SampleRate(Hz): 50")
-    path = tmp_path / "bad.dat"
-    path.write_text(text)
-    with pytest.raises(RecordError, match=r"^CWB \(Taiwan\) text file .*: #SampleRate 50 Hz disagrees "
-                                          r"with the time column's step 0.01 s \(line 8\)"):
-        read_record(path)
+    assert_text_refused(tmp_path / "bad.dat", text,
+                        r"^CWB \(Taiwan\) text file .*: #SampleRate 50 Hz disagrees "
+                        r"with the time column's step 0.01 s \(line 8\)")
 
 
 def test_too_few_samples(tmp_path):

@@ -14,7 +14,7 @@ import pytest
 from groundshake import InputError
 from groundshake.records import read_record
 
-from _strong_motion import DATA, round_trip
+from _strong_motion import DATA, assert_options_checked, round_trip
 
 FILE = DATA / "geonet_us1000778i_20161113_110259_WTMC_20.V1A"
 
@@ -43,10 +43,9 @@ def test_round_trip_through_our_writers(tmp_path):
 
 
 def test_contradicting_options():
-    with pytest.raises(InputError, match=r"dt=0\.01 s was given but its header says 0\.005 s"):
-        read_record(FILE, dt=0.01)
-    with pytest.raises(InputError, match="states units mm/s2 but cm/s2 was given"):
-        read_record(FILE, units="gal")
+    assert_options_checked(FILE, InputError,
+                           dt=(0.01, r"dt=0\.01 s was given but its header says 0\.005 s"),
+                           units=("gal", "states units mm/s2 but cm/s2 was given"))
 
 
 def _component(comp, acc, vel, disp, dt):

@@ -14,7 +14,7 @@ from groundshake import InputError
 from groundshake.records import read_record
 from groundshake.records.io import detect
 
-from _strong_motion import DATA, round_trip
+from _strong_motion import DATA, assert_options_checked, round_trip
 
 FILE = DATA / "peer_RSN763_LOMAP_GIL067.AT2"
 G = 9.80665  # m/s² per g, 3rd CGPM (1901)
@@ -82,10 +82,9 @@ def test_older_peer_layout_npts_dt_line(tmp_path):
 
 
 def test_contradicting_dt_and_units_are_errors(tmp_path):
-    with pytest.raises(InputError, match=r"dt=0\.01 s was given but its DT= header says 0\.005 s"):
-        read_record(FILE, dt=0.01)
-    with pytest.raises(InputError, match="states units g but cm/s2"):
-        read_record(FILE, units="gal")
+    assert_options_checked(FILE, InputError,
+                           dt=(0.01, r"dt=0\.01 s was given but its DT= header says 0\.005 s"),
+                           units=("gal", "states units g but cm/s2"))
     assert read_record(FILE, dt=0.005, units="g")[0].n == 7999  # agreeing options are fine
 
 

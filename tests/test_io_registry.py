@@ -6,6 +6,7 @@ tests/data/strong-motion/ (see its SOURCES.md) and their formats as named there.
 """
 from __future__ import annotations
 
+import gzip
 import inspect
 import shutil
 import warnings
@@ -16,7 +17,7 @@ from groundshake import InputError
 from groundshake.records import read_record
 from groundshake.records.io import HEAD_BYTES, READERS, detect, formats_read, reader
 
-from _strong_motion import DATA
+from _strong_motion import DATA, head, record_files
 
 
 def test_every_reader_follows_the_interface():
@@ -63,6 +64,15 @@ FILES = {  # file -> reader module, per tests/data/strong-motion/SOURCES.md
     "bhrc_usp000jq5p_5522-1.V1": "bhrc",
     "cwb_us1000chhc_1-EAS.dat": "cwb",
 }
+
+
+@pytest.mark.parametrize("module", sorted(set(FILES.values())))
+def test_each_reader_claims_its_files_and_no_other(module):
+    # every real file of the folder (MiniSEED and K-NET ones too): claimed by its own
+    # format's reader only
+    for path in record_files():
+        assert reader(module).is_format(path, head(path)) is (FILES.get(path.name) == module), \
+            path.name
 
 
 @pytest.mark.parametrize("name", sorted(FILES))
@@ -115,6 +125,43 @@ def test_line_endings_do_not_matter(tmp_path, name):
     for x, y in zip(a, b):
         assert x.dt == y.dt and x.n == y.n and x.component == y.component
         assert (x.acc == y.acc).all()  # the same numbers whatever the line ends
+
+
+@pytest.mark.parametrize("name", [p.name for p in record_files() if p.suffix != ".V3"])
+def test_gzip_compressed_file_reads_as_its_content(tmp_path, name):
+    # gzip (RFC 1952) gives back the very bytes packed: the .gz copy of each real file
+    # is read by the same reader to the same records; only the source names the .gz file
+    packed = tmp_path / f"{name}.gz"
+    packed.write_bytes(gzip.compress((DATA / name).read_bytes()))
+    kw = {"inventory": DATA / "fdsn_ci38457511_CI.CLC.xml"} if name.endswith(".mseed") else {}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the V0 file warns that it is uncorrected
+        a, b = read_record(DATA / name, **kw), read_record(packed, **kw)
+    assert detect(packed) is detect(DATA / name)
+    assert len(a) == len(b)
+    for x, y in zip(a, b):
+        assert (x.acc == y.acc).all() and x.dt == y.dt  # the same numbers
+        assert (x.name, x.component, x.start_time, x.units) == \
+            (y.name, y.component, y.start_time, y.units)
+        assert dict(x.metadata) == dict(y.metadata)
+        assert y.source == str(packed)
+
+
+def test_gzip_compressed_text_and_broken_gzip(tmp_path):
+    # delimited text packed as .csv.gz goes to the text reader (our numbers, in g)
+    rows = "".join(f"{0.01 * k!r},{0.1 * (k % 3)!r}\n" for k in range(40))
+    packed = tmp_path / "mine.csv.gz"
+    packed.write_bytes(gzip.compress(("time [s],acc [g]\n" + rows).encode()))
+    (rec,) = read_record(packed)
+    assert rec.n == 40 and rec.units == "g" and rec.name == "mine"
+    assert rec.acc[1] == pytest.approx(0.1 * 9.80665, rel=1e-12)  # standard gravity (CGPM 1901)
+    # a gzip header with no valid stream after it: one line naming the file
+    broken = tmp_path / "cut.AT2.gz"
+    broken.write_bytes(gzip.compress((DATA / "peer_RSN763_LOMAP_GIL067.AT2").read_bytes())[:40])
+    with pytest.raises(InputError, match=r"cut\.AT2\.gz: gzip-compressed, but it does not "
+                                         r"decompress"):
+        read_record(broken)
+    assert detect(broken) is None
 
 
 def test_csmip_detector_wants_its_data_announcement(tmp_path):

@@ -14,26 +14,18 @@ import pytest
 
 from groundshake._errors import RecordError
 from groundshake.records import read_record
-from groundshake.records.io import renadic
 
-from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
+from _strong_motion import (assert_channels, assert_options_checked, data_file, round_trip,
+                            round_trip_sac)
 
 NAME = "renadic_usp000h401_cuya0911131.v1"
 G = 9.80665
 
 
-def test_detects_its_file_and_no_other():
-    path = data_file(NAME)
-    assert renadic.is_format(path, head(path))
-    for other in other_files(NAME):
-        assert not renadic.is_format(other, head(other)), other.name
-
-
 def test_real_file_matches_its_header():
     recs = read_record(data_file(NAME))
     # "CHAN  1: L", "CHAN  2: V", "CHAN  3: T" (lines 7, 1166, 2325)
-    assert [r.component for r in recs] == ["L", "V", "T"]
-    assert [r.metadata["orientation"] for r in recs] == ["horizontal", "vertical", "horizontal"]
+    assert_channels(recs, ["L", "V", "T"], ["horizontal", "vertical", "horizontal"])
     # "UNITS OF UNCOR ACCEL ARE SEC AND G/10.     MAX  =  0.132 G, AT  11.895 SEC" (and
     # 0.064 G at 12.665 s, 0.129 G at 12.190 s for channels 2 and 3)
     for rec, (pga, at) in zip(recs, ((0.132, 11.895), (0.064, 12.665), (0.129, 12.190))):
@@ -103,11 +95,10 @@ def test_synthetic_file_of_other_numbers(tmp_path):
 
 
 def test_options_and_broken_files(tmp_path):
-    with pytest.raises(RecordError, match=r"dt=0.01 s was given but the RENADIC .* header says 0.005 s"):
-        read_record(data_file(NAME), dt=0.01)
     # g/10 has no name among the units options: any units given contradict the header
-    with pytest.raises(RecordError, match=r"units g were given but the RENADIC .* header says g/10"):
-        read_record(data_file(NAME), units="g")
+    assert_options_checked(data_file(NAME), RecordError,
+                           dt=(0.01, r"dt=0.01 s was given but the RENADIC .* header says 0.005 s"),
+                           units=("g", r"units g were given but the RENADIC .* header says g/10"))
     lines = _channel(1, "L", np.zeros(40), 0.01)
     del lines[-3]  # one data line less than NO. OF POINTS needs
     path = tmp_path / "short.v1"

@@ -13,9 +13,9 @@ import pytest
 
 from groundshake._errors import GroundshakeWarning, RecordError
 from groundshake.records import read_record
-from groundshake.records.io import unam
 
-from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
+from _strong_motion import (assert_channels, assert_columns, assert_options_checked,
+                            assert_text_refused, data_file, round_trip, round_trip_sac)
 
 NAME = "unam_usp000cgtd_CUP50401.012"
 
@@ -25,19 +25,11 @@ def _read(path, **kw):
         return read_record(path, **kw)
 
 
-def test_detects_its_file_and_no_other():
-    path = data_file(NAME)
-    assert unam.is_format(path, head(path))
-    for other in other_files(NAME):
-        assert not unam.is_format(other, head(other)), other.name
-
-
 def test_real_file_matches_its_header():
     recs = _read(data_file(NAME))
     # "ORIENTACION C1-C6 (rumbo;orientacion)  : /V/N90E/N00E"
-    assert [r.component for r in recs] == ["V", "N90E", "N00E"]
-    assert [r.metadata["orientation"] for r in recs] == ["vertical", "horizontal", "horizontal"]
-    assert recs[1].metadata["azimuth_deg"] == 90.0 and recs[2].metadata["azimuth_deg"] == 0.0
+    assert_channels(recs, ["V", "N90E", "N00E"], ["vertical", "horizontal", "horizontal"],
+                    {1: 90.0, 2: 0.0})
     # "ACEL. MAX.(Gal), C1-C6 : /0.47/-1.19/1.22", printed to 0.01 gal
     for rec, pga in zip(recs, (0.47, 1.19, 1.22)):
         assert abs(np.max(np.abs(rec.acc)) / 0.01 - pga) <= 0.005 + 1e-12
@@ -59,8 +51,8 @@ def test_real_file_equals_an_independent_parse():
     recs = _read(data_file(NAME))
     lines = data_file(NAME).read_text(encoding="latin-1").splitlines()
     table = np.loadtxt(lines[109:109 + 17500])  # data from line 110, after the second ruler
+    assert_columns(recs, table, 0.01)  # gal
     for k, rec in enumerate(recs):
-        np.testing.assert_allclose(rec.acc, table[:, k] * 0.01, rtol=0, atol=1e-15)
         assert np.max(np.abs(rec.acc)) == pytest.approx(np.max(np.abs(table[:, k])) * 0.01,
                                                         rel=1e-3)
 
@@ -103,9 +95,7 @@ def test_synthetic_file_of_other_numbers(tmp_path):
     path = tmp_path / "mine.001"
     path.write_text(_synthetic(table, 0.01), encoding="latin-1")
     recs = read_record(path)
-    for k, rec in enumerate(recs):
-        np.testing.assert_allclose(rec.acc, table[:, k] * 0.01, atol=1e-15)  # our numbers, gal
-        assert rec.dt == 0.01 and rec.n == 120
+    assert_columns(recs, table, 0.01, dt=0.01)  # our numbers, gal
     # N45W = 315°, S45W = 225° (quadrant bearings); UP is vertical
     assert recs[0].metadata["azimuth_deg"] == 315.0 and recs[2].metadata["azimuth_deg"] == 225.0
     assert recs[1].metadata["orientation"] == "vertical"
@@ -113,13 +103,10 @@ def test_synthetic_file_of_other_numbers(tmp_path):
 
 
 def test_options_that_contradict_the_header(tmp_path):
-    with pytest.raises(RecordError, match=r"dt=0.01 s was given but the .*UNAM.* header says 0.004 s"):
-        read_record(data_file(NAME), dt=0.01)
-    with pytest.raises(RecordError, match=r"units m/s2 were given but the .*UNAM.* header says cm/s2"):
-        read_record(data_file(NAME), units="m/s2")
+    assert_options_checked(data_file(NAME), RecordError,
+                           dt=(0.01, r"dt=0.01 s was given but the .*UNAM.* header says 0.004 s"),
+                           units=("m/s2", r"units m/s2 were given but the .*UNAM.* header says cm/s2"))
     text = _synthetic(np.ones((30, 3)), 0.01).replace("/30/30/30", "/40/40/40")
-    path = tmp_path / "short.001"
-    path.write_text(text)
-    with pytest.raises(RecordError, match=r"^Mexican standard acceleration \(UNAM\) file .*: 30 data "
-                                          r"rows; NUM. TOTAL DE MUESTRAS says 40"):
-        read_record(path)
+    assert_text_refused(tmp_path / "short.001", text,
+                        r"^Mexican standard acceleration \(UNAM\) file .*: 30 data "
+                        r"rows; NUM. TOTAL DE MUESTRAS says 40")

@@ -14,16 +14,9 @@ from groundshake._errors import RecordError
 from groundshake.records import read_record
 from groundshake.records.io import usc
 
-from _strong_motion import data_file, head, other_files, round_trip, round_trip_sac
+from _strong_motion import assert_options_checked, data_file, head, round_trip, round_trip_sac
 
 NAME = "usc_ci3144585_017m30bt.s0a"
-
-
-def test_detects_its_file_and_no_other():
-    path = data_file(NAME)
-    assert usc.is_format(path, head(path))
-    for other in other_files(NAME):
-        assert not usc.is_format(other, head(other)), other.name
 
 
 def test_is_format_never_raises():
@@ -116,10 +109,9 @@ def test_synthetic_file_of_other_numbers(tmp_path):
 
 
 def test_units_and_dt_options_that_contradict_the_header(tmp_path):
-    with pytest.raises(RecordError, match=r"dt=0.01 s was given but the USC strong-motion header says 0.02 s"):
-        read_record(data_file(NAME), dt=0.01)
-    with pytest.raises(RecordError, match=r"units g were given but the USC strong-motion header says cm/s2"):
-        read_record(data_file(NAME), units="g")
+    assert_options_checked(data_file(NAME), RecordError,
+                           dt=(0.01, r"dt=0.01 s was given but the USC strong-motion header says 0.02 s"),
+                           units=("g", r"units g were given but the USC strong-motion header says cm/s2"))
     (rec,) = read_record(data_file(NAME), units="gal", dt=0.02)  # agreeing options are fine
     assert rec.n == 1887
 

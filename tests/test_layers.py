@@ -3,8 +3,8 @@
 Every import of a groundshake module — at the top of a file or inside a function — is read
 from the source with the standard library's ``ast`` and checked against the layer order:
 
-    records → processing → spectra → matching;  scenario;  model → dynamics → results;
-    pipeline (the application layer);  report;  suite;  cli
+    records → processing → spectra → matching;  scenario;  linalg → model → dynamics → results;
+    plots (figures);  pipeline (the application layer);  report;  suite;  cli
 
 A module may import its own stage, the shared base modules and the stages below it. Today's
 exceptions are listed by name below, as an allow-list that may only shrink: a new violation
@@ -24,27 +24,33 @@ PACKAGE = Path(__file__).resolve().parents[1] / "groundshake"
 # Modules at the package root that every stage may use (no groundshake imports of their own
 # beyond each other).
 BASE = {"_errors", "_atomic", "_cautions", "_constants", "_progress", "_plausible", "_jit_cache",
-        "_json", "__init__"}
+        "_json", "_grid", "__init__"}
 
 # Stage -> the stages it may import (besides itself and BASE).
 ALLOWED: dict[str, set[str]] = {
     "records": set(),
+    # sparse linear algebra (factorizations, mass solves, memory estimate) under the model
+    "linalg": set(),
     "processing": {"records"},
     "spectra": {"records", "processing"},
     "matching": {"records", "processing", "spectra"},
     "scenario": {"records", "processing", "spectra", "matching"},
-    "model": {"scenario"},
-    "dynamics": {"model", "scenario", "spectra"},
+    "model": {"scenario", "linalg"},
+    "dynamics": {"model", "scenario", "spectra", "linalg"},
     "results": {"dynamics", "model", "scenario", "records", "processing", "spectra",
-                "matching"},
-    "pipeline": {"records", "processing", "spectra", "matching", "scenario", "model",
-                 "dynamics", "results", "report"},
-    # the report reads a run's output folder through the output contract only
-    "report": set(),
+                "matching", "linalg"},
+    # figures of every stage: may read the data stages' objects, never the other way round
+    "plots": {"records", "processing", "spectra", "matching", "scenario", "linalg", "model",
+              "dynamics", "results"},
+    "pipeline": {"records", "processing", "spectra", "matching", "scenario", "linalg",
+                 "model", "dynamics", "results", "plots", "report"},
+    # the report reads a run's output folder through the output contract only, and draws
+    # what it read through plots
+    "report": {"plots"},
     # many records through one model, over the application layer
     "suite": {"pipeline"},
-    "cli": {"records", "processing", "spectra", "matching", "scenario", "model",
-            "dynamics", "results", "pipeline", "report", "suite"},
+    "cli": {"records", "processing", "spectra", "matching", "scenario", "linalg", "model",
+            "dynamics", "results", "plots", "pipeline", "report", "suite"},
 }
 ALLOWED["cli"] |= {"cli"}
 
@@ -56,20 +62,7 @@ ALLOWED_MODULES: dict[str, set[str]] = {
 
 # Today's layer violations, "importer -> imported module" (function-level imports included).
 # Shrink only; each entry names work left for the application-layer and cli/ moves.
-LAYER_ALLOW = {
-    "groundshake.suite._discover -> groundshake.records._components",  # component codes
-    "groundshake.suite._output -> groundshake.report._figures",  # suite report: report/
-    "groundshake.suite._output -> groundshake.report._html",     # suite report: report/
-    "groundshake.suite._output -> groundshake.report._suite_page",  # suite report: report/
-    "groundshake.suite._output -> groundshake.report._units",    # suite report: report/
-    "groundshake.suite._output -> groundshake.spectra",          # target: over pipeline/
-    "groundshake.suite._run -> groundshake.records",             # reading a set: over pipeline/
-    "groundshake.suite._run -> groundshake.scenario",            # one run: over pipeline/
-    "groundshake.suite._run -> groundshake.spectra",             # statistics: over pipeline/
-    "groundshake.suite._run -> groundshake.spectra._scaling",    # set scaling: over pipeline/
-    "groundshake.suite._scale -> groundshake.spectra",           # set scaling: over pipeline/
-    "groundshake.suite._scale -> groundshake.spectra._scaling",  # set scaling: over pipeline/
-}
+LAYER_ALLOW: set[str] = set()
 
 # Today's import cycles, each as the sorted tuple of its modules. Shrink only.
 CYCLE_ALLOW: set[tuple[str, ...]] = set()
@@ -270,3 +263,60 @@ def test_no_import_error_fallback_around_own_modules():
     # design rule (issue 15): a failed import of the package's own code is an error, never a
     # silent fallback; optional third-party packages (pyamg, distributed) may fall back
     assert import_fallbacks() == sorted(IMPORT_FALLBACK_ALLOW)
+
+
+# ----------------------------------------------------------------------------- matplotlib
+PLOTTING = ("matplotlib", "mpl_toolkits")
+
+
+def plotting_imports() -> dict[str, list[tuple[str, bool]]]:
+    """Module -> [(imported plotting module, at module level?)] for every import of
+    matplotlib or mpl_toolkits anywhere in its source (function-level imports included)."""
+    found: dict[str, list[tuple[str, bool]]] = {}
+    for path in sorted(PACKAGE.rglob("*.py")):
+        tree = ast.parse(path.read_text(encoding="utf-8"), str(path))
+        top = {id(n) for n in tree.body}
+        for node in ast.walk(tree):
+            if isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom) and node.level == 0:
+                names = [node.module or ""]
+            else:
+                continue
+            for n in names:
+                if n.split(".")[0] in PLOTTING:
+                    found.setdefault(module_name(path), []).append((n, id(node) in top))
+    return found
+
+
+def test_only_plots_imports_matplotlib():
+    # design rule (docs/architecture.md): one plotting package; the numerical stages
+    # (records, processing, spectra, matching, scenario, model, dynamics, results), the
+    # shared modules, the report, the pipeline, the suite and the commands draw through it
+    outside = sorted(m for m in plotting_imports() if stage_of(m) != "plots")
+    assert outside == []
+
+
+def test_plots_imports_matplotlib_lazily():
+    # design rule (docs/architecture.md): matplotlib is imported inside the functions
+    # that draw, so importing a stage (or the report) loads no plotting library
+    eager = sorted(f"{m}: {n}" for m, found in plotting_imports().items()
+                   for n, at_top in found if at_top)
+    assert eager == []
+
+
+def test_importing_the_stages_loads_no_matplotlib():
+    # the same rule, seen from a fresh interpreter (sys.modules, Python language reference
+    # §5, the import system)
+    import subprocess
+    import sys
+
+    stages = sorted(p.name for p in PACKAGE.iterdir()
+                    if (p / "__init__.py").is_file() and p.name != "cli")
+    code = ("import sys\n" + "".join(f"import groundshake.{s}\n" for s in stages)
+            + "print(sorted(m for m in sys.modules if m.split('.')[0] in "
+            + repr(PLOTTING) + "))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         cwd=PACKAGE.parent, check=True,
+                         env={**__import__("os").environ, "PYTHONPATH": str(PACKAGE.parent)})
+    assert out.stdout.strip() == "[]"

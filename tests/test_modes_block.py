@@ -11,7 +11,7 @@ import scipy.linalg as sla
 import scipy.sparse as sp
 
 from groundshake.dynamics import lowest_modes
-from groundshake.model._factor import factorize
+from groundshake.linalg import factorize
 
 
 def _pencil(nx=9, ny=8, nz=10, seed=4):

@@ -151,3 +151,50 @@ def test_every_display_factor_agrees_with_pint():
             assert q.magnitude == pytest.approx(factor, rel=1e-12), (system, kind, unit)
             checked += 1
     assert checked >= 30
+
+
+def test_reader_gives_declared_paths_and_refuses_others():
+    """The contract reader: a declared path gives its value (None where this summary lacks
+    it), list entries by index, and a path the contract does not declare is an error (the
+    contract's own rule: the report reads results only through it)."""
+    from groundshake.results._schema import read, read_list, read_number, read_table
+    summary = {"peaks": {"base_shear": {"x": 12.5}},
+               "equipment": {"pump": {"anchors": [{"peak_tension": 3.0e3}]}},
+               "stability": {"sliding": {"min_safety_factor": float("nan")}}}
+    assert read(summary, "peaks", "base_shear", "x") == 12.5
+    assert read(summary, "peaks", "base_shear", "y") is None
+    assert read_number(summary, "equipment", "pump", "anchors", 0, "peak_tension") == 3.0e3
+    assert read_number(summary, "equipment", "pump", "anchors", 1, "peak_tension") is None
+    assert read_number(summary, "stability", "sliding", "min_safety_factor") is None  # NaN
+    assert read_list(summary, "equipment", "pump", "anchors") == [{"peak_tension": 3.0e3}]
+    assert read_table(summary, "base", "contact") == {}
+    with pytest.raises(KeyError):
+        read(summary, "peaks", "base_shear_x")
+
+
+def test_report_reads_only_declared_paths():
+    """Every summary.json path the report's modules read through the contract reader is a
+    path of the contract (names held in variables may stand for any key)."""
+    import ast
+    import fnmatch
+    from pathlib import Path
+
+    from groundshake.results._schema import SUMMARY_GROUPS
+
+    patterns = [tuple(p.split(".")) for p in (*SUMMARY_KINDS, *SUMMARY_GROUPS)]
+    report = Path(__file__).resolve().parents[1] / "groundshake" / "report"
+    checked = 0
+    for path in sorted(report.glob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if not (isinstance(node, ast.Call) and isinstance(node.func, ast.Name)
+                    and node.func.id in ("read", "read_number", "read_table", "read_list")):
+                continue
+            keys = node.args[1:]
+            if any(isinstance(k, ast.Starred) for k in keys):
+                continue                       # a local helper passing a key path on
+            keys = [str(k.value) if isinstance(k, ast.Constant) else None for k in keys]
+            assert any(len(p) == len(keys) and all(k is None or fnmatch.fnmatchcase(k, q)
+                                                   for k, q in zip(keys, p))
+                       for p in patterns), (path.name, node.lineno, keys)
+            checked += 1
+    assert checked >= 40

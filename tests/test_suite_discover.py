@@ -12,7 +12,7 @@ import pytest
 
 from groundshake._errors import InputError
 from groundshake.suite._discover import discover_record_sets
-from groundshake.suite._stats import flatten_scalars, peak_statistics, scalar_statistics
+from groundshake.pipeline import flatten_scalars, peak_statistics, scalar_statistics
 
 
 def _touch(folder, *names):

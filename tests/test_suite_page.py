@@ -9,11 +9,16 @@ html.parser (Python) as an independent parser.
 from __future__ import annotations
 
 import html
+import json
 import re
 
 import numpy as np
+import pytest
 
+from groundshake._errors import InputError
+from groundshake.report import write_suite_page
 from groundshake.report._suite_page import quantity_words, render_suite_page, suite_kind
+from groundshake.results._schema import SUITE_FILES
 
 STATS = {
     "peaks.base_shear.x": {"count": 3, "median": 2.0e5, "p16": 1.5e5, "p84": 2.6e5, "max": 3.0e5,
@@ -58,3 +63,19 @@ def test_units_and_dc_statistics():
     us = " ".join(_text(render_suite_page(title="t", records=RECORDS, statistics=STATS,
                                           units="us")).split())
     assert f"{2.0e5 / 4448.2216152605:.3g}" in us and "kip" in us   # NIST SP 811: 1 kip
+
+
+def test_page_is_written_from_suite_json_through_the_contract(tmp_path):
+    # the page reads the suite's folder by the output contract's file names (SUITE_FILES);
+    # statistics keys are summary.json paths (list positions from 0) and bolt numbers
+    # count from 1 as in a run's files (the contract's note on SUITE_FILES)
+    with pytest.raises(InputError, match=SUITE_FILES["suite"]):
+        write_suite_page(tmp_path)
+    (tmp_path / SUITE_FILES["suite"]).write_text(json.dumps(
+        {"title": "from the file", "records": RECORDS, "statistics": STATS}), encoding="utf-8")
+    path = write_suite_page(tmp_path, units="si")
+    assert path == tmp_path / SUITE_FILES["page"]
+    text = " ".join(_text(path.read_text(encoding="utf-8")).split())
+    assert "from the file — suite of 4 record sets" in text
+    assert "pump, bolt 1: peak tension" in text and "(bolt 2)" in text
+    assert "anchors[" not in text and "No spectra." in text

@@ -28,8 +28,9 @@ from groundshake.scenario import parse_scenario_text
 from groundshake.spectra import response_spectrum
 from groundshake.spectra._scaling import SCALING_RULES
 from groundshake.suite import discover_record_sets, flatten_scalars
-from groundshake.suite._run import combine_by_rule, run_suite
-from groundshake.suite._scale import BAND_PERIODS, SuiteScaling, scale_record_sets
+from groundshake.pipeline import SuiteScaling, combine_by_rule, scale_record_sets
+from groundshake.pipeline._set_scaling import BAND_PERIODS
+from groundshake.suite._run import run_suite
 
 G = 9.80665            # standard gravity [m/s²] (CGPM 1901)
 DT = 0.01

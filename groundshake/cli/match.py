@@ -96,7 +96,9 @@ def cmd_match(args: argparse.Namespace) -> int:
         from ..records import write_record
         write_record([r.record for r in results], out)
     if plot is not None:
-        _plot(results, plot)
+        from ..plots import match_figure, save_figure
+
+        save_figure(match_figure(results), plot, dpi=100)
 
     failed = [r for r in results if not r.converged]
     if getattr(args, "json", False):
@@ -140,73 +142,6 @@ def _print_text(results, out, plot) -> None:
     if plot is not None:
         print(f"wrote {plot}")
     print(SCREENING_NOTE)
-
-
-def _minor_label(value, _pos) -> str:
-    """Label the 2s and 5s of each decade on log axes."""
-    if value <= 0:
-        return ""
-    lead = value / 10 ** np.floor(np.log10(value) + 1e-9)
-    return f"{value:g}" if round(lead) in (2, 5) and abs(lead - round(lead)) < 1e-6 else ""
-
-
-def _plot(results, path: Path) -> None:
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-    import matplotlib.ticker
-
-    from .._atomic import atomic_savefig
-    from ..matching._measures import integrate_motion
-
-    n = len(results)
-    fig = plt.figure(figsize=(12, 6.5 * n))
-    grid = fig.add_gridspec(3 * n, 2, width_ratios=(1, 1.3))
-    for k, r in enumerate(results):
-        ax = fig.add_subplot(grid[3 * k:3 * k + 3, 0])
-        for i, z in enumerate(r.damping):
-            c = f"C{i}"
-            ax.loglog(r.periods, r.target_psa[i], color="k", lw=1.4 if i == 0 else 0.9,
-                      ls="-" if i == 0 else "--", label=f"target {100 * z:g} %")
-            ax.loglog(r.periods, r.psa_before[i] * r.scale_factor, color=c, lw=0.8, ls=":",
-                      label=f"before (scaled ×{r.scale_factor:.3g}) {100 * z:g} %")
-            ax.loglog(r.periods, r.psa_after[i], color=c, lw=1.2, label=f"after {100 * z:g} %")
-        ax.set_xlabel("period [s]")
-        ax.set_ylabel("PSA [m/s²]")
-        ax.set_title(f"{r.record.name}: {r.status}, max misfit {100 * r.max_misfit:.1f} %",
-                     fontsize=9)
-        ax.grid(alpha=0.3, which="both")
-        for axis in (ax.xaxis, ax.yaxis):
-            axis.set_major_formatter(matplotlib.ticker.FormatStrFormatter("%g"))
-            axis.set_minor_formatter(matplotlib.ticker.FuncFormatter(_minor_label))
-        ax.legend(fontsize=7)
-        dt = r.record.dt
-        pad = int(round(r.pad_s / dt))
-        before = np.concatenate([np.zeros(pad), r.original.acc, np.zeros(pad)])
-        before = np.pad(before, (0, max(0, r.record.n - before.size)))[:r.record.n]
-        before = before * r.scale_factor
-        # as-read axis: t = 0 at the first sample as read, every pad at negative times
-        t = r.record.time - float(r.record.metadata.get("pad_before_s", r.pad_s) or 0.0)
-        vb, db = integrate_motion(before, dt)
-        va, da = integrate_motion(r.record.acc, dt)
-        for row, (label, yb, ya) in enumerate((("acceleration [m/s²]", before, r.record.acc),
-                                               ("velocity [m/s]", vb, va),
-                                               ("displacement [m]", db, da))):
-            ax = fig.add_subplot(grid[3 * k + row, 1])
-            ax.plot(t, ya, lw=0.7, color="C0", label="after")
-            ax.plot(t, yb, lw=0.5, color="0.35", alpha=0.8,
-                    label=f"before, scaled ×{r.scale_factor:.3g}")
-            ax.set_ylabel(label, fontsize=8)
-            ax.grid(alpha=0.3)
-            if row == 0:
-                ax.legend(fontsize=7, loc="upper right")
-            if row == 2:
-                ax.set_xlabel("time from the first sample as read [s]")
-    fig.suptitle("Spectral matching (screening only)", fontsize=10)
-    fig.tight_layout()
-    atomic_savefig(fig, path, dpi=100)
-    plt.close(fig)
 
 
 def register(subparsers, parents) -> None:

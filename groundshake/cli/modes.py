@@ -16,7 +16,7 @@ __all__ = ["register", "cmd_modes"]
 def cmd_modes(args) -> int:
     from ..dynamics import compute_modes
     from ..scenario import errors_at_key, load_scenario
-    from ..model._build import build_model
+    from ..model import build_model
 
     scenario = load_scenario(args.scenario)
     n_modes = args.modes if args.modes is not None else scenario.analysis.modes
@@ -45,12 +45,16 @@ def cmd_modes(args) -> int:
     caught.extend(n for n in getattr(scenario, "notes", ()) if n not in caught)
     figures = []
     if args.plot:
-        from ..model._plot import plot_mode, plot_model
+        from ..plots import block_mode_figure, block_model_figure, save_figure
+
         out = Path(args.plot)
         out.mkdir(parents=True, exist_ok=True)
-        figures.append(str(plot_model(model, out / "model.png", title=scenario.title)))
+        kw = dict(dpi=110, bbox_inches="tight")
+        fig = block_model_figure(model, title=scenario.title)
+        figures.append(str(save_figure(fig, out / "model.png", **kw)))
         for i in range(min(args.plot_modes, modes.n_modes)):
-            figures.append(str(plot_mode(model, modes, i, out / f"mode-{i + 1}.png")))
+            fig = block_mode_figure(model, modes, i)
+            figures.append(str(save_figure(fig, out / f"mode-{i + 1}.png", **kw)))
     d = modes.to_dict()
     doc = {"scenario": str(args.scenario), "title": scenario.title,
            "total_mass": d["total_mass"], "modes": d["modes"],

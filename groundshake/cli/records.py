@@ -211,7 +211,6 @@ def _same_file(a: Path, b: Path) -> bool:
 
 
 def cmd_correct(args: argparse.Namespace) -> int:
-    from ..processing import integrate
     from ..records._write import WRITE_FORMATS
 
     src, dst = Path(args.record), Path(args.output)
@@ -235,7 +234,9 @@ def cmd_correct(args: argparse.Namespace) -> int:
         corrected = _correct_all(raws, settings, args)
         write_record(corrected, dst)
         if args.plot is not None:
-            _plot_correction(raws, corrected, Path(args.plot), integrate)
+            from ..plots import correction_figure, save_figure
+
+            save_figure(correction_figure(raws, corrected), Path(args.plot), dpi=110)
     if getattr(args, "json", False):
         print_json({"output": str(dst), "plot": args.plot, "warnings": found,
                     "note": SCREENING_NOTE,
@@ -257,36 +258,6 @@ def cmd_correct(args: argparse.Namespace) -> int:
         for step in c.history:
             print(f"  - {step}")
     return 0
-
-
-def _plot_correction(raws, corrected, path: Path, integrate) -> None:
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from .._atomic import atomic_savefig
-
-    ncol = len(raws)
-    fig, axes = plt.subplots(3, ncol, figsize=(6.5 * ncol, 7.5), sharex="col", squeeze=False)
-    labels = (("acceleration [m/s²]", 0), ("velocity [m/s]", 1), ("displacement [m]", 2))
-    for j, (r, c) in enumerate(zip(raws, corrected)):
-        shift = float(c.metadata.get("pad_before_s", 0.0) or 0.0)
-        rv, rd = integrate(r.acc, r.dt)
-        cv, cd = integrate(c.acc, c.dt)
-        for (label, i), yr, yc in zip(labels, (r.acc, rv, rd), (c.acc, cv, cd)):
-            ax = axes[i, j]
-            ax.plot(r.time, yr, lw=0.7, color="0.55", label="as read")
-            ax.plot(c.time - shift, yc, lw=0.8, color="C0", label="corrected (with pads)")
-            ax.set_ylabel(label)
-            ax.grid(alpha=0.3)
-        axes[0, j].set_title(c.name)
-        axes[0, j].legend(loc="upper right", fontsize=8)
-        axes[2, j].set_xlabel("time from the first sample as read [s]")
-    fig.suptitle("Record correction (screening only)", fontsize=10)
-    fig.tight_layout()
-    atomic_savefig(fig, path, dpi=110)
-    plt.close(fig)
 
 
 # -- registration ---------------------------------------------------------------------

@@ -172,13 +172,14 @@ def cmd_spectrum(args: argparse.Namespace) -> int:
         if args.output is not None:
             atomic_write_text(args.output, _csv_text(spectra, rotds, target_psa))
         if args.plot is not None:
-            from ..spectra._plots import plot_spectra
+            from ..plots import save_figure, spectra_overview_figure
 
             jb = _band_index(damping, target)
-            plot_spectra(args.plot, spectra, target=target, rotds=rotds,
-                         band=None if stats is None else stats[jb],
-                         band_damping=float(damping[jb]),
-                         title="Response spectra" + (" (as read)" if not settings.enabled else ""))
+            fig = spectra_overview_figure(
+                spectra, target=target, rotds=rotds, band=None if stats is None else stats[jb],
+                band_damping=float(damping[jb]),
+                title="Response spectra" + (" (as read)" if not settings.enabled else ""))
+            save_figure(fig, args.plot, dpi=110)
     doc = _document(records, raws, spectra, rotds, stats, target, target_psa, settings, found)
     if left_out:
         doc["rotd_left_out"] = left_out

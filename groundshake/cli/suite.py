@@ -129,7 +129,7 @@ def _suite(args) -> int:
 
 def _scaling_of(args, scenario):
     """The scaling asked for: the command line's options over the scenario's ``[suite]``."""
-    from ..suite._scale import SuiteScaling
+    from ..pipeline import SuiteScaling
 
     base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
     options = (args.scale_rule, args.scale_mode, args.scale_range, args.scale_period)

@@ -3,35 +3,39 @@ integration, composite modal ratios and the coupled modal damping matrix.
 
 These read the damping data a :class:`~groundshake.model.BlockModel` carries (its ratio,
 ``rayleigh_hz``, the stiffness parts of equipment supports and the discrete and
-radiation dashpots) and write the Rayleigh frequencies they used back into
-``model.rayleigh_used_hz`` and ``model.rayleigh_choice`` for the summary. SI units:
-damping matrices in N·s/m, frequencies in Hz, ratios as ratios.
+radiation dashpots) and return what they compute; the Rayleigh frequencies used and why
+come back as a :class:`RayleighChoice` for the summary. SI units: damping matrices in
+N·s/m, frequencies in Hz, ratios as ratios.
 """
 from __future__ import annotations
+
+from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
 
 from .._errors import InputError
 
-__all__ = ["MODAL_DAMPING_CAP", "governing_frequencies", "rayleigh_coefficients",
-           "damping_matrix", "modal_damping", "modal_damping_matrix"]
+__all__ = ["MODAL_DAMPING_CAP", "RayleighChoice", "governing_frequencies",
+           "rayleigh_coefficients", "damping_matrix", "modal_damping", "modal_damping_matrix"]
 
 #: Upper limit of composite modal damping ratios (ASCE 4 practice, from memory: 20 %).
 MODAL_DAMPING_CAP = 0.20
 
 
-def governing_frequencies(model, modes) -> tuple[float, float]:
-    """Rayleigh anchor frequencies [Hz] from the block's governing modes.
+@dataclass(frozen=True)
+class RayleighChoice:
+    """Rayleigh damping C = a0·M_block + a1·K_block: ``a0`` [1/s], ``a1`` [s], the anchor
+    ``frequencies_hz`` (f1, f2) [Hz] where the ratio is the block's, and ``why`` they were
+    chosen (text for the summary)."""
 
-    A mode belongs to the block when at least half of its kinetic energy
-    (φᵀ M_block φ, φᵀMφ = 1) is in the block; among those, the governing modes hold
-    at least 5 % of the total mass in some direction (effective mass Γ²/m). The
-    anchors are the lowest and highest governing frequencies, spread to at least
-    f2 = 1.5·f1. Without such a mode: the block mode of largest effective mass, else
-    the first mode. ``modes`` (a :class:`~groundshake.dynamics.Modes`; the 12 lowest
-    are enough) is required.
-    """
+    a0: float
+    a1: float
+    frequencies_hz: tuple[float, float]
+    why: str
+
+
+def _governing(model, modes) -> tuple[float, float, str]:
     if modes is None:
         raise InputError("the Rayleigh anchor frequencies come from the block's modes: "
                          "give modes (compute_modes(model)) or rayleigh_hz")
@@ -51,32 +55,51 @@ def governing_frequencies(model, modes) -> tuple[float, float]:
         sel = f[:1]
         why = "the first mode (no mode is mostly the block's)"
     f1, f2 = float(sel.min()), float(sel.max())
-    f2 = max(f2, 1.5 * f1)
-    model.rayleigh_choice = why
+    return f1, max(f2, 1.5 * f1), why
+
+
+def governing_frequencies(model, modes) -> tuple[float, float]:
+    """Rayleigh anchor frequencies [Hz] from the block's governing modes.
+
+    A mode belongs to the block when at least half of its kinetic energy
+    (φᵀ M_block φ, φᵀMφ = 1) is in the block; among those, the governing modes hold
+    at least 5 % of the total mass in some direction (effective mass Γ²/m). The
+    anchors are the lowest and highest governing frequencies, spread to at least
+    f2 = 1.5·f1. Without such a mode: the block mode of largest effective mass, else
+    the first mode. ``modes`` (a :class:`~groundshake.dynamics.Modes`; the 12 lowest
+    are enough) is required.
+    """
+    f1, f2, _ = _governing(model, modes)
     return f1, f2
 
 
-def rayleigh_coefficients(model, frequencies_hz=None, *, modes=None) -> tuple[float, float]:
-    """(a, b) of C = a·M_block + b·K_block giving the block's ratio at two frequencies.
+def rayleigh_coefficients(model, frequencies_hz=None, *, modes=None) -> RayleighChoice:
+    """Rayleigh damping C = a0·M_block + a1·K_block giving the block's ratio at two
+    frequencies.
 
     Uses ``frequencies_hz`` [Hz], else the scenario's ``rayleigh_hz``, else the
-    block's governing modes (:func:`governing_frequencies`); the choice is kept in
-    ``rayleigh_used_hz``. Chopra §11.4: a = 2ξω1ω2/(ω1+ω2), b = 2ξ/(ω1+ω2).
+    block's governing modes (:func:`governing_frequencies`). Chopra §11.4:
+    a0 = 2ξω1ω2/(ω1+ω2), a1 = 2ξ/(ω1+ω2).
+
+    Returns
+    -------
+    RayleighChoice
+        ``a0`` [1/s], ``a1`` [s], the ``frequencies_hz`` used and ``why``.
     """
-    f = frequencies_hz if frequencies_hz is not None else model.rayleigh_hz
-    if f is None:
-        f = governing_frequencies(model, modes)
-    elif frequencies_hz is None:
-        model.rayleigh_choice = "rayleigh_hz of the scenario"
-    model.rayleigh_used_hz = (float(f[0]), float(f[1]))
+    if frequencies_hz is not None:
+        f, why = frequencies_hz, "frequencies given"
+    elif model.rayleigh_hz is not None:
+        f, why = model.rayleigh_hz, "rayleigh_hz of the scenario"
+    else:
+        *f, why = _governing(model, modes)
     w1, w2 = 2 * np.pi * f[0], 2 * np.pi * f[1]
     z = model.damping_ratio
-    a = 2 * z * w1 * w2 / (w1 + w2)
-    b = 2 * z / (w1 + w2)
-    return a, b
+    return RayleighChoice(a0=2 * z * w1 * w2 / (w1 + w2), a1=2 * z / (w1 + w2),
+                          frequencies_hz=(float(f[0]), float(f[1])), why=why)
 
 
-def damping_matrix(model, frequencies_hz=None, *, modes=None) -> sp.csr_matrix:
+def damping_matrix(model, frequencies_hz=None, *, modes=None,
+                   rayleigh: RayleighChoice | None = None) -> sp.csr_matrix:
     """Damping (n, n) [N·s/m] for direct integration.
 
     C = a·M_block + b·K_block + C_equipment + C_radiation: Rayleigh damping from the
@@ -84,10 +107,13 @@ def damping_matrix(model, frequencies_hz=None, *, modes=None) -> sp.csr_matrix:
     soil springs inside K_block, so the soil's material damping is the block ratio at
     the anchors), each equipment support's dashpot at its own ratio, and the soil's
     radiation dashpots. Dashpots acting on the averaged base motion of a distributed
-    bed are not in this matrix: see ``BlockModel.damping_update``.
+    bed are not in this matrix: see ``BlockModel.damping_update``. ``rayleigh`` (from
+    :func:`rayleigh_coefficients`, which the caller keeps for its summary) replaces
+    ``frequencies_hz`` and ``modes``.
     """
-    a, b = rayleigh_coefficients(model, frequencies_hz, modes=modes)
-    C = a * model.block_mass_matrix() + b * model._block_stiffness()
+    if rayleigh is None:
+        rayleigh = rayleigh_coefficients(model, frequencies_hz, modes=modes)
+    C = rayleigh.a0 * model.block_mass_matrix() + rayleigh.a1 * model._block_stiffness()
     if model._dashpots is not None:
         C = C + model._dashpots
     return sp.csr_matrix(C)
@@ -101,7 +127,8 @@ def _block_ratio(model, phi: np.ndarray):
     mm = np.einsum("im,im->m", phi, model.M @ phi)
     omega = np.sqrt(np.maximum(e_tot, 0.0) / mm)
     if model.rayleigh_hz is not None:
-        a, b = rayleigh_coefficients(model, model.rayleigh_hz)
+        r = rayleigh_coefficients(model, model.rayleigh_hz)
+        a, b = r.a0, r.a1
         with np.errstate(divide="ignore", invalid="ignore"):
             zb = np.where(omega > 0, a / (2 * omega) + b * omega / 2, model.damping_ratio)
     else:

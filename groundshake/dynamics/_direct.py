@@ -22,7 +22,7 @@ import scipy.sparse as sp
 
 from .._errors import InputError
 from .._progress import Progress
-from ..model._factor import factorize, pardiso_available
+from ..linalg import factorize, pardiso_available
 
 __all__ = ["DirectResponse", "direct_response", "newmark_parameters", "substeps_for"]
 

@@ -92,7 +92,7 @@ class Modes:
 
 
 def _factor_of(A, solver):
-    from ..model._factor import factorize
+    from ..linalg import factorize
     return factorize(A, solver=solver)
 
 

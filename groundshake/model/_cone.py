@@ -142,22 +142,14 @@ def cone_stiffness(cones: RotationCones, omega) -> np.ndarray:
 
 
 def cone_network_stiffness(cones: RotationCones, omega) -> np.ndarray:
-    """Dynamic stiffness of the spring-dashpot-mass network that stands for each cone.
+    """Dynamic stiffness of the spring-dashpot-mass network that stands for each cone:
+    the same arguments and the same result, complex (m, 3) or (3,) [N·m/rad], as
+    :func:`cone_stiffness`, whose closed form it reproduces.
 
     The base rotation θ0 carries the spring K and the trapped inertia ΔMθ; the extra
     rotation θ1 (inertia Mθ) is tied to θ0 by the dashpot C only:
     Mθ·θ̈1 = C(θ̇0 − θ̇1). Eliminating θ1 at frequency ω:
     S = K − ω²ΔMθ + iωC·(ωMθ)/(ωMθ − iC).
-
-    Parameters
-    ----------
-    cones : RotationCones
-    omega : float or array (m,)
-        Circular frequency [rad/s].
-
-    Returns
-    -------
-    ndarray complex, shape (m, 3) (or (3,)) [N·m/rad]
     """
     w = np.asarray(omega, dtype=float)[..., None]
     wm = w * cones.internal_inertia
@@ -234,10 +226,7 @@ def cone_run(model, C, output, peak_operator, on_block, damping_update):
         :func:`groundshake.dynamics._direct.direct_response`, with n + 3 DOFs.
     """
     n = model.K.shape[0]
-    load = getattr(model, "ground_load", None)
-    if load is None:
-        load = np.asarray(model.M @ model.influence)
-    K, M, C, iota, load = with_cones(model.K, model.M, C, model.influence, load,
+    K, M, C, iota, load = with_cones(model.K, model.M, C, model.influence, model.ground_load,
                                      model.base_rotation_dofs, model.cones)
 
     def pad(A):

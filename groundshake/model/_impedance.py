@@ -222,8 +222,8 @@ def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=N
         Static surface springs and dashpots in the model's axes.
     lx, ly : float
         Base lengths along the model's x and y [m].
-    support : SupportSettings or dict
-        Reads ``embedment_depth``, ``sidewall_contact_depth`` (default: the embedment
+    support : SupportSettings
+        Reads ``embedment_depth``, ``sidewall_contact_depth`` (None: the embedment
         depth), ``shear_wave_velocity``, ``poisson_ratio``, ``density`` and
         ``radiation_damping``.
     frequency_hz : array (6,), optional
@@ -237,15 +237,12 @@ def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=N
     """
     from ._supports import Impedance
 
-    def get(key, default=None):
-        v = support.get(key, default) if isinstance(support, dict) else getattr(support, key,
-                                                                                 default)
-        return default if v is None else v
-
     L, B, swapped = half_sides(lx, ly)
-    depth = float(get("embedment_depth", 0.0))
-    contact = float(get("sidewall_contact_depth", depth))
-    vs, nu, rho = (float(get(k)) for k in ("shear_wave_velocity", "poisson_ratio", "density"))
+    depth = float(support.embedment_depth)
+    contact = depth if support.sidewall_contact_depth is None else \
+        float(support.sidewall_contact_depth)
+    vs, nu, rho = (float(support.shear_wave_velocity), float(support.poisson_ratio),
+                   float(support.density))
     vs *= math.sqrt(modulus_ratio_of(support)[0])       # strain-compatible, as the springs
     k = np.array(impedance.stiffness, dtype=float)
     c = np.array(impedance.damping, dtype=float)
@@ -256,7 +253,7 @@ def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=N
         notes.append(f"embedded base: D = {depth:g} m below grade, side walls in contact over "
                      f"d = {contact:g} m; stiffness factors of Gazetas (1991) Table 2 "
                      "(from memory - verify)")
-        if bool(get("radiation_damping", True)) and contact > 0:
+        if support.radiation_damping and contact > 0:
             c = c + to_model_axes(embedment_dashpots(L, B, contact_depth=contact,
                                                      shear_wave_velocity=vs,
                                                      poisson_ratio=nu, density=rho), swapped)

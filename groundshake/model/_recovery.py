@@ -21,6 +21,7 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse as sp
 
+from .._grid import grid_faces
 from ._elements import ElementMatrices
 from ._mesh import GridMesh
 
@@ -84,27 +85,12 @@ def surface_faces(mesh: GridMesh) -> np.ndarray:
     (n_f, 4) int, node numbers of each face.
     """
     filled = np.asarray(mesh.filled, bool)  # (nez, ney, nex)
-    nid = mesh.node_id                      # (nz, ny, nx)
     faces = []
     for axis in range(3):                   # 0: x, 1: y, 2: z (array axes 2, 1, 0)
-        ax = 2 - axis
-        pad = [(0, 0)] * 3
-        pad[ax] = (1, 1)
-        F = np.pad(filled, pad)
-        a = np.take(F, np.arange(F.shape[ax] - 1), axis=ax)
-        b = np.take(F, np.arange(1, F.shape[ax]), axis=ax)
-        idx = np.nonzero(a != b)            # face at grid line idx[ax] along the axis
-        # the face's four nodes: the line index along the axis, the cell's two lines across
-        corners = []
-        for d1 in (0, 1):
-            for d2 in (0, 1):
-                ijk = [np.asarray(v) for v in idx]
-                others = [q for q in range(3) if q != ax]
-                ijk[others[0]] = ijk[others[0]] + d1
-                ijk[others[1]] = ijk[others[1]] + d2
-                corners.append(nid[ijk[0], ijk[1], ijk[2]])
-        faces.append(np.stack([corners[0], corners[1], corners[3], corners[2]], axis=1))
-    return np.concatenate(faces, axis=0) if faces else np.zeros((0, 4), dtype=np.int64)
+        corners, _, _ = grid_faces(filled, 2 - axis)
+        # the four nodes in the order (0, 0), (0, 1), (1, 1), (1, 0) across the face
+        faces.append(mesh.node_id[tuple(np.moveaxis(corners[:, [0, 3, 2, 1]], -1, 0))])
+    return np.concatenate(faces, axis=0)
 
 
 def _reentrant_nodes(mesh: GridMesh) -> np.ndarray:

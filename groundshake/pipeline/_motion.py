@@ -5,7 +5,7 @@ the numerics a :class:`~groundshake.dynamics.Motion` (plain arrays on one time g
 """
 from __future__ import annotations
 
-from typing import Any, Mapping, Sequence
+from typing import Any
 
 import numpy as np
 
@@ -16,20 +16,12 @@ from ..matching._match import _shift_iso   # one helper for ISO times moved by a
 from ..processing import correct_record, resample
 from ..records import read_record
 from ..records._components import pick_component
-from ..scenario import errors_at_key
+from ..scenario import Scenario, errors_at_key
 
 __all__ = ["build_motion"]
 
 
-def _get(obj: Any, key: str, default: Any = None) -> Any:
-    if obj is None:
-        return default
-    if isinstance(obj, Mapping):
-        return obj.get(key, default)
-    return getattr(obj, key, default)
-
-
-def build_motion(scenario: Any) -> Motion:
+def build_motion(scenario: Scenario | dict) -> Motion:
     """Read, scale and correct the scenario's motion; bring components together.
 
     Each component is read (``file``, ``units``, ``dt``; one channel of a file by
@@ -46,50 +38,45 @@ def build_motion(scenario: Any) -> Motion:
 
     Parameters
     ----------
-    scenario : Scenario
-        Needs ``scenario.motion`` with any of ``x``, ``y``, ``z`` and
-        ``scenario.processing_settings()``.
+    scenario : Scenario or dict
+        Needs ``scenario.motion`` with any of ``x``, ``y``, ``z``; its processing settings
+        are used. A dict of the scenario's keys is validated into a Scenario first
+        (:meth:`Scenario.from_dict`).
 
     Returns
     -------
     Motion
     """
-
-    motion = _get(scenario, "motion")
-    settings = scenario.processing_settings() if hasattr(scenario, "processing_settings") else None
-    enabled = bool(_get(settings, "enabled", True)) if settings is not None else True
+    if isinstance(scenario, dict):
+        scenario = Scenario.from_dict(scenario)
+    motion = scenario.motion
+    settings = scenario.processing_settings()
     raw: dict[str, Any] = {}
     used: dict[str, Any] = {}
-    for d in DIRECTIONS:
-        spec = _get(motion, d)
-        if spec is None:
-            continue
-        where = f"motion.{d}"
-        path = _get(spec, "file")
-        recs = read_record(path, units=_get(spec, "units"), dt=_get(spec, "dt"),
-                           inventory=_get(motion, "inventory"))
+    for d, spec in (motion.components() if motion is not None else {}).items():
+        recs = read_record(spec.file, units=spec.units, dt=spec.dt, inventory=motion.inventory)
         with errors_at_key(scenario, ("motion", d)):     # names the scenario file and key
-            rec = pick_component(recs, trace=_get(spec, "trace"), channel=_get(spec, "channel"),
-                                 azimuth=_get(spec, "azimuth"), where=where)
-        scale = float(_get(spec, "scale", 1.0) or 1.0)
+            rec = pick_component(recs, trace=spec.trace, channel=spec.channel,
+                                 azimuth=spec.azimuth, where=f"motion.{d}")
+        scale = float(spec.scale)
         if scale != 1.0:
             rec = rec.replace(acc=rec.acc * scale, step=f"scaled by {scale:g}")
         raw[d] = rec
         with errors_at_key(scenario, ("processing",)):
-            used[d] = correct_record(rec, settings) if enabled else rec
+            used[d] = correct_record(rec, settings) if settings.enabled else rec
     if not used:
         raise InputError("motion: no component given; allowed keys x, y, z (at least one), "
                          'or method = "spectrum" for a [motion] with only a target')
     notes: list[str] = []
     matching: dict[str, Any] = {}
-    target = _get(motion, "target")
-    if bool(_get(motion, "match_target", False)) and target:
+    if motion.match_target and motion.target:
         for d in ("x", "y"):
             if d in used:
                 used[d], matching[d] = match_record_to_target(
-                    used[d], str(target), base_dir=_get(scenario, "base_dir"))
+                    used[d], str(motion.target), base_dir=scenario.base_dir)
         if "z" in used:
-            notes.append("motion.z: not matched (the target is a horizontal spectrum); used as corrected")
+            notes.append("motion.z: not matched (the target is a horizontal spectrum); "
+                         "used as corrected")
     dts = {d: r.dt for d, r in used.items()}
     dt = min(dts.values())
     if max(dts.values()) - dt > 1e-9 * dt:

@@ -3,14 +3,14 @@ from __future__ import annotations
 
 import warnings
 from dataclasses import dataclass
-from typing import Any
 
 import numpy as np
 
 from .._constants import DIRECTIONS
 from .._errors import GroundshakeWarning
-from ..dynamics import compute_modes, residual_vectors
-from ..model import build_model
+from ..dynamics import Modes, compute_modes, residual_vectors
+from ..model import BlockModel, build_model
+from ..scenario import Scenario
 
 __all__ = ["PreparedModel", "prepare_model"]
 
@@ -20,12 +20,12 @@ class PreparedModel:
     """``model`` (BlockModel), ``modes`` (Modes) and, for the modal method, ``residual``
     (n, 3): the missing-mass shapes of the three ground directions, else None."""
 
-    model: Any
-    modes: Any
+    model: BlockModel
+    modes: Modes
     residual: np.ndarray | None
 
 
-def prepare_model(scenario, *, method: str | None = None) -> PreparedModel:
+def prepare_model(scenario: Scenario | dict, *, method: str | None = None) -> PreparedModel:
     """Build the scenario's model, its modes and (modal) the missing-mass shapes once.
 
     Modes are kept up to ``analysis.cutoff_hz`` (or the ``analysis.modes`` count), with
@@ -36,10 +36,13 @@ def prepare_model(scenario, *, method: str | None = None) -> PreparedModel:
 
     Parameters
     ----------
-    scenario : Scenario
+    scenario : Scenario or dict
+        A dict of the scenario's keys is validated into a Scenario first.
     method : {"auto", "modal", "coupled", "direct"}, optional
         Overrides ``analysis.method``; no missing-mass shapes for "direct".
     """
+    if isinstance(scenario, dict):
+        scenario = Scenario.from_dict(scenario)
     model = build_model(scenario)
     analysis = scenario.analysis
     n_req = analysis.modes

@@ -19,7 +19,7 @@ from ._record import Record
 from ._units import canonical_units
 from ._write import restore_written_pad
 from .io import read as _read_with_registry
-from .io._common import MIN_SAMPLES
+from .io._common import MIN_SAMPLES, read_head
 from .io.text import STEP_TOLERANCE
 
 __all__ = ["read_record", "MIN_SAMPLES", "STEP_TOLERANCE", "PLAUSIBLE_PEAK"]
@@ -40,7 +40,8 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         formats, any format ObsPy reads, or delimited text: one column of
         acceleration (``dt`` given, or a ``# dt: ...`` line) or a time column [s]
         followed by one or more acceleration columns. Comma, semicolon or
-        whitespace separators; header lines are skipped.
+        whitespace separators; header lines are skipped. Any of them may be
+        gzip-compressed (``record.AT2.gz``).
     units : str, optional
         Units of the file's values (``"g"``, ``"m/s2"``, ``"cm/s2"``/``"gal"``,
         ``"mm/s2"``, ``"ft/s2"``, ``"in/s2"``). Needed when the file does not
@@ -90,12 +91,11 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         raise RecordError(f"{where}: no such file")
     if path.is_dir():
         raise RecordError(f"{where}: is a folder, not a record file")
-    try:
-        with open(path, "rb") as fh:
-            blank = not fh.read(1 << 16).strip() and not fh.read(1)
+    try:  # the content: a gzip-compressed file's decompressed
+        head = read_head(path, (1 << 16) + 1)
     except OSError as e:
         raise RecordError(f"{where}: cannot be read ({e.strerror or e})") from e
-    if blank:
+    if len(head) <= 1 << 16 and not head.strip():
         raise RecordError(f"{where}: the file is empty")
     user_units = None if units is None else canonical_units(units, where=f"{where}: units")
     if dt is not None:

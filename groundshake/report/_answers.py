@@ -4,9 +4,10 @@ from __future__ import annotations
 from typing import Any, Mapping
 
 from .._cautions import CAUTIONS
+from ..results._schema import read, read_list, read_number, read_table
 from ._html import esc, table
 from ._units import display_unit
-from ._context import Context, as_float as _f, get as _get, named as _named
+from ._context import Context, as_float as _f, named as _named
 from ._context import sentence as _sentence
 
 __all__ = ["AnswersPart", "bolt_exceedances"]
@@ -17,12 +18,13 @@ def bolt_exceedances(summary: Mapping[str, Any]) -> list[tuple[str, str, list[in
     largest ratio, the bolt where it is) for each equipment and each of tension, shear and
     tension–shear interaction (ratios from summary.json; none is computed here)."""
     out = []
-    for name, eq in _named(summary.get("equipment")):
-        anchors = _get(eq, "anchors") or []
+    for name, _ in _named(read(summary, "equipment")):
+        anchors = read_list(summary, "equipment", name, "anchors")
         for key, what in (("dc_tension", "tension"), ("dc_shear", "shear"),
                           ("interaction_ratio", "tension–shear interaction")):
-            over = [(k, v) for k, a in enumerate(anchors, start=1)
-                    if (v := _f(_get(a, key))) is not None and v > 1.0]
+            over = [(k, v) for k in range(1, len(anchors) + 1)
+                    if (v := read_number(summary, "equipment", name, "anchors", k - 1, key))
+                    is not None and v > 1.0]
             if over:
                 at, top = max(over, key=lambda t: t[1])
                 out.append((name, what, [k for k, _ in over], top, at))
@@ -43,15 +45,14 @@ class AnswersPart(Context):
                 listed = ", ".join(map(str, bolts[:-1])) + f" and {bolts[-1]}"
                 out.append(f"Bolts {listed} of {name}: {what} demand above the capacity "
                            f"entered, up to {self.n(top, 'ratio')} times (bolt {at}).")
-        st = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
         for key, what in (("sliding", "sliding"), ("overturning", "overturning")):
-            v = _f(_get(st, key, "min_safety_factor"))
+            v = read_number(self.s, "stability", key, "min_safety_factor")
             if v is not None and v < 1.0:
                 out.append(f"Least {what} safety factor {self.n(v, 'ratio')} is below 1.")
-        v = _f(_get(st, "bearing", "ratio_to_allowable"))
+        v = read_number(self.s, "stability", "bearing", "ratio_to_allowable")
         if v is not None and v > 1.0:
             out.append(f"Peak bearing pressure is {self.n(v, 'ratio')} times the allowable entered.")
-        c = _get(self.s, "base", "contact")
+        c = read(self.s, "base", "contact")
         if isinstance(c, Mapping) and c.get("uplift"):
             when = self._when(c.get("time_of_min_pressure"))
             out.append(f"The base loses contact: the linear contact pressure falls to "
@@ -61,7 +62,7 @@ class AnswersPart(Context):
         return out
 
     def warning_list(self) -> list[str]:
-        w = self.s.get("warnings") or []
+        w = read(self.s, "warnings") or []
         if isinstance(w, (str, Mapping)):
             w = [w]
         return [str(x.get("message") or x) if isinstance(x, Mapping) else str(x) for x in w]
@@ -75,71 +76,70 @@ class AnswersPart(Context):
                          where])
             classes.append("over" if over else "")
 
-        pk = self.s.get("peaks") or {}
-        bp = _get(self.s, "base", "peaks") or {}
+        s = self.s
         for d, key in (("x", "Fx"), ("y", "Fy")):
-            add(f"Peak base shear, {d}", _get(pk, "base_shear", d), "force",
-                self._when(_get(bp, key, "time")))
-        add("Peak vertical base force (dynamic part)", _get(pk, "base_axial"), "force",
-            self._when(_get(bp, "Fz", "time")))
+            add(f"Peak base shear, {d}", read(s, "peaks", "base_shear", d), "force",
+                self._when(read(s, "base", "peaks", key, "time")))
+        add("Peak vertical base force (dynamic part)", read(s, "peaks", "base_axial"), "force",
+            self._when(read(s, "base", "peaks", "Fz", "time")))
         for d, key in (("x", "Mx"), ("y", "My")):
-            add(f"Peak overturning moment about {d}", _get(pk, "overturning_moment", d),
-                "moment", self._when(_get(bp, key, "time")))
-        rd = _get(pk, "relative_displacement") or {}
-        if isinstance(rd, Mapping) and rd:
-            d = max(rd, key=lambda k: _f(_get(rd, k, "value")) or 0.0)
-            add("Peak displacement relative to the ground", _get(rd, d, "value"), "displacement",
-                f"{d}, at {self._at(_get(rd, d, 'at'))}, {self._when(_get(rd, d, 'time'))}")
-        st = self.s.get("stresses") or {}
-        vm = _get(st, "von_mises")
+            add(f"Peak overturning moment about {d}", read(s, "peaks", "overturning_moment", d),
+                "moment", self._when(read(s, "base", "peaks", key, "time")))
+        rd = read_table(s, "peaks", "relative_displacement")
+        if rd:
+            def disp(k, what):
+                return read(s, "peaks", "relative_displacement", k, what)
+            d = max(rd, key=lambda k: _f(disp(k, "value")) or 0.0)
+            add("Peak displacement relative to the ground", disp(d, "value"), "displacement",
+                f"{d}, at {self._at(disp(d, 'at'))}, {self._when(disp(d, 'time'))}")
+        vm = read(s, "stresses", "von_mises")
         if isinstance(vm, Mapping):
-            away = _get(vm, "away_from_features", "value")
+            away = read(s, "stresses", "von_mises", "away_from_features", "value")
             if _f(away) is not None:
                 add("Peak von Mises stress (away from local features)", away, "stress",
-                    f"at {self._at(_get(vm, 'away_from_features', 'at'))}")
+                    f"at {self._at(read(s, 'stresses', 'von_mises', 'away_from_features', 'at'))}")
             add("Peak von Mises stress (anywhere)", vm.get("value"), "stress",
                 f"at {self._at(vm.get('at'))}" + (f", {vm['feature']}" if vm.get("feature") else ""))
-        elif _f(pk.get("von_mises")) is not None:
-            add("Peak von Mises stress", pk.get("von_mises"), "stress")
-        pt = _get(st, "principal_tension")
+        elif _f(read(s, "peaks", "von_mises")) is not None:
+            add("Peak von Mises stress", read(s, "peaks", "von_mises"), "stress")
+        pt = read(s, "stresses", "principal_tension")
         if isinstance(pt, Mapping):
             add("Peak principal tension", pt.get("value"), "stress", f"at {self._at(pt.get('at'))}")
-        c = _get(self.s, "base", "contact")
+        c = read(s, "base", "contact")
         if isinstance(c, Mapping):
             add("Peak contact pressure under the base", c.get("peak_pressure"), "pressure",
                 self._when(c.get("time_of_peak_pressure")))
             add("Least contact pressure (negative: uplift)", c.get("min_pressure"), "pressure",
                 self._when(c.get("time_of_min_pressure")), over=bool(c.get("uplift")))
-        stab = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
         for key, label in (("sliding", "Least sliding safety factor"),
                            ("overturning", "Least overturning safety factor")):
-            v = _f(_get(stab, key, "min_safety_factor"))
+            v = read_number(s, "stability", key, "min_safety_factor")
             if v is not None:
-                case = _get(stab, key, "case")
-                where = self._when(_get(stab, key, "time"))
+                case = read(s, "stability", key, "case")
+                where = self._when(read(s, "stability", key, "time"))
                 add(label, v, "ratio", (f"{case} soil, " if case else "") + where, over=v < 1.0)
-        q = _f(_get(stab, "bearing", "peak_pressure"))
+        q = read_number(s, "stability", "bearing", "peak_pressure")
         if q is not None:
-            r = _f(_get(stab, "bearing", "ratio_to_allowable"))
+            r = read_number(s, "stability", "bearing", "ratio_to_allowable")
             add("Peak bearing pressure (no-tension base)", q, "pressure",
                 "" if r is None else f"{self.n(r, 'ratio')} × allowable entered",
                 over=r is not None and r > 1.0)
-        for name, eq in _named(self.s.get("equipment")):
-            pa = _get(eq, "peak_absolute_acceleration") or {}
-            if isinstance(pa, Mapping) and pa:
+        for name, _ in _named(read(s, "equipment")):
+            pa = read_table(s, "equipment", name, "peak_absolute_acceleration")
+            if pa:
                 d = max(pa, key=lambda k: _f(pa[k]) or 0.0)
                 add(f"Peak acceleration of {name} (centre of mass)", pa[d], "acceleration", d)
-        w = self.s.get("worst_dc")
+        w = read(self.s, "worst_dc")
         if isinstance(w, Mapping) and _f(w.get("value")) is not None:
             v = float(w["value"])
             add("Largest bolt demand / entered capacity", v, "ratio",
                 f"{w.get('equipment')}, bolt {w.get('bolt')}", over=v > 1.0)
-        wi = self.s.get("worst_interaction")
+        wi = read(self.s, "worst_interaction")
         if isinstance(wi, Mapping) and _f(wi.get("value")) is not None:
             v = float(wi["value"])
             add("Largest bolt tension–shear interaction", v, "ratio",
                 f"{wi.get('equipment')}, bolt {wi.get('bolt')}", over=v > 1.0)
-        for md in (_get(self.s, "modes", "modes") or [])[:3]:
+        for md in read_list(s, "modes", "modes")[:3]:
             if isinstance(md, Mapping):
                 add(f"Mode {md.get('mode')} frequency", md.get("frequency"), "frequency",
                     self._direction_words(md.get("dominant_direction")))
@@ -147,7 +147,7 @@ class AnswersPart(Context):
                  if n.startswith("This output folder was written under an older")]
         html_.append(table(rows, ["quantity", "value", "unit", "where, when"],
                            row_classes=classes, cls="grid answers"))
-        cases = [c for c in self.s.get("soil_cases") or [] if isinstance(c, Mapping)]
+        cases = [c for c in read(self.s, "soil_cases") or [] if isinstance(c, Mapping)]
         if cases:
             html_.append('<p class="note">Peaks are the envelope over the soil cases ' + ", ".join(
                 f"{esc(c.get('name'))} (G = {esc(self.q(c.get('shear_modulus'), 'modulus'))})"
@@ -170,7 +170,7 @@ class AnswersPart(Context):
 
     def caution_list(self) -> list[str]:
         items = list(CAUTIONS)
-        extra = self.s.get("cautions") or []
+        extra = read(self.s, "cautions") or []
         for c in extra if isinstance(extra, list) else [extra]:
             if str(c) not in items:
                 items.append(str(c))

@@ -8,7 +8,8 @@ from typing import Mapping
 
 from .. import __version__
 from ._html import esc, table, toml_text
-from ._context import Context, get as _get
+from ..results._schema import read_table
+from ._context import Context
 
 __all__ = ["AppendixPart"]
 
@@ -28,7 +29,7 @@ class AppendixPart(Context):
 
         scen = clean(dict(self.scenario))
         scen_file = None
-        for k in (_get(self.s, "provenance", "inputs") or {}):
+        for k in read_table(self.s, "provenance", "inputs"):
             if str(k).endswith(".toml"):
                 scen_file = Path(str(k))
         motion = scen.get("motion") if isinstance(scen.get("motion"), Mapping) else None
@@ -58,11 +59,11 @@ class AppendixPart(Context):
                 f"<pre>{esc(text)}</pre></details>")
 
     def provenance(self) -> str:
-        prov = self.s.get("provenance") if isinstance(self.s.get("provenance"), Mapping) else {}
+        prov = read_table(self.s, "provenance")
         rows = [["groundshake version", str(prov.get("version", "—"))],
                 ["run at (UTC)", str(prov.get("date", "—"))],
                 ["command", str(prov.get("command", "—"))]]
-        a = self.s.get("analysis") if isinstance(self.s.get("analysis"), Mapping) else {}
+        a = read_table(self.s, "analysis")
         if a:
             rows.append(["method", f"{a.get('method', '—')}; {a.get('n_modes', '—')} modes up to "
                                    f"{self.q(a.get('cutoff_hz'), 'frequency')}; time step "

@@ -11,27 +11,15 @@ from typing import Any, Callable, Mapping
 
 import numpy as np
 
-from ..results._schema import DIRECTIONS, SCHEMA_VERSION, iter_values, kind_of
-from . import _figures as F
+from ..results._schema import DIRECTIONS, SCHEMA_VERSION, iter_values, kind_of, read
+from ..plots import to_data_uri
 from ._html import esc, figure, raw
 from ._load import OutputFolder
 from ._units import display_unit, fmt
 
-__all__ = ["Context", "get", "as_float", "named", "sentence", "DIR_WORDS"]
+__all__ = ["Context", "as_float", "named", "sentence", "DIR_WORDS"]
 
 DIR_WORDS = {"x": "x", "y": "y", "z": "z (vertical)"}
-
-
-def get(d: Any, *keys: Any, default: Any = None) -> Any:
-    for k in keys:
-        if isinstance(d, Mapping) and k in d:
-            d = d[k]
-        elif isinstance(d, list) and isinstance(k, int) and -len(d) <= k < len(d):
-            d = d[k]
-        else:
-            return default
-    return d
-
 
 
 def as_float(v: Any) -> float | None:
@@ -71,7 +59,7 @@ class Context:
         scen = self.s.get("scenario")
         self.scenario = scen if isinstance(scen, Mapping) else {}
         self.notes: list[str] = list(folder.notes)
-        version = get(self.s, "schema", "version")
+        version = read(self.s, "schema", "version")
         if not isinstance(version, int) or version < SCHEMA_VERSION:
             self.notes.insert(0, f"This output folder was written under an older output "
                                  f"contract (version {version or 1}, now {SCHEMA_VERSION}); "
@@ -116,7 +104,7 @@ class Context:
             fig = make()
             if fig is None:
                 return ""
-            return figure(F.data_uri(fig), caption, fid=fid)
+            return figure(to_data_uri(fig), caption, fid=fid)
         except Exception as e:  # a figure must never sink the report
             self.notes.append(f"The figure '{caption[:60]}' could not be drawn "
                               f"({type(e).__name__}: {e}).")

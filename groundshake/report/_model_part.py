@@ -5,11 +5,11 @@ from typing import Mapping
 
 import numpy as np
 
-from ..results._schema import COLUMNS, DIRECTIONS, header
+from ..results._schema import COLUMNS, DIRECTIONS, header, read, read_table
 from . import _figures as F
 from ._html import esc, table
 from ._units import display_unit, to_display
-from ._context import Context, as_float as _f, get as _get, named as _named
+from ._context import Context, as_float as _f, named as _named
 
 __all__ = ["ModelPart"]
 
@@ -34,7 +34,7 @@ class ModelPart(Context):
     def model(self) -> str:
         grid = self.grid()
         m = self.f.mesh if isinstance(self.f.mesh, Mapping) else {}
-        md = self.s.get("model") if isinstance(self.s.get("model"), Mapping) else {}
+        md = read_table(self.s, "model")
         html_ = []
         if grid is not None:
             parts = [str(p) for p in m.get("parts", [])]
@@ -59,11 +59,13 @@ class ModelPart(Context):
                 f"bolts (triangles) and sensors (stars). Lengths in {lu}.", fid="fig-model"))
         rows = []
         mats = _named(md.get("materials"))
-        for name, mat in mats:
+        for name, _ in mats:
+            def mat(key):
+                return read(self.s, "model", "materials", name, key)
             rows.append([f"Material {name}: Young's modulus, Poisson's ratio, density",
-                         f"{self.q(_get(mat, 'youngs_modulus'), 'modulus')}, "
-                         f"{self.n(_get(mat, 'poisson_ratio'), 'ratio')}, "
-                         f"{self.q(_get(mat, 'density'), 'density')}"])
+                         f"{self.q(mat('youngs_modulus'), 'modulus')}, "
+                         f"{self.n(mat('poisson_ratio'), 'ratio')}, "
+                         f"{self.q(mat('density'), 'density')}"])
         rows.append(["Elements, nodes, degrees of freedom",
                      f"{md.get('n_elements', '—')} {md.get('element', '')}, {md.get('n_nodes', '—')}, "
                      f"{md.get('n_dof', '—')}"])
@@ -94,7 +96,7 @@ class ModelPart(Context):
             formulas = sup.get("formulas") or []
             if formulas:
                 html_.append('<p class="note">' + esc(" ".join(str(x) for x in formulas)) + "</p>")
-        eqs = [(n, e) for n, e in _named(self.s.get("equipment")) if isinstance(e, Mapping)]
+        eqs = [(n, e) for n, e in _named(read(self.s, "equipment")) if isinstance(e, Mapping)]
         if eqs:
             erows = []
             for name, e in eqs:
@@ -141,7 +143,7 @@ class ModelPart(Context):
                               *(f"rotation about {d} [%]" for d in DIRECTIONS), "character"])]
         if t.n_rows > 30:
             html_.append(f'<p class="note">First 30 of {t.n_rows} modes; all are in modes.csv.</p>')
-        cap = _get(self.s, "analysis", "retained_mass_ratio")
+        cap = read(self.s, "analysis", "retained_mass_ratio")
         if isinstance(cap, Mapping):
             html_.append('<p class="note">Mass held by the modes kept: ' + ", ".join(
                 f"{d} {self.n(100 * (_f(cap.get(d)) or 0), 'percent', digits=4)} %"

@@ -7,11 +7,11 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from ..results._schema import COLUMNS, DIRECTIONS, header
+from ..results._schema import COLUMNS, DIRECTIONS, header, read, read_list, read_table
 from . import _figures as F
-from ._html import esc, raw, table
+from ._html import esc, table
 from ._units import display_unit, to_display
-from ._context import DIR_WORDS as _DIR_WORDS, Context, as_float as _f, get as _get
+from ._context import DIR_WORDS as _DIR_WORDS, Context, as_float as _f
 
 __all__ = ["MotionPart"]
 
@@ -20,7 +20,7 @@ class MotionPart(Context):
     """One part of the report (see the module docstring)."""
 
     def record_list(self) -> list[dict[str, Any]]:
-        return [dict(r) for r in self.s.get("records") or [] if isinstance(r, Mapping)]
+        return [dict(r) for r in read_list(self.s, "records") if isinstance(r, Mapping)]
 
     def motion(self) -> str:
         html_ = []
@@ -29,11 +29,13 @@ class MotionPart(Context):
                     ("pgd", "PGD", "displacement"), ("arias_intensity", "Arias intensity", "arias"),
                     ("d5_95", "significant duration D5–95", "time"), ("cav", "CAV", "velocity"))
         rows = []
-        for r in recs:
-            m = r.get("measures") if isinstance(r.get("measures"), Mapping) else r
+        for i, r in enumerate(read_list(self.s, "records")):
+            if not isinstance(r, Mapping):
+                continue
             rows.append([_DIR_WORDS.get(str(r.get("direction")), r.get("direction", "")),
                          r.get("name", ""), Path(str(r.get("source") or "")).name,
-                         *(self.cell(_get(m, k), kind) for k, _, kind in measures)])
+                         *(self.cell(read(self.s, "records", i, "measures", k), kind)
+                           for k, _, kind in measures)])
         if rows:
             html_.append(table(rows, ["direction", "record", "file",
                                       *(self.h(lab, kind) for _, lab, kind in measures)]))
@@ -75,7 +77,7 @@ class MotionPart(Context):
             if rows:
                 figs.append((d, rows))
         out = []
-        matched = _get(self.s, "motion", "matching") or {}
+        matched = read_table(self.s, "motion", "matching")
         for d, rows in figs:
             what = "corrected and matched to the target" if d in matched else "corrected"
             out.append(self._fig(lambda rows=rows, d=d: F.record_figure(rows, title=f"direction {_DIR_WORDS[d]}"),
@@ -124,7 +126,7 @@ class MotionPart(Context):
 
     def matching(self) -> str:
         """Acceptance of each matched component and its spectra before and after."""
-        mt = _get(self.s, "motion", "matching")
+        mt = read(self.s, "motion", "matching")
         if not isinstance(mt, Mapping) or not mt:
             return ""
         checks_words = {"shortfall": ("largest shortfall below the target", "largest_shortfall",

@@ -7,11 +7,12 @@ from typing import Mapping
 import numpy as np
 
 from ..results._schema import (COLUMNS, DIRECTIONS, HISTORY_BASE, KIND_OF_UNIT, header,
-                               history_label, kind_of, parse_header)
+                               history_label, kind_of, parse_header, read, read_list,
+                               read_number, read_table)
 from . import _figures as F
 from ._html import esc, raw, table
 from ._units import display_unit, fmt, to_display
-from ._context import DIR_WORDS as _DIR_WORDS, Context, as_float as _f, get as _get, named as _named, sentence as _sentence
+from ._context import DIR_WORDS as _DIR_WORDS, Context, as_float as _f, named as _named, sentence as _sentence
 
 __all__ = ["ResponsePart"]
 
@@ -22,7 +23,7 @@ class ResponsePart(Context):
     def spectrum_note(self) -> str:
         """For a response-spectrum run: what its peaks are (no signs, no times) and the
         side-by-side table with spectrum-compatible motions, in display units."""
-        an = self.s.get("analysis")
+        an = read(self.s, "analysis")
         if not (isinstance(an, Mapping) and an.get("method") == "spectrum"):
             return ""
         out = ('<p class="note">Response-spectrum analysis of the design spectrum: every '
@@ -53,8 +54,8 @@ class ResponsePart(Context):
 
     def response(self) -> str:
         html_ = [self.spectrum_note()]
-        bp = _get(self.s, "base", "peaks") or {}
-        if isinstance(bp, Mapping) and bp:
+        bp = read_table(self.s, "base", "peaks")
+        if bp:
             rows = []
             for key, what, kind in (("Fx", "shear x", "force"), ("Fy", "shear y", "force"),
                                     ("Fz", "vertical force", "force"),
@@ -77,7 +78,7 @@ class ResponsePart(Context):
         return "".join(html_)
 
     def stress_table(self) -> str:
-        st = self.s.get("stresses")
+        st = read(self.s, "stresses")
         if not isinstance(st, Mapping):
             return ""
         rows = []
@@ -119,8 +120,8 @@ class ResponsePart(Context):
                          fid="fig-stress")
 
     def contact_table(self) -> str:
-        c = _get(self.s, "base", "contact")
-        st = self.s.get("stability") if isinstance(self.s.get("stability"), Mapping) else {}
+        c = read(self.s, "base", "contact")
+        st = read(self.s, "stability") if isinstance(read(self.s, "stability"), Mapping) else {}
         rows, classes = [], []
         if isinstance(c, Mapping):
             rows.append(["contact pressure from the weight alone", self.cell(c.get("static_pressure"), "pressure"), ""])
@@ -150,14 +151,16 @@ class ResponsePart(Context):
                                                         f"; {self.n(r, 'ratio')} × allowable entered")])
             classes.append("over" if r is not None and r > 1.0 else "")
         cases = []
-        for case in self.s.get("soil_cases") or []:
+        for i, case in enumerate(read_list(self.s, "soil_cases")):
             if isinstance(case, Mapping):
+                def at(*keys):
+                    return read(self.s, "soil_cases", i, *keys)
                 cases.append([str(case.get("name", "")),
                               self.cell(case.get("shear_modulus"), "modulus"),
-                              self.cell(_get(case, "modes", 0, "frequency"), "frequency"),
-                              self.cell(_get(case, "stability", "sliding", "min_safety_factor"), "ratio"),
-                              self.cell(_get(case, "stability", "overturning", "min_safety_factor"), "ratio"),
-                              self.cell(_get(case, "stability", "bearing", "peak_pressure"), "pressure")])
+                              self.cell(at("modes", 0, "frequency"), "frequency"),
+                              self.cell(at("stability", "sliding", "min_safety_factor"), "ratio"),
+                              self.cell(at("stability", "overturning", "min_safety_factor"), "ratio"),
+                              self.cell(at("stability", "bearing", "peak_pressure"), "pressure")])
         if not rows and not cases:
             return ""
         note = ('<p class="note">Rigid-base statics from the base resultants with the weights: '
@@ -176,14 +179,14 @@ class ResponsePart(Context):
     def points_table(self) -> str:
         rows = []
         for group, word in (("sensors", "sensor"), ("equipment", "equipment")):
-            for name, obj in _named(self.s.get(group)):
+            for name, obj in _named(read(self.s, group)):
                 if not isinstance(obj, Mapping):
                     continue
-                pa = obj.get("peak_absolute_acceleration") or {}
-                rd = obj.get("peak_relative_displacement") or {}
                 rows.append([f"{word} {name}",
-                             *(self.cell(_get(pa, d), "acceleration") for d in DIRECTIONS),
-                             *(self.cell(_get(rd, d), "displacement") for d in DIRECTIONS)])
+                             *(self.cell(read(self.s, group, name, "peak_absolute_acceleration",
+                                              d), "acceleration") for d in DIRECTIONS),
+                             *(self.cell(read(self.s, group, name, "peak_relative_displacement",
+                                              d), "displacement") for d in DIRECTIONS)])
         if not rows:
             return ""
         return ("<h3>Peaks at sensors and equipment</h3>"
@@ -224,15 +227,15 @@ class ResponsePart(Context):
                                  "own scale; the axis is cropped to the shaking).", fid="fig-base"))
         pts = []
         for group in ("sensors", "equipment"):
-            for name, _ in _named(self.s.get(group)):
+            for name, _ in _named(read(self.s, group)):
                 acc = [(d, self._hist(history_label("abs acc", name=name, direction=d))) for d in DIRECTIONS]
                 acc = [(d, v) for d, v in acc if v is not None]
                 if acc:
                     pts.append((f"{name}: absolute acceleration", acc,
                                 display_unit("acceleration", self.sys)))
         eq_strips = []
-        for name, eq in _named(self.s.get("equipment")):
-            k = len(_get(eq, "anchors") or [])
+        for name, _ in _named(read(self.s, "equipment")):
+            k = len(read_list(self.s, "equipment", name, "anchors"))
             ax = [(f"bolt {b}", self._hist(history_label("tension", name=name, bolt=b)))
                   for b in range(1, k + 1)]
             sh = [(f"bolt {b}", self._hist(history_label("shear", name=name, bolt=b)))
@@ -257,23 +260,29 @@ class ResponsePart(Context):
                  "Demand/capacity ratios compare these peaks with the capacities entered in the "
                  "scenario: a screening comparison, not a code check.</p>"]
         found = False
-        for name, eq in _named(self.s.get("equipment")):
-            anchors = _get(eq, "anchors") or []
+        for name, eq in _named(read(self.s, "equipment")):
+            anchors = read_list(self.s, "equipment", name, "anchors")
             if not anchors:
                 continue
             found = True
-            cap = eq.get("capacity") if isinstance(eq.get("capacity"), Mapping) else {}
+            cap = read_table(self.s, "equipment", name, "capacity")
             body, classes = [], []
-            has_ir = any(_f(_get(a, "interaction_ratio")) is not None for a in anchors)
-            for k, a in enumerate(anchors, start=1):
-                dct, dcv = _f(_get(a, "dc_tension")), _f(_get(a, "dc_shear"))
-                ir = _f(_get(a, "interaction_ratio"))
+
+            def bolt(k, key):
+                return read(self.s, "equipment", name, "anchors", k - 1, key)
+
+            has_ir = any(read_number(self.s, "equipment", name, "anchors", i,
+                                     "interaction_ratio") is not None
+                         for i in range(len(anchors)))
+            for k in range(1, len(anchors) + 1):
+                dct, dcv = _f(bolt(k, "dc_tension")), _f(bolt(k, "dc_shear"))
+                ir = _f(bolt(k, "interaction_ratio"))
                 over = any(d is not None and d > 1.0 for d in (dct, dcv, ir))
                 have = dct is not None or dcv is not None
-                pos = _get(a, "position") or []
+                pos = bolt(k, "position") or []
                 row = [k, ", ".join(self.n(v, "length") for v in pos),
-                       self.cell(_get(a, "peak_tension"), "force"),
-                       self.cell(_get(a, "peak_shear"), "force"),
+                       self.cell(bolt(k, "peak_tension"), "force"),
+                       self.cell(bolt(k, "peak_shear"), "force"),
                        raw(f'<b class="dc">{esc(self.n(dct, "ratio"))}</b>'),
                        raw(f'<b class="dc">{esc(self.n(dcv, "ratio"))}</b>')]
                 if has_ir:
@@ -347,7 +356,7 @@ class ResponsePart(Context):
         html_ = [table(rows, ["point", "direction", self.h("damping", "damping"),
                               f"peak PSA [{unit}]", f"peak PSA broadened [{unit}]",
                               self.h("at period", "time"), f"PSA at the shortest period [{unit}]"])]
-        info = self.s.get("floor_spectra") if isinstance(self.s.get("floor_spectra"), Mapping) else {}
+        info = read(self.s, "floor_spectra") if isinstance(read(self.s, "floor_spectra"), Mapping) else {}
         if info.get("broadening"):
             html_.append(f'<p class="note">Broadening ±{self.n(info.get("broadening_percent"), "percent")} %: '
                          f'{esc(info["broadening"])}.</p>')

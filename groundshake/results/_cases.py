@@ -18,12 +18,13 @@ import copy
 import dataclasses
 import math
 import warnings
-from typing import Any
+from typing import Mapping
 
 import numpy as np
 
 from .._errors import GroundshakeWarning, InputError
 from ..model._impedance import modulus_ratio_of
+from ..scenario import Scenario, StrainCompatible, SupportSettings
 
 __all__ = ["soil_cases", "needs_soil_cases", "analyse_cases", "consistent_soil_model",
            "spring_frequencies", "CASE_PRACTICE"]
@@ -34,21 +35,13 @@ CASE_PRACTICE = ("lower, best and upper estimates G/(1+Cv), G, G(1+Cv) of the st
                  "broadening")
 
 
-def _get(obj, key, default=None):
-    if obj is None:
-        return default
-    v = obj.get(key, default) if isinstance(obj, dict) else getattr(obj, key, default)
-    return default if v is None else v
-
-
-def needs_soil_cases(scenario) -> bool:
+def needs_soil_cases(scenario: Scenario) -> bool:
     """True when the scenario asks for soil cases (``variation``) or a modulus reduction."""
-    s = _get(scenario, "support")
-    if _get(s, "kind", "fixed") != "soil":
+    s = scenario.support
+    if s.kind != "soil":
         return False
-    return (_get(s, "variation") is not None or _get(s, "modulus_ratio") is not None
-            or _get(s, "strain_compatible") is not None
-            or bool(_get(s, "frequency_dependent", False)))
+    return (s.variation is not None or s.modulus_ratio is not None
+            or s.strain_compatible is not None or bool(s.frequency_dependent))
 
 
 def spring_frequencies(model, modes, *, least_share: float = 0.05) -> np.ndarray:
@@ -87,7 +80,7 @@ def spring_frequencies(model, modes, *, least_share: float = 0.05) -> np.ndarray
     return np.where(tot > 0, (w @ f) / np.where(tot > 0, tot, 1.0), 0.0)
 
 
-def consistent_soil_model(scenario, *, cutoff_hz=None, n_modes=None, tol: float = 0.01,
+def consistent_soil_model(scenario: Scenario, *, cutoff_hz=None, n_modes=None, tol: float = 0.01,
                           max_iter: int = 8):
     """A model whose springs are evaluated at the frequencies of their own modes.
 
@@ -114,9 +107,9 @@ def consistent_soil_model(scenario, *, cutoff_hz=None, n_modes=None, tol: float 
     """
     from ..dynamics import compute_modes
     from ..model import build_model
-    an = _get(scenario, "analysis")
-    cutoff_hz = cutoff_hz if cutoff_hz is not None else _get(an, "cutoff_hz", 50.0)
-    n_modes = n_modes if n_modes is not None else _get(an, "modes")
+    an = scenario.analysis
+    cutoff_hz = cutoff_hz if cutoff_hz is not None else an.cutoff_hz
+    n_modes = n_modes if n_modes is not None else an.modes
     model = build_model(scenario)
     f_old = None
     converged = False
@@ -138,14 +131,26 @@ def consistent_soil_model(scenario, *, cutoff_hz=None, n_modes=None, tol: float 
                    "iterations": it, "converged": converged}
 
 
-def soil_cases(support) -> list[dict]:
+def _as_support(support: SupportSettings | Mapping) -> SupportSettings:
+    """The ``[support]`` table as its scenario type (a dict of its keys converted once;
+    keys given as None take the type's defaults)."""
+    if isinstance(support, SupportSettings):
+        return support
+    given = {k: v for k, v in support.items() if v is not None}
+    if isinstance(given.get("strain_compatible"), Mapping):
+        given["strain_compatible"] = StrainCompatible(**given["strain_compatible"])
+    return SupportSettings(**given)
+
+
+def soil_cases(support: SupportSettings | Mapping) -> list[dict]:
     """The soil cases of a ``[support]`` table.
 
     Parameters
     ----------
     support : SupportSettings or dict
         Soil support with ``shear_wave_velocity`` [m/s], ``density`` [kg/m³] and
-        optionally ``variation`` (Cv), ``modulus_ratio`` or ``strain_compatible``.
+        optionally ``variation`` (Cv), ``modulus_ratio`` or ``strain_compatible``; a dict
+        of these keys is converted to :class:`SupportSettings` first.
 
     Returns
     -------
@@ -156,10 +161,11 @@ def soil_cases(support) -> list[dict]:
         ``input_shear_wave_velocity`` [m/s] (what the case's model is given before the
         modulus ratio is applied) and ``modulus_source``.
     """
-    vs0 = float(_get(support, "shear_wave_velocity"))
-    rho = float(_get(support, "density"))
+    support = _as_support(support)
+    vs0 = float(support.shear_wave_velocity)
+    rho = float(support.density)
     ratio, source = modulus_ratio_of(support)
-    cv = _get(support, "variation")
+    cv = support.variation
     factors = [("best", 1.0)] if cv is None else \
         [("lower", 1.0 / (1.0 + float(cv))), ("best", 1.0), ("upper", 1.0 + float(cv))]
     out = []
@@ -189,7 +195,8 @@ def _govern_peaks(items: list, names: list[str]):
     first = items[0]
     if isinstance(first, dict):
         if "value" in first:
-            k = int(np.argmax([_mag(_get(x, "value")) for x in items]))
+            k = int(np.argmax([_mag(x.get("value") if isinstance(x, dict) else None)
+                               for x in items]))
             return {**items[k], "case": names[k]}
         return {key: _govern_peaks([x.get(key) for x in items], names) for key in first
                 if all(isinstance(x, dict) and key in x for x in items)}
@@ -241,7 +248,7 @@ def _envelope_stability(items: list, names: list[str]) -> dict:
     out = copy.deepcopy(items[0])
 
     def least(key):
-        vals = [(_get(x[key], "min_safety_factor"), j) for j, x in enumerate(items)]
+        vals = [(x[key].get("min_safety_factor"), j) for j, x in enumerate(items)]
         vals = [(math.inf if v is None else v, j) for v, j in vals]
         v, j = min(vals)
         if items[j][key].get("min_safety_factor") is not None or all(
@@ -252,13 +259,17 @@ def _envelope_stability(items: list, names: list[str]) -> dict:
 
     least("sliding")
     least("overturning")
-    peaks = [(_get(x["bearing"], "peak_pressure", math.inf) if x["bearing"].get("edge") is not None
+    peaks = [(_or_inf(x["bearing"].get("peak_pressure")) if x["bearing"].get("edge") is not None
               else -math.inf) for x in items]
     j = int(np.argmax(peaks))
     out["bearing"] = {**items[j]["bearing"], "case": names[j],
                       "by_case": {names[i]: x["bearing"].get("peak_pressure")
                                   for i, x in enumerate(items)}}
     return out
+
+
+def _or_inf(v) -> float:
+    return math.inf if v is None else v
 
 
 def _worst(items: list, names: list[str]):
@@ -288,8 +299,8 @@ def _envelope_floor(results: list, names: list[str]):
     return out
 
 
-def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, motion=None,
-                  stresses: bool = True):
+def analyse_cases(scenario: Scenario, *, analyse, progress: bool = True, method=None,
+                  motion=None, stresses: bool = True):
     """Run each soil case of the scenario and return the best-estimate results with the
     envelope as the governing peaks.
 
@@ -312,109 +323,122 @@ def analyse_cases(scenario, *, analyse, progress: bool = True, method=None, moti
         ``equipment``, ``stability``, ``worst_dc``, ``worst_interaction`` and the floor
         spectra.
     """
-    from ..model import build_model
     cases = soil_cases(scenario.support)
-    cv = _get(scenario.support, "variation")
+    cv = scenario.support.variation
     notes = []
     if cv is not None and cv < 0.5:
         notes.append(f"Soil variation Cv = {cv:g} is below 0.5, the least ASCE 4-16 §5.1.7 asks "
                      "for where the soil is not well investigated (from memory)")
-    spectrum = (method or _get(_get(scenario, "analysis"), "method", "modal")) == "spectrum"
-    if motion is None and not spectrum:      # the spectrum method reads no records
-        raise InputError("motion: none given; groundshake.analyse (the application layer) "
-                         "reads it from the scenario's [motion] files")
-    run_method = method or _get(_get(scenario, "analysis"), "method", "modal")
-    results = []
-    for c in cases:
-        sc = _case_scenario(scenario, c)
-        with warnings.catch_warnings(record=True) as caught:   # re-emitted once, combined
-            warnings.simplefilter("always", GroundshakeWarning)
-            if _get(sc.support, "frequency_dependent", False) and run_method == "direct":
-                # step by step: static springs and rotational cones (model/_cone.py)
-                model = build_model(sc, cones=True)
-                c["frequency_dependent"] = {
-                    "method": "rotational cones (Wolf 1994, from memory), direct run",
-                    **(model.cones.to_dict() if model.cones is not None else {})}
-            elif _get(sc.support, "frequency_dependent", False):
-                model, info = consistent_soil_model(sc)
-                c["frequency_dependent"] = info
-            else:
-                model = build_model(sc)
-            r = analyse(sc, progress=progress, method=method, motion=motion, model=model,
-                        stresses=stresses)
-        for w in caught:
-            if not issubclass(w.category, GroundshakeWarning):
-                warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
-        results.append(r)
+    run_method = method or scenario.analysis.method
+    if motion is None and run_method != "spectrum":      # the spectrum method reads no records
+        raise InputError("none given; groundshake.analyse (the application layer) reads it "
+                         "from the scenario's [motion] files", param="motion")
+    results = [_run_case(_case_scenario(scenario, c), c, analyse=analyse, progress=progress,
+                         method=method, run_method=run_method, motion=motion,
+                         stresses=stresses) for c in cases]
     names = [c["name"] for c in cases]
     ib = names.index("best")
     best = results[ib]
     s = best.summary
-    entries = []
-    for c, r in zip(cases, results):
-        rs = r.summary
-        entries.append({"name": c["name"], "shear_modulus": c["shear_modulus"],
-                        "shear_wave_velocity": c["shear_wave_velocity"],
-                        "modulus_ratio": c["modulus_ratio"], "factor": c["factor"],
-                        "modulus_source": c["modulus_source"],
-                        "modes": [{"frequency": m["frequency"], "period": m["period"],
-                                   "effective_mass_ratio": m["effective_mass_ratio"]}
-                                  for m in rs["modes"].get("modes", [])],
-                        "peaks": rs["peaks"], "stability": rs["stability"],
-                        "worst_dc": rs.get("worst_dc"),
-                        "worst_interaction": rs.get("worst_interaction"),
-                        "springs": rs["model"].get("support", {}).get("springs"),
-                        "frequency_dependent": c.get("frequency_dependent")})
-    sums = [r.summary for r in results]
+    entries = [_case_entry(c, r.summary) for c, r in zip(cases, results)]
     if len(results) > 1:
-        s["peaks"] = _govern_peaks([x["peaks"] for x in sums], names)
-        s["sensors"] = {nm: _envelope_sensor([x["sensors"][nm] for x in sums], names)
-                        for nm in s["sensors"]}
-        s["equipment"] = {nm: _envelope_equipment([x["equipment"][nm] for x in sums], names)
-                          for nm in s["equipment"]}
-        s["stability"] = _envelope_stability([x["stability"] for x in sums], names)
-        s["base"]["peaks"] = _govern_peaks([x["base"]["peaks"] for x in sums], names)
-        contacts = [x["base"].get("contact") for x in sums]
-        if all(contacts):
-            kmin = int(np.argmin([c["min_pressure"] for c in contacts]))
-            kmax = int(np.argmax([c["peak_pressure"] for c in contacts]))
-            tp = contacts[kmax].get("time_of_peak_pressure")     # none in a spectrum run
-            s["base"]["contact"] = {
-                **contacts[kmin], "peak_pressure": contacts[kmax]["peak_pressure"],
-                **({"time_of_peak_pressure": tp} if tp is not None else {}),
-                "uplift": any(c["uplift"] for c in contacts),
-                "governing_case": {"min_pressure": names[kmin], "peak_pressure": names[kmax]}}
-        s["worst_dc"] = _worst([x.get("worst_dc") for x in sums], names)
-        s["worst_interaction"] = _worst([x.get("worst_interaction") for x in sums], names)
-        best.floor = _envelope_floor(results, names)
-        fo = s["floor_spectra"]
-        fo["soil_cases"] = ("unbroadened spectra enveloped across the soil cases, then "
-                            "broadened")
-        periods = np.asarray(best.floor["periods"])
-        for p, nm in enumerate(best.floor.get("points", [])):
-            for j, d in enumerate(("x", "y", "z")):
-                for i, key in enumerate(list(fo["points"][nm][d])):
-                    row = best.floor["psa"][p, j, i]
-                    fo["points"][nm][d][key].update(
-                        peak_psa=float(row.max()),
-                        period_of_peak=float(periods[int(np.argmax(row))]),
-                        zpa=max(x["floor_spectra"]["points"][nm][d][key]["zpa"] for x in sums))
-        warns = []
-        for nm, x in zip(names, sums):          # a warning of some cases only names them
-            for w in x.get("warnings", []):
-                where = [n for n, y in zip(names, sums) if w in y.get("warnings", [])]
-                text = w if len(where) == len(names) else f"({' and '.join(where)} soil case) {w}"
-                if text not in warns:
-                    warns.append(text)
-        s["warnings"] = warns
+        _envelope_into(best, results, names)
     s["soil_cases"] = entries
     s["soil_case_practice"] = CASE_PRACTICE
     s["envelope"] = {"cases": names,
                      "histories": f"histories.csv holds the {names[ib]} case" if best.histories
                      else "no histories (response-spectrum analysis)",
                      "governing": "largest peak and least safety factor over the cases"}
-    s["scenario"] = scenario.to_dict() if hasattr(scenario, "to_dict") else s.get("scenario", {})
+    s["scenario"] = scenario.to_dict()
     s["warnings"].extend(n for n in notes if n not in s["warnings"])
     for w in s["warnings"]:
         warnings.warn(w, GroundshakeWarning, stacklevel=3)
     return best
+
+
+def _run_case(sc: Scenario, case: dict, *, analyse, progress, method, run_method, motion,
+              stresses):
+    """One soil case: its model (springs at the modes' frequencies, or rotational cones in
+    a direct run, when frequency dependent) and its run; its warnings are collected for
+    the combined list, others re-emitted."""
+    from ..model import build_model
+    with warnings.catch_warnings(record=True) as caught:   # re-emitted once, combined
+        warnings.simplefilter("always", GroundshakeWarning)
+        if sc.support.frequency_dependent and run_method == "direct":
+            # step by step: static springs and rotational cones (model/_cone.py)
+            model = build_model(sc, cones=True)
+            case["frequency_dependent"] = {
+                "method": "rotational cones (Wolf 1994, from memory), direct run",
+                **(model.cones.to_dict() if model.cones is not None else {})}
+        elif sc.support.frequency_dependent:
+            model, info = consistent_soil_model(sc)
+            case["frequency_dependent"] = info
+        else:
+            model = build_model(sc)
+        r = analyse(sc, progress=progress, method=method, motion=motion, model=model,
+                    stresses=stresses)
+    for w in caught:
+        if not issubclass(w.category, GroundshakeWarning):
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+    return r
+
+
+def _case_entry(c: dict, rs: dict) -> dict:
+    """The ``soil_cases`` entry of one case from its summary ``rs``."""
+    return {"name": c["name"], "shear_modulus": c["shear_modulus"],
+            "shear_wave_velocity": c["shear_wave_velocity"],
+            "modulus_ratio": c["modulus_ratio"], "factor": c["factor"],
+            "modulus_source": c["modulus_source"],
+            "modes": [{"frequency": m["frequency"], "period": m["period"],
+                       "effective_mass_ratio": m["effective_mass_ratio"]}
+                      for m in rs["modes"].get("modes", [])],
+            "peaks": rs["peaks"], "stability": rs["stability"],
+            "worst_dc": rs.get("worst_dc"),
+            "worst_interaction": rs.get("worst_interaction"),
+            "springs": rs["model"].get("support", {}).get("springs"),
+            "frequency_dependent": c.get("frequency_dependent")}
+
+
+def _envelope_into(best, results: list, names: list[str]) -> None:
+    """Put the envelope over the cases into the best estimate's summary and floor spectra."""
+    s = best.summary
+    sums = [r.summary for r in results]
+    s["peaks"] = _govern_peaks([x["peaks"] for x in sums], names)
+    s["sensors"] = {nm: _envelope_sensor([x["sensors"][nm] for x in sums], names)
+                    for nm in s["sensors"]}
+    s["equipment"] = {nm: _envelope_equipment([x["equipment"][nm] for x in sums], names)
+                      for nm in s["equipment"]}
+    s["stability"] = _envelope_stability([x["stability"] for x in sums], names)
+    s["base"]["peaks"] = _govern_peaks([x["base"]["peaks"] for x in sums], names)
+    contacts = [x["base"].get("contact") for x in sums]
+    if all(contacts):
+        kmin = int(np.argmin([c["min_pressure"] for c in contacts]))
+        kmax = int(np.argmax([c["peak_pressure"] for c in contacts]))
+        tp = contacts[kmax].get("time_of_peak_pressure")     # none in a spectrum run
+        s["base"]["contact"] = {
+            **contacts[kmin], "peak_pressure": contacts[kmax]["peak_pressure"],
+            **({"time_of_peak_pressure": tp} if tp is not None else {}),
+            "uplift": any(c["uplift"] for c in contacts),
+            "governing_case": {"min_pressure": names[kmin], "peak_pressure": names[kmax]}}
+    s["worst_dc"] = _worst([x.get("worst_dc") for x in sums], names)
+    s["worst_interaction"] = _worst([x.get("worst_interaction") for x in sums], names)
+    best.floor = _envelope_floor(results, names)
+    fo = s["floor_spectra"]
+    fo["soil_cases"] = "unbroadened spectra enveloped across the soil cases, then broadened"
+    periods = np.asarray(best.floor["periods"])
+    for p, nm in enumerate(best.floor.get("points", [])):
+        for j, d in enumerate(("x", "y", "z")):
+            for i, key in enumerate(list(fo["points"][nm][d])):
+                row = best.floor["psa"][p, j, i]
+                fo["points"][nm][d][key].update(
+                    peak_psa=float(row.max()),
+                    period_of_peak=float(periods[int(np.argmax(row))]),
+                    zpa=max(x["floor_spectra"]["points"][nm][d][key]["zpa"] for x in sums))
+    warns = []
+    for nm, x in zip(names, sums):          # a warning of some cases only names them
+        for w in x.get("warnings", []):
+            where = [n for n, y in zip(names, sums) if w in y.get("warnings", [])]
+            text = w if len(where) == len(names) else f"({' and '.join(where)} soil case) {w}"
+            if text not in warns:
+                warns.append(text)
+    s["warnings"] = warns

@@ -1,42 +1,41 @@
 """One scenario through the whole pipeline: motion → model → modes → response → results."""
 from __future__ import annotations
 
-import datetime as _dt
-import hashlib
 import math
 import time as _time
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Literal
+from typing import Any, Literal, Mapping
 
 import numpy as np
 import scipy.sparse as sp
 
-from .._cautions import CAUTIONS
-from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
 from ..processing import intensity_measures
+from ..scenario import Scenario
 from ..spectra import parse_target
 from .._progress import Progress
 from ..dynamics._coupled import coupled_response
-from ..dynamics._damping import damping_matrix, modal_damping_matrix
+from ..dynamics._damping import damping_matrix, modal_damping_matrix, rayleigh_coefficients
 from ..dynamics._direct import direct_response, substeps_for
 from ..dynamics._modes import compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion
-from ._common import RunResults, _modes_dict, _sha256
+from ._common import RunResults, _sha256
 from ._spectrum_run import spectrum_analyse
-from ._anchorage import (INTERACTION_FORMS, SCREENING_WORDING, bolt_forces, bolt_interaction,
-                         fp_comparison, worst_entries)
-from ._stability import base_stability
+from ._anchorage import SCREENING_WORDING, bolt_forces
 from ._floor import floor_spectra
 from ._stress import RECOVERY_NOTE, StressPeaks, element_peaks, modal_stress_peaks, stress_summary
+from ._summary import (BASE_RESULTANTS, RESULTANTS, Clock, WorstBolts, anchorage_entries,
+                       assemble, base_entry, base_geometry, base_peak_entries, contact_entry,
+                       dense, displacement_peak, equipment_entry, floor_grid, fp_entry,
+                       free_mass_ratio, input_hashes, low_mass_text, provenance, retained_mass,
+                       sensor_entry, stability_entry, stress_peak_entries, summary_head)
 
 __all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
-RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
 #: Frequency [Hz] above which ground motion drives a structure quasi-statically in design
 #: practice (the zero-period end of USNRC RG 1.60 spectra, from memory).
 RIGID_HZ = 33.0
@@ -68,10 +67,6 @@ def base_resultants(results: RunResults) -> dict[str, np.ndarray]:
 
 
 # --------------------------------------------------------------------------- helpers
-def _dense(a) -> np.ndarray:
-    return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
-
-
 def _peak(x: np.ndarray, time: np.ndarray) -> dict:
     """Peak |x| of a history (n_t,) with its time [s] (from ``time`` (n_t,), the
     as-read axis) and signed value."""
@@ -99,6 +94,28 @@ class _Response:
     stress: StressPeaks | None
     assumptions: list
     info: dict
+
+
+def _modal_node_peak(A, Z, motion: Motion) -> dict:
+    """Peak relative node displacement per direction from the modal coefficients ``A`` of
+    every node DOF and the coordinates ``Z`` (pruned exact peaks)."""
+    out = {}
+    for j, d in enumerate(DIRECTIONS):
+        row, val, col = pruned_peak(A[j::3], Z)
+        out[d] = {"value": val, "node": int(row), "time": float(motion.time_of_step(col))}
+    return out
+
+
+def _direct_node_peak(res, motion: Motion) -> dict:
+    """Peak relative node displacement per direction from a direct run's DOF peaks."""
+    out = {}
+    for j, d in enumerate(DIRECTIONS):
+        vals = res.dof_peak[j::3]
+        i = int(np.argmax(vals)) if vals.size else -1
+        out[d] = {"value": float(vals[i]) if i >= 0 else 0.0, "node": i,
+                  "time": float(motion.time_of_step(res.dof_peak_step[j::3][i]))
+                  if i >= 0 else 0.0}
+    return out
 
 
 def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
@@ -134,15 +151,16 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             load = getattr(model, "ground_load", None)
             if load is None:
                 load = model.M @ model.influence
-            r = coupled_response(model.K, model.M, damping_matrix(model, modes=modes), shapes,
-                                 residual, load, ag, dt,
+            rayleigh = rayleigh_coefficients(model, modes=modes)
+            r = coupled_response(model.K, model.M, damping_matrix(model, rayleigh=rayleigh),
+                                 shapes, residual, load, ag, dt,
                                  damping_update=model.damping_update()
                                  if hasattr(model, "damping_update") else None)
             info["modal_damping"] = "whole damping matrix on the reduced basis"
             info["reduced_basis"] = {"modes": int(shapes.shape[1]),
                                      "missing_mass_vectors": int(r.shapes.shape[1]
                                                                  - shapes.shape[1])}
-            info["rayleigh_hz"] = getattr(model, "rayleigh_used_hz", None)
+            info["rayleigh_hz"] = rayleigh.frequencies_hz
         elif getattr(model, "is_classically_damped", True):
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
@@ -153,11 +171,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             info["modal_damping_diagonal_ratios"] = [float(v) for v in r.damping]
         u, v, a = r.recover(output)
         Z = r.coordinates
-        node_peak = {}
-        A = r.coefficients(node_map)
-        for j, d in enumerate(DIRECTIONS):
-            row, val, col = pruned_peak(A[j::3], Z)
-            node_peak[d] = {"value": val, "node": int(row), "time": float(motion.time_of_step(col))}
+        node_peak = _modal_node_peak(r.coefficients(node_map), Z, motion)
         t1 = _time.perf_counter()
         peaks = None
         if stresses and n_el:
@@ -177,7 +191,8 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
 
     if modes is None and model.rayleigh_hz is None:   # the Rayleigh anchors need the modes
         modes = compute_modes(model, n_modes=min(12, model.n_dof - 1), warn=False)
-    C = damping_matrix(model, modes=modes)
+    rayleigh = rayleigh_coefficients(model, modes=modes)
+    C = damping_matrix(model, rayleigh=rayleigh)
     update = model.damping_update() if hasattr(model, "damping_update") else None
     K, M, iota, load = model.K, model.M, model.influence, getattr(model, "ground_load", None)
     block_fn, rows, peak_rows = (on_block if peaks is not None else None), output, node_map
@@ -190,24 +205,17 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
                           hht_alpha=hht_alpha, substeps=n_sub, on_block=block_fn,
                           peak_operator=peak_rows, solver=getattr(model, "solver", "auto"),
                           progress=progress, load=load, damping_update=update)
-    node_peak = {}
-    for j, d in enumerate(DIRECTIONS):
-        vals = res.dof_peak[j::3]
-        i = int(np.argmax(vals)) if vals.size else -1
-        node_peak[d] = {"value": float(vals[i]) if i >= 0 else 0.0, "node": i,
-                        "time": float(motion.time_of_step(res.dof_peak_step[j::3][i]))
-                        if i >= 0 else 0.0}
+    node_peak = _direct_node_peak(res, motion)
     info.update(timings={"time_history": _time.perf_counter() - t0,
                          "factorization": res.factor_time},
                 substeps=res.substeps, step=dt / res.substeps, hht_alpha=res.alpha,
-                solver=res.solver, rayleigh_hz=getattr(model, "rayleigh_used_hz", None))
+                solver=res.solver, rayleigh_hz=rayleigh.frequencies_hz)
     assumptions = list(res.assumptions)
     if n_sub > 1:
         assumptions.append(f"The record step {dt:g} s was subdivided into {n_sub} steps so that "
                            f"the step is at most 1/10 of the period at {cutoff_hz:g} Hz.")
-    fr = getattr(model, "rayleigh_used_hz", None)
-    fr_txt = "?" if fr is None else f"{fr[0]:.3g} and {fr[1]:.3g} Hz"
-    why = getattr(model, "rayleigh_choice", "") or ""
+    fr, why = rayleigh.frequencies_hz, rayleigh.why
+    fr_txt = f"{fr[0]:.3g} and {fr[1]:.3g} Hz"
     assumptions.append(
         f"Damping matrix: Rayleigh a·M + b·K of the block alone, {100 * model.damping_ratio:g} % "
         f"at {fr_txt}" + (f" ({why})" if why else "") + "; the soil springs sit in the "
@@ -226,14 +234,6 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
     return _Response("direct", res.disp, res.vel, res.acc, node_peak, peaks, assumptions, info)
 
 
-def _get(obj, key, default=None):
-    if obj is None:
-        return default
-    if isinstance(obj, dict):
-        return obj.get(key, default)
-    return getattr(obj, key, default)
-
-
 # --------------------------------------------------------------------------- the run
 def analyse(scenario, *, progress: bool = True,
             method: Literal["auto", "modal", "coupled", "direct", "spectrum"] | None = None,
@@ -243,8 +243,9 @@ def analyse(scenario, *, progress: bool = True,
 
     Parameters
     ----------
-    scenario : Scenario
-        From :func:`groundshake.load_scenario`.
+    scenario : Scenario or dict
+        From :func:`groundshake.load_scenario`; a dict is validated once by
+        :meth:`Scenario.from_dict`.
     progress : bool
         Progress bars on stderr (only drawn on a terminal).
     method : {"auto", "modal", "coupled", "direct", "spectrum"}, optional
@@ -275,12 +276,14 @@ def analyse(scenario, *, progress: bool = True,
     ``summary["analysis"]["assumptions"]``.
     """
     from ._cases import analyse_cases, needs_soil_cases
+    if isinstance(scenario, Mapping):
+        scenario = Scenario.from_dict(scenario)
     if model is None and modes is None and needs_soil_cases(scenario):
         # lower/best/upper soil cases, one model each, envelope governs (results/_cases.py)
         return analyse_cases(scenario, analyse=analyse, progress=progress, method=method,
                              motion=motion, stresses=stresses)
     collected: list[str] = []
-    if _get(_get(scenario, "support"), "variation", None) is not None:
+    if scenario.support.variation is not None:
         collected.append("support.variation: the soil cases run only when the run builds its "
                          "own model; this run (model given, e.g. a suite) is the best estimate")
     with warnings.catch_warnings(record=True) as caught:
@@ -300,22 +303,56 @@ def analyse(scenario, *, progress: bool = True,
     return out
 
 
-def _analyse(scenario, *, progress, method, motion, model, modes, stresses, collected,
-             residual=None) -> RunResults:
-    from ..dynamics import compute_modes
-    from ..model import build_model
-    from ..spectra import response_spectrum
+@dataclass
+class _Run:
+    """What the steps of one time-history run share."""
 
+    scenario: Scenario
+    motion: Motion
+    model: Any
+    modes: Any
+    method: str
+    collected: list
+    timings: dict
+    clock: Clock
+    resp: _Response | None = None
+    output: sp.csr_matrix | None = None
+    rows: dict = field(default_factory=dict)     # (kind, name) -> slice of output's rows
+    base: np.ndarray | None = None               # (6, n_t) base resultants
+    hist: dict = field(default_factory=dict)     # histories.csv columns
+    peak_times: list = field(default_factory=list)   # (what, time of its peak)
+    point_acc: list = field(default_factory=list)    # floor spectrum points, (3, n_t) each
+    point_names: list = field(default_factory=list)
+
+    @property
+    def dt(self) -> float:
+        return self.motion.dt
+
+    @property
+    def time(self) -> np.ndarray:
+        return self.motion.time                  # counted from the first sample as read
+
+    @property
+    def ag(self) -> np.ndarray:
+        return np.asarray(self.motion.acc, dtype=float)
+
+    def relative(self, key) -> np.ndarray:
+        """Relative displacement histories of the output rows of ``key``."""
+        return self.resp.disp[self.rows[key]]
+
+    def absolute(self, key) -> np.ndarray:
+        """Absolute acceleration histories (relative + ground) of the rows of ``key``."""
+        sl = self.rows[key]
+        iota = np.asarray(self.model.influence, dtype=float)
+        return self.resp.acc[sl] + dense(self.output[sl] @ iota) @ self.ag
+
+
+def _analyse(scenario: Scenario, *, progress, method, motion, model, modes, stresses,
+             collected, residual=None) -> RunResults:
+    an = scenario.analysis
     timings: dict[str, float] = {}
-    clock = [_time.perf_counter()]
-
-    def _tick() -> float:
-        now = _time.perf_counter()
-        dt_, clock[0] = now - clock[0], now
-        return dt_
-
-    analysis = _get(scenario, "analysis")
-    method = method or _get(analysis, "method", "auto") or "auto"
+    clock = Clock()
+    method = method or an.method
     if method == "spectrum":            # the design spectrum, no records
         if motion is not None:
             raise InputError("'spectrum' takes the design spectrum of [motion] target, not "
@@ -327,26 +364,79 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     if method not in ("auto", "modal", "coupled", "direct"):
         raise InputError(f"given {method!r}; allowed 'auto', 'modal', 'coupled', 'direct', "
                          "'spectrum'", param="analysis.method", value=method)
-    cutoff = _get(analysis, "cutoff_hz", 50.0)
-    n_modes_req = _get(analysis, "modes", None)
-    hht_alpha = float(_get(analysis, "hht_alpha", 0.0) or 0.0)
     if motion is None:
         raise InputError("none given; groundshake.analyse (the application layer) reads it "
                          "from the scenario's [motion] files", param="motion")
-    timings["motion"] = _tick()
+    timings["motion"] = clock.tick()
     collected.extend(motion.notes)
+    run = _model_and_modes(scenario, motion, model, modes, method, progress=progress,
+                           collected=collected, timings=timings, clock=clock)
+    _respond(run, stresses=stresses, progress=progress, residual=residual)
+    summary = summary_head(scenario)
+    sensors_out = _sensor_entries(run)
+    worst = WorstBolts()
+    equip_out = _equipment_entries(run, worst)
+    base_out = _base_entries(run)
+    stability_out = stability_entry(run.base, run.model, scenario, run.dt,
+                                    t0=float(run.time[0]))         # on the as-read axis
+    peaks = base_peak_entries([base_out["peaks"][c]["value"] for c in RESULTANTS])
+    for d in DIRECTIONS:
+        npk = run.resp.node_peak[d]
+        peaks["relative_displacement"][d] = displacement_peak(
+            npk["value"], run.model.nodes[npk["node"]] if npk["node"] >= 0 else None,
+            time=npk["time"])
+    stress_out = _stress_entries(run, peaks)
+    spectra = _spectra(run, progress=progress)
+    _auto_warnings(collected, scenario=scenario, model=run.model, modes=run.modes,
+                   motion=motion, method=run.method, cutoff=an.cutoff_hz,
+                   peak_times=run.peak_times, n_modes=int(np.asarray(run.modes.omega).size))
+    assemble(summary, analysis=_analysis_entry(run), peaks=peaks, sensors=sensors_out,
+             equipment=equip_out, worst=worst, stresses=stress_out, base=base_out,
+             stability=stability_out, floor=spectra["floor_out"], modes=run.modes,
+             model=run.model, records=_records_summary(motion),
+             motion={"components": list(motion.components), "dt": run.dt,
+                     "n_steps": run.ag.shape[1], "notes": list(motion.notes),
+                     "matching": dict(motion.matching)},
+             scenario=scenario)
+    inputs = input_hashes([scenario.source])
+    inputs.update({str(rec.source): _sha256(Path(rec.source)) for rec in motion.raw.values()
+                   if getattr(rec, "source", "")})
+    summary["provenance"] = provenance(
+        inputs=inputs,
+        solver={"method": run.method, **{k: v for k, v in run.resp.info.items()
+                                         if k in ("solver", "substeps", "hht_alpha")},
+                "factor": getattr(run.model, "solver", "auto")},
+        settings={"cutoff_hz": an.cutoff_hz, "modes": an.modes,
+                  "hht_alpha": float(an.hht_alpha)},
+        timings=timings)
+    stress = None if run.resp.stress is None else \
+        element_peaks(run.resp.stress, run.model.stress_points.element_points)
+    return RunResults(summary=summary, motion=motion, model=run.model, modes=run.modes,
+                      time=run.time, histories=run.hist, ground_spectra=spectra["ground"],
+                      floor=spectra["floor"], stress=stress, target_psa=spectra["target_psa"],
+                      inputs=inputs, base=run.base)
+
+
+def _model_and_modes(scenario: Scenario, motion: Motion, model, modes, method: str, *,
+                     progress, collected, timings, clock) -> _Run:
+    """Step 1: the model (built unless given), the method (``"auto"`` resolved) and the
+    modes (computed unless given), with the modes' own notes."""
+    from ..dynamics import compute_modes
+    from ..model import build_model
+
+    an = scenario.analysis
     if model is None:
         model = build_model(scenario)
-    timings["model"] = _tick()
+    timings["model"] = clock.tick()
     if method == "auto":    # non-classical damping: the whole damping matrix, modal cost
         method = "modal" if getattr(model, "is_classically_damped", True) else "coupled"
     if modes is None:
         with Progress("modes", total=None, enabled=progress):
-            modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
-                                  n_modes=n_modes_req,
+            modes = compute_modes(model, cutoff_hz=None if an.modes else an.cutoff_hz,
+                                  n_modes=an.modes,
                                   excited=tuple(d in motion.components for d in DIRECTIONS),
                                   warn=False)
-    timings["modes"] = _tick()
+    timings["modes"] = clock.tick()
     # the modes' own notes, except the mass one (ours below also names the correction)
     # and the cap of composite modal damping ratios, which only classically damped modal
     # runs use (non-classical damping keeps the modal damping matrix whole, uncapped)
@@ -354,14 +444,14 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
     collected.extend(m for m in getattr(modes, "warnings", []) or []
                      if not str(m).startswith("modes capture")
                      and not (not uses_cap and str(m).startswith("modal damping of mode")))
-    dt = motion.dt
-    ag = np.asarray(motion.acc, dtype=float)
-    n_t = ag.shape[1]
-    time = motion.time                       # counted from the first sample as read
-    iota = np.asarray(model.influence, dtype=float)
-    n = model.n_dof
+    return _Run(scenario=scenario, motion=motion, model=model, modes=modes, method=method,
+                collected=collected, timings=timings, clock=clock)
 
-    # ---- the rows to recover
+
+def _respond(run: _Run, *, stresses, progress, residual) -> None:
+    """Step 2: the histories of the rows to recover (sensors, equipment, mounts, base
+    reactions), the base resultants and the ground and base columns of histories.csv."""
+    model, an = run.model, run.scenario.analysis
     blocks, names = [], []
     for s in model.sensors:
         blocks.append(sp.csr_matrix(s.operator)); names.append(("sensor", s.name, 3))
@@ -371,227 +461,154 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
         blocks.append(_mount_operator(model, e.mount)); names.append(("mount", e.name, 3))
     R = getattr(model, "inertia_reaction", None) or model.reaction
     blocks += [sp.csr_matrix(R.K), sp.csr_matrix(R.C), sp.csr_matrix(R.M)]
-    output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, n))
-    _tick()
-    resp = respond(model, modes, motion, output, method=method, cutoff_hz=cutoff,
-                   hht_alpha=hht_alpha, stresses=stresses, progress=progress,
-                   residual=residual)
-    timings["response"] = _tick()
-    timings.update(resp.info.pop("timings", {}))
-    # split rows back
-    rows: dict[tuple[str, str], slice] = {}
+    run.output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, model.n_dof))
+    run.clock.tick()
+    run.resp = resp = respond(model, run.modes, run.motion, run.output, method=run.method,
+                              cutoff_hz=an.cutoff_hz, hht_alpha=float(an.hht_alpha),
+                              stresses=stresses, progress=progress, residual=residual)
+    run.timings["response"] = run.clock.tick()
+    run.timings.update(resp.info.pop("timings", {}))
     k = 0
-    for kind, nm, size in names:
-        rows[(kind, nm)] = slice(k, k + size)
+    for kind, nm, size in names:                 # split the rows back
+        run.rows[(kind, nm)] = slice(k, k + size)
         k += size
-    nK = slice(k, k + 6); nC = slice(k + 6, k + 12); nM = slice(k + 12, k + 18)
-    base = (resp.disp[nK] + resp.vel[nC] + resp.acc[nM] + np.asarray(R.G) @ ag)   # (6, n_t)
-    ground_of = lambda sl: _dense(output[sl] @ iota) @ ag                        # noqa: E731
-
-    hist: dict[str, np.ndarray] = {"time [s]": time}
+    nK, nC, nM = slice(k, k + 6), slice(k + 6, k + 12), slice(k + 12, k + 18)
+    ag = run.ag
+    run.base = resp.disp[nK] + resp.vel[nC] + resp.acc[nM] + np.asarray(R.G) @ ag   # (6, n_t)
+    run.hist["time [s]"] = run.time
     for j, d in enumerate(DIRECTIONS):
-        hist[f"ground {d} acc [m/s2]"] = ag[j]
+        run.hist[f"ground {d} acc [m/s2]"] = ag[j]
     for j, c in enumerate(RESULTANTS):
-        hist[f"base {c} [{'N' if c.startswith('F') else 'N*m'}]"] = base[j]
+        run.hist[f"base {c} [{'N' if c.startswith('F') else 'N*m'}]"] = run.base[j]
 
-    summary: dict[str, Any] = {"title": _get(scenario, "title", "scenario"),
-                               "cautions": list(CAUTIONS), "warnings": []}
-    peak_times: list[tuple[str, float]] = []
 
-    # ---- sensors
-    sensors_out: dict[str, Any] = {}
-    point_acc, point_names = [], []
-    for s in model.sensors:
-        sl = rows[("sensor", s.name)]
-        rel, absacc = resp.disp[sl], resp.acc[sl] + ground_of(sl)
-        d_ = {"position": [float(v) for v in s.position],
-              "peak_absolute_acceleration": {}, "peak_relative_displacement": {},
-              "time_of_peak_absolute_acceleration": {}, "time_of_peak_relative_displacement": {}}
+def _peaks3(x: np.ndarray, time: np.ndarray) -> tuple[list, list]:
+    """Peak values and their times of the three rows of ``x`` (3, n_t)."""
+    pk = [_peak(x[j], time) for j in range(3)]
+    return [p["value"] for p in pk], [p["time"] for p in pk]
+
+
+def _sensor_entries(run: _Run) -> dict:
+    """Step 3: peaks at the sensors, their histories, and the sensors as floor points."""
+    out: dict[str, Any] = {}
+    for s in run.model.sensors:
+        rel, absacc = run.relative(("sensor", s.name)), run.absolute(("sensor", s.name))
+        (pa, ta), (pd, td) = _peaks3(absacc, run.time), _peaks3(rel, run.time)
+        out[s.name] = sensor_entry(s.position, pa, pd, acc_time=ta, disp_time=td)
         for j, dn in enumerate(DIRECTIONS):
-            pa, pd = _peak(absacc[j], time), _peak(rel[j], time)
-            d_["peak_absolute_acceleration"][dn] = pa["value"]
-            d_["time_of_peak_absolute_acceleration"][dn] = pa["time"]
-            d_["peak_relative_displacement"][dn] = pd["value"]
-            d_["time_of_peak_relative_displacement"][dn] = pd["time"]
-            hist[f"{s.name} abs acc {dn} [m/s2]"] = absacc[j]
-            hist[f"{s.name} rel disp {dn} [m]"] = rel[j]
-            if dn in motion.components:
-                peak_times.append((f"sensor {s.name} acceleration {dn}", pa["time"]))
-        sensors_out[s.name] = d_
-        point_acc.append(absacc); point_names.append(s.name)
-    summary_sensors = sensors_out
+            run.hist[f"{s.name} abs acc {dn} [m/s2]"] = absacc[j]
+            run.hist[f"{s.name} rel disp {dn} [m]"] = rel[j]
+            if dn in run.motion.components:
+                run.peak_times.append((f"sensor {s.name} acceleration {dn}", ta[j]))
+        run.point_acc.append(absacc)
+        run.point_names.append(s.name)
+    return out
 
-    # ---- equipment and anchorage
-    equip_out: dict[str, Any] = {}
-    worst_dc = None
-    worst_ir = None
-    for e in model.equipment:
-        sl = rows[("equipment", e.name)]
-        rel = resp.disp[sl]
-        absacc = resp.acc[sl] + ground_of(sl)                                     # (6, n_t)
-        d_ = {"mass": float(e.mass), "cg": [float(v) for v in e.cg],
-              "support": "rigid" if e.frequency_hz is None else "flexible",
-              "frequency_hz": None if e.frequency_hz is None else [float(v) for v in e.frequency_hz],
-              "damping": float(e.damping),
-              "peak_absolute_acceleration": {}, "peak_relative_displacement": {},
-              "time_of_peak_absolute_acceleration": {},
-              "peak_angular_acceleration": {}}
+
+#: How the bolt forces of a time-history run are found (before the screening wording).
+_ANCHORAGE_METHOD = ("rigid base plate, elastic bolt group (common practice); weight × "
+                     "dead_load_factor {f:g} resists uplift (default 0.9: 0.9D with E, ASCE "
+                     "7-16 §2.3.6, from memory); vertical motion included; {screening}")
+
+
+def _equipment_entries(run: _Run, worst: WorstBolts) -> dict:
+    """Step 4: peaks of the equipment, its bolt forces and their histories; the mounts as
+    floor points."""
+    out: dict[str, Any] = {}
+    time = run.time
+    for e in run.model.equipment:
+        rel = run.relative(("equipment", e.name))
+        absacc = run.absolute(("equipment", e.name))                           # (6, n_t)
+        pa, ta = _peaks3(absacc, time)
+        d_ = equipment_entry(e, pa, _peaks3(rel, time)[0], _peaks3(absacc[3:], time)[0],
+                             acc_time=ta)
         for j, dn in enumerate(DIRECTIONS):
-            pa = _peak(absacc[j], time)
-            d_["peak_absolute_acceleration"][dn] = pa["value"]
-            d_["time_of_peak_absolute_acceleration"][dn] = pa["time"]
-            d_["peak_relative_displacement"][dn] = _peak(rel[j], time)["value"]
-            d_["peak_angular_acceleration"][dn] = _peak(absacc[3 + j], time)["value"]
-            hist[f"{e.name} abs acc {dn} [m/s2]"] = absacc[j]
-            hist[f"{e.name} rel disp {dn} [m]"] = rel[j]
-            if dn in motion.components:
-                peak_times.append((f"equipment {e.name} acceleration {dn}", pa["time"]))
+            run.hist[f"{e.name} abs acc {dn} [m/s2]"] = absacc[j]
+            run.hist[f"{e.name} rel disp {dn} [m]"] = rel[j]
+            if dn in run.motion.components:
+                run.peak_times.append((f"equipment {e.name} acceleration {dn}", ta[j]))
         anchors = np.asarray(e.anchors, dtype=float).reshape(-1, 2)
-        d_["anchors"] = []
         if anchors.shape[0]:
             bf = bolt_forces(absacc, anchors, mass=e.mass, inertia=e.inertia,
                              cg_height=float(e.cg[2] - e.mount[2]),
                              dead_load_factor=float(e.dead_load_factor))
-            cap = e.capacity
-            for i, (x, y) in enumerate(anchors):
-                t, v = bf.tension[i], bf.shear[i]
-                it, iv = int(np.argmax(t)), int(np.argmax(v))
-                b = {"position": [float(x), float(y)],
-                     "peak_tension": float(max(0.0, t[it])), "time_of_peak_tension": float(time[it]),
-                     "peak_shear": float(v[iv]), "time_of_peak_shear": float(time[iv]),
-                     "min_axial": float(t.min())}
-                if cap is not None:
-                    b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
-                    b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
-                    ir = bolt_interaction(t, v, tension_capacity=float(_get(cap, "tension")),
-                                          shear_capacity=float(_get(cap, "shear")),
-                                          form=_get(cap, "interaction", "5/3-power"))
-                    ii = int(np.argmax(ir))
-                    b["interaction_ratio"] = float(ir[ii])
-                    b["time_of_peak_interaction"] = float(time[ii])
-                    if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
-                        worst_ir = (b["interaction_ratio"], e.name, i + 1,
-                                    _get(cap, "interaction", "5/3-power"))
-                    dc = max(b["dc_tension"], b["dc_shear"])
-                    if worst_dc is None or dc > worst_dc[0]:
-                        worst_dc = (dc, e.name, i + 1)
-                d_["anchors"].append(b)
-                hist[f"{e.name} bolt {i + 1} tension [N]"] = t
-                hist[f"{e.name} bolt {i + 1} shear [N]"] = v
-                peak_times.append((f"{e.name} bolt {i + 1} tension", float(time[it])))
-            d_["dead_load_factor"] = float(e.dead_load_factor)
-            d_["anchorage_method"] = ("rigid base plate, elastic bolt group (common practice); "
-                                      f"weight × dead_load_factor {float(e.dead_load_factor):g} "
-                                      "resists uplift (default 0.9: 0.9D with E, ASCE 7-16 "
-                                      "§2.3.6, from memory); vertical motion included; "
-                                      f"{SCREENING_WORDING}")
-            if cap is not None:
-                form = _get(cap, "interaction", "5/3-power")
-                d_["capacity"] = {"tension": float(_get(cap, "tension")),
-                                  "shear": float(_get(cap, "shear")),
-                                  "interaction": form,
-                                  "interaction_formula": INTERACTION_FORMS[form],
-                                  "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
+            anchorage_entries(d_, e, anchors, bf, worst=worst, time=time,
+                              method=_ANCHORAGE_METHOD.format(f=float(e.dead_load_factor),
+                                                              screening=SCREENING_WORDING))
+            for i, b in enumerate(d_["anchors"]):
+                run.hist[f"{e.name} bolt {i + 1} tension [N]"] = bf.tension[i]
+                run.hist[f"{e.name} bolt {i + 1} shear [N]"] = bf.shear[i]
+                run.peak_times.append((f"{e.name} bolt {i + 1} tension",
+                                       b["time_of_peak_tension"]))
         if e.fp is not None and anchors.shape[0]:
-            fp = e.fp
-            d_["fp"] = fp_comparison(weight=e.mass * STANDARD_GRAVITY, sds=float(_get(fp, "sds")),
-                                     ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
-                                     ip=float(_get(fp, "ip", 1.0)),
-                                     z_over_h=float(_get(fp, "z_over_h", 0.0)),
-                                     anchors=anchors, mass=e.mass,
-                                     cg_height=float(e.cg[2] - e.mount[2]),
-                                     dead_load_factor=float(e.dead_load_factor))
-            d_["fp"]["time_history_peak_tension"] = max([b["peak_tension"] for b in d_["anchors"]] or [0])
-            d_["fp"]["time_history_peak_shear"] = max([b["peak_shear"] for b in d_["anchors"]] or [0])
-        equip_out[e.name] = d_
-        msl = rows[("mount", e.name)]
-        point_acc.append(resp.acc[msl] + ground_of(msl))
-        point_names.append(f"{e.name} mount")
+            d_["fp"] = fp_entry(e, anchors, d_["anchors"])
+        out[e.name] = d_
+        run.point_acc.append(run.absolute(("mount", e.name)))
+        run.point_names.append(f"{e.name} mount")
+    return out
 
-    # ---- base reactions and contact
-    base_out: dict[str, Any] = {"about": [float(v) for v in np.asarray(model.base.get("centre", np.zeros(3)))],
-                                "sign": "resultants the structure exerts on its support",
-                                "peaks": {}}
-    for j, c in enumerate(RESULTANTS):
-        base_out["peaks"][c] = _peak(base[j], time)
+
+def _base_entries(run: _Run) -> dict:
+    """Step 5: peaks of the base resultants and, on soil, the linear contact pressure."""
+    base, time = run.base, run.time
+    out = base_entry(run.model, "resultants the structure exerts on its support",
+                     {c: _peak(base[j], time) for j, c in enumerate(RESULTANTS)})
     for j, c in enumerate(("Fx", "Fy")):
-        if DIRECTIONS[j] in motion.components:
-            peak_times.append((f"base shear {DIRECTIONS[j]}", base_out["peaks"][c]["time"]))
-    if model.support_kind == "soil":
-        A = float(model.base.get("area", 0.0)) or 1.0
-        lx, ly = float(model.base.get("lx", 1.0)), float(model.base.get("ly", 1.0))
-        Ix, Iy = lx * ly ** 3 / 12.0, ly * lx ** 3 / 12.0
-        W = float(model.weight)
-        mean = (W - base[2]) / A
-        swing = np.abs(base[3]) * (ly / 2) / Ix + np.abs(base[4]) * (lx / 2) / Iy
-        pmax, pmin = mean + swing, mean - swing
-        hist["contact pressure max [Pa]"] = pmax
-        hist["contact pressure min [Pa]"] = pmin
-        i_min = int(np.argmin(pmin))
-        uplift = bool(pmin[i_min] < 0)
-        base_out["contact"] = {"static_pressure": W / A, "peak_pressure": float(pmax.max()),
-                               "time_of_peak_pressure": float(time[np.argmax(pmax)]),
-                               "min_pressure": float(pmin[i_min]),
-                               "time_of_min_pressure": float(time[i_min]),
-                               "uplift": uplift,
-                               "method": "rigid base, linear pressure from the weight of block "
-                                         "and equipment and the base resultants Fz, Mx, My"}
-        if uplift:
-            collected.append(f"Possible uplift / loss of contact: the linear contact pressure falls "
-                             f"to {pmin[i_min]:.3g} Pa at t = {time[i_min]:.3f} s; the linear model "
-                             "(bonded soil springs) no longer holds there.")
+        if DIRECTIONS[j] in run.motion.components:
+            run.peak_times.append((f"base shear {DIRECTIONS[j]}", out["peaks"][c]["time"]))
+    if run.model.support_kind != "soil":
+        return out
+    A, lx, ly, Ix, Iy, W = base_geometry(run.model)
+    mean = (W - base[2]) / A
+    swing = np.abs(base[3]) * (ly / 2) / Ix + np.abs(base[4]) * (lx / 2) / Iy
+    pmax, pmin = mean + swing, mean - swing
+    run.hist["contact pressure max [Pa]"] = pmax
+    run.hist["contact pressure min [Pa]"] = pmin
+    i_min = int(np.argmin(pmin))
+    out["contact"] = contact_entry(
+        W / A, pmax.max(), pmin[i_min],
+        "rigid base, linear pressure from the weight of block and equipment and the base "
+        "resultants Fz, Mx, My",
+        time_of_peak=float(time[np.argmax(pmax)]), time_of_least=float(time[i_min]))
+    if out["contact"]["uplift"]:
+        run.collected.append(f"Possible uplift / loss of contact: the linear contact pressure "
+                             f"falls to {pmin[i_min]:.3g} Pa at t = {time[i_min]:.3f} s; the "
+                             "linear model (bonded soil springs) no longer holds there.")
+    return out
 
-    # ---- stability of the base (results/_stability.py): screening with user values
-    stab = base_stability(base, weight=float(model.weight),
-                          lx=float(model.base.get("lx", 1.0)), ly=float(model.base.get("ly", 1.0)),
-                          support=_get(scenario, "support"))
-    stability_out = stab.summary(dt, t0=float(time[0]))     # on the as-read axis
 
-    peaks: dict[str, Any] = {
-        "base_shear": {"x": base_out["peaks"]["Fx"]["value"], "y": base_out["peaks"]["Fy"]["value"]},
-        "base_axial": base_out["peaks"]["Fz"]["value"],
-        "overturning_moment": {"x": base_out["peaks"]["Mx"]["value"],
-                               "y": base_out["peaks"]["My"]["value"]},
-        "torsion": base_out["peaks"]["Mz"]["value"],
-        "relative_displacement": {},
-    }
-    for d in DIRECTIONS:
-        npk = resp.node_peak[d]
-        entry = {"value": npk["value"], "time": npk["time"]}
-        if npk["node"] >= 0:
-            entry["at"] = [float(v) for v in model.nodes[npk["node"]]]
-        peaks["relative_displacement"][d] = entry
-    stress_out = {}
-    if resp.stress is not None:
-        stress_out, stress_notes = stress_summary(resp.stress, model.stress_points, dt,
-                                                  part_names=list(model.part_names))
-        for g in list(stress_out.values()):    # step times → the as-read axis
-            for h in ((g, g.get("away_from_features")) if isinstance(g, dict) else ()):
-                if isinstance(h, dict) and "time" in h:
-                    h["time"] = float(motion.time_of_step(round(h["time"] / dt)))
-        collected.extend(stress_notes)
-        resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
-        peaks["von_mises"] = stress_out.get("von_mises", {}).get("value")
-        peaks["principal_tension"] = stress_out.get("principal_tension", {}).get("value")
-        peaks["principal_compression"] = stress_out.get("principal_compression", {}).get("value")
+def _stress_entries(run: _Run, peaks: dict) -> dict:
+    """Step 6: the stress peaks (times on the as-read axis) and their notes."""
+    resp, dt = run.resp, run.dt
+    if resp.stress is None:
+        return {}
+    out, notes = stress_summary(resp.stress, run.model.stress_points, dt,
+                                part_names=list(run.model.part_names))
+    for g in list(out.values()):    # step times → the as-read axis
+        for h in ((g, g.get("away_from_features")) if isinstance(g, dict) else ()):
+            if isinstance(h, dict) and "time" in h:
+                h["time"] = float(run.motion.time_of_step(round(h["time"] / dt)))
+    run.collected.extend(notes)
+    resp.assumptions = list(resp.assumptions) + [RECOVERY_NOTE]
+    stress_peak_entries(peaks, out)
+    return out
 
-    # ---- spectra
-    fs = _get(scenario, "floor_spectra")
-    pr = _get(fs, "periods")
-    periods = np.geomspace(float(_get(pr, "min", 0.02)), float(_get(pr, "max", 5.0)),
-                           int(_get(pr, "count", 120)))
-    damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
-    frac = float(_get(fs, "broadening_percent", 15.0)) / 100.0
+
+def _spectra(run: _Run, *, progress) -> dict:
+    """Step 7: ground and floor response spectra, the floor spectra entry and the target."""
+    from ..spectra import response_spectrum
+
+    periods, damp, frac = floor_grid(run.scenario)
     with Progress("spectra", total=None, enabled=progress):
-        gsp = response_spectrum(ag, dt, periods, damp)
-        ground_spectra = {"periods": np.asarray(gsp.periods), "damping": damp,
-                          "psa": np.asarray(gsp.psa), "sa": np.asarray(gsp.sa)}
-        if point_acc:
-            floor = floor_spectra(np.stack(point_acc), dt, periods, damp, fraction=frac)
+        gsp = response_spectrum(run.ag, run.dt, periods, damp)
+        ground = {"periods": np.asarray(gsp.periods), "damping": damp,
+                  "psa": np.asarray(gsp.psa), "sa": np.asarray(gsp.sa)}
+        if run.point_acc:
+            floor = floor_spectra(np.stack(run.point_acc), run.dt, periods, damp, fraction=frac)
         else:
             floor = {"periods": periods, "damping": damp}
-    floor["points"] = point_names
-    timings["spectra"] = _tick()
+    floor["points"] = run.point_names
+    run.timings["spectra"] = run.clock.tick()
     floor_out = {"damping_percent": [float(v) for v in damp * 100],
                  "broadening_percent": frac * 100,
                  "broadening": "envelope of the spectrum shifted ±broadening in period "
@@ -599,79 +616,34 @@ def _analyse(scenario, *, progress, method, motion, model, modes, stresses, coll
                                "ASCE 4, USNRC RG 1.122)",
                  "quantity": "pseudo-spectral acceleration PSA [m/s2] of the absolute acceleration",
                  "points": {}}
-    for p, nm in enumerate(point_names):
+    for p, nm in enumerate(run.point_names):
         floor_out["points"][nm] = {
             d: {f"{dp:g}%": {"peak_psa": float(floor["psa"][p, j, i].max()),
                              "period_of_peak": float(periods[int(np.argmax(floor["psa"][p, j, i]))]),
-                             "zpa": float(np.max(np.abs(point_acc[p][j])))}
+                             "zpa": float(np.max(np.abs(run.point_acc[p][j])))}
                 for i, dp in enumerate(damp * 100)}
             for j, d in enumerate(DIRECTIONS)}
     target_psa = None
-    target_spec = _get(_get(scenario, "motion"), "target")
+    target_spec = run.scenario.motion.target if run.scenario.motion is not None else None
     if target_spec:
-        tgt = parse_target(target_spec, base_dir=_get(scenario, "base_dir"))
+        tgt = parse_target(target_spec, base_dir=run.scenario.base_dir)
         target_psa = np.asarray(tgt.psa(periods), dtype=float)
+    return {"ground": ground, "floor": floor, "floor_out": floor_out, "target_psa": target_psa}
 
-    # ---- warnings
-    _auto_warnings(collected, scenario=scenario, model=model, modes=modes, motion=motion,
-                   method=method, cutoff=cutoff, peak_times=peak_times,
-                   n_modes=int(np.asarray(modes.omega).size))
 
-    # ---- summary
-    cum = np.asarray(modes.cumulative_ratio) if np.asarray(modes.omega).size else np.zeros((1, 3))
-    retained = {d: float(cum[-1, j]) for j, d in enumerate(DIRECTIONS)} \
-        if np.asarray(modes.omega).size else {d: 0.0 for d in DIRECTIONS}
-    analysis_out = {"method": method, "assumptions": resp.assumptions,
-                    "cutoff_hz": cutoff, "n_modes": int(np.asarray(modes.omega).size),
-                    "retained_mass_ratio": retained, "dt": dt, "n_steps": n_t,
-                    "duration": float((n_t - 1) * dt), "pad_before_s": motion.pad_before,
-                    **resp.info,
-                    "effective_force": "p(t) = -L a_g(t), L = M iota (on a fixed base "
-                                       "M_ff iota_f + M_fb iota_b), relative to the moving "
-                                       "base; absolute = relative + ground",
-                    "base_resultants": "d'Alembert: -sum m * absolute acceleration over every "
-                                       "mass (block, base nodes, equipment), moments about "
-                                       "the centre of the base face"}
-    summary.update({
-        "analysis": analysis_out,
-        "peaks": peaks,
-        "sensors": summary_sensors,
-        "equipment": equip_out,
-        **worst_entries(worst_dc, worst_ir),
-        "stresses": stress_out,
-        "base": base_out,
-        "stability": stability_out,
-        "floor_spectra": floor_out,
-        "modes": _modes_dict(modes, model),
-        "model": model.describe(),
-        "records": _records_summary(motion),
-        "motion": {"components": list(motion.components), "dt": dt, "n_steps": n_t,
-                   "notes": list(motion.notes), "matching": dict(motion.matching)},
-        "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
-    })
-    inputs = {}
-    src = _get(scenario, "source", None)
-    if src and Path(str(src)).is_file():
-        inputs[str(src)] = _sha256(Path(str(src)))
-    for d, rec in motion.raw.items():
-        if getattr(rec, "source", ""):
-            inputs[str(rec.source)] = _sha256(Path(rec.source))
-    from .. import __version__
-    summary["provenance"] = {
-        "version": __version__,
-        "date": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
-        "inputs": inputs,
-        "solver": {"method": method, **{k: v for k, v in resp.info.items()
-                                         if k in ("solver", "substeps", "hht_alpha")},
-                   "factor": getattr(model, "solver", "auto")},
-        "settings": {"cutoff_hz": cutoff, "modes": n_modes_req, "hht_alpha": hht_alpha},
-        "timings_s": timings,
-    }
-    return RunResults(summary=summary, motion=motion, model=model, modes=modes, time=time,
-                      histories=hist, ground_spectra=ground_spectra, floor=floor,
-                      stress=None if resp.stress is None else
-                      element_peaks(resp.stress, model.stress_points.element_points),
-                      target_psa=target_psa, inputs=inputs, base=base)
+def _analysis_entry(run: _Run) -> dict:
+    """The ``analysis`` entry of a time-history run."""
+    n_t = run.ag.shape[1]
+    return {"method": run.method, "assumptions": run.resp.assumptions,
+            "cutoff_hz": run.scenario.analysis.cutoff_hz,
+            "n_modes": int(np.asarray(run.modes.omega).size),
+            "retained_mass_ratio": retained_mass(run.modes), "dt": run.dt, "n_steps": n_t,
+            "duration": float((n_t - 1) * run.dt), "pad_before_s": run.motion.pad_before,
+            **run.resp.info,
+            "effective_force": "p(t) = -L a_g(t), L = M iota (on a fixed base "
+                               "M_ff iota_f + M_fb iota_b), relative to the moving "
+                               "base; absolute = relative + ground",
+            "base_resultants": BASE_RESULTANTS}
 
 
 def _records_summary(motion: Motion) -> list:
@@ -697,17 +669,16 @@ def _records_summary(motion: Motion) -> list:
     return out
 
 
-def motion_band(scenario, motion: Motion) -> tuple[float, str]:
+def motion_band(scenario: Scenario, motion: Motion) -> tuple[float, str]:
     """Upper edge [Hz] of the motion's usable band and what sets it: the low-pass corner of
     the processing when one is applied, else the Nyquist frequency 1/(2·dt)."""
     nyq = 0.5 / motion.dt
     lp = None
     try:
-        settings = scenario.processing_settings() if hasattr(scenario, "processing_settings") \
-            else None
-        if settings is not None and bool(_get(settings, "enabled", True)):
-            lp = _get(settings, "lowpass_hz", None)
-    except (AttributeError, TypeError, ValueError, InputError):
+        settings = scenario.processing_settings()
+        if settings.enabled:
+            lp = settings.lowpass_hz
+    except (TypeError, ValueError, InputError):
         lp = None
     if lp is not None and float(lp) < nyq:
         return float(lp), f"the low-pass corner {float(lp):.3g} Hz"
@@ -743,15 +714,7 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                 f"{band_why}, dt = {dt:g} s) and below {RIGID_HZ:g} Hz: the record carries no "
                 "motion there, so they respond quasi-statically where real ground motion may "
                 "still drive them; use a record sampled more finely (or filtered less).")
-        rigid = np.asarray(getattr(modes, "rigid_mass", None) if getattr(modes, "rigid_mass",
-                                                                         None) is not None
-                           else np.zeros(3), float)
-        total = np.asarray(modes.total_mass, float)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            cum = np.where(total - rigid > 0, np.asarray(modes.effective_mass).sum(axis=0)
-                           / (total - rigid), 1.0)
-        low = [f"{d} {100 * cum[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
-               if excited[j] and cum[j] < 0.9]
+        low = low_mass_text(free_mass_ratio(modes), excited)
         if low and method in ("modal", "coupled") and f_hi < f_band:
             collected.append("Retained modal mass below 90 % of the mass free to move ("
                              + ", ".join(low) + ") while the modes left out start within the "
@@ -768,10 +731,8 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                          "No mode below the cutoff.")
     # elements per shear wavelength at the highest frequency retained
     try:
-        mats = _get(scenario, "materials", {}) or {}
-        vs = min(math.sqrt(float(_get(m, "youngs_modulus")) /
-                           (2 * (1 + float(_get(m, "poisson_ratio")))) / float(_get(m, "density")))
-                 for m in mats.values())
+        vs = min(math.sqrt(m.youngs_modulus / (2 * (1 + m.poisson_ratio)) / m.density)
+                 for m in scenario.materials.values())
         mesh = getattr(model, "mesh", None)
         sizes = getattr(mesh, "element_sizes", None)
         if callable(sizes):
@@ -779,7 +740,7 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
         if sizes is not None and np.size(sizes):
             h = float(np.max(np.asarray(sizes)))
         else:
-            h = float(_get(_get(scenario, "mesh"), "element_size"))
+            h = float(scenario.mesh.element_size)
         if f_use > 0 and h > vs / (10.0 * f_use):
             collected.append(f"Elements up to {h:.3g} m are larger than 1/10 of the shear "
                              f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m), the highest "

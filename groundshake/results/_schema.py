@@ -12,13 +12,15 @@ Changing a name or a unit here is a change of the contract: raise
 from __future__ import annotations
 
 import fnmatch
+import math
 import re
 from dataclasses import dataclass
 from typing import Any, Iterator, Mapping
 
-__all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPORT_FILE", "FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
+__all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPORT_FILE", "FILES", "SUITE_FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
            "kind_of", "header", "parse_header", "history_label", "HISTORY_BASE",
-           "iter_values", "DIRECTIONS"]
+           "iter_values", "DIRECTIONS", "SUMMARY_GROUPS", "declared", "read", "read_number",
+           "read_table", "read_list"]
 
 #: Version of the output contract, written into summary.json (``schema.version``).
 SCHEMA_VERSION = 2
@@ -37,6 +39,20 @@ FILES: dict[str, str] = {
     "mode_shapes": "mode_shapes.csv",
     "mesh": "mesh.json",
     "report": "report.html",
+}
+
+#: The files of a suite's output folder (``groundshake suite``), by role: ``records`` is the
+#: folder of each set's ``NAME.json``. In suite.json, ``statistics`` is keyed by the path of
+#: each value in a run's summary.json, list positions counted from 0 as in its JSON
+#: (``equipment.NAME.anchors[0].peak_tension``, kind from :func:`kind_of`); bolt numbers
+#: count from 1 as in a run's files (``worst_dc.bolt``, the histories.csv columns), so
+#: ``anchors[0]`` is bolt 1, and every page numbers bolts from 1.
+SUITE_FILES: dict[str, str] = {
+    "suite": "suite.json",
+    "records": "records",
+    "ground_spectra_statistics": "ground_spectra_statistics.csv",
+    "floor_spectra_statistics": "floor_spectra_statistics.csv",
+    "page": "suite.html",
 }
 
 #: The names the application layer and the docs use (derived from FILES).
@@ -334,7 +350,37 @@ SUMMARY_KINDS: dict[str, str] = {
     "soil_cases.*.modes.*.period": "time",
 }
 
+#: Paths of summary.json that hold a table, a list or words rather than a quantity (``*``
+#: matches one key or index). With the paths of :data:`SUMMARY_KINDS` they are every path
+#: a reader of summary.json may look up (:func:`read`).
+SUMMARY_GROUPS: frozenset[str] = frozenset({
+    "title", "warnings", "cautions", "scenario", "schema",
+    "peaks", "peaks.relative_displacement", "peaks.relative_displacement.*",
+    "sensors", "sensors.*", "sensors.*.peak_absolute_acceleration",
+    "sensors.*.peak_relative_displacement",
+    "equipment", "equipment.*", "equipment.*.peak_absolute_acceleration",
+    "equipment.*.peak_relative_displacement", "equipment.*.anchors", "equipment.*.anchors.*",
+    "equipment.*.capacity", "equipment.*.fp",
+    "worst_dc", "worst_interaction",
+    "stresses", "stresses.*", "stresses.*.away_from_features", "stresses.*.feature",
+    "base", "base.peaks", "base.peaks.*", "base.contact", "base.contact.uplift",
+    "stability", "stability.*", "stability.*.case", "stability.*.edge",
+    "floor_spectra", "modes", "modes.modes", "modes.modes.*", "modes.modes.*.dominant_direction",
+    "model", "model.materials", "model.materials.*", "model.support", "model.base",
+    "analysis", "analysis.method", "analysis.assumptions", "analysis.retained_mass_ratio",
+    "analysis.spectrum_motions",
+    "records", "records.*", "records.*.measures", "records.*.history",
+    "motion", "motion.matching", "motion.matching.*",
+    "provenance", "provenance.inputs",
+    "soil_cases", "soil_cases.*", "soil_cases.*.name", "soil_cases.*.modes",
+    "soil_cases.*.modes.*", "soil_cases.*.stability",
+    "soil_cases.*.stability.sliding.min_safety_factor",
+    "soil_cases.*.stability.overturning.min_safety_factor",
+    "soil_cases.*.stability.bearing.peak_pressure",
+})
+
 _PATTERNS = [(tuple(p.split(".")), k) for p, k in SUMMARY_KINDS.items()]
+_DECLARED = [tuple(p.split(".")) for p in (*SUMMARY_KINDS, *SUMMARY_GROUPS)]
 
 
 def kind_of(path: str | tuple[str, ...]) -> str | None:
@@ -368,3 +414,56 @@ def iter_values(d: Any, prefix: tuple[str, ...] = ()) -> Iterator[tuple[tuple[st
             yield from iter_values(v, prefix + (str(i),))
     else:
         yield prefix, d
+
+
+def declared(path: str | tuple) -> bool:
+    """True when ``path`` (``"stability.sliding.min_safety_factor"`` or a tuple of keys and
+    indices) is a path of the contract (:data:`SUMMARY_KINDS` or :data:`SUMMARY_GROUPS`)."""
+    parts = tuple(str(p) for p in (path.split(".") if isinstance(path, str) else path))
+    return any(len(pat) == len(parts) and all(fnmatch.fnmatchcase(a, b)
+                                              for a, b in zip(parts, pat))
+               for pat in _DECLARED)
+
+
+def read(summary: Mapping, *keys: str | int) -> Any:
+    """The value of summary.json at the path ``keys`` (names, and indices into lists), or
+    None where this summary does not hold it (an older contract, a run without it).
+
+    Raises
+    ------
+    KeyError
+        When the path is not one of the contract (a reader asking for a key no run
+        writes).
+    """
+    if not declared(keys):
+        raise KeyError(f"summary.json: {'.'.join(map(str, keys))} is not a path of the "
+                       "output contract (results/_schema.py)")
+    d: Any = summary
+    for k in keys:
+        if isinstance(d, Mapping) and k in d:
+            d = d[k]
+        elif isinstance(d, list) and isinstance(k, int) and -len(d) <= k < len(d):
+            d = d[k]
+        else:
+            return None
+    return d
+
+
+def read_number(summary: Mapping, *keys: str | int) -> float | None:
+    """:func:`read` as a finite float, or None (absent, not a number, or not finite)."""
+    v = read(summary, *keys)
+    if isinstance(v, bool) or not isinstance(v, (int, float)):
+        return None
+    return float(v) if math.isfinite(v) else None
+
+
+def read_table(summary: Mapping, *keys: str | int) -> Mapping:
+    """:func:`read` of a table (a JSON object); empty where the summary holds none."""
+    v = read(summary, *keys)
+    return v if isinstance(v, Mapping) else {}
+
+
+def read_list(summary: Mapping, *keys: str | int) -> list:
+    """:func:`read` of a list; empty where the summary holds none."""
+    v = read(summary, *keys)
+    return v if isinstance(v, list) else []

@@ -6,27 +6,27 @@ docs/INTERNALS.md); every value is a peak magnitude whose sign and time are unkn
 from __future__ import annotations
 
 import itertools
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
 
-from .._cautions import CAUTIONS
-from .._constants import STANDARD_GRAVITY
 from .._errors import InputError
 from .._progress import Progress
 from ..dynamics._modal import residual_vectors
 from ..dynamics._motion import DIRECTIONS, Motion
-from ..dynamics._spectrum_analysis import (DEFAULT_VERTICAL_FRACTION, VON_MISES_FORM,
-                                           ellipsoid_quadratic_max, modal_spectrum,
-                                           spectral_accelerations)
-from ._anchorage import SCREENING_WORDING, bolt_forces, fp_comparison, worst_entries
-
-from ._anchorage import INTERACTION_FORMS, bolt_interaction
-from ._common import RunResults, _modes_dict, _sha256
-from ._stability import base_stability
-from ._stress import StressPeaks
-from ..scenario import located_at
+from ..dynamics._spectrum_analysis import (VON_MISES_FORM, ellipsoid_quadratic_max,
+                                           modal_spectrum, spectral_accelerations)
+from ..scenario import Scenario, located_at
+from ._anchorage import SCREENING_WORDING, bolt_forces
+from ._common import RunResults
+from ._stress import StressPeaks, element_peaks, stress_summary
+from ._summary import (BASE_RESULTANTS, RESULTANTS, Clock, WorstBolts, anchorage_entries,
+                       assemble, base_entry, base_geometry, base_peak_entries, contact_entry,
+                       dense, displacement_peak, equipment_entry, floor_grid, fp_entry,
+                       free_mass_ratio, input_hashes, low_mass_text, provenance, retained_mass,
+                       sensor_entry, stability_entry, stress_peak_entries, summary_head)
 
 __all__ = ["spectrum_analyse", "stress_bounds", "stress_envelope", "SIGNS_LOST", "STRESS_RULE"]
 
@@ -35,24 +35,10 @@ SIGNS_LOST = ("Response-spectrum results are peak magnitudes: the signs and the 
               "of peaks are lost (each quantity's peak is estimated on its own; two peaks need "
               "not occur together), and no time of peak exists.")
 
-RESULTANTS = ("Fx", "Fy", "Fz", "Mx", "My", "Mz")
-
 #: All sign combinations of six peak accelerations, (6, 64).
 _SIGNS = np.array(list(itertools.product((1.0, -1.0), repeat=6))).T
 #: All sign combinations of five peak base resultants Fx, Fy, Fz, Mx, My, (5, 32).
 _SIGNS5 = np.array(list(itertools.product((1.0, -1.0), repeat=5))).T
-
-
-def _get(obj, key, default=None):
-    if obj is None:
-        return default
-    if isinstance(obj, dict):
-        return obj.get(key, default)
-    return getattr(obj, key, default)
-
-
-def _dense(a) -> np.ndarray:
-    return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
 
 
 def stress_bounds(peaks: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -134,23 +120,21 @@ def _drop_times(d) -> None:
             _drop_times(v)
 
 
-def _targets(scenario):
+def _targets(scenario: Scenario):
     """(horizontal target, vertical target or None, vertical scale, description)."""
     from ..spectra import parse_target
 
-    m = _get(scenario, "motion")
-    base_dir = _get(scenario, "base_dir")
-    spec_h = _get(m, "target")
+    m = scenario.motion
+    base_dir = scenario.base_dir
+    spec_h = m.target if m is not None else None
     if not spec_h:
         raise located_at(scenario, ("motion", "target"), InputError(
             'missing; allowed a design spectrum (asce7:..., en1998:..., or a CSV table) '
             'for [analysis] method = "spectrum"', param="target"))
     th = parse_target(str(spec_h), base_dir=base_dir)
-    spec_z = _get(m, "target_z")
-    frac = _get(m, "vertical_fraction", DEFAULT_VERTICAL_FRACTION)
-    frac = DEFAULT_VERTICAL_FRACTION if frac is None else float(frac)
-    if spec_z:
-        tz = parse_target(str(spec_z), base_dir=base_dir)
+    frac = float(m.vertical_fraction)
+    if m.target_z:
+        tz = parse_target(str(m.target_z), base_dir=base_dir)
         vert = {"target": tz.to_dict(), "source": "motion.target_z"}
         return th, tz, 1.0, vert
     vert = {"target": th.to_dict(), "fraction": frac,
@@ -159,7 +143,46 @@ def _targets(scenario):
     return th, (th if frac > 0 else None), frac, vert
 
 
-def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
+@dataclass
+class _Spectrum:
+    """What the steps of one response-spectrum run share."""
+
+    scenario: Scenario
+    model: Any
+    modes: Any
+    ms: Any                  # ModalSpectrum
+    targets: tuple           # horizontal, horizontal, vertical target (or None)
+    scales: tuple
+    vertical: dict           # how the vertical target is made
+    collected: list
+    timings: dict
+    clock: Clock
+    residual: np.ndarray
+
+    @property
+    def th(self):
+        return self.targets[0]
+
+    @property
+    def tz(self):
+        return self.targets[2]
+
+    @property
+    def components(self) -> tuple[str, ...]:
+        return tuple(d for d, t in zip(DIRECTIONS, self.targets) if t is not None)
+
+    def disp(self, op) -> np.ndarray:
+        """Peak relative displacements of the rows of ``op``."""
+        return self.ms.peak(op, kind="displacement")
+
+    def acc(self, op) -> np.ndarray:
+        """Peak absolute accelerations of the rows of ``op``."""
+        op = sp.csr_matrix(op)
+        iota = np.asarray(self.model.influence, dtype=float)
+        return self.ms.peak(op, kind="acceleration", ground=dense(op @ iota))
+
+
+def spectrum_analyse(scenario: Scenario, *, progress: bool, model, modes, stresses: bool,
                      collected: list, residual: np.ndarray | None = None,
                      timings: dict | None = None, analyse=None):
     """Run a scenario by response-spectrum analysis (``[analysis] method = "spectrum"``).
@@ -190,37 +213,76 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         ``time`` and ``histories`` empty; ``summary`` with the keys of a time-history run
         where a peak is meaningful, SI units.
     """
-    import time as _time
+    run = _setup(scenario, model=model, modes=modes, residual=residual, progress=progress,
+                 collected=collected, timings={} if timings is None else timings)
+    summary = summary_head(scenario)
+    sensors_out = {s.name: sensor_entry(s.position, run.acc(s.operator), run.disp(s.operator))
+                   for s in run.model.sensors}
+    worst = WorstBolts()
+    equip_out = _equipment_entries(run, worst)
+    base_out, base_pk = _base_entries(run)
+    stability_out = _stability_entry(run, base_pk)
+    peaks = base_peak_entries([float(v) for v in base_pk[:6]])
+    un = run.disp(sp.csr_matrix(run.model.node_map))
+    nodes = np.asarray(run.model.nodes)
+    for j, d in enumerate(DIRECTIONS):
+        vals = un[j::3]
+        i = int(np.argmax(vals)) if vals.size else -1
+        peaks["relative_displacement"][d] = displacement_peak(
+            float(vals[i]) if i >= 0 else 0.0, nodes[i] if i >= 0 else None)
+    run.timings["response"] = run.clock.tick()
+    stress_out, speaks = _stress_entries(run, peaks, stresses=stresses, progress=progress)
+    run.timings["stress_peaks"] = run.clock.tick()
+    spectra = _spectra(run, progress=progress, analyse=analyse)
+    analysis_out = _analysis_entry(run)
+    if spectra["side"] is not None:
+        _compare_side_by_side(spectra["side"], sensors_out, equip_out, peaks)
+        analysis_out["spectrum_motions"] = spectra["side"]
+    an = scenario.analysis
+    assemble(summary, analysis=analysis_out, peaks=peaks, sensors=sensors_out,
+             equipment=equip_out, worst=worst, stresses=stress_out, base=base_out,
+             stability=stability_out, floor=spectra["floor_out"], modes=run.modes,
+             model=run.model, records=[],
+             motion={"components": list(run.components), "dt": None, "n_steps": 0,
+                     "notes": ["no records: response-spectrum analysis of the design spectrum"],
+                     "matching": {}},
+             scenario=scenario)
+    inputs = input_hashes([scenario.source, run.th.parameters.get("path"),
+                           run.tz.parameters.get("path") if run.tz is not None else None])
+    summary["provenance"] = provenance(
+        inputs=inputs,
+        solver={"method": "spectrum", "factor": getattr(run.model, "solver", "auto")},
+        settings={"cutoff_hz": an.cutoff_hz, "modes": an.modes,
+                  "direction_combination": an.direction_combination},
+        timings=run.timings)
+    motion = Motion(acc=np.zeros((3, 0)), dt=float("nan"), components=run.components)
+    return RunResults(summary=summary, motion=motion, model=run.model, modes=run.modes,
+                      time=np.zeros(0), histories={}, ground_spectra=spectra["ground"],
+                      floor=spectra["floor"], stress=speaks, target_psa=spectra["target_psa"],
+                      inputs=inputs, base=None)
 
+
+def _setup(scenario: Scenario, *, model, modes, residual, progress, collected,
+           timings) -> _Spectrum:
+    """Step 1: the design spectra, the model, the modes and their modal spectrum."""
     from ..dynamics import compute_modes
     from ..model import build_model
 
-    timings = {} if timings is None else timings
-    clock = [_time.perf_counter()]
-
-    def _tick() -> float:
-        now = _time.perf_counter()
-        dt_, clock[0] = now - clock[0], now
-        return dt_
-
-    analysis = _get(scenario, "analysis")
-    cutoff = _get(analysis, "cutoff_hz", 50.0)
-    n_modes_req = _get(analysis, "modes", None)
-    rule = _get(analysis, "direction_combination", "srss") or "srss"
+    clock = Clock()
+    an = scenario.analysis
     th, tz, fz, vert = _targets(scenario)
     targets = (th, th, tz)
     scales = (1.0, 1.0, fz if tz is th else 1.0)
     excited = (True, True, tz is not None)
-    comps = tuple(d for d, e in zip(DIRECTIONS, excited) if e)
-    timings["motion"] = _tick()
+    timings["motion"] = clock.tick()
     if model is None:
         model = build_model(scenario)
-    timings["model"] = _tick()
+    timings["model"] = clock.tick()
     if modes is None:
         with Progress("modes", total=None, enabled=progress):
-            modes = compute_modes(model, cutoff_hz=None if n_modes_req else cutoff,
-                                  n_modes=n_modes_req, excited=excited, warn=False)
-    timings["modes"] = _tick()
+            modes = compute_modes(model, cutoff_hz=None if an.modes else an.cutoff_hz,
+                                  n_modes=an.modes, excited=excited, warn=False)
+    timings["modes"] = clock.tick()
     collected.extend(m for m in getattr(modes, "warnings", []) or []
                      if not str(m).startswith("modes capture"))
     shapes = np.asarray(modes.shapes)
@@ -228,239 +290,163 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
     if residual is None:
         residual = residual_vectors(model.M, model.influence, shapes, gam, model.factor().solve,
                                     load=getattr(model, "ground_load", None))
-    iota = np.asarray(model.influence, dtype=float)
     ms = modal_spectrum(shapes, modes.omega, modes.damping, gam, targets, scales=scales,
-                        residual=residual, rule=rule)
+                        residual=residual, rule=an.direction_combination)
     collected.extend(n for n in ms.notes if n.startswith("target") and "held" in n)
+    return _Spectrum(scenario=scenario, model=model, modes=modes, ms=ms, targets=targets,
+                     scales=scales, vertical=vert, collected=collected, timings=timings,
+                     clock=clock, residual=residual)
 
-    summary: dict[str, Any] = {"title": _get(scenario, "title", "scenario"),
-                               "cautions": list(CAUTIONS), "warnings": []}
 
-    def disp(op):
-        return ms.peak(op, kind="displacement")
+#: How the bolt forces of a spectrum run are found (before the screening wording).
+_ANCHORAGE_METHOD = (
+    "rigid base plate, elastic bolt group (common practice); the six peak CG accelerations "
+    "(translations and rotations) of the spectrum method applied together with every sign "
+    "(64 combinations), the largest bolt force kept: an envelope, conservative because the "
+    "peaks do not occur together; weight × dead_load_factor {f:g} resists uplift; "
+    "{screening}")
 
-    def acc(op):
-        op = sp.csr_matrix(op)
-        return ms.peak(op, kind="acceleration", ground=_dense(op @ iota))
 
-    # ---- sensors
-    sensors_out: dict[str, Any] = {}
-    for s in model.sensors:
-        a, u = acc(s.operator), disp(s.operator)
-        sensors_out[s.name] = {
-            "position": [float(v) for v in s.position],
-            "peak_absolute_acceleration": {d: float(a[j]) for j, d in enumerate(DIRECTIONS)},
-            "peak_relative_displacement": {d: float(u[j]) for j, d in enumerate(DIRECTIONS)}}
-
-    # ---- equipment and anchorage
-    equip_out: dict[str, Any] = {}
-    worst_dc = None
-    worst_ir = None
-    for e in model.equipment:
-        a6, u6 = acc(e.operator), disp(e.operator)
-        d_ = {"mass": float(e.mass), "cg": [float(v) for v in e.cg],
-              "support": "rigid" if e.frequency_hz is None else "flexible",
-              "frequency_hz": (None if e.frequency_hz is None
-                               else [float(v) for v in e.frequency_hz]),
-              "damping": float(e.damping),
-              "peak_absolute_acceleration": {d: float(a6[j]) for j, d in enumerate(DIRECTIONS)},
-              "peak_relative_displacement": {d: float(u6[j]) for j, d in enumerate(DIRECTIONS)},
-              "peak_angular_acceleration": {d: float(a6[3 + j]) for j, d in enumerate(DIRECTIONS)},
-              "anchors": []}
+def _equipment_entries(run: _Spectrum, worst: WorstBolts) -> dict:
+    """Step 2: peaks of the equipment and the envelope of its bolt forces."""
+    out: dict[str, Any] = {}
+    for e in run.model.equipment:
+        a6, u6 = run.acc(e.operator), run.disp(e.operator)
+        d_ = equipment_entry(e, a6[:3], u6[:3], a6[3:6])
         anchors = np.asarray(e.anchors, dtype=float).reshape(-1, 2)
         if anchors.shape[0]:
             # the six peak accelerations applied together, with every sign: an envelope
             bf = bolt_forces(a6[:, None] * _SIGNS, anchors, mass=e.mass, inertia=e.inertia,
                              cg_height=float(e.cg[2] - e.mount[2]),
                              dead_load_factor=float(e.dead_load_factor))
-            cap = e.capacity
-            for i, (x, y) in enumerate(anchors):
-                b = {"position": [float(x), float(y)],
-                     "peak_tension": float(max(0.0, bf.tension[i].max())),
-                     "peak_shear": float(bf.shear[i].max()),
-                     "min_axial": float(bf.tension[i].min())}
-                if cap is not None:
-                    b["dc_tension"] = b["peak_tension"] / float(_get(cap, "tension"))
-                    b["dc_shear"] = b["peak_shear"] / float(_get(cap, "shear"))
-                    if bolt_interaction is not None:
-                        form = _get(cap, "interaction", "5/3-power") or "5/3-power"
-                        ir = bolt_interaction(bf.tension[i], bf.shear[i],
-                                              tension_capacity=float(_get(cap, "tension")),
-                                              shear_capacity=float(_get(cap, "shear")),
-                                              form=form)
-                        b["interaction_ratio"] = float(np.max(ir))
-                        if worst_ir is None or b["interaction_ratio"] > worst_ir[0]:
-                            worst_ir = (b["interaction_ratio"], e.name, i + 1, form)
-                    dc = max(b["dc_tension"], b["dc_shear"])
-                    if worst_dc is None or dc > worst_dc[0]:
-                        worst_dc = (dc, e.name, i + 1)
-                d_["anchors"].append(b)
-            d_["dead_load_factor"] = float(e.dead_load_factor)
-            d_["anchorage_method"] = (
-                "rigid base plate, elastic bolt group (common practice); the six peak CG "
-                "accelerations (translations and rotations) of the spectrum method applied "
-                "together with every sign (64 combinations), the largest bolt force kept: an "
-                "envelope, conservative because the peaks do not occur together; weight × "
-                f"dead_load_factor {float(e.dead_load_factor):g} resists uplift; "
-                f"{SCREENING_WORDING}")
-            if cap is not None:
-                d_["capacity"] = {"tension": float(_get(cap, "tension")),
-                                  "shear": float(_get(cap, "shear")),
-                                  "note": f"demand/capacity ratios: {SCREENING_WORDING}"}
-                if INTERACTION_FORMS is not None:
-                    form = _get(cap, "interaction", "5/3-power") or "5/3-power"
-                    d_["capacity"].update(interaction=form,
-                                          interaction_formula=INTERACTION_FORMS[form])
+            anchorage_entries(d_, e, anchors, bf, worst=worst,
+                              method=_ANCHORAGE_METHOD.format(f=float(e.dead_load_factor),
+                                                              screening=SCREENING_WORDING))
         if e.fp is not None and anchors.shape[0]:
-            fp = e.fp
-            d_["fp"] = fp_comparison(weight=e.mass * STANDARD_GRAVITY, sds=float(_get(fp, "sds")),
-                                     ap=float(_get(fp, "ap")), rp=float(_get(fp, "rp")),
-                                     ip=float(_get(fp, "ip", 1.0)),
-                                     z_over_h=float(_get(fp, "z_over_h", 0.0)),
-                                     anchors=anchors, mass=e.mass,
-                                     cg_height=float(e.cg[2] - e.mount[2]),
-                                     dead_load_factor=float(e.dead_load_factor))
             # the keys of a time-history run; here the peaks of the spectrum method
-            d_["fp"]["time_history_peak_tension"] = max(b["peak_tension"] for b in d_["anchors"])
-            d_["fp"]["time_history_peak_shear"] = max(b["peak_shear"] for b in d_["anchors"])
+            d_["fp"] = fp_entry(e, anchors, d_["anchors"])
             d_["fp"]["analysis_peaks_from"] = "response-spectrum analysis"
-        equip_out[e.name] = d_
+        out[e.name] = d_
+    return out
 
-    # ---- base resultants (d'Alembert: −Σ m ü_abs, acceleration type)
+
+def _base_entries(run: _Spectrum) -> tuple[dict, np.ndarray]:
+    """Step 3: peak base resultants (d'Alembert: −Σ m ü_abs, acceleration type) and, on
+    soil, the envelope of the linear contact pressure."""
+    model = run.model
     R = getattr(model, "inertia_reaction", None)
     if R is None:       # pragma: no cover - every model built here has it
         raise InputError("spectrum method: the model has no inertia reaction operators")
-    base_pk = ms.peak(np.asarray(R.M), kind="acceleration", ground=np.asarray(R.G))
-    base_out: dict[str, Any] = {
-        "about": [float(v) for v in np.asarray(model.base.get("centre", np.zeros(3)))],
-        "sign": "resultants the structure exerts on its support (magnitudes)",
-        "peaks": {c: {"value": float(base_pk[j])} for j, c in enumerate(RESULTANTS)}}
+    base_pk = run.ms.peak(np.asarray(R.M), kind="acceleration", ground=np.asarray(R.G))
+    out = base_entry(model, "resultants the structure exerts on its support (magnitudes)",
+                     {c: {"value": float(base_pk[j])} for j, c in enumerate(RESULTANTS)})
     if model.support_kind == "soil":
-        A = float(model.base.get("area", 0.0)) or 1.0
-        lx, ly = float(model.base.get("lx", 1.0)), float(model.base.get("ly", 1.0))
-        Ix, Iy = lx * ly ** 3 / 12.0, ly * lx ** 3 / 12.0
-        W = float(model.weight)
+        A, lx, ly, Ix, Iy, W = base_geometry(model)
         swing = base_pk[2] / A + base_pk[3] * (ly / 2) / Ix + base_pk[4] * (lx / 2) / Iy
         pmax, pmin = W / A + swing, W / A - swing
-        base_out["contact"] = {"static_pressure": W / A, "peak_pressure": float(pmax),
-                               "min_pressure": float(pmin), "uplift": bool(pmin < 0),
-                               "method": "rigid base, linear pressure from the weight of block "
-                                         "and equipment and the peak base resultants Fz, Mx, My "
-                                         "taken together with their worst signs (an envelope)"}
+        out["contact"] = contact_entry(
+            W / A, pmax, pmin,
+            "rigid base, linear pressure from the weight of block and equipment and the peak "
+            "base resultants Fz, Mx, My taken together with their worst signs (an envelope)")
         if pmin < 0:
-            collected.append(f"Possible uplift / loss of contact: the linear contact pressure "
-                             f"envelope falls to {pmin:.3g} Pa; the linear model (bonded soil "
-                             "springs) no longer holds there.")
+            run.collected.append(f"Possible uplift / loss of contact: the linear contact "
+                                 f"pressure envelope falls to {pmin:.3g} Pa; the linear model "
+                                 "(bonded soil springs) no longer holds there.")
+    return out, base_pk
 
-    stability_out = None
-    if base_stability is not None:
-        # the five peak resultants together at every sign: an envelope (32 combinations)
-        combos = np.vstack([base_pk[:5, None] * _SIGNS5, np.zeros((1, _SIGNS5.shape[1]))])
-        stab = base_stability(combos, weight=float(model.weight),
-                              lx=float(model.base.get("lx", 1.0)),
-                              ly=float(model.base.get("ly", 1.0)),
-                              support=_get(scenario, "support"))
-        stability_out = stab.summary(1.0)
-        _drop_times(stability_out)
-        stability_out["spectrum_method"] = (
-            "the peak base resultants Fx, Fy, Fz, Mx, My taken together at every sign "
-            "(32 combinations) and the least safety factor / largest pressure kept: an "
-            "envelope, conservative because the peaks do not occur together")
 
-    peaks: dict[str, Any] = {
-        "base_shear": {"x": float(base_pk[0]), "y": float(base_pk[1])},
-        "base_axial": float(base_pk[2]),
-        "overturning_moment": {"x": float(base_pk[3]), "y": float(base_pk[4])},
-        "torsion": float(base_pk[5]),
-        "relative_displacement": {}}
-    node_map = sp.csr_matrix(model.node_map)
-    un = disp(node_map)
-    nodes = np.asarray(model.nodes)
-    for j, d in enumerate(DIRECTIONS):
-        vals = un[j::3]
-        i = int(np.argmax(vals)) if vals.size else -1
-        entry = {"value": float(vals[i]) if i >= 0 else 0.0}
-        if i >= 0:
-            entry["at"] = [float(v) for v in nodes[i]]
-        peaks["relative_displacement"][d] = entry
-    timings["response"] = _tick()
+def _stability_entry(run: _Spectrum, base_pk: np.ndarray) -> dict:
+    """Step 4: stability under the five peak resultants together at every sign: an
+    envelope (32 combinations)."""
+    combos = np.vstack([base_pk[:5, None] * _SIGNS5, np.zeros((1, _SIGNS5.shape[1]))])
+    out = stability_entry(combos, run.model, run.scenario, 1.0)
+    _drop_times(out)
+    out["spectrum_method"] = (
+        "the peak base resultants Fx, Fy, Fz, Mx, My taken together at every sign "
+        "(32 combinations) and the least safety factor / largest pressure kept: an "
+        "envelope, conservative because the peaks do not occur together")
+    return out
 
-    # ---- stresses
-    stress_out: dict[str, Any] = {}
-    speaks = None
+
+def _stress_entries(run: _Spectrum, peaks: dict, *, stresses: bool, progress: bool):
+    """Step 5: envelope stresses at the stress points (or element centres) and the
+    per-element peaks; ``({}, None)`` without stresses."""
+    model = run.model
     n_el = int(np.asarray(model.elements).shape[0])
     S = sp.csr_matrix(model.stress)
-    if stresses and n_el and S.shape[0]:
-        n_pts = S.shape[0] // 6
-        with Progress("stress peaks", total=None, enabled=progress):
-            comp = ms.peak(S, kind="displacement").reshape(n_pts, 6)     # component peaks
-            cov = ms.covariance(S, kind="displacement")                   # (n_pts, 6, 6)
-        vm, t1, t3 = stress_envelope(comp.T, cov)
-        zero = np.zeros(n_pts, dtype=np.int64)
-        point_peaks = StressPeaks(vm, zero, t1, zero.copy(), t3, zero.copy())
-        pts = getattr(model, "stress_points", None)
-        if pts is not None:            # stress points on the surface (nodal recovery)
-            from . import _stress as _st
-            stress_out, notes = _st.stress_summary(point_peaks, pts, 0.0,
-                                                   part_names=list(model.part_names))
-            collected.extend(notes)
-            _drop_times(stress_out)
-            speaks = _st.element_peaks(point_peaks, pts.element_points)
-        else:                          # one point per element (its centre)
-            speaks = point_peaks
-            stress_out = {}
-            centres = np.asarray(model.element_centres)
-            for key, arr, pick in (("von_mises", vm, np.argmax),
-                                   ("principal_tension", t1, np.argmax),
-                                   ("principal_compression", t3, np.argmin)):
-                e = int(pick(arr))
-                stress_out[key] = {"value": float(arr[e]), "element": e,
-                                   "at": [float(v) for v in centres[e]]}
-            stress_out["points"] = "element centres"
-            stress_out["units"] = "Pa"
-        stress_out["combination"] = STRESS_RULE
-        peaks["von_mises"] = stress_out["von_mises"]["value"]
-        peaks["principal_tension"] = stress_out["principal_tension"]["value"]
-        peaks["principal_compression"] = stress_out["principal_compression"]["value"]
-    timings["stress_peaks"] = _tick()
+    if not (stresses and n_el and S.shape[0]):
+        return {}, None
+    n_pts = S.shape[0] // 6
+    with Progress("stress peaks", total=None, enabled=progress):
+        comp = run.ms.peak(S, kind="displacement").reshape(n_pts, 6)     # component peaks
+        cov = run.ms.covariance(S, kind="displacement")                   # (n_pts, 6, 6)
+    vm, t1, t3 = stress_envelope(comp.T, cov)
+    zero = np.zeros(n_pts, dtype=np.int64)
+    point_peaks = StressPeaks(vm, zero, t1, zero.copy(), t3, zero.copy())
+    pts = getattr(model, "stress_points", None)
+    if pts is not None:            # stress points on the surface (nodal recovery)
+        out, notes = stress_summary(point_peaks, pts, 0.0, part_names=list(model.part_names))
+        run.collected.extend(notes)
+        _drop_times(out)
+        speaks = element_peaks(point_peaks, pts.element_points)
+    else:                          # one point per element (its centre)
+        speaks = point_peaks
+        out = {}
+        centres = np.asarray(model.element_centres)
+        for key, arr, pick in (("von_mises", vm, np.argmax),
+                               ("principal_tension", t1, np.argmax),
+                               ("principal_compression", t3, np.argmin)):
+            e = int(pick(arr))
+            out[key] = {"value": float(arr[e]), "element": e,
+                        "at": [float(v) for v in centres[e]]}
+        out["points"] = "element centres"
+        out["units"] = "Pa"
+    out["combination"] = STRESS_RULE
+    stress_peak_entries(peaks, out)
+    return out, speaks
 
-    # ---- spectra: the design spectra at the floor-spectrum damping values
-    fs = _get(scenario, "floor_spectra")
-    pr = _get(fs, "periods")
-    periods = np.geomspace(float(_get(pr, "min", 0.02)), float(_get(pr, "max", 5.0)),
-                           int(_get(pr, "count", 120)))
-    damp = np.asarray(_get(fs, "damping_percent", (2.0, 5.0)), dtype=float) / 100.0
+
+def _spectra(run: _Spectrum, *, progress: bool, analyse) -> dict:
+    """Step 6: the design spectra at the floor-spectrum damping values; floor spectra from
+    matched motions when ``[analysis] spectrum_motions`` asks for them."""
+    periods, damp, _ = floor_grid(run.scenario)
     gpsa = np.zeros((3, damp.size, periods.size))
     for j in range(3):
-        if targets[j] is None:
+        if run.targets[j] is None:
             continue
         for i, z in enumerate(damp):
-            gpsa[j, i], _ = spectral_accelerations(targets[j], periods, np.full(periods.size, z),
-                                                   scale=scales[j])
-    ground_spectra = {"periods": periods, "damping": damp, "psa": gpsa, "sa": gpsa}
-    target_psa = np.asarray(th.psa(periods), dtype=float)
-    floor = {"periods": periods, "damping": damp, "points": []}
-    floor_out = {"damping_percent": [float(v) for v in damp * 100],
-                 "points": {},
-                 "note": "not computed: floor spectra need time histories; set [analysis] "
-                         "spectrum_motions = N (invented motions matched to the design spectra) "
-                         "or run records with match_target = true by the modal method"}
-    n_mot = int(_get(analysis, "spectrum_motions", 0) or 0)
-    side = None
+            gpsa[j, i], _ = spectral_accelerations(run.targets[j], periods,
+                                                   np.full(periods.size, z),
+                                                   scale=run.scales[j])
+    out = {"ground": {"periods": periods, "damping": damp, "psa": gpsa, "sa": gpsa},
+           "target_psa": np.asarray(run.th.psa(periods), dtype=float),
+           "floor": {"periods": periods, "damping": damp, "points": []},
+           "floor_out": {"damping_percent": [float(v) for v in damp * 100],
+                         "points": {},
+                         "note": "not computed: floor spectra need time histories; set "
+                                 "[analysis] spectrum_motions = N (invented motions matched to "
+                                 "the design spectra) or run records with match_target = true "
+                                 "by the modal method"},
+           "side": None}
+    n_mot = int(run.scenario.analysis.spectrum_motions)
     if n_mot > 0:
         with Progress("spectrum-compatible motions", total=None, enabled=progress):
             if analyse is None:
                 raise InputError("the matched motions of analysis.spectrum_motions need the "
                                  "time-history run (pass analyse=groundshake.results.analyse)",
                                  param="analyse")
-            floor, floor_out, side = _matched_floor(
-                scenario, n_mot, targets, scales, model=model, modes=modes, residual=residual,
-                analyse=analyse)
-        timings["spectrum_motions"] = _tick()
+            out["floor"], out["floor_out"], out["side"] = _matched_floor(
+                run.scenario, n_mot, run.targets, run.scales, model=run.model,
+                modes=run.modes, residual=run.residual, analyse=analyse)
+        run.timings["spectrum_motions"] = run.clock.tick()
+    return out
 
-    # ---- assumptions and warnings
-    zpa = {d: float(ms.zpa[j]) for j, d in enumerate(DIRECTIONS)}
-    assumptions = [
+
+def _assumptions(run: _Spectrum) -> list[str]:
+    """What a spectrum run assumes, in words."""
+    ms, tz, th = run.ms, run.tz, run.th
+    rule = run.scenario.analysis.direction_combination
+    out = [
         SIGNS_LOST,
         f"Response-spectrum analysis of {ms.omega.size} mode(s): modal peaks from the design "
         "spectrum at each mode's period and damping; modes combined by CQC (Der Kiureghian "
@@ -473,104 +459,59 @@ def spectrum_analyse(scenario, *, progress: bool, model, modes, stresses: bool,
         "(USNRC RG 1.92 Rev. 3; ASCE 4).",
         "Both horizontal directions take the horizontal target in full; the vertical takes "
         + ("motion.target_z." if tz is not None and tz is not th else
-           (f"{fz:g} × the horizontal target (motion.vertical_fraction; 2/3 by default, the "
-            "USNRC RG 1.60 / ASCE 4 long-period ratio, from memory)." if tz is not None else
-            "nothing (vertical_fraction = 0).")),
+           (f"{run.scales[2]:g} × the horizontal target (motion.vertical_fraction; 2/3 by "
+            "default, the USNRC RG 1.60 / ASCE 4 long-period ratio, from memory)."
+            if tz is not None else "nothing (vertical_fraction = 0).")),
         "Absolute accelerations: each mode at its pseudo-spectral acceleration; the rigid part "
         "of the modes left out at the ZPA.",
         "Modal damping: " + ("the composite ratio of each mode" if
-                             getattr(model, "is_classically_damped", True) else
+                             getattr(run.model, "is_classically_damped", True) else
                              "the diagonal ratios of ΦᵀCΦ; the coupling of the modes by discrete "
                              "dashpots (soil radiation, equipment supports) is neglected")
         + " (capped as the modal method does).",
-        *[n for n in ms.notes if n not in collected],
+        *[n for n in ms.notes if n not in run.collected],
     ]
-    given = _get(_get(scenario, "motion"), "components")
-    if callable(given) and given():
-        assumptions.append("The record components of [motion] are not used by the spectrum "
-                           "method (only its target); run method = \"modal\" for them.")
-    rigid = np.asarray(getattr(modes, "rigid_mass", None)
-                       if getattr(modes, "rigid_mass", None) is not None else np.zeros(3), float)
-    total = np.asarray(modes.total_mass, float)
-    n_m = int(np.asarray(modes.omega).size)
-    cum = np.asarray(modes.cumulative_ratio) if n_m else np.zeros((1, 3))
-    retained = {d: float(cum[-1, j]) for j, d in enumerate(DIRECTIONS)}
-    with np.errstate(divide="ignore", invalid="ignore"):
-        free = np.where(total - rigid > 0,
-                        (np.asarray(modes.effective_mass).sum(axis=0) if n_m else np.zeros(3))
-                        / (total - rigid), 1.0)
-    low = [f"{d} {100 * free[j]:.1f} %" for j, d in enumerate(DIRECTIONS)
-           if excited[j] and free[j] < 0.9]
+    motion = run.scenario.motion
+    if motion is not None and motion.components():
+        out.append("The record components of [motion] are not used by the spectrum "
+                   "method (only its target); run method = \"modal\" for them.")
+    return out
+
+
+def _analysis_entry(run: _Spectrum) -> dict:
+    """Step 7: the ``analysis`` entry, and the warning on the mass the modes leave out."""
+    assumptions = _assumptions(run)
+    low = low_mass_text(free_mass_ratio(run.modes), [t is not None for t in run.targets])
     if low:
-        collected.append("Retained modal mass below 90 % of the mass free to move ("
-                         + ", ".join(low) + "): the missing-mass correction carries the rest "
-                         "at the ZPA; check that the modes left out are rigid (above the "
-                         "spectrum's zero-period frequency), or raise cutoff_hz (ASCE 7-16 "
-                         "§12.9.1.1 asks for 90 %).")
-    analysis_out = {"method": "spectrum", "assumptions": assumptions,
-                    "cutoff_hz": cutoff, "n_modes": n_m, "retained_mass_ratio": retained,
-                    "n_steps": 0, "direction_combination": rule,
-                    "missing_mass": True,
-                    "targets": {"horizontal": th.to_dict(), "vertical": vert},
-                    "zero_period_acceleration": zpa,
-                    "modal_spectral_acceleration": {
-                        d: [float(v) for v in ms.sa[j]] for j, d in enumerate(DIRECTIONS)},
-                    "modal_damping": [float(v) for v in ms.damping],
-                    "base_resultants": "d'Alembert: -sum m * absolute acceleration over every "
-                                       "mass (block, base nodes, equipment), moments about "
-                                       "the centre of the base face; each resultant's peak "
-                                       "on its own"}
-    if side is not None:
-        rsa = _with_bolt_maxima({"sensors": sensors_out,
-                                 "equipment": {k: dict(v) for k, v in equip_out.items()},
-                                 "peaks": peaks})
-        for row in side["comparison"]:
-            v = _pick(rsa, row["key"])
-            row["spectrum"] = v
-            row["ratio"] = (v / row["time_history_mean"]
-                            if v is not None and row["time_history_mean"] else None)
-        analysis_out["spectrum_motions"] = side
-    summary.update({
-        "analysis": analysis_out,
-        "peaks": peaks,
-        "sensors": sensors_out,
-        "equipment": equip_out,
-        **worst_entries(worst_dc, worst_ir),
-        "stresses": stress_out,
-        "base": base_out,
-        **({"stability": stability_out} if stability_out is not None else {}),
-        "floor_spectra": floor_out,
-        "modes": _modes_dict(modes, model),
-        "model": model.describe(),
-        "records": [],
-        "motion": {"components": list(comps), "dt": None, "n_steps": 0,
-                   "notes": ["no records: response-spectrum analysis of the design spectrum"],
-                   "matching": {}},
-        "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
-    })
-    import datetime as _dt
-    from pathlib import Path
+        run.collected.append("Retained modal mass below 90 % of the mass free to move ("
+                             + ", ".join(low) + "): the missing-mass correction carries the "
+                             "rest at the ZPA; check that the modes left out are rigid (above "
+                             "the spectrum's zero-period frequency), or raise cutoff_hz (ASCE "
+                             "7-16 §12.9.1.1 asks for 90 %).")
+    ms, an = run.ms, run.scenario.analysis
+    return {"method": "spectrum", "assumptions": assumptions,
+            "cutoff_hz": an.cutoff_hz, "n_modes": int(np.asarray(run.modes.omega).size),
+            "retained_mass_ratio": retained_mass(run.modes),
+            "n_steps": 0, "direction_combination": an.direction_combination,
+            "missing_mass": True,
+            "targets": {"horizontal": run.th.to_dict(), "vertical": run.vertical},
+            "zero_period_acceleration": {d: float(ms.zpa[j]) for j, d in enumerate(DIRECTIONS)},
+            "modal_spectral_acceleration": {
+                d: [float(v) for v in ms.sa[j]] for j, d in enumerate(DIRECTIONS)},
+            "modal_damping": [float(v) for v in ms.damping],
+            "base_resultants": BASE_RESULTANTS + "; each resultant's peak on its own"}
 
-    from .. import __version__
 
-    inputs = {}
-    for src in (_get(scenario, "source", None), th.parameters.get("path"),
-                tz.parameters.get("path") if tz is not None else None):
-        if src and Path(str(src)).is_file():
-            inputs[str(src)] = _sha256(Path(str(src)))
-    summary["provenance"] = {
-        "version": __version__,
-        "date": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
-        "inputs": inputs,
-        "solver": {"method": "spectrum", "factor": getattr(model, "solver", "auto")},
-        "settings": {"cutoff_hz": cutoff, "modes": n_modes_req, "direction_combination": rule},
-        "timings_s": timings,
-    }
-    motion = Motion(acc=np.zeros((3, 0)), dt=float("nan"), components=comps)
-    return RunResults(summary=summary, motion=motion, model=model, modes=modes,
-                      time=np.zeros(0), histories={}, ground_spectra=ground_spectra,
-                      floor=floor, stress=speaks, target_psa=target_psa, inputs=inputs,
-                      base=None)
+def _compare_side_by_side(side: dict, sensors: dict, equipment: dict, peaks: dict) -> None:
+    """Put this run's peaks beside the matched motions' mean peaks (``side["comparison"]``)."""
+    rsa = _with_bolt_maxima({"sensors": sensors,
+                             "equipment": {k: dict(v) for k, v in equipment.items()},
+                             "peaks": peaks})
+    for row in side["comparison"]:
+        v = _pick(rsa, row["key"])
+        row["spectrum"] = v
+        row["ratio"] = (v / row["time_history_mean"]
+                        if v is not None and row["time_history_mean"] else None)
 
 
 #: The peaks set side by side (summary key path, label).

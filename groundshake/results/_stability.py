@@ -40,6 +40,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..scenario import SupportSettings
+
 __all__ = ["Stability", "stability_histories", "base_stability", "no_tension_pressure", "EDGES",
            "STABILITY_WORDING"]
 
@@ -364,7 +366,7 @@ def no_tension_pressure(n, mx, my, *, lx: float, ly: float, rows: int = _GRID,
 
 
 def base_stability(base: np.ndarray, *, weight: float, lx: float, ly: float,
-                   support=None) -> Stability:
+                   support: SupportSettings) -> Stability:
     """:func:`stability_histories` from a run's base resultants and its scenario support.
 
     Parameters
@@ -376,23 +378,16 @@ def base_stability(base: np.ndarray, *, weight: float, lx: float, ly: float,
         Weight of block and equipment [N]; N(t) = weight − Fz(t).
     lx, ly : float
         Base lengths [m].
-    support : SupportSettings or dict, optional
-        Reads ``friction_coefficient``, ``passive_resistance`` and
+    support : SupportSettings
+        Gives ``friction_coefficient``, ``passive_resistance`` and
         ``allowable_bearing_pressure``.
 
     Returns
     -------
     Stability
     """
-    def get(key, default=None):
-        if support is None:
-            return default
-        v = support.get(key, default) if isinstance(support, dict) else getattr(support, key,
-                                                                                 default)
-        return default if v is None else v
-
     b = np.asarray(base, dtype=float)
     return stability_histories(b[0], b[1], float(weight) - b[2], b[3], b[4], lx=lx, ly=ly,
-                               friction_coefficient=get("friction_coefficient"),
-                               passive_resistance=float(get("passive_resistance", 0.0)),
-                               allowable_bearing_pressure=get("allowable_bearing_pressure"))
+                               friction_coefficient=support.friction_coefficient,
+                               passive_resistance=float(support.passive_resistance),
+                               allowable_bearing_pressure=support.allowable_bearing_pressure)

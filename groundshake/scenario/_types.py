@@ -41,6 +41,12 @@ RECORD_UNITS = ("g", "m/s2", "cm/s2", "mm/s2", "ft/s2", "in/s2")
 _MISSING = dataclasses.MISSING
 _KEEP_MARK = object()  # "leave as it is" for Scenario.with_motion
 
+def percent_to_ratio(percent: float) -> float:
+    """A percentage as a ratio (5 → 0.05): the one place where the scenario's damping and
+    broadening in percent become the ratios the computations use."""
+    return float(percent) / 100.0
+
+
 #: The reading and writing functions of the loader (``_load.py``), registered there when the
 #: package is imported, so that these data types do not import their loader (no cycle).
 _CODEC: dict[str, Any] = {}
@@ -262,6 +268,11 @@ class DampingSettings:
         "vector", None, length=2, gt=0.0, unit="Hz",
         doc="two frequencies f1 < f2 for a Rayleigh matrix; none = modal damping")
 
+    @property
+    def ratio(self) -> float:
+        """The block's damping as a ratio (``ratio_percent`` / 100)."""
+        return percent_to_ratio(self.ratio_percent)
+
 
 # --- equipment and sensors ---------------------------------------------------------------
 
@@ -319,6 +330,11 @@ class Equipment:
                                            doc="bolt capacities {tension, shear}, user supplied")
     fp: FpParameters | None = spec("table", None, cls=FpParameters,
                                    doc="ASCE 7-16 Fp inputs {sds, ap, rp, ip, z_over_h}")
+
+    @property
+    def damping_ratio(self) -> float | None:
+        """The support's damping as a ratio, or None when not given (the block's then)."""
+        return None if self.damping_percent is None else percent_to_ratio(self.damping_percent)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -378,6 +394,16 @@ class FloorSpectraSettings:
                                      doc="peak broadening, ± percent of the period")
     periods: PeriodRange = spec("table", factory=PeriodRange, cls=PeriodRange,
                                 doc="period range {min, max, count}")
+
+    @property
+    def damping_ratios(self) -> tuple[float, ...]:
+        """The oscillator damping values as ratios."""
+        return tuple(percent_to_ratio(p) for p in self.damping_percent)
+
+    @property
+    def broadening_ratio(self) -> float:
+        """The peak broadening as a share of the period (``broadening_percent`` / 100)."""
+        return percent_to_ratio(self.broadening_percent)
 
 
 @dataclass(frozen=True, kw_only=True)

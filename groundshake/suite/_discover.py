@@ -1,9 +1,10 @@
 """Finding record sets for a suite: a folder, a glob pattern or a manifest CSV.
 
-A *record set* is what one run needs: one file per ground-motion component
-(x, y horizontal; z vertical), each with a scale factor and units.
+A *record set* (:class:`groundshake.pipeline.RecordSet`) is what one run needs: one file
+per ground-motion component (x, y horizontal; z vertical), each with a scale factor and
+units.
 
-File-name rule (used for folders and globs). The component is the last word of
+File-name rule (used for folders and globs; :func:`groundshake.pipeline.group_by_component`). The component is the last word of
 the file's stem, after a ``-``, ``_`` or ``.``, case-insensitive:
 
 ====================  =========
@@ -37,98 +38,15 @@ import csv
 import glob
 import math
 import os
-import re
-from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Mapping
 
 from .._errors import InputError
+from ..pipeline import COMPONENT_WORDS, RecordSet, group_by_component
 
 __all__ = ["RecordSet", "discover_record_sets", "COMPONENT_WORDS"]
 
-COMPONENT_WORDS: Mapping[str, str] = {
-    **dict.fromkeys(("x", "h1", "e", "ew", "east"), "x"),
-    **dict.fromkeys(("y", "h2", "n", "ns", "north"), "y"),
-    **dict.fromkeys(("z", "up", "v", "ud", "vert"), "z"),
-}
-
-_SPLIT = re.compile(r"^(?P<stem>.+?)[-_.](?P<word>[A-Za-z0-9]+)$")
 _RECORD_SUFFIXES = {".mseed", ".miniseed", ".ms", ".sac", ".csv", ".txt", ".dat", ".asc",
                     ".evt", ".v1", ".v2", ".knt", ".ew", ".ns", ".ud", ""}
-
-
-@dataclass(frozen=True)
-class RecordSet:
-    """Files for one run of a suite: plain data only (safe to send to any worker).
-
-    Attributes
-    ----------
-    name : str
-        Set name, unique within the suite.
-    files : dict
-        Component (``"x"``, ``"y"``, ``"z"``) → file path (str).
-    scale : dict
-        Component → scale factor (default 1.0).
-    units : str or None
-        Units of every file of the set (None: from the file, or the suite's ``--units``).
-    dt : float or None
-        Time step [s] for one-column text files (None: from the file).
-    factor : float
-        Amplitude factor of the whole set from scaling to a target (1.0: not scaled);
-        it multiplies every component's ``scale``.
-    """
-
-    name: str
-    files: Mapping[str, str]
-    scale: Mapping[str, float] = field(default_factory=dict)
-    units: str | None = None
-    dt: float | None = None
-    factor: float = 1.0
-
-    def scales(self) -> dict[str, float]:
-        """Component → the factor its record is multiplied by (``scale`` × ``factor``)."""
-        return {c: float(self.scale.get(c, 1.0)) * float(self.factor) for c in self.files}
-
-    def to_dict(self) -> dict:
-        return {"name": self.name, "files": dict(self.files),
-                "scale": {c: float(self.scale.get(c, 1.0)) for c in self.files},
-                "units": self.units, "dt": self.dt, "factor": float(self.factor)}
-
-    @classmethod
-    def from_dict(cls, d: Mapping) -> "RecordSet":
-        return cls(name=str(d["name"]), files=dict(d["files"]), scale=dict(d.get("scale", {})),
-                   units=d.get("units"), dt=d.get("dt"), factor=float(d.get("factor", 1.0)))
-
-
-def _component_of(path: Path) -> tuple[str, str] | None:
-    """(set stem, axis) of a file named ``STEM-WORD.ext``, or None.
-
-    WORD is one of :data:`COMPONENT_WORDS`, or any component code the readers know
-    (:func:`groundshake.records._components.describe`: ``hnz``, ``ud1``, ``360``,
-    ``n28w``): vertical → z; a horizontal with an azimuth → the nearer axis, x east
-    (90°, 270°) and y north (0°, 180°), as ``e`` → x and ``n`` → y; a horizontal without
-    one → x if it ends in 1 and y if in 2 (``hn1``, ``hn2``, like ``h1``, ``h2``). A bare
-    number needs two digits (``rec-1`` is a set number, not 1°); a diagonal (45°) is
-    not guessed.
-    """
-    from ..records._components import describe
-
-    m = _SPLIT.match(path.stem)
-    if not m:
-        return None
-    word = m.group("word")
-    comp = COMPONENT_WORDS.get(word.lower())
-    if comp is None and not (word.isdigit() and len(word) < 2):
-        kind, az = describe(word)
-        if kind == "vertical":
-            comp = "z"
-        elif kind == "horizontal" and az is not None:
-            east, north = abs(math.sin(math.radians(az))), abs(math.cos(math.radians(az)))
-            comp = None if math.isclose(east, north, rel_tol=1e-9) else (
-                "x" if east > north else "y")
-        elif kind == "horizontal":
-            comp = {"1": "x", "2": "y"}.get(word[-1:])
-    return None if comp is None else (m.group("stem"), comp)
 
 
 def _candidate_files(spec: str) -> list[Path]:
@@ -181,20 +99,8 @@ def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", 
         sets = [RecordSet(name=f.stem, files={comp: str(f)}, units=units, dt=dt) for f in files]
         _check_unique([s.name for s in sets], spec)
         return sets
-    groups: dict[str, dict[str, str]] = {}
-    for f in files:
-        found = _component_of(f)
-        if found is None:
-            raise InputError(
-                f"{f}: cannot tell the component from the name; end the stem with one of "
-                f"{', '.join(sorted(COMPONENT_WORDS))} (e.g. rec01-h1.mseed) or use a manifest CSV")
-        stem, comp = found
-        group = groups.setdefault(stem, {})
-        if comp in group:
-            raise InputError(f"{f}: set {stem!r} already has a {comp} component ({group[comp]})")
-        group[comp] = str(f)
-    return [RecordSet(name=stem, files=dict(sorted(g.items())), units=units, dt=dt)
-            for stem, g in sorted(groups.items())]
+    return [RecordSet(name=stem, files=group, units=units, dt=dt)
+            for stem, group in group_by_component(files).items()]
 
 
 def _looks_like_manifest(path: Path) -> bool:

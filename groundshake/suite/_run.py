@@ -2,8 +2,10 @@
 
 ``prepare_suite`` builds the model and its modes once; ``run_record_set`` is the
 task each worker runs for one record set (it rebuilds nothing that does not
-depend on the record); ``run_suite`` drives the engine, writes each finished
-record's result as it completes, and the statistics at the end.
+depend on the record, and runs the set by :func:`groundshake.pipeline.run_set`);
+``run_suite`` drives the engine, writes each finished record's result as it
+completes, and the statistics at the end (over the application layer's
+:func:`~groundshake.pipeline.peak_statistics`, scaling and combination).
 """
 from __future__ import annotations
 
@@ -12,7 +14,6 @@ import json
 import math
 import time
 import uuid
-import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable, Mapping, Sequence
@@ -22,16 +23,15 @@ import numpy as np
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS
 from .._json import json_dumps
-from .._constants import DIRECTIONS
-from .._errors import GroundshakeError, GroundshakeWarning, InputError
-from ._discover import RecordSet
+from .._errors import GroundshakeError, InputError
+from ..pipeline import (SUITE_FILES, RecordSet, SuiteScaling, combine_by_rule, peak_statistics,
+                        prepare_model, record_set_samples, run_set, scale_record_sets,
+                        scenario_from_plain, set_failure, spectra_statistics)
 from ._engine import EngineReport, SuiteStalled, run_tasks
 from ._plain import from_plain, to_plain
-from ._scale import SuiteScaling, scale_record_sets
-from ._stats import peak_statistics
 
-__all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult", "scalar_peaks",
-           "default_set_timeout", "combine_by_rule"]
+__all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult",
+           "default_set_timeout"]
 
 _PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
 
@@ -45,8 +45,6 @@ def prepare_suite(scenario, *, method: str | None = None) -> dict:
     missing-mass shapes (n, 3) from one static solve; nothing that depends on a
     record.
     """
-    from ..pipeline import prepare_model
-
     prepared = prepare_model(scenario, method=method)    # workers never factorize K
     model, modes, residual = prepared.model, prepared.modes, prepared.residual
     return {"scenario": scenario.to_dict(), "source": str(scenario.source),
@@ -65,10 +63,8 @@ def _objects(shared: Mapping[str, Any]) -> tuple[Any, Any, Any]:
     token = str(shared.get("token") or id(shared))
     cache = _OBJECTS.get(token)
     if cache is None:
-        from ..scenario import Scenario
-
-        scenario = Scenario.from_dict(shared["scenario"], source=shared["source"],
-                                      base_dir=Path(shared["base_dir"]))
+        scenario = scenario_from_plain(shared["scenario"], source=shared["source"],
+                                       base_dir=shared["base_dir"])
         cache = (scenario, from_plain(shared["model"]), from_plain(shared["modes"]))
         while len(_OBJECTS) >= 4:       # a few models at a time per process
             _OBJECTS.pop(next(iter(_OBJECTS)))
@@ -106,25 +102,6 @@ def default_set_timeout(n_dof: int, n_steps: int, *, method: str | None = "modal
     return _LIMIT_BASE_S + work
 
 
-def _record_steps(rs: RecordSet) -> int | None:
-    """Samples in a set's longest record (a quick read), None if it cannot be read here."""
-    from ..records import read_record
-
-    longest = None
-    for f in rs.files.values():
-        for units in dict.fromkeys((rs.units, "m/s2")):
-            try:
-                with warnings.catch_warnings():
-                    warnings.simplefilter("ignore")
-                    recs = read_record(f, units=units, dt=rs.dt)
-            except (GroundshakeError, OSError, ValueError):
-                continue
-            n = max((len(r.acc) for r in recs), default=0)
-            longest = n if longest is None else max(longest, n)
-            break
-    return longest
-
-
 def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario,
                 method: str | None, set_timeout: float | None | str) -> list[float | None]:
     """Each set's time limit [s]: the given one, none (0 or None), or the default."""
@@ -137,103 +114,29 @@ def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario,
         return [value] * len(sets)
     n_dof = int(shared.get("n_dof") or 0) or int(shared["model"]["fields"]["K"]["shape"][0])
     how = method or getattr(getattr(scenario, "analysis", None), "method", "modal")
-    steps = [_record_steps(rs) for rs in sets]
+    steps = [record_set_samples(rs) for rs in sets]
     known = [s for s in steps if s]
     fallback = max(known) if known else 200 * 3600      # an hour at 200 Hz
     return [default_set_timeout(n_dof, s or fallback, method=how) for s in steps]
 
 
-_NOT_PEAKS = {"time", "at", "signed", "position", "node", "element", "step", "where"}
-
-
-def scalar_peaks(summary: Mapping[str, Any]) -> dict:
-    """The peak values of a run's summary that a suite summarises.
-
-    ``peaks`` (without the times and places of the peaks), and from ``sensors``
-    and ``equipment`` every entry whose key starts with ``peak`` (anchors included).
-    """
-    def values_only(tree):
-        if isinstance(tree, Mapping):
-            return {k: values_only(v) for k, v in tree.items()
-                    if k not in _NOT_PEAKS and not str(k).startswith("time")}
-        if isinstance(tree, list):
-            return [values_only(v) for v in tree]
-        return tree
-
-    def peaks_of(tree):
-        if isinstance(tree, Mapping):
-            out = {}
-            for k, v in tree.items():
-                if str(k).startswith("peak"):
-                    out[k] = values_only(v)
-                elif isinstance(v, (Mapping, list)):
-                    sub = peaks_of(v)
-                    if sub:
-                        out[k] = sub
-            return out
-        if isinstance(tree, list):
-            subs = [peaks_of(v) for v in tree]
-            return subs if any(subs) else []
-        return {}
-
-    out: dict[str, Any] = {"peaks": values_only(summary.get("peaks", {}))}
-    for section in ("sensors", "equipment"):
-        sub = peaks_of(summary.get(section, {}) or {})
-        if sub:
-            out[section] = sub
-    return out
-
-
 def run_record_set(shared: Mapping[str, Any], item: Mapping[str, Any]) -> dict:
-    """Run one record set through the shared model; return plain data.
+    """Run one record set through the shared model (:func:`groundshake.pipeline.run_set`);
+    return plain data, with ``elapsed_s`` [s] for a set that ran.
 
     Never raises for a bad record: the result then has ``status = "failed"`` and
     the one-line ``error``.
     """
-    from ..pipeline import analyse
-
     rs = RecordSet.from_dict(item)
     started = _dt.datetime.now(_dt.timezone.utc)
     try:
         scenario, model, modes = _objects(shared)
-        comps = {}
-        scales = rs.scales()          # the set's own scales times its target factor
-        for c, f in rs.files.items():
-            comp = {"file": f, "scale": scales[c]}
-            if rs.units:
-                comp["units"] = rs.units
-            if rs.dt:
-                comp["dt"] = float(rs.dt)
-            comps[c] = comp
-        scenario = scenario.with_motion(**comps)
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", GroundshakeWarning)
-            res = analyse(scenario, progress=False, method=shared.get("method"),
-                          model=model, modes=modes, residual=shared.get("residual"))
     except (GroundshakeError, OSError, ValueError) as e:
-        return {"record": rs.name, "status": "failed", "files": dict(rs.files),
-                "error": str(e).strip().splitlines()[0] if str(e).strip() else type(e).__name__}
-    s = res.summary
-    floor = res.floor
-    out = {
-        "record": rs.name, "status": "ok", "files": dict(rs.files),
-        "scale": rs.scales(),
-        "target_factor": float(rs.factor),
-        "peaks": scalar_peaks(s),
-        "worst_dc": s.get("worst_dc"),
-        "warnings": list(s.get("warnings", [])),
-        "records": s.get("records", []),
-        "spectra": {
-            "periods": np.asarray(floor["periods"], dtype=float).tolist(),
-            "damping": np.asarray(floor["damping"], dtype=float).tolist(),
-            "points": list(floor.get("points", [])),
-            "ground_psa": np.asarray(res.ground_spectra["psa"], dtype=float).tolist(),
-            "floor_psa": np.asarray(floor.get("psa", np.zeros((0,))), dtype=float).tolist(),
-            "floor_psa_broadened": np.asarray(floor.get("psa_broadened", np.zeros((0,))),
-                                              dtype=float).tolist(),
-        },
-        "elapsed_s": (_dt.datetime.now(_dt.timezone.utc) - started).total_seconds(),
-    }
+        return set_failure(rs, e)
+    out = run_set(scenario, rs, model=model, modes=modes, residual=shared.get("residual"),
+                  method=shared.get("method"))
+    if out["status"] == "ok":
+        out["elapsed_s"] = (_dt.datetime.now(_dt.timezone.utc) - started).total_seconds()
     return out
 
 
@@ -259,7 +162,7 @@ def _safe_name(name: str) -> str:
 
 
 def _record_file(out_dir: Path, name: str) -> Path:
-    return out_dir / "records" / f"{_safe_name(name)}.json"
+    return out_dir / SUITE_FILES["records"] / f"{_safe_name(name)}.json"
 
 
 def _load_done(out_dir: Path, sets: Sequence[RecordSet]) -> dict[str, dict]:
@@ -279,32 +182,6 @@ def _load_done(out_dir: Path, sets: Sequence[RecordSet]) -> dict[str, dict]:
             done[rs.name] = r
     return done
 
-
-def spectra_statistics(results: Sequence[Mapping]) -> dict:
-    """Log-normal statistics of ground and floor spectra over the ok records.
-
-    Returns ``periods``, ``damping``, ``points`` and, for ``ground_psa`` (3, n_d,
-    n_p), ``floor_psa`` and ``floor_psa_broadened`` (n_points, 3, n_d, n_p), a dict
-    of ``median`` (geometric mean), ``p16``, ``p84`` (exp(μ ∓ σ) of ln PSA),
-    ``mean``, ``min`` and ``max`` arrays, each of the quantity's shape [m/s²].
-    """
-    from ..spectra import spectrum_statistics
-
-    ok = [r for r in results if r.get("status") == "ok" and r.get("spectra")]
-    if not ok:
-        return {}
-    first = ok[0]["spectra"]
-    out: dict[str, Any] = {"periods": first["periods"], "damping": first["damping"],
-                           "points": first["points"], "count": len(ok)}
-    for key in ("ground_psa", "floor_psa", "floor_psa_broadened"):
-        arrays = [np.asarray(r["spectra"][key], dtype=float) for r in ok]
-        if not arrays or arrays[0].size == 0 or any(a.shape != arrays[0].shape for a in arrays):
-            continue
-        with warnings.catch_warnings():   # absent components are zero: no log-normal there
-            warnings.simplefilter("ignore", GroundshakeWarning)
-            st = spectrum_statistics(np.stack(arrays), axis=0)
-        out[key] = {k: np.asarray(v) for k, v in st.items()}
-    return out
 
 
 def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
@@ -351,7 +228,7 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
         every set finished until then is written, and ``resume=True`` runs the rest.
     """
     out_dir = Path(out_dir)
-    (out_dir / "records").mkdir(parents=True, exist_ok=True)
+    (out_dir / SUITE_FILES["records"]).mkdir(parents=True, exist_ok=True)
     names = [rs.name for rs in sets]
     if len(set(names)) != len(names):
         raise InputError("record sets: names must be unique")
@@ -419,33 +296,6 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
     return result
 
 
-def combine_by_rule(stats: Mapping[str, Mapping], n_failed: int, n_sets: int) -> dict:
-    """How a scaled suite's peaks are combined, and the combined values.
-
-    Parameters
-    ----------
-    stats : mapping
-        :func:`peak_statistics` of the sets run (quantity → statistics).
-    n_failed, n_sets : int
-        Sets that failed, and all sets.
-
-    Returns
-    -------
-    dict
-        ``combination`` (``"mean"`` or ``"max"``), ``combination_note`` (why, with the
-        source), ``count`` (sets that ran) and ``combined`` (quantity → the mean or the
-        maximum over the sets that ran) [SI units of each quantity].
-    """
-    from ..spectra._scaling import set_statistic
-
-    n_ok = n_sets - n_failed
-    how, why = set_statistic(n_ok)
-    if n_failed:
-        why += f"; {n_failed} of {n_sets} set(s) failed and are not counted"
-    combined = {k: v[how] for k, v in stats.items() if how in v}
-    return {"combination": how, "combination_note": why, "count": n_ok, "combined": combined}
-
-
 def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
                       stats: dict | None = None, engine: EngineReport | None = None,
                       set_timeout_s: dict | None = None, scaling: dict | None = None,
@@ -472,7 +322,10 @@ def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
         "statistics": stats or {},
         "statistics_note": "over the records with status ok: sample mean, std, median, "
                            "16th/84th percentiles, min, max; log-normal median and "
-                           "16th/84th (exp(mu -/+ beta)) where every value is positive",
+                           "16th/84th (exp(mu -/+ beta)) where every value is positive; "
+                           "keyed by the path of the value in each run's summary.json, "
+                           "list positions from 0 as in its JSON (anchors[0] is bolt 1; "
+                           "bolt numbers count from 1, as in worst_dc.bolt)",
         "warnings": sorted({w for r in records for w in r.get("warnings", [])}
                            | set((scaling or {}).get("warnings", []))),
         "cautions": list(CAUTIONS),
@@ -480,4 +333,4 @@ def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
         "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
         "provenance": {"version": __version__, **{k: v for k, v in extra.items()}},
     }
-    atomic_write_text(out_dir / "suite.json", json_dumps(doc))
+    atomic_write_text(out_dir / SUITE_FILES["suite"], json_dumps(doc))

@@ -7,10 +7,20 @@ Each reader module ``groundshake.records.io.<name>`` has
 - ``is_format(path, head) -> bool``: decides from the content (``head`` = the first
   8192 bytes) and never raises;
 - ``read(path, *, units=None, dt=None) -> list[Record]``: one Record per channel,
-  ``acc`` in m/s².
+  ``acc`` in m/s², shape (n,). ``path`` is the file (str or path-like); ``units``
+  (str, any spelling :func:`groundshake.records.canonical_units` knows) are the units
+  of the file's values: where the header states units, a check (an error if they
+  differ), else needed; ``dt`` [s] is a check against the step the file states (an
+  error if it differs by more than 1e-6 relative) or, for a one-column text file, the
+  step itself. Each reader's docstring says what it checks them against.
 
 :data:`READERS` is the order they are asked in: strong-motion text formats first,
 ObsPy's formats next, delimited text last. Modules are imported when first asked.
+
+A gzip-compressed file (``record.AT2.gz``) is read as its content: :func:`read`
+decompresses it once, and every reader sees the content (``head`` and what it reads
+through ``_common.read_bytes``/``read_lines``); messages and ``source`` name the file
+as given.
 """
 from __future__ import annotations
 
@@ -20,6 +30,7 @@ from pathlib import Path
 from types import ModuleType
 
 from ..._errors import RecordError
+from ._common import read_head, unpacked
 
 __all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read"]
 
@@ -68,13 +79,13 @@ def detect(path) -> ModuleType | None:
     Returns
     -------
     module or None
-        None also when the file cannot be opened.
+        None also when the file cannot be opened or is a gzip file that does not
+        decompress. A gzip-compressed file is judged by its decompressed content.
     """
     path = Path(path)
     try:
-        with open(path, "rb") as fh:
-            head = fh.read(HEAD_BYTES)
-    except OSError:
+        head = read_head(path, HEAD_BYTES)
+    except (OSError, RecordError):  # unreadable, or a gzip file that does not decompress
         return None
     for name in READERS:
         module = reader(name)
@@ -109,14 +120,16 @@ def read(path, *, units: str | None = None, dt: float | None = None, **options) 
     Raises
     ------
     RecordError
-        No reader claims the file (the message lists the formats read), or the reader
-        that claims it fails (its message names the format).
+        No reader claims the file (the message lists the formats read), the reader
+        that claims it fails (its message names the format), or a gzip-compressed
+        file does not decompress.
     """
     path = Path(path)
-    module = detect(path)
-    if module is None:
-        raise RecordError(f"{path}: not a record groundshake can read; formats read: "
-                          f"{formats_read()}")
-    params = inspect.signature(module.read).parameters
-    extra = {k: v for k, v in options.items() if k in params}
-    return module.read(path, units=units, dt=dt, **extra)
+    with unpacked(path):  # a .gz file: decompressed here, once, for detection and reading
+        module = detect(path)
+        if module is None:
+            raise RecordError(f"{path}: not a record groundshake can read; formats read: "
+                              f"{formats_read()}")
+        params = inspect.signature(module.read).parameters
+        extra = {k: v for k, v in options.items() if k in params}
+        return module.read(path, units=units, dt=dt, **extra)

@@ -1,7 +1,7 @@
 """Pieces shared by the readers of agency text formats (USC, AFAD, UNAM, RENADIC, BHRC, CWB).
 
-Decoding, the check of ``units`` given by the user against the header, Volume-1
-style data blocks, and the building of a :class:`Record`
+The check of ``units`` given by the user against the header, Volume-1 style
+channels and data blocks, and the building of a :class:`Record`
 with the metadata keys every reader fills (station, channel, azimuth_deg,
 orientation, event_*, header_pga ...).
 """
@@ -18,10 +18,10 @@ from ..._errors import GroundshakeWarning, RecordError
 from .._components import describe
 from .._record import STANDARD_GRAVITY, Record
 from .._units import UNITS, canonical_units
-from ._common import MIN_SAMPLES, FormatError
+from ._common import file_stem, FormatError, head_lines, is_number, MIN_SAMPLES, read_lines
 
 __all__ = ["read_lines", "head_lines", "numbers", "make_record", "units_factor", "warn",
-           "volume1_data", "check_units", "G10"]
+           "volume1_data", "channel_spans", "points_pattern", "check_units", "G10"]
 
 #: A tenth of standard gravity [m/s²]: the unit "G/10" of older Volume-1 formats.
 G10 = 0.1 * STANDARD_GRAVITY
@@ -29,38 +29,13 @@ G10 = 0.1 * STANDARD_GRAVITY
 _FLOAT = re.compile(r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[EeDd][-+]?\d+)?")
 
 
-def read_lines(path: Path, *, fallback: str = "latin-1") -> list[str]:
-    """The file's lines, decoded as UTF-8 or else ``fallback``, line ends removed."""
-    raw = Path(path).read_bytes()
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        text = raw.decode(fallback, errors="replace")
-    return text.splitlines()
-
-
-def head_lines(head: bytes, n: int = 60) -> list[str]:
-    """The first ``n`` lines of ``head`` (bytes), decoded leniently; never raises."""
-    try:
-        return head.decode("latin-1", errors="replace").splitlines()[:n]
-    except Exception:  # noqa: BLE001 - is_format must never raise
-        return []
-
-
 def numbers(text: str) -> list[float]:
     """Every number written in ``text``, in order (Fortran ``D`` exponents accepted)."""
     return [float(s.replace("D", "E").replace("d", "e")) for s in _FLOAT.findall(text)]
 
 
-def _is_number(text: str) -> bool:
-    try:
-        float(text.replace("D", "E"))
-    except ValueError:
-        return False
-    return True
-
-
 def check_units(file_units: str, user_units: str | None, path: Path, fmt: str) -> None:
+    """Refuse ``user_units`` (any spelling; None: not given) other than ``file_units``."""
     if user_units is None:
         return
     given = canonical_units(user_units, where=f"{path}: units")
@@ -117,7 +92,7 @@ def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float
     canon = file_units if file_units in UNITS else ("g" if file_units == "g/10" else "m/s2")
     if file_units not in UNITS:
         meta["file_units"] = file_units
-    name = f"{station} {component}".strip() or Path(path).stem
+    name = f"{station} {component}".strip() or file_stem(path)
     return Record(acc=acc, dt=dt, name=name, component=component, source=str(path),
                   units=canon, start_time=start_time, metadata=meta)
 
@@ -145,6 +120,16 @@ def units_factor(text: str, *, fmt: str, path: Path, line: int | None = None) ->
         raise FormatError(fmt, path, f"units {word!r} are not units of acceleration this "
                           f"reader knows", line=line) from None
     return canon, UNITS[canon]
+
+
+def points_pattern(length_key: str) -> re.Pattern:
+    """The Volume-1 header phrase ``NO. OF POINTS = n ... <length_key> = s``.
+
+    Group 1 is the count, group 2 the record's length [s] (None where the line has none);
+    ``length_key`` is the word before it (``"DURATION"``, ``"LENGTH"``), a regex.
+    """
+    return re.compile(rf"NO\.\s*OF\s+POINTS\s*=\s*(\d+)(?:.*?{length_key}\s*=\s*([\d.]+))?",
+                      re.I)
 
 
 #: Lines of the real-valued header of Volume-1 style files: 50 values, 8 a line (CDMG layout).
@@ -194,10 +179,43 @@ def volume1_data(lines: Sequence[str], start: int, end: int, total: int, *, fmt:
         except ValueError:
             values = None
     if values is None:
-        bad = next(j for j, ln in enumerate(body) if not all(_is_number(c) for c in ln.split()))
+        bad = next(j for j, ln in enumerate(body) if not all(is_number(c.replace("D", "E")) for c in ln.split()))
         raise FormatError(fmt, path, "a data line holds something that is not a number",
                           line=first + bad + 1, text=body[bad]) from None
     if values.size != total:
         raise FormatError(fmt, path, f"the data block holds {values.size} values; the header "
                           f"announces {total}", line=first + 1)
     return values, first
+
+
+def channel_spans(lines: Sequence[str], starts: Sequence[int],
+                  marker: str = "/&") -> list[tuple[int, int]]:
+    """(first, end) line indices of each channel of a Volume-1 style file.
+
+    Parameters
+    ----------
+    lines : sequence of str
+        The file's lines.
+    starts : sequence of int
+        Index of each channel's first line, increasing.
+    marker : str
+        What the line that closes a channel starts with (after blanks).
+
+    Returns
+    -------
+    list of (int, int)
+        Per channel its first line and its end: the closing line's index (excluded),
+        or, without one before the next channel, the index after its last line that
+        is not blank.
+    """
+    ends = [i for i, ln in enumerate(lines) if ln.lstrip().startswith(marker)]
+    spans = []
+    for c, s in enumerate(starts):
+        stop = starts[c + 1] if c + 1 < len(starts) else len(lines)
+        end = next((e for e in ends if s < e < stop), None)
+        if end is None:
+            end = stop
+            while end > s and not lines[end - 1].strip():
+                end -= 1
+        spans.append((s, end))
+    return spans

@@ -1,21 +1,50 @@
-"""Checks and conversions shared by the readers of ``groundshake.records.io``."""
+"""Checks, conversions and parsing pieces shared by the readers of ``groundshake.records.io``.
+
+Every reader uses these for what all formats have in common: a detector that never
+raises (:func:`detector`), the file's content (:func:`read_bytes`, :func:`read_lines`,
+:func:`read_head`, :func:`head_lines`; a gzip-compressed file decompressed),
+numbers in fixed or free layout (:func:`fixed_width`, :func:`free_numbers`), a time
+column's step (:func:`even_step`), units (:func:`header_units`, :func:`to_si`,
+:func:`resolve_units`), the checks of ``dt`` and samples, and the Record in m/s²
+(:func:`si_record`).
+"""
 from __future__ import annotations
 
+import contextlib
+import contextvars
+import functools
+import gzip
 import math
-import re
+import os
+import zlib
 from pathlib import Path
+from typing import Any, Callable, Iterator
 
 import numpy as np
 
 from ..._errors import RecordError
+from .._record import Record
 from .._units import UNIT_NAMES, UNITS, canonical_units
 
-__all__ = ["MIN_SAMPLES", "to_si", "resolve_units", "check_samples", "check_dt",
-           "FormatError", "user_units", "looks_binary", "fixed_width", "free_numbers",
-           "iso_time", "azimuth_from_code", "orientation_metadata", "unique_names"]
+__all__ = ["MIN_SAMPLES", "TIME_TOLERANCE", "PEAK_NAMES", "LENGTH_TO_M", "to_si",
+           "resolve_units", "check_samples", "check_dt", "FormatError", "user_units",
+           "looks_binary", "fixed_width", "free_numbers", "iso_time", "azimuth_from_code",
+           "orientation_metadata", "unique_names", "detector", "read_lines", "head_lines",
+           "is_number", "header_units", "peak_factor", "even_step", "si_record", "GZIP_MAGIC",
+           "is_gzip", "unpacked", "read_bytes", "read_head", "file_stem"]
 
 #: Fewest samples a record may have.
 MIN_SAMPLES = 16
+
+#: Largest relative spread of the steps of a time column read as even (:func:`even_step`).
+TIME_TOLERANCE = 0.01
+
+#: The words headers use for their peaks → the short names of the metadata keys
+#: ``header_pga``, ``header_pgv``, ``header_pgd``.
+PEAK_NAMES = {"acceleration": "pga", "velocity": "pgv", "displacement": "pgd"}
+
+#: Length units of headers' velocity and displacement peaks (lower case) → m.
+LENGTH_TO_M = {"mm": 0.001, "cm": 0.01, "m": 1.0, "in": 0.0254, "ft": 0.3048}
 
 
 def to_si(values: np.ndarray, units: str, where: str) -> np.ndarray:
@@ -265,3 +294,285 @@ def unique_names(records: list) -> list:
         seen[rec.name] = k
         out.append(rec if k == 1 else rec.replace(name=f"{rec.name}.{k}"))
     return out
+
+
+def detector(check: Callable[[Path, bytes], Any]) -> Callable[[Path, bytes], bool]:
+    """A reader's ``is_format(path, head)`` that never raises: any exception reads as False.
+
+    Parameters
+    ----------
+    check : callable (path, head) -> bool
+        The format's test of ``head``, the file's first bytes
+        (:data:`groundshake.records.io.HEAD_BYTES`).
+
+    Returns
+    -------
+    callable (path, head) -> bool
+        ``bool(check(path, head))``, False where ``check`` raises.
+    """
+    @functools.wraps(check)
+    def is_format(path: Path, head: bytes) -> bool:
+        try:
+            return bool(check(path, head))
+        except Exception:  # noqa: BLE001 - a detector never raises
+            return False
+
+    return is_format
+
+
+#: The first two bytes of a gzip stream (RFC 1952).
+GZIP_MAGIC = b"\x1f\x8b"
+
+# content of the gzip-compressed files being read, by absolute path (see unpacked)
+_UNPACKED: contextvars.ContextVar[dict[str, bytes]] = contextvars.ContextVar("unpacked",
+                                                                            default={})
+
+
+def is_gzip(path) -> bool:
+    """True if the file starts like a gzip stream (False also if it cannot be opened)."""
+    try:
+        with open(path, "rb") as fh:
+            return fh.read(2) == GZIP_MAGIC
+    except OSError:
+        return False
+
+
+def _gunzip(raw: bytes, path) -> bytes:
+    try:
+        return gzip.decompress(raw)
+    except (OSError, EOFError, zlib.error) as e:
+        raise RecordError(f"{path}: gzip-compressed, but it does not decompress ({e})") from None
+
+
+@contextlib.contextmanager
+def unpacked(path) -> Iterator[None]:
+    """Within the block, a gzip-compressed ``path`` is read decompressed once, from memory.
+
+    :func:`read_bytes`, :func:`read_lines` and :func:`read_head` of ``path`` give the
+    decompressed content; a file that is not gzip-compressed is read as it is.
+
+    Raises
+    ------
+    RecordError
+        A gzip file that does not decompress.
+    """
+    key = os.path.abspath(path)
+    if key in _UNPACKED.get() or not is_gzip(path):
+        yield
+        return
+    content = _gunzip(Path(path).read_bytes(), path)
+    token = _UNPACKED.set({**_UNPACKED.get(), key: content})
+    try:
+        yield
+    finally:
+        _UNPACKED.reset(token)
+
+
+def read_bytes(path) -> bytes:
+    """The file's content; a gzip-compressed file's decompressed.
+
+    Raises
+    ------
+    OSError
+        The file cannot be read.
+    RecordError
+        A gzip file that does not decompress.
+    """
+    content = _UNPACKED.get().get(os.path.abspath(path))
+    if content is not None:
+        return content
+    raw = Path(path).read_bytes()
+    return _gunzip(raw, path) if raw.startswith(GZIP_MAGIC) else raw
+
+
+def read_head(path, size: int) -> bytes:
+    """The first ``size`` bytes of the file's content, decompressed if gzip.
+
+    Raises
+    ------
+    OSError
+        The file cannot be opened.
+    RecordError
+        A gzip file whose beginning does not decompress.
+    """
+    content = _UNPACKED.get().get(os.path.abspath(path))
+    if content is not None:
+        return content[:size]
+    with open(path, "rb") as fh:
+        head = fh.read(size)
+    if not head.startswith(GZIP_MAGIC):
+        return head
+    try:
+        with gzip.open(path, "rb") as fh:
+            return fh.read(size)
+    except (OSError, EOFError, zlib.error) as e:
+        raise RecordError(f"{path}: gzip-compressed, but it does not decompress ({e})") from None
+
+
+def file_stem(path) -> str:
+    """The file's name without its extension, and without ``.gz`` before that."""
+    name = Path(path).name
+    if name.lower().endswith(".gz"):
+        name = name[:-3]
+    return Path(name).stem
+
+
+def read_lines(path, *, encoding: str | None = None, fallback: str = "latin-1") -> list[str]:
+    """The file's lines, line ends removed.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The file.
+    encoding : str, optional
+        The format's encoding (e.g. ``"latin-1"``). Without it: UTF-8 (a byte-order
+        mark dropped), or ``fallback`` where the file is not UTF-8.
+    fallback : str
+        The encoding tried second, undecodable bytes replaced.
+
+    Returns
+    -------
+    list of str
+    """
+    raw = read_bytes(path)
+    if encoding is not None:
+        return raw.decode(encoding).splitlines()
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError:
+        text = raw.decode(fallback, errors="replace")
+    return text.splitlines()
+
+
+def head_lines(head: bytes, n: int | None = None) -> list[str]:
+    """The first ``n`` lines (all if None) of ``head``, a file's first bytes, as latin-1 text."""
+    return head.decode("latin-1").splitlines()[:n]
+
+
+def is_number(text: str) -> bool:
+    """True if ``float(text)`` reads ``text``."""
+    try:
+        float(text)
+    except ValueError:
+        return False
+    return True
+
+
+def header_units(text: str, *, fmt: str, path, line: int | None = None,
+                 line_text: str | None = None, part: str = "line", name: str = "units") -> str:
+    """The canonical name of units of acceleration a header states (``"g"``, ``"cm/s2"`` ...).
+
+    Parameters
+    ----------
+    text : str
+        The units as written.
+    fmt, path : str
+        Format name and file, for the message.
+    line, line_text, part
+        Where the units stand (1-based line, its text, ``"line"``/``"header line"``).
+    name : str
+        What the message calls them (``"units"``, or the header key such as ``"UNITS"``).
+
+    Raises
+    ------
+    FormatError
+        ``text`` names no units of acceleration.
+    """
+    try:
+        return canonical_units(text)
+    except RecordError:
+        raise FormatError(fmt, path, f"{name} {text!r} are not units of acceleration", line,
+                          line_text, part=part) from None
+
+
+def peak_factor(unit: str, what: str) -> float | None:
+    """Factor from a header peak's unit to SI, None for a unit not known.
+
+    Parameters
+    ----------
+    unit : str
+        As written (``"cm/sec/sec"``, ``"mm/s/s"``, ``"cm/sec"``, ``"in"`` ...).
+    what : str
+        ``"pga"`` (the factor to m/s²), ``"pgv"`` (to m/s) or ``"pgd"`` (to m).
+    """
+    unit = unit.lower().strip(".")
+    if what == "pga":
+        try:
+            return UNITS[canonical_units(unit)]
+        except RecordError:
+            return None
+    return LENGTH_TO_M.get(unit.split("/")[0])
+
+
+def even_step(time: np.ndarray, *, fmt: str, path, line_of: Callable[[int], int],
+              prefix: str = "", tolerance: float = TIME_TOLERANCE) -> float:
+    """The mean step [s] of a time column whose steps are even to ``tolerance``.
+
+    Parameters
+    ----------
+    time : ndarray, shape (n,)
+        Times [s] as the file writes them.
+    fmt, path : str
+        Format name and file, for messages.
+    line_of : callable int -> int
+        The 1-based line of the file that holds sample ``k``.
+    prefix : str
+        Put before each message (e.g. ``"channel L: "``).
+    tolerance : float
+        Largest relative spread of the steps about their mean.
+
+    Returns
+    -------
+    float
+        (time[-1] - time[0]) / (n - 1) [s].
+
+    Raises
+    ------
+    FormatError
+        Fewer than two times, a time that repeats or runs backwards (names its line),
+        or steps that vary by more than ``tolerance``.
+    """
+    time = np.asarray(time, dtype=float)
+    if time.size < 2:
+        raise FormatError(fmt, path, f"{prefix}{time.size} time value(s); at least 2 are needed",
+                          line=line_of(0))
+    steps = np.diff(time)
+    back = np.flatnonzero(steps <= 0)
+    if back.size:
+        k = int(back[0]) + 1
+        raise FormatError(fmt, path, f"{prefix}time {time[k]:g} s repeats or runs backwards",
+                          line=line_of(k))
+    step = (time[-1] - time[0]) / (time.size - 1)
+    spread = float(np.max(np.abs(steps - step)) / step)
+    if spread > tolerance:
+        raise FormatError(fmt, path, f"{prefix}time steps vary by {100 * spread:.1f} % (uneven "
+                          "sampling is not read)", line=line_of(0))
+    return step
+
+
+def si_record(values: np.ndarray, *, units: str, dt: float, station: str, component: str,
+              source: str, label: str, metadata: dict, start_time: str = "") -> Record:
+    """The :class:`Record` of one channel, ``acc`` in m/s², named ``"<station> <component>"``.
+
+    Parameters
+    ----------
+    values : ndarray, shape (n,)
+        Samples in ``units`` (checked by :func:`check_samples` before).
+    units : str
+        Canonical units of ``values`` (kept as the record's ``units``).
+    dt : float
+        Time step [s].
+    station, component : str
+        Station code and component as written.
+    source : str
+        The file.
+    label : str
+        Where, for the message of an overflow.
+    metadata : dict
+        The record's metadata (kept as given).
+    start_time : str
+        ISO 8601 time of the first sample ("" if unknown).
+    """
+    return Record(acc=to_si(values, units, label), dt=dt, name=f"{station} {component}".strip(),
+                  component=component, source=source, units=units, start_time=start_time,
+                  metadata=metadata)

@@ -13,8 +13,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import head_lines, make_record, numbers, read_lines, units_factor, warn
-from ._common import FormatError, check_dt
+from ._agency import make_record, numbers, units_factor, warn
+from ._common import check_dt, detector, file_stem, FormatError, head_lines, is_number, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -26,16 +26,14 @@ _PGA = re.compile(r"\(\s*([A-Z]-?[A-Z])\s*\)\s*([-+\d.Ee]+)", re.I)
 _TIME = re.compile(r"(\d{1,2})/(\d{1,2})/(\d{4})\s+(\d{1,2}):(\d{2}):(\d{2}(?:\.\d+)?)")
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for an AFAD/NSMN text file: its title line and one of its keys. Never raises."""
-    try:
-        lines = head_lines(head, 40)
-        text = "\n".join(lines).upper()
-        return (bool(lines) and lines[0].strip().upper().startswith("STRONG GROUND MOTION RECORDS OF TURK")
-                and any(k in text for k in ("SAMPLING INTERVAL", "STATION ID", "EARTHQUAKE DATE",
-                                            "NUMBER OF DATA")))
-    except Exception:  # noqa: BLE001
-        return False
+    lines = head_lines(head, 40)
+    text = "\n".join(lines).upper()
+    return (bool(lines) and lines[0].strip().upper().startswith("STRONG GROUND MOTION RECORDS OF TURK")
+            and any(k in text for k in ("SAMPLING INTERVAL", "STATION ID", "EARTHQUAKE DATE",
+                                        "NUMBER OF DATA")))
 
 
 def _iso(text: str) -> str:
@@ -50,15 +48,11 @@ def _iso(text: str) -> str:
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
-    """Read the three components of an AFAD/NSMN text file.
+    """Read the three components of an AFAD/NSMN text file (arguments:
+    :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : Path
-    units : str, optional
-        Needed only if the header states no unit; else a check.
-    dt : float, optional
-        A check [s] against ``SAMPLING INTERVAL``.
+    ``units`` is needed only if the header states no unit, else a check; ``dt``
+    [s] is checked against ``SAMPLING INTERVAL``.
 
     Returns
     -------
@@ -132,7 +126,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         table = np.array(" ".join(rows).split(), dtype=float)
     except ValueError:
         bad = next(k for k, ln in enumerate(lines[first:]) if ln.strip() and not
-                   all(_num(c) for c in ln.split()))
+                   all(is_number(c) for c in ln.split()))
         raise FormatError(FORMAT, path, "a data row holds something that is not a number",
                           line=first + bad + 1, text=lines[first + bad]) from None
     width = len(columns)
@@ -148,7 +142,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
              "are read")
         table = table[:n]
     station = get("STATION ID")[0].split()[0] if any(k.startswith("STATION ID") for k in header) \
-        else path.stem
+        else file_stem(path)
     start = _iso(header["RECORD TIME"][0]) if "RECORD TIME" in header else ""
     meta: dict = {}
     for key, out in (("PLACE", "station_name"), ("EARTHQUAKE DATE", "event_time"),
@@ -183,11 +177,3 @@ def _iso_date(text: str) -> str:
     y, mo, d, h, mi, s = m.groups()
     return f"{y}-{int(mo):02d}-{int(d):02d}T{int(h):02d}:{mi}:{s}" + (
         "Z" if "GMT" in text.upper() or "UTC" in text.upper() else "")
-
-
-def _num(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True

@@ -13,8 +13,8 @@ import math
 import re
 from pathlib import Path
 
-from ._agency import head_lines, make_record, read_lines, units_factor, volume1_data
-from ._common import FormatError, check_dt
+from ._agency import channel_spans, make_record, points_pattern, units_factor, volume1_data
+from ._common import check_dt, detector, file_stem, FormatError, head_lines, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -22,33 +22,26 @@ FORMAT = "BHRC (Iran) Volume 1"
 EXTENSIONS = (".v1", ".v2")
 
 _TITLE = re.compile(r"^\*\s*VOL\s*\d\w*\s+FILE", re.I)
-_POINTS = re.compile(r"NO\.\s*OF\s+POINTS\s*=\s*(\d+)(?:.*?DURATION\s*=\s*([\d.]+))?", re.I)
+_POINTS = points_pattern("DURATION")
 _UNITS = re.compile(r"UNITS\s+ARE\s+SEC\w*\s+AND\s+(\S+)", re.I)
 _COMP = re.compile(r"^\s*COMP\s+(\S+)", re.I)
 _AZIMUTH = re.compile(r"Azimuth\s+((?:[A-Z]+\s+[-+\d.]+\s*)+)", re.I)
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for a BHRC file: first line ``* VOLn... FILE`` and a ``COMP`` line. Never raises."""
-    try:
-        lines = head_lines(head, 20)
-        return (bool(lines) and bool(_TITLE.match(lines[0]))
-                and any(_COMP.match(ln) for ln in lines[:12]))
-    except Exception:  # noqa: BLE001
-        return False
+    lines = head_lines(head, 20)
+    return (bool(lines) and bool(_TITLE.match(lines[0]))
+            and any(_COMP.match(ln) for ln in lines[:12]))
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
-    """Read every channel of a BHRC file.
+    """Read every channel of a BHRC file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : Path
-    units : str, optional
-        A check against the header's units (g/10 in Volume 1, which no option
-        names: giving any units for such a file is an error).
-    dt : float, optional
-        A check [s] against DURATION / NO. OF POINTS.
+    ``units`` is checked against the header's units: g/10 in Volume 1, which no
+    option names, so giving any units for such a file is an error. ``dt`` [s] is
+    checked against DURATION / NO. OF POINTS.
 
     Returns
     -------
@@ -67,17 +60,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     starts = [i for i, ln in enumerate(lines) if _TITLE.match(ln)]
     if not starts:
         raise FormatError(FORMAT, path, "no channel header ('* VOL1DS FILE: ...')", line=1)
-    ends = [i for i, ln in enumerate(lines) if ln.lstrip().startswith("/&")]
-    records = []
-    for c, s in enumerate(starts):
-        stop = starts[c + 1] if c + 1 < len(starts) else len(lines)
-        end = next((e for e in ends if s < e < stop), None)
-        if end is None:
-            end = stop
-            while end > s and not lines[end - 1].strip():
-                end -= 1
-        records.append(_channel(lines, s, end, path, units, dt))
-    return records
+    return [_channel(lines, s, end, path, units, dt) for s, end in channel_spans(lines, starts)]
 
 
 def _find(lines, s, e, pattern):
@@ -114,7 +97,7 @@ def _channel(lines, s, end, path, units, dt):
     values, _ = volume1_data(lines, uline + 1, end, n, fmt=FORMAT, path=path, width=13)
 
     meta: dict = {}
-    station = path.stem
+    station = file_stem(path)
     for k in range(s, min(end, s + 14)):
         ln = lines[k]
         if re.search(r"\bStation\b", ln, re.I) and not ln.upper().lstrip().startswith("STATION NO"):

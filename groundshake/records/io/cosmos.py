@@ -25,8 +25,9 @@ import numpy as np
 from ..._errors import GroundshakeWarning, RecordError
 from .._record import Record
 from .._units import canonical_units
-from ._common import (check_dt, check_samples, fixed_width, FormatError, iso_time,
-                      orientation_metadata, resolve_units, to_si, unique_names, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      head_lines, iso_time, orientation_metadata, read_lines, resolve_units,
+                      si_record, unique_names, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -51,13 +52,11 @@ _UNIT_CODES = {2: "g", 4: "cm/s2"}
 _COUNTS = 50
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
-    """True if the first line states a COSMOS format version and an integer header follows."""
-    try:
-        lines = head.decode("latin-1").splitlines()
-        return bool(lines) and bool(_FIRST.search(lines[0]))
-    except Exception:
-        return False
+    """True if the first line states a COSMOS format version (never raises)."""
+    lines = head_lines(head, 1)
+    return bool(lines) and bool(_FIRST.search(lines[0]))
 
 
 def _value(arr, k):
@@ -119,16 +118,11 @@ def _channels(lines: list[str], path: Path):
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
-    """Read every acceleration channel of a COSMOS V0, V1 or V2 file.
+    """Read every acceleration channel of a COSMOS V0, V1 or V2 file (arguments:
+    :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : path-like
-        The file.
-    units : str, optional
-        A check: an error if it differs from the data line's units.
-    dt : float, optional
-        A check: an error if it differs from the sampling interval (real header 62) [s].
+    ``units`` is checked against the data line's units, ``dt`` [s] against the
+    sampling interval (real header 62).
 
     Returns
     -------
@@ -149,7 +143,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     """
     path = Path(path)
     where = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     given = user_units(units, where)
     records = []
     kinds = []
@@ -216,7 +210,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                 meta["network"] = ms.group(3)
                 meta.update(orientation_metadata(ms.group(2)) if not component else {})
         meta.setdefault("channel", component)
-        meta["station"] = station or path.stem
+        meta["station"] = station or file_stem(path)
         if len(ch["text"]) > 4:
             meta["station_name"] = re.sub(r"^.*?Code:\s*\S+\s*", "", ch["text"][4]).strip()
         if len(ch["text"]) > 1:
@@ -249,9 +243,9 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                           f"{data.size * step:g} s but the data line says about "
                           f"{approx.group(1)} s; check the sampling interval (real header 62)",
                           GroundshakeWarning, stacklevel=4)
-        records.append(Record(acc=to_si(data * scale, rec_units, label), dt=step,
-                              name=f"{meta['station']} {component}".strip(), component=component,
-                              source=where, units=rec_units, start_time=start, metadata=meta))
+        records.append(si_record(data * scale, units=rec_units, dt=step, station=meta["station"],
+                                 component=component, source=where, label=label,
+                                 start_time=start, metadata=meta))
     if not records:
         raise FormatError(FORMAT, path, f"no acceleration channel (found: {', '.join(kinds)})")
     return unique_names(records)

@@ -20,11 +20,10 @@ from pathlib import Path
 
 import numpy as np
 
-from ..._errors import RecordError
 from .._record import STANDARD_GRAVITY, Record
-from .._units import canonical_units
-from ._common import (check_dt, check_samples, fixed_width, FormatError, free_numbers,
-                      iso_time, orientation_metadata, resolve_units, to_si, unique_names,
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      free_numbers, head_lines, header_units, iso_time, orientation_metadata,
+                      peak_factor, PEAK_NAMES, read_lines, resolve_units, si_record, unique_names,
                       user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "is_volume3", "read", "read_csmip_v2_series",
@@ -52,36 +51,32 @@ _HYPO = re.compile(r"hypocenter(?:\([^)]*\))?:\s*(.*?)(?:\s{2,}|$)", re.I)
 _MAG = re.compile(r"\b(M[LWS])\s*[:=]\s*(.*?)\s*$", re.I)
 _END = "/&"
 _OFFSET = {"UTC": 0.0, "GMT": 0.0, "PST": -8.0, "PDT": -7.0}
-# lengths of velocity/displacement units -> m
-_LENGTH = {"cm": 0.01, "in": 0.0254, "m": 1.0, "mm": 0.001}
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if the first line names a CSMIP volume and an integer header follows (never raises)."""
-    try:
-        lines = head.decode("latin-1").splitlines()
-        if not lines or not _FIRST.match(lines[0]):
-            return False
-        # a CSMIP channel names its channel ("Chan  1: 360 Deg"), has an integer header of
-        # 16 fields of 5 characters, and announces its data ("12000 points of accel data
-        # ...", "13200 Accelerogram points ...") or, in Volume 3, its spectra
-        if is_volume3(head):
-            return True
-        if not any(_CHAN.match(ln) for ln in lines[1:30]):
-            return False
-        if any(_announces_data(ln) for ln in lines[1:100]):
-            return True
-        # a file cut short before its first data block still names itself by its first line
-        # and channel line; a longer one without the announcement is another format
-        return len(head) < 8192 and len(lines) < 46
-    except Exception:
+    lines = head_lines(head)
+    if not lines or not _FIRST.match(lines[0]):
         return False
+    # a CSMIP channel names its channel ("Chan  1: 360 Deg"), has an integer header of
+    # 16 fields of 5 characters, and announces its data ("12000 points of accel data
+    # ...", "13200 Accelerogram points ...") or, in Volume 3, its spectra
+    if is_volume3(head):
+        return True
+    if not any(_CHAN.match(ln) for ln in lines[1:30]):
+        return False
+    if any(_announces_data(ln) for ln in lines[1:100]):
+        return True
+    # a file cut short before its first data block still names itself by its first line
+    # and channel line; a longer one without the announcement is another format
+    return len(head) < 8192 and len(lines) < 46
 
 
 def is_volume3(head: bytes) -> bool:
     """True if ``head`` (a file's first bytes) starts like a CSMIP Volume 3 file (never raises)."""
     try:
-        first = head.decode("latin-1").splitlines()[:1]
+        first = head_lines(head, 1)
     except Exception:  # noqa: BLE001 - a detector never raises
         return False
     return bool(first) and first[0].lower().lstrip().startswith(
@@ -262,9 +257,9 @@ def _meta(ch: _Channel, path: Path) -> tuple[dict, str, str]:
             r"processing|data|^\s*record of", ch.header[2], re.I):
         meta["event_name"] = ch.header[2].strip()
     for m in _PEAK.finditer(text):
-        what = {"acceleration": "pga", "velocity": "pgv", "displacement": "pgd"}[m.group(1).lower()]
+        what = PEAK_NAMES[m.group(1).lower()]
         value, unit = abs(float(m.group(2))), m.group(3).lower()
-        factor = _factor(unit, what)
+        factor = peak_factor(unit, what)
         if factor is not None:
             meta[f"header_{what}"] = value * factor
             meta[f"header_{what}_time"] = float(m.group(4))
@@ -292,36 +287,16 @@ def _meta(ch: _Channel, path: Path) -> tuple[dict, str, str]:
 
 def _peak_factor(text: str, what: str) -> float:
     for m in _PEAK.finditer(text):
-        key = {"acceleration": "pga", "velocity": "pgv", "displacement": "pgd"}[m.group(1).lower()]
-        if key == what:
-            return _factor(m.group(3).lower(), what) or 1.0
+        if PEAK_NAMES[m.group(1).lower()] == what:
+            return peak_factor(m.group(3), what) or 1.0
     return 1.0
 
 
-def _factor(unit: str, what: str) -> float | None:
-    """Factor from a header unit (``cm/sec/sec``, ``cm/sec``, ``cm``) to SI."""
-    unit = unit.lower().strip(".")
-    if what == "pga":
-        try:
-            from .._units import UNITS
-            return UNITS[canonical_units(unit)]
-        except RecordError:
-            return None
-    base = unit.split("/")[0]
-    return _LENGTH.get(base)
-
-
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
-    """Read the acceleration of every channel of a CSMIP/CDMG Volume 1 or 2 file.
+    """Read the acceleration of every channel of a CSMIP/CDMG Volume 1 or 2 file
+    (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : path-like
-        The file.
-    units : str, optional
-        A check: an error if it differs from the data block's units.
-    dt : float, optional
-        A check: an error if it differs from the data block's step [s].
+    ``units`` and ``dt`` [s] are checked against the data block's units and step.
 
     Returns
     -------
@@ -340,7 +315,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     """
     path = Path(path)
     where = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     channels = _split_channels(lines, path)
     if all(ch.volume == 3 for ch in channels):
         raise FormatError(FORMAT, path, "a Volume 3 file holds response spectra, not an "
@@ -353,19 +328,15 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
             raise FormatError(FORMAT, path, "the channel has no acceleration data block",
                               ch.first_line, ch.lines[0])
         label = f"{where} (channel starting at line {ch.first_line})"
-        try:
-            file_units = canonical_units(acc.unit_text)
-        except RecordError:
-            raise FormatError(FORMAT, path, f"units {acc.unit_text!r} are not units of "
-                              "acceleration", acc.line, ch.lines[acc.line - ch.first_line]) from None
+        file_units = header_units(acc.unit_text, fmt=FORMAT, path=path, line=acc.line,
+                                  line_text=ch.lines[acc.line - ch.first_line])
         rec_units = resolve_units(file_units, given, label)
         check_dt(dt, acc.dt, label, "its data block")
         check_samples(acc.values, label)
         meta, component, start = _meta(ch, path)
-        station = meta.get("station", path.stem)
-        records.append(Record(acc=to_si(acc.values, rec_units, label), dt=acc.dt,
-                              name=f"{station} {component}".strip(), component=component,
-                              source=where, units=rec_units, start_time=start, metadata=meta))
+        records.append(si_record(acc.values, units=rec_units, dt=acc.dt,
+                                 station=meta.get("station", file_stem(path)), component=component,
+                                 source=where, label=label, start_time=start, metadata=meta))
     return unique_names(records)
 
 
@@ -413,7 +384,7 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
         Not a Volume 2 file, or a block that does not parse.
     """
     path = Path(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     out = []
     for ch in _split_channels(lines, path):
         if ch.volume != 2:
@@ -438,7 +409,7 @@ def read_csmip_v2_series(path) -> list[CsmipSeries]:
 
 def _si_factor(unit_text: str, what: str, path: Path, line: int) -> float:
     """Factor from a data block's units to SI (m/s², m/s or m)."""
-    f = _factor(unit_text, what)
+    f = peak_factor(unit_text, {"pga": "pga", "veloc": "pgv", "displ": "pgd"}[what])
     if f is None:
         raise FormatError(FORMAT, path, f"unknown units {unit_text!r}", line)
     return f
@@ -504,7 +475,7 @@ def read_csmip_spectra(path) -> list[PublishedSpectrum]:
     """
     path = Path(path)
     where = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     out = []
     for ch in _split_channels(lines, path):
         if ch.volume != 3:

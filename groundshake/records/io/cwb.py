@@ -15,8 +15,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import head_lines, make_record, numbers, read_lines, units_factor
-from ._common import FormatError, check_dt
+from ._agency import make_record, numbers, units_factor
+from ._common import (check_dt, detector, even_step, file_stem, FormatError, head_lines, is_number,
+                      read_lines)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -24,34 +25,26 @@ FORMAT = "CWB (Taiwan) text"
 EXTENSIONS = (".dat", ".txt")
 
 _KEY = re.compile(r"^#\s*([^:]+?)\s*:\s*(.*?)\s*$")
-_TIME_TOLERANCE = 0.01  # largest relative spread of the time steps read as uniform
 
 
 _MARKS = ("#stationcode", "#amplitudeunit", "#datasequence", "#origin time(gmt",
           "#starttime(gmt", "#samplerate(hz)", "#epicenterlongitude", "#recordlength(sec)")
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for CWB text: ``#Key:`` lines, at least three of CWB's own keys. Never raises."""
-    try:
-        lines = head_lines(head, 40)
-        first = next((ln.strip() for ln in lines if ln.strip()), "")
-        text = "\n".join(lines).lower().replace(" :", ":")
-        return first.startswith("#") and sum(k in text for k in _MARKS) >= 3
-    except Exception:  # noqa: BLE001
-        return False
+    lines = head_lines(head, 40)
+    first = next((ln.strip() for ln in lines if ln.strip()), "")
+    text = "\n".join(lines).lower().replace(" :", ":")
+    return first.startswith("#") and sum(k in text for k in _MARKS) >= 3
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
-    """Read the three components of a CWB text file.
+    """Read the three components of a CWB text file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : Path
-    units : str, optional
-        A check against ``#AmplitudeUnit``.
-    dt : float, optional
-        A check [s] against the time column and ``#SampleRate(Hz)``.
+    ``units`` is checked against ``#AmplitudeUnit`` (and needed where it is
+    missing); ``dt`` [s] against the time column and ``#SampleRate(Hz)``.
 
     Returns
     -------
@@ -109,7 +102,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     try:
         flat = np.array(" ".join(rows).split(), dtype=float)
     except ValueError:
-        bad = next(k for k, ln in enumerate(rows) if not all(_num(c) for c in ln.split()))
+        bad = next(k for k, ln in enumerate(rows) if not all(is_number(c) for c in ln.split()))
         raise FormatError(FORMAT, path, "a data row holds something that is not a number",
                           text=rows[bad]) from None
     if flat.size % width or flat.size // width != len(rows):
@@ -117,16 +110,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                           f"(time and {', '.join(comps)})", line=first + 1)
     table = flat.reshape(-1, width)
     time = table[:, 0]
-    steps = np.diff(time)
-    if time.size < 2 or np.any(steps <= 0):
-        bad = int(np.flatnonzero(steps <= 0)[0]) + 1 if time.size >= 2 else 0
-        raise FormatError(FORMAT, path, f"time {time[bad]:g} s repeats or runs backwards",
-                          line=first + 1 + bad)
-    step = (time[-1] - time[0]) / (time.size - 1)
-    spread = float(np.max(np.abs(steps - step)) / step)
-    if spread > _TIME_TOLERANCE:
-        raise FormatError(FORMAT, path, f"time steps vary by {100 * spread:.1f} % (uneven "
-                          "sampling is not read)", line=first + 1)
+    step = even_step(time, fmt=FORMAT, path=path, line_of=lambda k: first + 1 + k)
     rate = get("samplerate")
     if rate is not None and numbers(rate[0]):
         header_step = 1.0 / numbers(rate[0])[0]
@@ -143,7 +127,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
             raise FormatError(FORMAT, path, f"{table.shape[0]} data rows; #RecordLength "
                               f"{length[0]} s at {1 / step:g} Hz needs {need}", line=length[1])
 
-    station = (get("stationcode") or (path.stem, 0))[0].split()[0]
+    station = (get("stationcode") or (file_stem(path), 0))[0].split()[0]
     meta: dict = {}
     sname = get("stationname")
     if sname:
@@ -195,11 +179,3 @@ def _iso(key: str, value: str) -> str:
         when = when - offset if z.group(1) == "+" else when + offset
         return when.isoformat(timespec="milliseconds") + "Z"
     return when.isoformat(timespec="milliseconds")
-
-
-def _num(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True

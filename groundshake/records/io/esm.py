@@ -12,11 +12,10 @@ import math
 import re
 from pathlib import Path
 
-from ..._errors import RecordError
 from .._record import Record
-from .._units import canonical_units
-from ._common import (check_dt, check_samples, FormatError, free_numbers, iso_time,
-                      orientation_metadata, resolve_units, to_si, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, FormatError, free_numbers,
+                      header_units, iso_time, orientation_metadata, read_lines, resolve_units,
+                      si_record, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -33,16 +32,14 @@ _EVENT = {"EVENT_NAME": "event_name", "EVENT_ID": "event_id",
           "EPICENTRAL_DISTANCE_KM": "event_epicentral_distance_km"}
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if the header has the ESM keys that define the format (never raises)."""
-    try:
-        text = head.decode("latin-1")
-        if text.startswith("EVENT_NAME:") and "\nEVENT_ID:" in text[:400]:
-            return True  # the ESM header's first two keys
-        return "\nSTATION_CODE:" in text and "\nSAMPLING_INTERVAL_S:" in text and \
-            "\nNDATA:" in text
-    except Exception:
-        return False
+    text = head.decode("latin-1")
+    if text.startswith("EVENT_NAME:") and "\nEVENT_ID:" in text[:400]:
+        return True  # the ESM header's first two keys
+    return "\nSTATION_CODE:" in text and "\nSAMPLING_INTERVAL_S:" in text and \
+        "\nNDATA:" in text
 
 
 def _header(lines: list[str], path: Path) -> tuple[dict, dict, int]:
@@ -83,16 +80,9 @@ def _number(values, where, key, path, *, positive=True) -> float | None:
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
-    """Read an ESM/ITACA ASCII acceleration file.
+    """Read an ESM/ITACA ASCII acceleration file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : path-like
-        The file.
-    units : str, optional
-        A check: an error if it differs from ``UNITS``.
-    dt : float, optional
-        A check: an error if it differs from ``SAMPLING_INTERVAL_S`` [s].
+    ``units`` is checked against ``UNITS``, ``dt`` [s] against ``SAMPLING_INTERVAL_S``.
 
     Returns
     -------
@@ -111,7 +101,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     """
     path = Path(path)
     label = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     values, where, first = _header(lines, path)
     for key in _NEEDED:
         if not values.get(key):
@@ -127,12 +117,9 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         raise FormatError(FORMAT, path, "NDATA must be a whole number", where["NDATA"],
                           f"NDATA: {values['NDATA']}", part="header line")
     npts = int(npts)
-    try:
-        file_units = canonical_units(values["UNITS"])
-    except RecordError:
-        raise FormatError(FORMAT, path, f"UNITS {values['UNITS']!r} are not units of "
-                          "acceleration", where["UNITS"], f"UNITS: {values['UNITS']}",
-                          part="header line") from None
+    file_units = header_units(values["UNITS"], fmt=FORMAT, path=path, line=where["UNITS"],
+                              line_text=f"UNITS: {values['UNITS']}", part="header line",
+                              name="UNITS")
     rec_units = resolve_units(file_units, user_units(units, label), label)
     body = [ln for ln in lines[first:]]
     data = free_numbers(body, npts, fmt=FORMAT, path=path, first_line=first + 1)
@@ -144,7 +131,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     check_samples(data, label)
 
     stream = values.get("STREAM", "")
-    station = values.get("STATION_CODE", "") or path.stem
+    station = values.get("STATION_CODE", "") or file_stem(path)
     meta: dict = {"format": FORMAT, "station": station, "network": values.get("NETWORK", ""),
                   "location": values.get("LOCATION", ""), "channel": stream,
                   "station_name": values.get("STATION_NAME", "")}
@@ -172,6 +159,5 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
                      values.get("DATE_TIME_FIRST_SAMPLE_YYYYMMDD_HHMMSS", ""))
     if m:
         start = iso_time(*(int(g) for g in m.groups()[:5]), float(m.group(6)))  # UTC
-    name = f"{station} {stream}".strip()
-    return [Record(acc=to_si(data, rec_units, label), dt=step, name=name, component=stream,
-                   source=label, units=rec_units, start_time=start, metadata=meta)]
+    return [si_record(data, units=rec_units, dt=step, station=station, component=stream,
+                      source=label, label=label, start_time=start, metadata=meta)]

@@ -13,11 +13,10 @@ from __future__ import annotations
 import re
 from pathlib import Path
 
-from ..._errors import RecordError
 from .._record import Record
-from .._units import UNITS, canonical_units
-from ._common import (check_dt, check_samples, fixed_width, FormatError,
-                      orientation_metadata, resolve_units, to_si, unique_names, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      head_lines, header_units, orientation_metadata, peak_factor, PEAK_NAMES,
+                      read_lines, resolve_units, si_record, unique_names, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -36,29 +35,20 @@ _PEAK = re.compile(r"^\s*(Acceleration|Velocity|Displacement)\s*:\s*Peak\s+([-0-
                    r"\s+at\s+([-0-9.]+)\s*s", re.I)
 _INTS = re.compile(r"^(\s*-?\d+){10}\s*$")
 _MAG = re.compile(r"\b(M[LWSlws]?)\s+([0-9.]+)\s*$")
-_LENGTH = {"mm": 0.001, "cm": 0.01, "m": 1.0}
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if the file begins like a GeoNet volume (never raises)."""
-    try:
-        lines = head.decode("latin-1").splitlines()
-        return len(lines) > 1 and bool(_FIRST.match(lines[0])) and bool(_SITE.match(lines[1]))
-    except Exception:
-        return False
+    lines = head_lines(head)
+    return len(lines) > 1 and bool(_FIRST.match(lines[0])) and bool(_SITE.match(lines[1]))
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
-    """Read the three components of a GeoNet V1A or V2A file.
+    """Read the three components of a GeoNet V1A or V2A file (arguments:
+    :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : path-like
-        The file.
-    units : str, optional
-        A check: an error if it differs from the header's units.
-    dt : float, optional
-        A check: an error if it differs from the header's interval [s].
+    ``units`` and ``dt`` [s] are checked against the header's units and interval.
 
     Returns
     -------
@@ -76,7 +66,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     """
     path = Path(path)
     where = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     given = user_units(units, where)
     # a component starts with "... accelerogram ..." followed by "Site ..."
     starts = [i for i in range(len(lines) - 1)
@@ -113,11 +103,8 @@ def _component(lines, i, path, given, dt):
         raise FormatError(FORMAT, path, "no '... in units of ... at intervals of ... s' line",
                           first + k, text[k], part="header line")
     scale = float(mu.group(1)) if mu.group(1) else 1.0
-    try:
-        file_units = canonical_units(mu.group(2))
-    except RecordError:
-        raise FormatError(FORMAT, path, f"units {mu.group(2)!r} are not units of acceleration",
-                          first, text[0], part="header line") from None
+    file_units = header_units(mu.group(2), fmt=FORMAT, path=path, line=first, line_text=text[0],
+                              part="header line")
     rec_units = resolve_units(file_units, given, label)
     step = float(mu.group(3))
     if not step > 0:
@@ -153,7 +140,7 @@ def _component(lines, i, path, given, dt):
                           extra[0] + 1, lines[extra[0]])
     meta: dict = {"format": FORMAT}
     ms = _SITE.match(text[1])
-    station = ms.group(1) if ms else path.stem
+    station = ms.group(1) if ms else file_stem(path)
     meta["station"] = station
     meta["station_name"] = text[2].strip()
     mc = next((_COMP.match(t) for t in text if _COMP.match(t)), None)
@@ -172,19 +159,12 @@ def _component(lines, i, path, given, dt):
         mp = _PEAK.match(t)
         if not mp:
             continue
-        what = {"acceleration": "pga", "velocity": "pgv", "displacement": "pgd"}[mp.group(1).lower()]
-        unit = mp.group(3).lower()
-        if what == "pga":
-            try:
-                factor = UNITS[canonical_units(unit)]
-            except RecordError:
-                continue
-        else:
-            factor = _LENGTH.get(unit.split("/")[0])
-            if factor is None:
-                continue
+        what = PEAK_NAMES[mp.group(1).lower()]
+        factor = peak_factor(mp.group(3), what)
+        if factor is None:
+            continue
         meta[f"header_{what}"] = abs(float(mp.group(2))) * factor
         meta[f"header_{what}_time"] = float(mp.group(4))
-    rec = Record(acc=to_si(acc, rec_units, label), dt=step, name=f"{station} {component}".strip(),
-                 component=component, source=where, units=rec_units, metadata=meta)
+    rec = si_record(acc, units=rec_units, dt=step, station=station, component=component,
+                    source=where, label=label, metadata=meta)
     return rec, end

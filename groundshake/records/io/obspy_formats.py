@@ -1,12 +1,15 @@
 """Every waveform format ObsPy reads (MiniSEED, SAC, K-NET/KiK-net, Kinemetrics EVT, GSE2, ...).
 
 Detection asks each of ObsPy's own format checks in ObsPy's order; reading goes through
-``obspy.read``. Units come from the header where the format states them (K-NET scale
+``obspy.read``. A gzip-compressed file is handed to ObsPy decompressed (a temporary copy
+of its content); bzip2, zip and tar files ObsPy unpacks itself. Units come from the header where the format states them (K-NET scale
 factor in gal, EVT full scale and sensitivity, the ASCII formats' unit, SAC ``kuser0``).
 """
 from __future__ import annotations
 
+import contextlib
 import math
+import tempfile
 import warnings
 from pathlib import Path
 from typing import Any
@@ -18,7 +21,8 @@ from .._components import describe
 from .._inventory import check_not_counts
 from .._record import Record
 from .._units import UNITS, canonical_units
-from ._common import check_samples, resolve_units, to_si, user_units
+from ._common import (check_samples, detector, file_stem, is_gzip, read_bytes, resolve_units,
+                      to_si, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -27,8 +31,20 @@ EXTENSIONS = (".mseed", ".miniseed", ".sac", ".evt", ".gse2", ".ew1", ".ns1", ".
               ".ew", ".ns", ".ud")
 
 _TEXT_ONLY_SUFFIXES = {".csv", ".tsv"}
-# gzip, bzip2, zip: ObsPy unpacks these before detecting the format inside
-_PACKED_MAGIC = (b"\x1f\x8b", b"BZh", b"PK\x03\x04")
+# bzip2, zip: ObsPy unpacks these before detecting the format inside (gzip: see _plain_copy)
+_PACKED_MAGIC = (b"BZh", b"PK\x03\x04")
+
+
+@contextlib.contextmanager
+def _plain_copy(path: Path):
+    """The file to give ObsPy: ``path``, or for a gzip file a temporary copy of its content."""
+    if not is_gzip(path):
+        yield path
+        return
+    with tempfile.TemporaryDirectory(prefix="groundshake-") as folder:
+        copy = Path(folder) / _inner_name(path)
+        copy.write_bytes(read_bytes(path))
+        yield copy
 
 
 def _obspy_format_of(path: Path) -> str | None:
@@ -47,16 +63,22 @@ def _obspy_format_of(path: Path) -> str | None:
     return None
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if one of ObsPy's waveform formats claims the file (never raises)."""
-    try:
-        if Path(path).suffix.lower() in _TEXT_ONLY_SUFFIXES:
-            return False
-        if head.startswith(_PACKED_MAGIC) or head[257:262] == b"ustar":
-            return True
-        return _obspy_format_of(Path(path)) is not None
-    except Exception:
+    path = Path(path)
+    if Path(_inner_name(path)).suffix.lower() in _TEXT_ONLY_SUFFIXES:
         return False
+    if head.startswith(_PACKED_MAGIC) or head[257:262] == b"ustar":
+        return True
+    with _plain_copy(path) as plain:
+        return _obspy_format_of(plain) is not None
+
+
+def _inner_name(path: Path) -> str:
+    """The file's name, without ``.gz`` (``a.mseed.gz`` → ``a.mseed``)."""
+    name = path.name[:-3] if path.name.lower().endswith(".gz") else path.name
+    return name or "record"
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None,
@@ -107,9 +129,9 @@ def _read_stream(path: Path):
     import obspy
 
     try:
-        with warnings.catch_warnings():
+        with warnings.catch_warnings(), _plain_copy(path) as plain:
             warnings.simplefilter("ignore")
-            return obspy.read(str(path))
+            return obspy.read(str(plain))
     except TypeError as e:
         if "Unknown format" in str(e):
             raise RecordError(f"{path}: not a record groundshake can read (no format ObsPy "
@@ -235,7 +257,7 @@ def _records_from_stream(stream, path: Path, user_units: str | None,
         if station:  # "<station> <channel>", as every reader names its records
             name = f"{station} {channel}".strip()
         else:
-            name = path.stem if len(stream) == 1 else f"{path.stem}.{channel or index}"
+            name = file_stem(path) if len(stream) == 1 else f"{file_stem(path)}.{channel or index}"
         if name in names:
             name = f"{name}.{index}"
         names.add(name)

@@ -15,11 +15,10 @@ from __future__ import annotations
 import re
 from pathlib import Path
 
-from ..._errors import RecordError
 from .._record import Record
-from .._units import canonical_units
-from ._common import (check_dt, check_samples, FormatError, free_numbers,
-                      orientation_metadata, resolve_units, to_si, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, FormatError, free_numbers,
+                      head_lines, header_units, orientation_metadata, read_lines, resolve_units,
+                      si_record, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -33,32 +32,23 @@ _UNITS = re.compile(r"TIME SERIES IN UNITS OF\s+(.+?)\s*$", re.I)
 _KIND = re.compile(r"^\s*(ACCELERATION|VELOCITY|DISPLACEMENT)\b", re.I)
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if the file begins like a PEER database time series (never raises)."""
-    try:
-        lines = head.decode("latin-1").splitlines()[:4]
-        if not lines or not lines[0].lstrip().upper().startswith("PEER"):
-            return False
-        if len(lines) < 4:  # a file cut short: its first line is enough to name it
-            return "STRONG MOTION" in lines[0].upper() or "DATABASE" in lines[0].upper()
-        return ("TIME SERIES" in lines[2].upper()
-                and bool(_NPTS.search(lines[3]) and _DT.search(lines[3])
-                         or _OLD_NPTS_DT.search(lines[3])))
-    except Exception:
+    lines = head_lines(head, 4)
+    if not lines or not lines[0].lstrip().upper().startswith("PEER"):
         return False
+    if len(lines) < 4:  # a file cut short: its first line is enough to name it
+        return "STRONG MOTION" in lines[0].upper() or "DATABASE" in lines[0].upper()
+    return ("TIME SERIES" in lines[2].upper()
+            and bool(_NPTS.search(lines[3]) and _DT.search(lines[3])
+                     or _OLD_NPTS_DT.search(lines[3])))
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
-    """Read a PEER ``.AT2`` acceleration file.
+    """Read a PEER ``.AT2`` acceleration file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : path-like
-        The file.
-    units : str, optional
-        A check: an error if it differs from the header's units (g).
-    dt : float, optional
-        A check: an error if it differs from the header's ``DT`` [s].
+    ``units`` is checked against the header's units (g), ``dt`` [s] against its ``DT``.
 
     Returns
     -------
@@ -75,7 +65,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     """
     path = Path(path)
     where = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     if len(lines) < 5:
         raise FormatError(FORMAT, path, "the four header lines and data are needed; the file "
                           f"has {len(lines)} lines")
@@ -86,12 +76,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     m = _UNITS.search(lines[2])
     if not m:
         raise FormatError(FORMAT, path, "no 'IN UNITS OF ...'", 3, lines[2], part="header line")
-    unit_text = m.group(1).rstrip(". ")
-    try:
-        file_units = canonical_units(unit_text)
-    except RecordError:
-        raise FormatError(FORMAT, path, f"units {unit_text!r} are not units of acceleration",
-                          3, lines[2], part="header line") from None
+    file_units = header_units(m.group(1).rstrip(". "), fmt=FORMAT, path=path, line=3,
+                              line_text=lines[2], part="header line")
     rec_units = resolve_units(file_units, user_units(units, where), where)
     mn, md = _NPTS.search(lines[3]), _DT.search(lines[3])
     old = _OLD_NPTS_DT.search(lines[3])
@@ -129,7 +115,5 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         meta["station"] = parts[0]
     meta["channel"] = component
     meta.update(orientation_metadata(component))
-    station = meta.get("station", path.stem)
-    name = f"{station} {component}".strip()
-    return [Record(acc=to_si(data, rec_units, where), dt=step, name=name, component=component,
-                   source=where, units=rec_units, metadata=meta)]
+    return [si_record(data, units=rec_units, dt=step, station=meta.get("station", file_stem(path)),
+                      component=component, source=where, label=where, metadata=meta)]

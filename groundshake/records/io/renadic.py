@@ -13,46 +13,37 @@ import math
 import re
 from pathlib import Path
 
-import numpy as np
-
 from .._record import STANDARD_GRAVITY
-from ._agency import head_lines, make_record, numbers, read_lines, units_factor, volume1_data
-from ._common import FormatError, check_dt
+from ._agency import (channel_spans, make_record, numbers, points_pattern, units_factor,
+                      volume1_data)
+from ._common import check_dt, detector, even_step, file_stem, FormatError, head_lines, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
 FORMAT = "RENADIC (Chile) Volume 1"
 EXTENSIONS = (".v1", ".txt")
 
-_POINTS = re.compile(r"NO\.\s*OF\s+POINTS\s*=\s*(\d+)(?:.*?LENGTH\s*=\s*([\d.]+))?", re.I)
+_POINTS = points_pattern("LENGTH")
 _UNITS = re.compile(r"UNITS\s+OF\s+.*?ARE\s+SEC\w*\s+AND\s+(\S+?)\.?(?:\s|$)", re.I)
 _MAX = re.compile(r"MAX\s*=\s*([-+\d.Ee]+)\s*(\S+?),?\s+AT\s+([-+\d.Ee]+)\s*SEC", re.I)
 _CHAN = re.compile(r"^\s*CHAN\s*(\d+)\s*:\s*(\S+)", re.I)
-_TIME_TOLERANCE = 0.01  # largest relative spread of the time steps read as uniform
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for a RENADIC file: ``ACCELEROGRAM`` title and a ``RENADIC`` line. Never raises."""
-    try:
-        lines = head_lines(head, 20)
-        return (bool(lines) and "ACCELEROGRAM" in lines[0].upper()
-                and any("RENADIC" in ln.upper() for ln in lines[:14])
-                and any(_CHAN.match(ln) for ln in lines[:14]))
-    except Exception:  # noqa: BLE001
-        return False
+    lines = head_lines(head, 20)
+    return (bool(lines) and "ACCELEROGRAM" in lines[0].upper()
+            and any("RENADIC" in ln.upper() for ln in lines[:14])
+            and any(_CHAN.match(ln) for ln in lines[:14]))
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
-    """Read every channel of a RENADIC Volume-1 file.
+    """Read every channel of a RENADIC Volume-1 file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : Path
-    units : str, optional
-        A check against the header's units (usually g/10, which no option
-        names: giving any units for such a file is an error).
-    dt : float, optional
-        A check [s] against the time column.
+    ``units`` is checked against the header's units: usually g/10, which no option
+    names, so giving any units for such a file is an error. ``dt`` [s] is checked
+    against the time column.
 
     Returns
     -------
@@ -73,17 +64,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     if not starts:
         raise FormatError(FORMAT, path, "no channel header ('... ACCELEROGRAM ...' then "
                           "'CHAN  n: X' six lines below)")
-    ends = [i for i, ln in enumerate(lines) if ln.lstrip().startswith("/&")]
-    records = []
-    for c, s in enumerate(starts):
-        stop = starts[c + 1] if c + 1 < len(starts) else len(lines)
-        end = next((e for e in ends if s < e < stop), None)
-        if end is None:
-            end = stop
-            while end > s and not lines[end - 1].strip():
-                end -= 1
-        records.append(_channel(lines, s, end, path, units, dt))
-    return records
+    return [_channel(lines, s, end, path, units, dt) for s, end in channel_spans(lines, starts)]
 
 
 def _channel(lines, s, end, path, units, dt):
@@ -104,16 +85,9 @@ def _channel(lines, s, end, path, units, dt):
                                  width=7)
     pairs = values.reshape(n, 2)
     time, acc = pairs[:, 0], pairs[:, 1]
-    steps = np.diff(time)
-    if n < 2 or np.any(steps <= 0):
-        bad = int(np.flatnonzero(steps <= 0)[0]) if n >= 2 else 0
-        raise FormatError(FORMAT, path, f"channel {component}: time {time[bad + 1]:g} s repeats or "
-                          "runs backwards", line=first + 1 + (bad + 1) // 5)
-    step = (time[-1] - time[0]) / (n - 1)
-    spread = float(np.max(np.abs(steps - step)) / step)
-    if spread > _TIME_TOLERANCE:
-        raise FormatError(FORMAT, path, f"channel {component}: time steps vary by "
-                          f"{100 * spread:.1f} % (uneven sampling is not read)", line=first + 1)
+    # five (time, acceleration) pairs a line
+    step = even_step(time, fmt=FORMAT, path=path, prefix=f"channel {component}: ",
+                     line_of=lambda k: first + 1 + k // 5)
     if pm.group(2):  # RECORD LENGTH = n·dt: the step to the printed digits
         length_step = float(pm.group(2)) / n
         if math.isclose(length_step, step, rel_tol=1e-3):
@@ -122,7 +96,7 @@ def _channel(lines, s, end, path, units, dt):
     step = check_dt(dt, step, path, f"the {FORMAT} header",
                     fmt=FORMAT, path=path)
     meta: dict = {"channel_number": int(_CHAN.match(lines[s + 6]).group(1))}
-    station = lines[s + 5].split()[0] if lines[s + 5].split() else path.stem
+    station = lines[s + 5].split()[0] if lines[s + 5].split() else file_stem(path)
     meta["station_line"] = lines[s + 5].strip()
     mm = _MAX.search(text)
     if mm:

@@ -19,7 +19,8 @@ from ..._errors import RecordError
 from .._record import Record
 from .._units import canonical_units
 from ._common import check_samples as _check_samples
-from ._common import looks_binary, resolve_units as _resolve_units, to_si as _to_si, user_units
+from ._common import detector, file_stem, is_number as _is_float, looks_binary, read_bytes
+from ._common import resolve_units as _resolve_units, to_si as _to_si, user_units
 
 __all__ = ["FORMAT", "EXTENSIONS", "STEP_TOLERANCE", "is_format", "read"]
 
@@ -34,12 +35,10 @@ _META_RE = re.compile(r"^\s*([A-Za-z][A-Za-z _-]*?)\s*[:=]\s*(.+?)\s*$")
 _BRACKET_RE = re.compile(r"[\[(]\s*([^\])]+?)\s*[\])]")
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for any file whose beginning is text (never raises)."""
-    try:
-        return bool(head.strip()) and not looks_binary(head[:8192])
-    except Exception:
-        return False
+    return bool(head.strip()) and not looks_binary(head[:8192])
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None,
@@ -66,7 +65,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None,
     path = Path(path)
     where = str(path)
     try:
-        raw = path.read_bytes()
+        raw = read_bytes(path)
     except OSError as e:
         raise RecordError(f"{where}: cannot be read ({e.strerror or e})") from e
     return _read_text(_decode_text(raw, where), path, user_units(units, where),
@@ -268,9 +267,9 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
         rec_units = _resolve_units(col_canon or file_units, user_units, where)
         bare = _BRACKET_RE.sub("", col_name).strip()
         if len(acc_cols) == 1:
-            name = path.stem
+            name = file_stem(path)
         else:
-            name = bare or f"{path.stem}.{k + 1}"
+            name = bare or f"{file_stem(path)}.{k + 1}"
         component = components[k] if k < len(components) and components[k] else \
             (bare if len(acc_cols) > 1 else "")
         md: dict[str, Any] = {"format": "text", "column": k + 1 if width == 1 else k + 2}
@@ -299,14 +298,6 @@ def _merge_brackets(cells: list[str]) -> list[str]:
         else:
             out.append(c)
     return out
-
-
-def _is_float(text: str) -> bool:
-    try:
-        float(text)
-    except ValueError:
-        return False
-    return True
 
 
 def _bracket_units(name: str) -> str | None:

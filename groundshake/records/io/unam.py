@@ -15,9 +15,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ._agency import (check_units, head_lines, make_record, numbers, read_lines, units_factor,
-                      warn)
-from ._common import FormatError, check_dt
+from ._agency import check_units, make_record, numbers, units_factor, warn
+from ._common import check_dt, detector, file_stem, FormatError, head_lines, read_lines
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -28,13 +27,10 @@ _KEY = re.compile(r"^([^:]*?)\s*:\s?(.*)$")
 _FORTRAN = re.compile(r"(\d*)\s*[FEGD]\s*(\d+)\s*\.\s*(\d+)", re.I)
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True when the header says ``ARCHIVO ESTANDAR DE ACELERACION``. Never raises."""
-    try:
-        text = "\n".join(head_lines(head, 40)).upper()
-        return "ARCHIVO ESTANDAR DE ACELERACION" in text
-    except Exception:  # noqa: BLE001
-        return False
+    return "ARCHIVO ESTANDAR DE ACELERACION" in "\n".join(head_lines(head, 40)).upper()
 
 
 def _slashed(text: str) -> list[str]:
@@ -46,15 +42,11 @@ def _slashed(text: str) -> list[str]:
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
-    """Read every channel of a Mexican standard acceleration file.
+    """Read every channel of a Mexican standard acceleration file (arguments:
+    :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : Path
-    units : str, optional
-        A check against ``UNIDADES DE LOS DATOS``.
-    dt : float, optional
-        A check [s] against ``INTERVALO DE MUESTREO``.
+    ``units`` is checked against ``UNIDADES DE LOS DATOS`` (and needed where it
+    is missing); ``dt`` [s] against ``INTERVALO DE MUESTREO``.
 
     Returns
     -------
@@ -151,7 +143,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         warn(f"{path}: {table.shape[0]} data rows but NUM. TOTAL DE MUESTRAS says {need}; "
              f"the first {need} are read")
 
-    station = (find("CLAVE DE LA ESTACION") or [(path.stem, 0)])[0][0].split()[0]
+    station = (find("CLAVE DE LA ESTACION") or [(file_stem(path), 0)])[0][0].split()[0]
     meta: dict = {}
     name = find("NOMBRE DE LA ESTACION")
     if name:

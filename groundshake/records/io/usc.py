@@ -13,8 +13,9 @@ import math
 import re
 from pathlib import Path
 
-from ._agency import head_lines, make_record, numbers, read_lines, units_factor
-from ._common import FormatError, check_dt, fixed_width
+from ._agency import make_record, numbers, units_factor
+from ._common import (check_dt, detector, fixed_width, FormatError, head_lines, LENGTH_TO_M,
+                      PEAK_NAMES, read_lines)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -31,27 +32,19 @@ _PER_LINE = 8
 _WIDTH = 10
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True for a USC file: an ``ACCELEROGRAM`` title and a ``STATION USC#`` line. Never raises."""
-    try:
-        lines = head_lines(head, 30)
-        return (bool(lines) and "ACCELEROGRAM" in lines[0].upper()
-                and any(_STATION.match(ln) for ln in lines[:12]))
-    except Exception:  # noqa: BLE001
-        return False
+    lines = head_lines(head, 30)
+    return (bool(lines) and "ACCELEROGRAM" in lines[0].upper()
+            and any(_STATION.match(ln) for ln in lines[:12]))
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list:
-    """Read the acceleration of a USC file.
+    """Read the acceleration of a USC file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : Path
-        The file.
-    units : str, optional
-        A check: an error if not the units of the acceleration block.
-    dt : float, optional
-        A check [s]: an error if not the block's time step.
+    ``units`` and ``dt`` [s] are checked against the acceleration block's units
+    and time step.
 
     Returns
     -------
@@ -120,7 +113,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     body = lines[start + 1:start + 1 + n_lines]
     values = fixed_width(body, n, _WIDTH, _PER_LINE, fmt=FORMAT, path=path,
                          first_line=start + 2)
-    for key, short in (("ACCELERATION", "pga"), ("VELOCITY", "pgv"), ("DISPLACEMENT", "pgd")):
+    for word, short in PEAK_NAMES.items():
+        key = word.upper()
         if key in peaks:
             pm, line = peaks[key]
             scale = _peak_factor(pm.group(3), key, path, line)
@@ -137,4 +131,4 @@ def _peak_factor(unit: str, key: str, path: Path, line: int) -> float | None:
     if key == "ACCELERATION":
         return units_factor(unit, fmt=FORMAT, path=path, line=line)[1]
     length = unit.upper().split("/")[0].rstrip("S") if unit else ""
-    return {"CM": 0.01, "MM": 0.001, "M": 1.0, "IN": 0.0254, "FT": 0.3048}.get(length)
+    return LENGTH_TO_M.get(length.lower())

@@ -15,8 +15,9 @@ import re
 from pathlib import Path
 
 from .._record import Record
-from ._common import (check_dt, check_samples, fixed_width, FormatError,
-                      orientation_metadata, resolve_units, to_si, user_units)
+from ._common import (check_dt, check_samples, detector, file_stem, fixed_width, FormatError,
+                      head_lines, orientation_metadata, read_lines, resolve_units, si_record,
+                      user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
 
@@ -32,19 +33,17 @@ _NO_INT, _NO_REAL = -32768, 1.7e38
 _UNITS = "cm/s2"  # SMC stores acceleration in cm/s² (the format's definition)
 
 
+@detector
 def is_format(path: Path, head: bytes) -> bool:
     """True if line 1 is an SMC data kind and the integer header sits at line 12 (never raises)."""
-    try:
-        lines = head.decode("latin-1").splitlines()
-        if not lines or not _FIRST.match(lines[0]):
-            return False
-        if len(lines) <= _TEXT:  # a file cut short: its first line is enough to name it
-            return True
-        row = lines[_TEXT]
-        return len(row.rstrip()) >= 70 and all(
-            re.fullmatch(r"\s*-?\d+", row[k:k + 10]) for k in range(0, 80, 10))
-    except Exception:
+    lines = head_lines(head)
+    if not lines or not _FIRST.match(lines[0]):
         return False
+    if len(lines) <= _TEXT:  # a file cut short: its first line is enough to name it
+        return True
+    row = lines[_TEXT]
+    return len(row.rstrip()) >= 70 and all(
+        re.fullmatch(r"\s*-?\d+", row[k:k + 10]) for k in range(0, 80, 10))
 
 
 def _int(ints, k):
@@ -58,16 +57,10 @@ def _real(reals, k):
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None) -> list[Record]:
-    """Read a USGS SMC acceleration file.
+    """Read a USGS SMC acceleration file (arguments: :mod:`groundshake.records.io`).
 
-    Parameters
-    ----------
-    path : path-like
-        The file.
-    units : str, optional
-        A check: an error if not cm/s² (the format's unit).
-    dt : float, optional
-        A check: an error if it differs from 1 / (real header 2) [s].
+    ``units`` is checked against cm/s² (the format's unit), ``dt`` [s] against
+    1 / (real header 2).
 
     Returns
     -------
@@ -84,7 +77,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     """
     path = Path(path)
     where = str(path)
-    lines = path.read_text(encoding="latin-1").splitlines()
+    lines = read_lines(path, encoding="latin-1")
     m = _FIRST.match(lines[0]) if lines else None
     if not m or m.group(3).upper() != "ACCELEROGRAM":
         raise FormatError(FORMAT, path, "only acceleration files (line 1 '... ACCELEROGRAM') "
@@ -112,7 +105,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     check_samples(data, where)
 
     meta: dict = {"format": FORMAT, "data_kind": lines[0].strip()}
-    station = lines[2].strip() or path.stem
+    station = lines[2].strip() or file_stem(path)
     meta["station"] = station
     ms = _STATION.search(lines[5])
     if ms:
@@ -136,5 +129,5 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         meta["header_pga"] = value * 0.01  # cm/s² -> m/s²
         if t is not None:
             meta["header_pga_time"] = t
-    return [Record(acc=to_si(data, rec_units, where), dt=step, name=f"{station} {component}".strip(),
-                   component=component, source=where, units=rec_units, metadata=meta)]
+    return [si_record(data, units=rec_units, dt=step, station=station, component=component,
+                      source=where, label=where, metadata=meta)]

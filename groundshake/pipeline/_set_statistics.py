@@ -1,12 +1,17 @@
-"""Statistics of scalar peaks over the records of a suite."""
+"""Statistics over the record sets of a suite: every scalar peak, and the ground and floor
+spectra (log-normal)."""
 from __future__ import annotations
 
 import math
-from typing import Any, Iterable, Mapping
+import warnings
+from typing import Any, Iterable, Mapping, Sequence
 
 import numpy as np
 
-__all__ = ["flatten_scalars", "scalar_statistics", "peak_statistics"]
+from .._errors import GroundshakeWarning
+from ..spectra import spectrum_statistics
+
+__all__ = ["flatten_scalars", "scalar_statistics", "peak_statistics", "spectra_statistics"]
 
 
 def flatten_scalars(tree: Any, prefix: str = "") -> dict[str, float]:
@@ -76,3 +81,28 @@ def peak_statistics(peaks: list[Mapping[str, Any]]) -> dict[str, dict]:
                 seen.add(k)
                 keys.append(k)
     return {k: scalar_statistics([f[k] for f in flat if k in f]) for k in keys}
+
+
+def spectra_statistics(results: Sequence[Mapping]) -> dict:
+    """Log-normal statistics of ground and floor spectra over the ok records.
+
+    Returns ``periods``, ``damping``, ``points`` and, for ``ground_psa`` (3, n_d,
+    n_p), ``floor_psa`` and ``floor_psa_broadened`` (n_points, 3, n_d, n_p), a dict
+    of ``median`` (geometric mean), ``p16``, ``p84`` (exp(μ ∓ σ) of ln PSA),
+    ``mean``, ``min`` and ``max`` arrays, each of the quantity's shape [m/s²].
+    """
+    ok = [r for r in results if r.get("status") == "ok" and r.get("spectra")]
+    if not ok:
+        return {}
+    first = ok[0]["spectra"]
+    out: dict[str, Any] = {"periods": first["periods"], "damping": first["damping"],
+                           "points": first["points"], "count": len(ok)}
+    for key in ("ground_psa", "floor_psa", "floor_psa_broadened"):
+        arrays = [np.asarray(r["spectra"][key], dtype=float) for r in ok]
+        if not arrays or arrays[0].size == 0 or any(a.shape != arrays[0].shape for a in arrays):
+            continue
+        with warnings.catch_warnings():   # absent components are zero: no log-normal there
+            warnings.simplefilter("ignore", GroundshakeWarning)
+            st = spectrum_statistics(np.stack(arrays), axis=0)
+        out[key] = {k: np.asarray(v) for k, v in st.items()}
+    return out

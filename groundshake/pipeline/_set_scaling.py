@@ -28,10 +28,13 @@ from typing import Any, Literal, Mapping, Sequence
 import numpy as np
 
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
-from ._discover import RecordSet
+from ..spectra import parse_target, response_spectrum, rotd
+from ..spectra._scaling import SCALING_RULES, scale_to_target, set_statistic
+from ._motion import build_motion
+from ._sets import RecordSet, set_failure, set_scenario
 
 __all__ = ["SuiteScaling", "scale_record_sets", "set_spectrum", "SPECTRUM_OF_RULE",
-           "BAND_PERIODS", "fundamental_period"]
+           "BAND_PERIODS", "fundamental_period", "combine_by_rule"]
 
 #: what each rule compares with the target
 SPECTRUM_OF_RULE = {
@@ -74,8 +77,6 @@ class SuiteScaling:
     period: float | None = None
 
     def __post_init__(self) -> None:
-        from ..spectra._scaling import SCALING_RULES
-
         if not isinstance(self.target, str) or not self.target.strip():
             raise InputError(f"--scale-to: given {self.target!r}; allowed a target spec "
                              "(asce7:..., en1998:...) or a CSV of period [s], PSA [g]")
@@ -141,8 +142,6 @@ def set_spectrum(acc: Mapping[str, np.ndarray], dt: float, periods: np.ndarray, 
         PSA [m/s²]: RotD100 (asce7-16), SRSS (asce7-10) or the mean (en1998) of the two
         components; with one component, its own PSA.
     """
-    from ..spectra import response_spectrum, rotd
-
     comps = [np.asarray(acc[c], dtype=float) for c in ("x", "y") if c in acc]
     if not comps:
         raise InputError("scaling: the set has no horizontal component (x or y)")
@@ -160,19 +159,9 @@ def set_spectrum(acc: Mapping[str, np.ndarray], dt: float, periods: np.ndarray, 
 def _set_motion(scenario, rs: RecordSet):
     """The set's motion read and corrected as a run reads it (no matching, unscaled by
     the target factor)."""
-    from ..pipeline import build_motion
-
-    comps = {}
-    for c, f in rs.files.items():
-        comp: dict[str, Any] = {"file": f, "scale": float(rs.scale.get(c, 1.0))}
-        if rs.units:
-            comp["units"] = rs.units
-        if rs.dt:
-            comp["dt"] = float(rs.dt)
-        comps[c] = comp
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", GroundshakeWarning)
-        return build_motion(scenario.with_motion(**comps, match_target=False))
+        return build_motion(set_scenario(scenario, rs, with_factor=False, match_target=False))
 
 
 def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling, *,
@@ -215,9 +204,6 @@ def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling
     GroundshakeWarning
         A factor outside ``scaling.limits``.
     """
-    from ..spectra import parse_target
-    from ..spectra._scaling import SCALING_RULES, scale_to_target
-
     motion = getattr(scenario, "motion", None)
     if motion is not None and getattr(motion, "match_target", False):
         raise InputError("--scale-to: [motion] match_target = true would replace the scaled "
@@ -252,10 +238,7 @@ def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling
             spectra.append(set_spectrum(acc, m.dt, periods, rule=scaling.rule,
                                         damping=target.damping))
         except (GroundshakeError, OSError, ValueError) as e:
-            text = str(e).strip().splitlines()
-            failed.append({"record": rs.name, "status": "failed", "files": dict(rs.files),
-                           "error": (text[0] if text else type(e).__name__)
-                           + " (while scaling to the target)"})
+            failed.append(set_failure(rs, e, " (while scaling to the target)"))
             continue
         readable.append(rs)
     if not readable:
@@ -287,3 +270,28 @@ def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling
            "note": "Each set's factor multiplies all of its components (the vertical too); "
                    "factors are computed over the sets that could be read"}
     return scaled, failed, doc
+
+
+def combine_by_rule(stats: Mapping[str, Mapping], n_failed: int, n_sets: int) -> dict:
+    """How a scaled suite's peaks are combined, and the combined values.
+
+    Parameters
+    ----------
+    stats : mapping
+        :func:`groundshake.pipeline.peak_statistics` of the sets run (quantity → statistics).
+    n_failed, n_sets : int
+        Sets that failed, and all sets.
+
+    Returns
+    -------
+    dict
+        ``combination`` (``"mean"`` or ``"max"``), ``combination_note`` (why, with the
+        source), ``count`` (sets that ran) and ``combined`` (quantity → the mean or the
+        maximum over the sets that ran) [SI units of each quantity].
+    """
+    n_ok = n_sets - n_failed
+    how, why = set_statistic(n_ok)
+    if n_failed:
+        why += f"; {n_failed} of {n_sets} set(s) failed and are not counted"
+    combined = {k: v[how] for k, v in stats.items() if how in v}
+    return {"combination": how, "combination_note": why, "count": n_ok, "combined": combined}
