@@ -52,6 +52,32 @@ def equipment(name: str, mass: float, mount, footprint, cg_height: float,
             f"cg_height = {float(cg_height)!r}\n{extra}")
 
 
+def sensor(name: str, at) -> str:
+    """One ``[[sensors]]`` at a point [m]."""
+    return f'[[sensors]]\nname = "{name}"\nat = {_floats(at)}\n'
+
+
+def suite_head(title: str, first_set: str) -> str:
+    """The head of a suite test's scenario as a ``str.format`` template: the title, the
+    x and y records of the set ``first_set`` in the folder ``{rec}`` (m/s², dt 0.01 s),
+    processing off, then the field ``{block}`` for the block's tables."""
+    motion = "".join(f'{d} = {{{{ file = "{{rec}}/{first_set}-{d}.csv", units = "m/s2", '
+                     f"dt = 0.01 }}}}\n" for d in "xy")
+    return f'\ntitle = "{title}"\n[motion]\n{motion}[processing]\nenabled = false\n{{block}}\n'
+
+
+def one_box(title: str, material: str, properties: dict, part_name: str, size, support: dict,
+            *, mesh: dict | None = None, **sections) -> dict:
+    """A scenario as a mapping: one box ``size`` [m] at the origin of one ``material``
+    (its ``properties`` in SI), ``mesh`` (default 0.5 m incompatible-mode hexahedra),
+    ``support``, then the other ``sections`` as given."""
+    return {"title": title, "materials": {material: properties},
+            "parts": [{"name": part_name, "material": material, "origin": [0, 0, 0],
+                       "size": list(size)}],
+            "mesh": mesh or {"element_size": 0.5, "element": "hex8-incompatible"},
+            "support": support, **sections}
+
+
 def block_scenario(title: str, parts, *, element_size: float, support: str = FIXED,
                    before=(), after=(), sep: str = "\n") -> str:
     """A scenario's text: the title, ``before`` sections, the concrete, ``parts`` (texts
