@@ -13,10 +13,16 @@ the shortest of them).
 The excitation is invented (seeded filtered noise under an envelope). Timings are
 best-of-N wall times; CPU times are shown too, since a shared machine inflates wall
 time. Run: python benchmarks/spectra.py [--quick]
+
+``--against REV`` instead times the compiled loops of git revision REV against this
+tree's, alternately in one process (a 5 %-damped spectrum of 300 periods on 20,000
+steps, peaks with mixed excitation rows, histories, RotD), and says whether the results
+are the same to the bit.
 """
 from __future__ import annotations
 
 import argparse
+import importlib.util
 import os
 import subprocess
 import sys
@@ -137,11 +143,75 @@ def refinement_cost(rep):
           f"{c_new / max(c_old, 1e-9):>10.2f}x")
 
 
+def _loops_of(rev):
+    """The compiled-loop module of git revision ``rev``, imported from a temporary copy."""
+    text = subprocess.run(["git", "show", f"{rev}:groundshake/spectra/_jit.py"],
+                          cwd=os.path.dirname(HERE), capture_output=True, text=True,
+                          check=True).stdout
+    folder = tempfile.mkdtemp(prefix="gs-loops-")
+    path = os.path.join(folder, "_jit_at_rev.py")
+    with open(path, "w", encoding="utf-8") as fh:
+        fh.write(text)
+    spec = importlib.util.spec_from_file_location("_jit_at_rev", path)
+    module = importlib.util.module_from_spec(spec)
+    sys.modules[spec.name] = module          # numba's cache finds the module by name
+    spec.loader.exec_module(module)
+    return module
+
+
+def _peaks(result):
+    """Peaks and their times of a spectrum or of oscillator peaks, stacked."""
+    names = ("sd", "sv", "sa", "sd_time", "sa_time") if hasattr(result, "sd") else (
+        "disp", "vel", "abs_acc", "disp_time", "vel_time", "abs_acc_time")
+    return np.stack([np.ravel(getattr(result, n)) for n in names])
+
+
+def against(rev, rep):
+    """This tree's compiled loops against those of ``rev``: times, ratios, sameness."""
+    from groundshake.spectra import _kernel, oscillator_history
+
+    mods = {"this tree": _kernel._jit(), rev: _loops_of(rev)}
+    dt, acc, acc2 = DT, record(seed=0, n=20_000), record(seed=1, n=20_000)
+    omega, xi = 2 * np.pi / PERIODS, np.full(PERIODS.size, 0.05)
+    both = np.stack([acc, acc2])
+    src = np.tile([0, 1], PERIODS.size // 2)          # two rows inside every block
+    cases = {
+        "spectrum 5 %, 300 periods, 20,000 steps": lambda: _peaks(response_spectrum(
+            acc, dt, PERIODS, 0.05, interpolate=False)),
+        "peaks, 300 osc., mixed rows, 1 thread": lambda: _peaks(oscillator_peaks(
+            both, dt, omega, xi, source=src, threads=False)),
+        "histories, 300 osc., 1 thread": lambda: np.stack(oscillator_history(
+            acc, dt, omega, xi, threads=False)),
+        "RotD50/100 5 %, 100 periods": lambda: rotd(
+            acc, acc2, dt, PERIODS[::3], 0.05, interpolate=False).by_angle,
+    }
+    times = {(m, k): [] for m in mods for k in cases}
+    out = {}
+    for r in range(rep):
+        for name in (mods if r % 2 == 0 else list(mods)[::-1]):
+            _kernel._jit_module = mods[name]
+            for k, fn in cases.items():
+                out[name, k] = fn()                     # also loads compiled code
+                times[name, k].append(best(fn, 3)[0])
+    _kernel._jit_module = mods["this tree"]
+    print(f"compiled loops of this tree against {rev} (best of {rep} x 3, alternating)")
+    print(f"{'case':<42}{rev + ' ms':>12}{'now ms':>10}{'ratio':>8}  same bits")
+    for k in cases:
+        t_old, t_new = min(times[rev, k]), min(times["this tree", k])
+        same = np.array_equal(out[rev, k], out["this tree", k])
+        print(f"{k:<42}{1e3 * t_old:>12.2f}{1e3 * t_new:>10.2f}{t_new / t_old:>7.3f}x  {same}")
+
+
 def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--quick", action="store_true", help="fewer repeats")
+    ap.add_argument("--against", metavar="REV", help="compare the compiled loops with "
+                    "those of git revision REV, in one process")
     opts = ap.parse_args(argv)
     rep = 3 if opts.quick else 7
+    if opts.against:
+        against(opts.against, rep)
+        return
     print(f"engine: {kernel_engine()}; cores: {os.cpu_count()}; load average now: "
           f"{', '.join(f'{x:.1f}' for x in os.getloadavg())} (a shared machine inflates wall times)")
     acc = record()

@@ -21,6 +21,13 @@ HOSTILE_SENSOR = "corner </section><b>bold</b>"
 HOSTILE_STATION = "<iframe src=\"http://example.invalid\"></iframe>"
 
 
+def parsed(parser, text: str):
+    """``parser`` (an ``html.parser.HTMLParser``) after it has read all of ``text``."""
+    parser.feed(text)
+    parser.close()
+    return parser
+
+
 def _grid_lines():
     xs = np.linspace(0.0, 6.0, 13)
     ys = np.linspace(0.0, 4.0, 9)

@@ -7,8 +7,9 @@
   with the bundled demo records (INVENTED, labelled so in their headers) as its motion.
 
 Helper modules beside this file (``_oracles.py`` independent reference solutions,
-``_blocks.py`` TOML fragments, ``_strong_motion.py`` published strong-motion files,
-``_report_fixture.py`` an invented output folder) are imported by name.
+``_blocks.py`` TOML fragments, ``_tables.py`` scenario tables and the check of a slipped
+value, ``_strong_motion.py`` published strong-motion files, ``_report_fixture.py`` an
+invented output folder) are imported by name.
 """
 from __future__ import annotations
 

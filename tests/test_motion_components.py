@@ -24,31 +24,13 @@ from groundshake.records._components import components_by_orientation, pick_comp
 from groundshake.scenario import parse_scenario_text
 
 from _strong_motion import DATA
+from _tables import block_scenario, part
 
 V2 = DATA / "dmg_nc71734741_CE89146.V2"
 CWB = DATA / "cwb_us1000chhc_1-EAS.dat"
 
-BASE = """\
-title = "Station file components (invented block)"
-
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-
-[[parts]]
-name = "pad"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [2.0, 2.0, 1.0]
-
-[mesh]
-element_size = 1.0
-
-[support]
-kind = "fixed"
-
-"""
+BASE = block_scenario("Station file components (invented block)", [part("pad", (2, 2, 1))],
+                      element_size=1.0) + "\n"
 
 
 @pytest.fixture(scope="module")

@@ -15,68 +15,30 @@ Sources of the values called real or impossible here (each also beside its case)
 """
 from __future__ import annotations
 
-import re
 import warnings
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-from groundshake._errors import GroundshakeWarning, InputError, ScenarioError
+from groundshake._errors import GroundshakeWarning, InputError
 from groundshake._plausible import RANGES, judge
-from groundshake.scenario import parse_scenario_text
 
-BASE = """\
-title = "Plausibility cases (invented)"
+from _tables import (assert_slip_is_an_error, assert_unusual_value_warns, block_scenario,
+                     equipment, error_of, line_of, parse_case, part, soil)
 
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-
-[[parts]]
-name = "pad"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [6.0, 4.0, 1.0]
-
-[mesh]
-element_size = 0.5
-
-[support]
-kind = "soil"
-shear_wave_velocity = 250.0
-poisson_ratio = 0.33
-density = 1900.0
-
-[damping]
-ratio_percent = 5
-
-[[equipment]]
-name = "transformer"
-mass = 18000.0
-mount = [3.0, 2.0]
-footprint = [2.0, 1.5]
-cg_height = 1.2
-
-[floor_spectra]
-damping_percent = [2, 5]
-"""
-
-
-def _parse(text: str, tmp_path: Path):
-    return parse_scenario_text(text, source="case.toml", base_dir=tmp_path)
-
-
-def _line(text: str, marker: str) -> int:
-    """1-based line of ``marker`` (found by hand, not by the loader)."""
-    return next(i for i, line in enumerate(text.splitlines(), 1) if marker in line)
+BASE = block_scenario(
+    "Plausibility cases (invented)", [part("pad", (6, 4, 1))], element_size=0.5,
+    support=soil(),
+    after=["[damping]\nratio_percent = 5\n",
+           equipment("transformer", 18000, mount=(3, 2), footprint=(2, 1.5), cg_height=1.2),
+           "[floor_spectra]\ndamping_percent = [2, 5]\n"])
 
 
 def test_the_base_case_is_quiet(tmp_path):
     with warnings.catch_warnings():
         warnings.simplefilter("error")          # typical values: no warning at all
-        _parse(BASE, tmp_path)
+        parse_case(BASE, tmp_path)
 
 
 # (old, new, key in the message, suggestion in the message, source)
@@ -110,16 +72,7 @@ ERRORS = [
 @pytest.mark.parametrize("old,new,key,hint,source", ERRORS, ids=[c[1] for c in ERRORS])
 def test_impossible_values_are_errors_naming_key_line_and_slip(tmp_path, old, new, key, hint,
                                                                source):
-    assert old in BASE
-    text = BASE.replace(old, new, 1)
-    with pytest.raises(ScenarioError) as info:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            _parse(text, tmp_path)
-    msg = str(info.value)
-    assert msg.startswith(f"case.toml:{_line(text, new)}: {key} = ")   # file:line: key
-    assert hint in msg                                                  # the likely slip
-    assert "\n" not in msg                                              # one line
+    assert_slip_is_an_error(BASE, old, new, key, hint, tmp_path)
 
 
 # (old, new, key in the warning, source)
@@ -139,16 +92,13 @@ WARNINGS = [
 
 @pytest.mark.parametrize("old,new,key,source", WARNINGS, ids=[c[1] for c in WARNINGS])
 def test_unusual_values_warn(tmp_path, old, new, key, source):
-    text = BASE.replace(old, new, 1)
-    with pytest.warns(GroundshakeWarning, match=rf"case\.toml:{_line(text, new)}: {re.escape(key)} = "):
-        s = _parse(text, tmp_path)
-    assert any(key in note for note in s.notes)             # recorded with the run, too
+    assert_unusual_value_warns(BASE, old, new, key, tmp_path)
 
 
 def test_unusual_mass_warning_offers_tonnes(tmp_path):
     text = BASE.replace("mass = 18000.0", "mass = 18.0", 1)
     with pytest.warns(GroundshakeWarning, match="did you mean 18000 kg"):   # 18 t = 18000 kg
-        _parse(text, tmp_path)
+        parse_case(text, tmp_path)
 
 
 def test_zero_damping_is_allowed(tmp_path):
@@ -156,7 +106,7 @@ def test_zero_damping_is_allowed(tmp_path):
     text = BASE.replace("damping_percent = [2, 5]", "damping_percent = [0, 5]", 1)
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        s = _parse(text, tmp_path)
+        s = parse_case(text, tmp_path)
     assert s.floor_spectra.damping_percent == (0.0, 5.0)
 
 
@@ -262,12 +212,8 @@ def test_scenario_target_slip_names_file_and_line(tmp_path):
     # [motion] needs a component file that exists (invented test data; not read here)
     (tmp_path / "x.csv").write_text("# units: m/s2\n0,0\n0.01,0\n")
     text = text.replace("[motion]\n", '[motion]\nx = { file = "x.csv" }\n')
-    with pytest.raises(ScenarioError) as info:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            _parse(text, tmp_path)
-    msg = str(info.value)
-    assert msg.startswith(f"case.toml:{_line(text, 'target =')}: motion.target")
+    msg = error_of(text, tmp_path)
+    assert msg.startswith(f"case.toml:{line_of(text, 'target =')}: motion.target")
     assert "did you mean 1 g" in msg                     # 9.81 m/s² = 1 g (standard gravity)
 
 
@@ -276,11 +222,7 @@ def test_bolt_capacity_in_kn_typed_as_n_is_an_error(tmp_path):
     # Ch. 17 examples); 20 N is 20 kN typed as N (arithmetic: 20 × 1e3)
     line = "capacity = { tension = 20, shear = 15 }"
     text = BASE.replace("cg_height = 1.2", "cg_height = 1.2\n" + line, 1)
-    with pytest.raises(ScenarioError) as info:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            _parse(text, tmp_path)
-    msg = str(info.value)
-    assert msg.startswith(f"case.toml:{_line(text, line)}: equipment[0].capacity.tension = 20 N")
+    msg = error_of(text, tmp_path)
+    assert msg.startswith(f"case.toml:{line_of(text, line)}: equipment[0].capacity.tension = 20 N")
     assert "did you mean 20000 N (kN typed as N)" in msg
     assert "\n" not in msg

@@ -14,59 +14,27 @@ Sources of the values called real, unusual or impossible (each also beside its c
 """
 from __future__ import annotations
 
-import re
 import warnings
-from pathlib import Path
 
 import pytest
 
-from groundshake._errors import GroundshakeWarning, ScenarioError
+from groundshake._errors import GroundshakeWarning
 from groundshake._plausible import RANGES, judge
-from groundshake.scenario import parse_scenario_text
 
-BASE = """\
-title = "Foundation plausibility cases (invented)"
+from _tables import (assert_slip_is_an_error, assert_unusual_value_warns, block_scenario,
+                     parse_case, part, soil)
 
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-
-[[parts]]
-name = "pad"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [6.0, 4.0, 1.0]
-
-[mesh]
-element_size = 1.0
-
-[support]
-kind = "soil"
-shear_wave_velocity = 250.0
-poisson_ratio = 0.33
-density = 1900.0
-friction_coefficient = 0.5
-allowable_bearing_pressure = 200e3
-variation = 0.5
-embedment_depth = 1.0
-strain_compatible = { site_class = "D", shaking_g = 0.4 }
-"""
-
-
-def _parse(text: str, tmp_path: Path):
-    return parse_scenario_text(text, source="case.toml", base_dir=tmp_path)
-
-
-def _line(text: str, marker: str) -> int:
-    """1-based line of ``marker`` (found by hand, not by the loader)."""
-    return next(i for i, line in enumerate(text.splitlines(), 1) if marker in line)
+BASE = block_scenario(
+    "Foundation plausibility cases (invented)", [part("pad", (6, 4, 1))], element_size=1.0,
+    support=soil(extra="friction_coefficient = 0.5\nallowable_bearing_pressure = 200e3\n"
+                       "variation = 0.5\nembedment_depth = 1.0\n"
+                       'strain_compatible = { site_class = "D", shaking_g = 0.4 }\n'))
 
 
 def test_typical_foundation_values_are_quiet(tmp_path):
     with warnings.catch_warnings():
         warnings.simplefilter("error")   # μ 0.5, 200 kPa, Cv 0.5, 1 m, class D at 0.4 g
-        _parse(BASE, tmp_path)
+        parse_case(BASE, tmp_path)
 
 
 # (old, new, key in the message, suggestion in the message, source)
@@ -91,16 +59,7 @@ ERRORS = [
 @pytest.mark.parametrize("old,new,key,hint,source", ERRORS, ids=[c[1] for c in ERRORS])
 def test_impossible_values_are_errors_naming_key_line_and_slip(tmp_path, old, new, key, hint,
                                                                source):
-    assert old in BASE
-    text = BASE.replace(old, new, 1)
-    with pytest.raises(ScenarioError) as info:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")
-            _parse(text, tmp_path)
-    msg = str(info.value)
-    assert msg.startswith(f"case.toml:{_line(text, new)}: {key} = ")   # file:line: key
-    assert hint in msg                                                  # the likely slip
-    assert "\n" not in msg                                              # one line
+    assert_slip_is_an_error(BASE, old, new, key, hint, tmp_path)
 
 
 # (old, new, key in the warning, source)
@@ -126,11 +85,7 @@ WARNINGS = [
 
 @pytest.mark.parametrize("old,new,key,source", WARNINGS, ids=[c[1] for c in WARNINGS])
 def test_unusual_values_warn(tmp_path, old, new, key, source):
-    text = BASE.replace(old, new, 1)
-    with pytest.warns(GroundshakeWarning, match=rf"case\.toml:{_line(text, new)}: "
-                                                rf"{re.escape(key)} = "):
-        s = _parse(text, tmp_path)
-    assert any(key in note for note in s.notes)             # recorded with the run, too
+    assert_unusual_value_warns(BASE, old, new, key, tmp_path)
 
 
 def test_entered_modulus_ratio_below_the_table_warns(tmp_path):
@@ -138,10 +93,10 @@ def test_entered_modulus_ratio_below_the_table_warns(tmp_path):
                         "modulus_ratio = 0.02")
     # below 0.05, the smallest G/G0 of ASCE 7-16 Table 19.2-1 (from memory)
     with pytest.warns(GroundshakeWarning, match=r"support.modulus_ratio = 0.02 is unusually low"):
-        _parse(text, tmp_path)
+        parse_case(text, tmp_path)
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        _parse(text.replace("modulus_ratio = 0.02", "modulus_ratio = 0.5"), tmp_path)
+        parse_case(text.replace("modulus_ratio = 0.02", "modulus_ratio = 0.5"), tmp_path)
 
 
 def test_zero_cv_and_surface_base_are_quiet():

@@ -25,6 +25,8 @@ from groundshake.pipeline import analyse
 from groundshake.scenario import parse_scenario_text
 from groundshake.suite import flatten_scalars
 
+from _tables import mesh, sensor, soil
+
 PARTS = {
     "mat": '[[parts]]\nname = "mat"\nmaterial = "c"\norigin = [0, 0, 0]\nsize = [3.0, 2.0, 0.5]\n',
     "plinth": '[[parts]]\nname = "plinth"\nmaterial = "c"\norigin = [1.0, 0.5, 0.5]\n'
@@ -38,27 +40,14 @@ EQUIPMENT = {
              'footprint = [0.4, 0.4]\ncg_height = 0.8\n'
              'anchors = [[-0.15, -0.15], [0.15, 0.15]]\n',
 }
-HEAD = """title = "property test block (invented)"
-[materials.c]
-youngs_modulus = 25e9
-poisson_ratio = 0.2
-density = 2400
-[mesh]
-element_size = 0.5
-[support]
-kind = "soil"
-shear_wave_velocity = 200.0
-poisson_ratio = 0.3
-density = 1900.0
-[[sensors]]
-name = "corner"
-at = [3.0, 2.0, 0.5]
-[analysis]
+HEAD = ('title = "property test block (invented)"\n'
+        "[materials.c]\nyoungs_modulus = 25e9\npoisson_ratio = 0.2\ndensity = 2400\n"
+        + mesh(0.5) + soil(200.0, 0.3) + sensor("corner", (3, 2, 0.5)) + """[analysis]
 modes = 12
 [floor_spectra]
 damping_percent = [5]
 periods = { min = 0.05, max = 2.0, count = 10 }
-"""
+""")
 
 
 def _scenario(part_order=("mat", "plinth"), equipment_order=("pump", "panel")):

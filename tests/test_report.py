@@ -30,7 +30,7 @@ from groundshake.report._figures import exterior_faces
 from groundshake.report._html import esc, toml_text
 
 from _report_fixture import (HOSTILE_EQUIPMENT, HOSTILE_SENSOR, HOSTILE_STATION,
-                                 HOSTILE_TITLE, make_output_folder)
+                                 HOSTILE_TITLE, make_output_folder, parsed)
 
 SECTION_IDS = ["summary", "model", "modes", "response", "anchorage", "floor-spectra",
                "motion", "inputs", "provenance"]
@@ -52,10 +52,7 @@ class _Dom(HTMLParser):
 
 
 def _dom(text: str) -> _Dom:
-    d = _Dom()
-    d.feed(text)
-    d.close()
-    return d
+    return parsed(_Dom(), text)
 
 
 @pytest.fixture(scope="module")

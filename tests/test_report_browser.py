@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from _report_fixture import demo_run
+from _report_fixture import demo_run, parsed
 
 pytestmark = [pytest.mark.browser, pytest.mark.slow]
 
@@ -143,13 +143,11 @@ class _Visible(HTMLParser):
 
 
 def _visible(dom: str) -> _Visible:
-    v = _Visible()
-    v.feed(dom)
-    v.close()
-    return v
+    return parsed(_Visible(), dom)
 
 
-def _summary_keys(summary: dict) -> set[str]:
+def _keys(tree) -> set[str]:
+    """Every mapping key anywhere in ``tree`` (dicts and lists nested at any depth)."""
     out = set()
 
     def walk(d):
@@ -160,8 +158,12 @@ def _summary_keys(summary: dict) -> set[str]:
         elif isinstance(d, list):
             for v in d:
                 walk(v)
-    walk({k: v for k, v in summary.items() if k != "scenario"})
+    walk(tree)
     return out
+
+
+def _summary_keys(summary: dict) -> set[str]:
+    return _keys({k: v for k, v in summary.items() if k != "scenario"})
 
 
 def test_reader_sees_words_units_and_no_round_off(rendered, report_file):
@@ -171,17 +173,7 @@ def test_reader_sees_words_units_and_no_round_off(rendered, report_file):
     v = _visible(r.stdout)
     text = " ".join(" ".join(v.text).split())
     summary = json.loads((report_file.parent / "summary.json").read_text())
-    scenario_keys = set()
-
-    def walk(d):
-        if isinstance(d, dict):
-            for k, x in d.items():
-                scenario_keys.add(str(k))
-                walk(x)
-        elif isinstance(d, list):
-            for x in d:
-                walk(x)
-    walk(summary.get("scenario") or {})
+    scenario_keys = _keys(summary.get("scenario") or {})
     # no JSON-style keys of summary.json in what a reader sees (scenario keys may be named:
     # they are what a user types)
     snake = {k for k in _summary_keys(summary) if "_" in k} - scenario_keys

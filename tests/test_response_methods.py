@@ -20,6 +20,8 @@ from groundshake.model import build_model
 from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
+from _tables import one_box
+
 DT = 0.005
 
 
@@ -34,18 +36,17 @@ def record(seed: int, n_t: int = 600, amp: float = 2.0) -> np.ndarray:
 
 
 def soil_scenario() -> Scenario:
-    return Scenario.from_dict({
-        "title": "soil block (invented)",
-        "materials": {"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0}},
-        "parts": [{"name": "pad", "material": "c", "origin": [0, 0, 0], "size": [3.0, 2.0, 0.8]}],
-        "mesh": {"element_size": 0.5, "element": "hex8-incompatible"},
-        "support": {"kind": "soil", "shear_wave_velocity": 150.0, "poisson_ratio": 0.33,
-                    "density": 1900.0, "radiation_damping": False},
-        "damping": {"ratio_percent": 5, "rayleigh_hz": [4.0, 40.0]},
-        "sensors": [{"name": "corner", "at": [3.0, 2.0, 0.8]}],
-        "analysis": {"cutoff_hz": 80.0},
-        "floor_spectra": {"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0, "count": 10}},
-    })
+    return Scenario.from_dict(one_box(
+        "soil block (invented)",
+        "c", {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0},
+        "pad", (3.0, 2.0, 0.8),
+        {"kind": "soil", "shear_wave_velocity": 150.0, "poisson_ratio": 0.33,
+         "density": 1900.0, "radiation_damping": False},
+        damping={"ratio_percent": 5, "rayleigh_hz": [4.0, 40.0]},
+        sensors=[{"name": "corner", "at": [3.0, 2.0, 0.8]}],
+        analysis={"cutoff_hz": 80.0},
+        floor_spectra={"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0, "count": 10}},
+    ))
 
 
 def test_modal_and_direct_agree_for_rayleigh_damping_on_soil():

@@ -20,30 +20,14 @@ from groundshake.cli import main
 from groundshake.records import Record, write_record
 from groundshake.results import OUTPUT_FILES
 
-SCENARIO = """
-title = "outputs test (invented)"
-[motion]
-x = {{ file = "{rx}" }}
-y = {{ file = "{ry}" }}
-[processing]
-highpass_hz = 0.5
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-[[parts]]
-name = "pad"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [2.0, 2.0, 0.6]
-[mesh]
-element_size = 0.5
-[support]
-kind = "soil"
-shear_wave_velocity = 200.0
-poisson_ratio = 0.3
-density = 1900.0
-[[equipment]]
+from _tables import block_scenario, part, soil
+
+# a str.format template: {rx} and {ry} are the record files
+SCENARIO = "\n" + block_scenario(
+    "outputs test (invented)", [part("pad", (2, 2, 0.6))], element_size=0.5,
+    support=soil(200.0, 0.3), sep="",
+    before=['[motion]\nx = {{ file = "{rx}" }}\ny = {{ file = "{ry}" }}\n',
+            "[processing]\nhighpass_hz = 0.5\n"]) + """[[equipment]]
 name = "box"
 mass = 1500.0
 mount = [1.0, 1.0]

@@ -19,19 +19,19 @@ from groundshake.dynamics import motion_from_arrays
 from groundshake.pipeline import analyse
 from groundshake.scenario import Scenario
 
+from _tables import one_box
+
 
 def soft_soil_block(**analysis) -> Scenario:
-    return Scenario.from_dict({
-        "title": "warnings test (invented)",
-        "materials": {"soft": {"youngs_modulus": 2.0e8, "poisson_ratio": 0.25, "density": 2000.0}},
-        "parts": [{"name": "b", "material": "soft", "origin": [0, 0, 0], "size": [2.0, 2.0, 2.0]}],
-        "mesh": {"element_size": 0.5, "element": "hex8-incompatible"},
-        "support": {"kind": "soil", "shear_wave_velocity": 60.0, "poisson_ratio": 0.3,
-                    "density": 1800.0},
-        "sensors": [{"name": "top", "at": [1.0, 1.0, 2.0]}],
-        "analysis": {"cutoff_hz": 60.0, **analysis},
-        "floor_spectra": {"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0, "count": 8}},
-    })
+    return Scenario.from_dict(one_box(
+        "warnings test (invented)",
+        "soft", {"youngs_modulus": 2.0e8, "poisson_ratio": 0.25, "density": 2000.0},
+        "b", (2.0, 2.0, 2.0),
+        {"kind": "soil", "shear_wave_velocity": 60.0, "poisson_ratio": 0.3, "density": 1800.0},
+        sensors=[{"name": "top", "at": [1.0, 1.0, 2.0]}],
+        analysis={"cutoff_hz": 60.0, **analysis},
+        floor_spectra={"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0, "count": 8}},
+    ))
 
 
 @pytest.fixture(scope="module")

@@ -25,43 +25,14 @@ import pytest
 from groundshake._errors import InputError, ScenarioError
 from groundshake.scenario import load_scenario, parse_scenario_text
 
-BASE = """\
-title = "Error cases (invented)"
+from _tables import block_scenario, equipment, part
 
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-
-[[parts]]
-name = "mat"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [6.0, 4.0, 1.0]
-
-[[parts]]
-name = "plinth"
-material = "concrete"
-origin = [1.0, 1.0, 1.0]
-size = [2.0, 2.0, 1.0]
-
-[mesh]
-element_size = 0.5
-
-[support]
-kind = "fixed"
-
-[damping]
-ratio_percent = 5
-
-[[equipment]]
-name = "pump"
-mass = 2000.0
-mount = [2.0, 2.0]
-footprint = [1.0, 1.0]
-cg_height = 0.5
-anchors = [[-0.4, -0.4], [0.4, 0.4]]
-
+BASE = block_scenario(
+    "Error cases (invented)",
+    [part("mat", (6, 4, 1)), part("plinth", (2, 2, 1), origin=(1, 1, 1))], element_size=0.5,
+    after=["[damping]\nratio_percent = 5\n",
+           equipment("pump", 2000, mount=(2, 2), footprint=(1, 1), cg_height=0.5,
+                     extra="anchors = [[-0.4, -0.4], [0.4, 0.4]]\n")]) + """
 [[sensors]]
 name = "top"
 at = [2.0, 2.0, 2.0]

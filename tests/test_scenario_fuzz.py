@@ -25,60 +25,23 @@ from hypothesis import strategies as st
 from groundshake._errors import ScenarioError
 from groundshake.scenario import Scenario, parse_scenario_text
 
+from _tables import block_scenario, equipment, part, soil
+
 # A valid scenario touching every section (invented numbers, for fuzzing only).
-BASE_TEXT = """\
-title = "Fuzz base (invented)"
-
-[motion]
-x = { file = "h1.mseed", units = "g", scale = 1.0 }
-y = { file = "h2.mseed", dt = 0.01, trace = 0 }
-target = "asce7:sds=1.0,sd1=0.6,tl=8"
-
-[processing]
-highpass_hz = 0.1
-lowpass_hz = 25.0
-
-[materials.concrete]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-
-[[parts]]
-name = "mat"
-material = "concrete"
-origin = [0.0, 0.0, 0.0]
-size = [6.0, 4.0, 1.0]
-
-[[parts]]
-name = "plinth"
-material = "concrete"
-origin = [1.0, 1.0, 1.0]
-size = [2.0, 2.0, 1.0]
-
-[mesh]
-element_size = 0.5
-
-[support]
-kind = "soil"
-shear_wave_velocity = 250.0
-poisson_ratio = 0.33
-density = 1900.0
-
-[damping]
-ratio_percent = 5
-rayleigh_hz = [2.0, 20.0]
-
-[[equipment]]
-name = "pump"
-mass = 2000.0
-mount = [2.0, 2.0]
-footprint = [1.0, 1.0]
-cg_height = 0.5
-frequency_hz = [9.0, 9.0, 20.0]
-anchors = [[-0.4, -0.4], [0.4, 0.4]]
-capacity = { tension = 8e4, shear = 5e4 }
-fp = { sds = 1.0, ap = 2.5, rp = 2.0 }
-
+BASE_TEXT = block_scenario(
+    "Fuzz base (invented)",
+    [part("mat", (6, 4, 1)), part("plinth", (2, 2, 1), origin=(1, 1, 1))], element_size=0.5,
+    support=soil(),
+    before=['[motion]\nx = { file = "h1.mseed", units = "g", scale = 1.0 }\n'
+            'y = { file = "h2.mseed", dt = 0.01, trace = 0 }\n'
+            'target = "asce7:sds=1.0,sd1=0.6,tl=8"\n',
+            "[processing]\nhighpass_hz = 0.1\nlowpass_hz = 25.0\n"],
+    after=["[damping]\nratio_percent = 5\nrayleigh_hz = [2.0, 20.0]\n",
+           equipment("pump", 2000, mount=(2, 2), footprint=(1, 1), cg_height=0.5,
+                     extra="frequency_hz = [9.0, 9.0, 20.0]\n"
+                           "anchors = [[-0.4, -0.4], [0.4, 0.4]]\n"
+                           "capacity = { tension = 8e4, shear = 5e4 }\n"
+                           "fp = { sds = 1.0, ap = 2.5, rp = 2.0 }\n")]) + """
 [[sensors]]
 name = "top"
 at = [2.0, 2.0, 2.0]

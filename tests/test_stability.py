@@ -10,6 +10,8 @@ import pytest
 from groundshake.results._stability import (EDGES, no_tension_pressure,
                                             stability_histories)
 
+from _tables import one_box
+
 G = 9.80665
 
 
@@ -189,18 +191,17 @@ def test_run_bolt_interaction_between_its_bounds():
     from groundshake.dynamics import motion_from_arrays
     from groundshake.pipeline import analyse
     from groundshake.scenario import Scenario
-    scen = Scenario.from_dict({
-        "title": "bolt interaction test (invented)",
-        "materials": {"c": {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0}},
-        "parts": [{"name": "b", "material": "c", "origin": [0, 0, 0], "size": [2.0, 2.0, 1.0]}],
-        "mesh": {"element_size": 0.5}, "support": {"kind": "fixed"},
-        "equipment": [{"name": "cab", "mass": 3000.0, "mount": [1.0, 1.0], "footprint": [1.0, 1.0],
-                       "cg_height": 1.0, "anchors": [[-0.4, -0.4], [0.4, -0.4], [0.4, 0.4],
-                                                     [-0.4, 0.4]],
-                       "capacity": {"tension": 5e3, "shear": 4e3}}],
-        "analysis": {"cutoff_hz": 100.0},
-        "floor_spectra": {"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0,
-                                                              "count": 8}}})
+    scen = Scenario.from_dict(one_box(
+        "bolt interaction test (invented)",
+        "c", {"youngs_modulus": 30e9, "poisson_ratio": 0.2, "density": 2400.0},
+        "b", (2.0, 2.0, 1.0), {"kind": "fixed"}, mesh={"element_size": 0.5},
+        equipment=[{"name": "cab", "mass": 3000.0, "mount": [1.0, 1.0], "footprint": [1.0, 1.0],
+                    "cg_height": 1.0, "anchors": [[-0.4, -0.4], [0.4, -0.4], [0.4, 0.4],
+                                                  [-0.4, 0.4]],
+                    "capacity": {"tension": 5e3, "shear": 4e3}}],
+        analysis={"cutoff_hz": 100.0},
+        floor_spectra={"damping_percent": [5], "periods": {"min": 0.05, "max": 1.0,
+                                                           "count": 8}}))
     dt = 0.01
     t = np.arange(300) * dt
     a = 4.0 * np.sin(2 * np.pi * 1.5 * t) * np.sin(np.pi * t / t[-1]) ** 2     # invented

@@ -16,20 +16,13 @@ import numpy as np
 import pytest
 
 from _blocks import concrete_block
+from _tables import suite_head
 from groundshake.cli import main
 from groundshake.scenario import load_scenario
 from groundshake.suite import discover_record_sets, flatten_scalars
 from groundshake.suite._run import prepare_suite, run_suite
 
-SCENARIO = """
-title = "suite test block (invented)"
-[motion]
-x = {{ file = "{rec}/a-x.csv", units = "m/s2", dt = 0.01 }}
-y = {{ file = "{rec}/a-y.csv", units = "m/s2", dt = 0.01 }}
-[processing]
-enabled = false
-{block}
-[[equipment]]
+SCENARIO = suite_head("suite test block (invented)", "a") + """[[equipment]]
 name = "box"
 mass = 1000.0
 mount = [1.0, 1.0]

@@ -23,11 +23,11 @@ from _blocks import concrete_block
 from groundshake._errors import GroundshakeWarning
 from groundshake.cli import main
 from groundshake.scenario import load_scenario
-from groundshake.suite import discover_record_sets, flatten_scalars
+from groundshake.suite import discover_record_sets
 from groundshake.suite import _engine
 from groundshake.suite._engine import EngineReport, SuiteStalled, run_tasks
 from groundshake.suite._run import default_set_timeout, prepare_suite, run_record_set, run_suite
-from test_suite import SCENARIO, _write_record
+from test_suite import SCENARIO, _assert_same, _numbers, _write_record
 
 
 @pytest.fixture(scope="module")
@@ -59,18 +59,6 @@ def long_sets(case):
         _write_record(rec / f"l{k}-x.csv", 1.0, 2.0 + 0.1 * k, n=n, seed=k)
         _write_record(rec / f"l{k}-y.csv", 0.5, 3.0, n=n, seed=30 + k)
     return discover_record_sets(str(rec), units="m/s2", dt=0.01)
-
-
-def _numbers(records):
-    return {r["record"]: flatten_scalars(r["peaks"]) for r in records}
-
-
-def _assert_same(a, b, rtol=1e-12):
-    assert a.keys() == b.keys()
-    for name in a:
-        assert a[name].keys() == b[name].keys()
-        for k, v in a[name].items():
-            assert b[name][k] == pytest.approx(v, rel=rtol, abs=1e-300), (name, k)
 
 
 def _all_ok(res, n):
@@ -182,27 +170,39 @@ def test_benchmark_sequence_twice_on_one_cluster(case, tmp_path):
             assert left == []
 
 
-def test_lost_dask_worker_costs_time_not_results(case, long_sets, tmp_path):
+def _suite_losing_a_worker(case, sets, out, n_workers, victim):
+    """``run_suite`` on a local Dask cluster of ``n_workers`` one-thread processes, where
+    the worker whose process id ``victim(client)`` names (None: not yet) is killed once,
+    as results arrive. Returns the suite's result, the records in the order they arrived
+    and the process ids killed."""
     distributed = pytest.importorskip("distributed")
-    root, rec, scen, scenario, shared, sets = case
-    seen = []
-    killed = []
+    _, _, _, scenario, shared, _ = case
+    seen, killed = [], []
 
-    def kill_a_busy_worker(r):
+    def kill_once(r):
         seen.append(r["record"])
-        if killed:
-            return
-        busy = [w for w, keys in client.processing().items() if keys]
-        pids = client.run(os.getpid)
-        if busy:
-            os.kill(pids[busy[0]], signal.SIGKILL)
-            killed.append(busy[0])
+        if not killed:
+            pid = victim(client)
+            if pid is not None:
+                os.kill(pid, signal.SIGKILL)
+                killed.append(pid)
 
-    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+    with distributed.LocalCluster(n_workers=n_workers, threads_per_worker=1, processes=True,
                                   dashboard_address=None) as cluster:
         with distributed.Client(cluster) as client:
-            res = run_suite(scenario, long_sets, tmp_path / "out", shared=shared,
-                            scheduler=client, on_result=kill_a_busy_worker)
+            res = run_suite(scenario, sets, out, shared=shared, scheduler=client,
+                            on_result=kill_once)
+    return res, seen, killed
+
+
+def test_lost_dask_worker_costs_time_not_results(case, long_sets, tmp_path):
+    def a_busy_worker(client):
+        busy = [w for w, keys in client.processing().items() if keys]
+        pids = client.run(os.getpid)
+        return pids[busy[0]] if busy else None
+
+    res, seen, killed = _suite_losing_a_worker(case, long_sets, tmp_path / "out", 2,
+                                               a_busy_worker)
     assert killed                                           # the test did what it says
     _all_ok(res, len(long_sets))                            # contract: no set lost
     assert sorted(seen) == sorted(rs.name for rs in long_sets)   # each written exactly once
@@ -346,23 +346,12 @@ def test_default_limit_formula_and_option(case, tmp_path):
 def test_dask_cluster_that_loses_the_shared_model_scatters_it_again(case, long_sets, tmp_path):
     # one worker: killing it loses the only copy of the shared model (the scheduler
     # forgets scattered data it cannot recompute); the suite scatters it again
-    distributed = pytest.importorskip("distributed")
-    root, rec, scen, scenario, shared, sets = case
-    seen = []
-    killed = []
+    def the_worker(client):
+        (pid,) = client.run(os.getpid).values()
+        return pid
 
-    def kill_the_worker(r):
-        seen.append(r["record"])
-        if not killed:
-            (pid,) = client.run(os.getpid).values()
-            os.kill(pid, signal.SIGKILL)
-            killed.append(pid)
-
-    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
-                                  dashboard_address=None) as cluster:
-        with distributed.Client(cluster) as client:
-            res = run_suite(scenario, long_sets[:3], tmp_path / "out", shared=shared,
-                            scheduler=client, on_result=kill_the_worker)
+    res, seen, killed = _suite_losing_a_worker(case, long_sets[:3], tmp_path / "out", 1,
+                                               the_worker)
     _all_ok(res, 3)                                                   # contract: no set lost
     assert sorted(seen) == sorted(rs.name for rs in long_sets[:3])   # each exactly once
     assert res.engine.retries >= 1

@@ -22,6 +22,7 @@ import numpy as np
 import pytest
 
 from _blocks import concrete_block
+from _tables import suite_head
 from groundshake._errors import GroundshakeWarning, InputError, ScenarioError
 from groundshake.cli import main
 from groundshake.scenario import parse_scenario_text
@@ -37,15 +38,7 @@ DT = 0.01
 PERIOD = 0.25          # the fundamental period given for the band [s]
 MULTIPLES = {"p": 2.0, "q": 0.5}   # each set is this multiple of one invented record
 
-SCENARIO = """
-title = "scaling test block (invented)"
-[motion]
-x = {{ file = "{rec}/p-x.csv", units = "m/s2", dt = 0.01 }}
-y = {{ file = "{rec}/p-y.csv", units = "m/s2", dt = 0.01 }}
-[processing]
-enabled = false
-{block}
-[analysis]
+SCENARIO = suite_head("scaling test block (invented)", "p") + """[analysis]
 modes = 4
 [floor_spectra]
 damping_percent = [5]

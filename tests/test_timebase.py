@@ -119,16 +119,21 @@ def test_written_records_keep_the_as_read_axis(tmp_path):
         assert intensity_measures(back)["pga_time"] == pytest.approx(t_pga, abs=DT * 1.001)
 
 
-def test_sac_with_a_clock_keeps_it_at_the_as_read_origin(tmp_path):
-    from obspy import UTCDateTime
+def _corrected_sac(clock: str, folder: Path):
+    """H1 with its first sample at ``clock``, corrected and written as ``c.sac`` in
+    ``folder``: (the pad before the record [s], the file's trace as ObsPy reads it)."""
     from obspy import read as obspy_read
 
+    cor = correct_record(read_record(H1)[0].replace(start_time=clock))
+    write_record(cor, folder / "c.sac")
+    return cor.metadata["pad_before_s"], obspy_read(str(folder / "c.sac"))[0]
+
+
+def test_sac_with_a_clock_keeps_it_at_the_as_read_origin(tmp_path):
+    from obspy import UTCDateTime
+
     clock = "2020-01-02T03:04:05"
-    rec = read_record(H1)[0].replace(start_time=clock)
-    cor = correct_record(rec)
-    pad = cor.metadata["pad_before_s"]
-    write_record(cor, tmp_path / "c.sac")
-    tr = obspy_read(str(tmp_path / "c.sac"))[0]
+    pad, tr = _corrected_sac(clock, tmp_path)
     # ObsPy: first sample = clock − pad; SAC reference time = the clock (b = −pad)
     assert float(tr.stats.starttime - UTCDateTime(clock)) == pytest.approx(-pad, abs=1e-3)
     ref = tr.stats.starttime - tr.stats.sac.b
@@ -241,15 +246,10 @@ def test_sac_with_a_sub_second_clock_keeps_the_as_read_axis(tmp_path, clock):
     # DATE_TIME_FIRST_SAMPLE 16:09:19.870); SAC's reference time holds whole
     # milliseconds (SAC format: nzmsec), so the rest must not move the samples
     from obspy import UTCDateTime
-    from obspy import read as obspy_read
 
     t_file, acc = _file_columns(H1)
     t_pga = t_file[np.argmax(np.abs(acc))]                 # the file's own time column
-    rec = read_record(H1)[0].replace(start_time=clock)
-    cor = correct_record(rec)
-    pad = cor.metadata["pad_before_s"]
-    write_record(cor, tmp_path / "c.sac")
-    tr = obspy_read(str(tmp_path / "c.sac"))[0]
+    pad, tr = _corrected_sac(clock, tmp_path)
     # ObsPy (an independent reader): the first sample at clock − pad, to its 1 µs
     assert float(tr.stats.starttime - UTCDateTime(clock)) == pytest.approx(-pad, abs=2e-6)
     # SAC format: reference time = starttime − b, at the clock to SAC's 1 ms (b is a

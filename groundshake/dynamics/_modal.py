@@ -139,6 +139,28 @@ def _dense(a) -> np.ndarray:
     return np.asarray(a.toarray() if sp.issparse(a) else a, dtype=float)
 
 
+def _modal_inputs(omega, participation, ground):
+    """Float arrays ω (m,), Γ (m, 3) and a_g (3, n_t) of either modal method."""
+    return (np.asarray(omega, dtype=float),
+            np.asarray(participation, dtype=float).reshape(-1, 3),
+            np.atleast_2d(np.asarray(ground, dtype=float)))
+
+
+def _missing_mass_note(residual) -> str:
+    return ("Missing mass of the modes left out added as a static residual (its relative "
+            "velocity and acceleration neglected)." if residual is not None else
+            "No missing-mass correction.")
+
+
+def _modal_result(assumptions: list[str], shapes, omega, damping, gam, ag, dt, q, qd, qdd,
+                  residual) -> ModalResponse:
+    """The :class:`ModalResponse` of either modal method, time and dt filled in."""
+    return ModalResponse(time=np.arange(ag.shape[1]) * dt, dt=float(dt), ground=ag,
+                         shapes=np.asarray(shapes), omega=omega, damping=damping,
+                         participation=gam, q=q, qdot=qd, qddot=qdd,
+                         residual=residual, assumptions=assumptions)
+
+
 def modal_response(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
                    participation: np.ndarray, ground: np.ndarray, dt: float, *,
                    residual: np.ndarray | None = None) -> ModalResponse:
@@ -167,9 +189,7 @@ def modal_response(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
     """
     from ..spectra import oscillator_history
 
-    ag = np.atleast_2d(np.asarray(ground, dtype=float))
-    gam = np.asarray(participation, dtype=float).reshape(-1, 3)
-    omega = np.asarray(omega, dtype=float)
+    omega, gam, ag = _modal_inputs(omega, participation, ground)
     damping = np.broadcast_to(np.asarray(damping, dtype=float), omega.shape).copy()
     m = omega.size
     n_t = ag.shape[1]
@@ -181,17 +201,11 @@ def modal_response(shapes: np.ndarray, omega: np.ndarray, damping: np.ndarray,
         qdd = np.asarray(qa_abs).reshape(m, n_t) - exc
     else:
         q = qd = qdd = np.zeros((0, n_t))
-    assumptions = [
-        f"Modal superposition of {m} mode(s), each integrated exactly for ground acceleration "
-        "linear between samples; classical (modal) damping, off-diagonal modal damping neglected.",
-        ("Missing mass of the modes left out added as a static residual (its relative velocity "
-         "and acceleration neglected)." if residual is not None else
-         "No missing-mass correction."),
-    ]
-    return ModalResponse(time=np.arange(n_t) * dt, dt=float(dt), ground=ag,
-                         shapes=np.asarray(shapes), omega=omega, damping=damping,
-                         participation=gam, q=q, qdot=qd, qddot=qdd,
-                         residual=residual, assumptions=assumptions)
+    how = (f"Modal superposition of {m} mode(s), each integrated exactly for ground "
+           "acceleration linear between samples; classical (modal) damping, off-diagonal "
+           "modal damping neglected.")
+    return _modal_result([how, _missing_mass_note(residual)], shapes, omega, damping, gam, ag,
+                         dt, q, qd, qdd, residual)
 
 
 def _linear_recursion(Ad: np.ndarray, F: np.ndarray) -> np.ndarray:
@@ -238,20 +252,12 @@ def coupled_modal_response(shapes: np.ndarray, omega: np.ndarray,
 
     Parameters
     ----------
-    shapes : ndarray (n, m)
-        Mass-normalised mode shapes.
-    omega : ndarray (m,)
-        Circular frequencies [rad/s].
     damping_matrix : ndarray (m, m)
         Modal damping Φᵀ C Φ [1/s] (symmetric, positive semi-definite).
-    participation : ndarray (m, 3)
-        Γ = Φᵀ L.
-    ground : ndarray (3, n_t)
-        Ground acceleration [m/s²], linear between samples.
-    dt : float
-        Step [s].
-    residual : ndarray (n, 3), optional
-        Missing-mass shapes from :func:`residual_vectors`.
+    shapes, omega, participation, ground, dt, residual
+        As for :func:`modal_response`: mode shapes (n, m), circular frequencies (m,)
+        [rad/s], Γ = Φᵀ L (m, 3), ground acceleration (3, n_t) [m/s²] linear between
+        samples, step [s], missing-mass shapes (n, 3) or None.
 
     Returns
     -------
@@ -269,18 +275,14 @@ def coupled_modal_response(shapes: np.ndarray, omega: np.ndarray,
     """
     import scipy.linalg as sla
 
-    ag = np.atleast_2d(np.asarray(ground, dtype=float))
-    gam = np.asarray(participation, dtype=float).reshape(-1, 3)
-    omega = np.asarray(omega, dtype=float)
+    omega, gam, ag = _modal_inputs(omega, participation, ground)
     Cm = np.asarray(damping_matrix, dtype=float)
     m = omega.size
     n_t = ag.shape[1]
     if m == 0:
         z = np.zeros((0, n_t))
-        return ModalResponse(time=np.arange(n_t) * dt, dt=float(dt), ground=ag,
-                             shapes=np.asarray(shapes), omega=omega, damping=np.zeros(0),
-                             participation=gam, q=z, qdot=z, qddot=z, residual=residual,
-                             assumptions=["No mode kept."])
+        return _modal_result(["No mode kept."], shapes, omega, np.zeros(0), gam, ag, dt,
+                             z, z, z, residual)
     A = np.zeros((2 * m, 2 * m))
     A[:m, m:] = np.eye(m)
     A[m:, :m] = -np.diag(omega ** 2)
@@ -300,18 +302,11 @@ def coupled_modal_response(shapes: np.ndarray, omega: np.ndarray,
     qdd = -(Cm @ qd) - (omega ** 2)[:, None] * q - gam @ ag
     with np.errstate(divide="ignore", invalid="ignore"):
         zeta = np.where(omega > 0, np.diag(Cm) / (2 * omega), 0.0)
-    assumptions = [
-        f"Modal superposition of {m} mode(s) with the full modal damping matrix ΦᵀCΦ (modes "
-        "coupled by the discrete dashpots of soil radiation and equipment supports), stepped "
-        "exactly for ground acceleration linear between samples.",
-        ("Missing mass of the modes left out added as a static residual (its relative velocity "
-         "and acceleration neglected)." if residual is not None else
-         "No missing-mass correction."),
-    ]
-    return ModalResponse(time=np.arange(n_t) * dt, dt=float(dt), ground=ag,
-                         shapes=np.asarray(shapes), omega=omega, damping=zeta,
-                         participation=gam, q=q, qdot=qd, qddot=qdd,
-                         residual=residual, assumptions=assumptions)
+    how = (f"Modal superposition of {m} mode(s) with the full modal damping matrix ΦᵀCΦ "
+           "(modes coupled by the discrete dashpots of soil radiation and equipment supports), "
+           "stepped exactly for ground acceleration linear between samples.")
+    return _modal_result([how, _missing_mass_note(residual)], shapes, omega, zeta, gam, ag,
+                         dt, q, qd, qdd, residual)
 
 
 def pruned_peak(A: np.ndarray, Z: np.ndarray, *, rows_per_chunk: int | None = None

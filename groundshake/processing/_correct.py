@@ -69,7 +69,7 @@ def remove_velocity_baseline(acc, dt: float, order: int) -> tuple[np.ndarray, np
     Parameters
     ----------
     acc : array_like, shape (n,)
-        Acceleration [m/s²].
+        Acceleration [m/s²], one sample every ``dt``.
     dt : float
         Time step [s].
     order : int

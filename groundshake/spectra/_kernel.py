@@ -128,14 +128,20 @@ def kernel_engine(engine: Engine = "auto") -> Literal["numba", "numpy"]:
     return "numpy"
 
 
-def _prepare(acc, dt, omega, damping, source):
-    """Validate and normalise the kernel inputs -> (acc2d, src, coef, dt)."""
+def check_step(dt) -> float:
+    """The time step dt [s] as a float; InputError unless a finite number > 0."""
     try:
         dt = float(dt)
     except (TypeError, ValueError):
         raise InputError(f"dt={dt!r} must be a number of seconds > 0") from None
     if not (np.isfinite(dt) and dt > 0):
         raise InputError(f"dt={dt!r} must be a finite number of seconds > 0")
+    return dt
+
+
+def _prepare(acc, dt, omega, damping, source):
+    """Validate and normalise the kernel inputs -> (acc2d, src, coef, dt)."""
+    dt = check_step(dt)
     omega = np.atleast_1d(np.asarray(omega, dtype=float))
     xi = np.atleast_1d(np.asarray(damping, dtype=float))
     if omega.ndim != 1:

@@ -1,14 +1,14 @@
 """Orientation-independent spectra of two horizontal components: RotDnn and GMRotD50."""
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from .._errors import InputError
 from ._coefficients import step_coefficients
-from ._kernel import Engine, _jit, kernel_engine, oscillator_history, run_blocks
+from ._kernel import (Engine, _jit, check_step, kernel_engine, oscillator_history,
+                      run_blocks)
 from ._spectrum import (MAX_REFINEMENT, check_damping, check_periods, default_periods,
                         fourier_upsample, interpolation_groups)
 
@@ -174,12 +174,7 @@ def rotd(acc1: np.ndarray, acc2: np.ndarray, dt: float, periods=None, damping=0.
                          f"{a1.shape} and {a2.shape} (resample or trim them first)")
     if a1.size < 1 or not (np.all(np.isfinite(a1)) and np.all(np.isfinite(a2))):
         raise InputError("the components must hold finite samples")
-    try:
-        dt = float(dt)
-    except (TypeError, ValueError):
-        raise InputError(f"dt={dt!r} must be a number of seconds > 0") from None
-    if not (math.isfinite(dt) and dt > 0):
-        raise InputError(f"dt={dt!r} must be a finite number of seconds > 0")
+    dt = check_step(dt)
     n_d, n_p = z.size, p.size
     by_angle = np.zeros((n_d, n_p, ANGLES.size))
     use_numba = kernel_engine(engine) == "numba"

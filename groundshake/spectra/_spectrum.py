@@ -1,7 +1,6 @@
 """Response spectra of one or many records: ``response_spectrum`` and ``Spectrum``."""
 from __future__ import annotations
 
-import math
 import warnings
 from dataclasses import dataclass, field
 from typing import Any
@@ -10,7 +9,7 @@ import numpy as np
 from scipy import fft as sfft
 
 from .._errors import GroundshakeWarning, InputError
-from ._kernel import Engine, oscillator_peaks
+from ._kernel import Engine, check_step, oscillator_peaks
 
 __all__ = ["Spectrum", "response_spectrum", "default_periods", "fourier_upsample",
            "check_periods", "check_damping", "interpolation_groups", "refinement_factors",
@@ -42,16 +41,23 @@ def default_periods() -> np.ndarray:
     return np.geomspace(0.01, 10.0, 100)
 
 
+def _float_list(values, name: str, what: str, one: str, *, param: str) -> np.ndarray:
+    """``values`` as a non-empty 1-D float array; InputError about ``param``, located at
+    ``name``, otherwise (``what``: the list's items, ``one``: one item, for the message)."""
+    try:
+        a = np.atleast_1d(np.asarray(values, dtype=float))
+    except (TypeError, ValueError):
+        raise InputError(f"given {values!r}; allowed a list of {what}", param=param,
+                         value=values, where=name) from None
+    if a.ndim != 1 or a.size == 0:
+        raise InputError(f"give a 1-D list of at least one {one}, got shape {a.shape}",
+                         param=param, where=name)
+    return a
+
+
 def check_periods(periods, *, name: str = "periods") -> np.ndarray:
     """Periods as a 1-D float array; InputError unless all finite and > 0."""
-    try:
-        p = np.atleast_1d(np.asarray(periods, dtype=float))
-    except (TypeError, ValueError):
-        raise InputError(f"given {periods!r}; allowed a list of numbers of seconds",
-                         param="periods", value=periods, where=name) from None
-    if p.ndim != 1 or p.size == 0:
-        raise InputError(f"give a 1-D list of at least one period, got shape {p.shape}",
-                         param="periods", where=name)
+    p = _float_list(periods, name, "numbers of seconds", "period", param="periods")
     bad = ~(np.isfinite(p) & (p > 0))
     if bad.any():
         raise InputError(f"{p[bad][0]:g} s is not allowed; periods must be finite and > 0 s "
@@ -62,14 +68,7 @@ def check_periods(periods, *, name: str = "periods") -> np.ndarray:
 
 def check_damping(damping, *, name: str = "damping") -> np.ndarray:
     """Damping ratios as a 1-D float array; InputError unless all in [0, 1)."""
-    try:
-        z = np.atleast_1d(np.asarray(damping, dtype=float))
-    except (TypeError, ValueError):
-        raise InputError(f"given {damping!r}; allowed a list of damping ratios",
-                         param="damping", value=damping, where=name) from None
-    if z.ndim != 1 or z.size == 0:
-        raise InputError(f"give a 1-D list of at least one ratio, got shape {z.shape}",
-                         param="damping", where=name)
+    z = _float_list(damping, name, "damping ratios", "ratio", param="damping")
     bad = ~(np.isfinite(z) & (z >= 0) & (z < 1))
     if bad.any():
         raise InputError(f"ratio {z[bad][0]:g} is outside [0, 1) (the Python API takes "
@@ -321,12 +320,7 @@ def response_spectrum(acc: np.ndarray, dt: float, periods=None, damping=0.05, *,
     """
     p = default_periods() if periods is None else check_periods(periods)
     z = check_damping(damping)
-    try:
-        dt = float(dt)
-    except (TypeError, ValueError):
-        raise InputError(f"dt={dt!r} must be a number of seconds > 0") from None
-    if not (math.isfinite(dt) and dt > 0):
-        raise InputError(f"dt={dt!r} must be a finite number of seconds > 0")
+    dt = check_step(dt)
     a = np.asarray(acc, dtype=float)
     if a.ndim == 0 or a.shape[-1] < 1:
         raise InputError(f"acc must have at least one sample on its last axis, got shape {a.shape}")
