@@ -19,31 +19,14 @@ from pathlib import Path
 
 import pytest
 
+from _tables import block_scenario, part, sensor
+
 ROOT = Path(__file__).resolve().parents[1]
 
-SCENARIO = """
-title = "interrupt test (invented)"
-[motion]
-x = {{ file = "{rec}", units = "m/s2" }}
-[materials.c]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-[[parts]]
-name = "block"
-material = "c"
-origin = [0, 0, 0]
-size = [3.0, 3.0, 1.0]
-[mesh]
-element_size = 0.12
-[support]
-kind = "fixed"
-[[sensors]]
-name = "top"
-at = [3.0, 3.0, 1.0]
-[analysis]
-modes = 30
-"""
+SCENARIO = block_scenario(
+    "interrupt test (invented)", [part("block", (3.0, 3.0, 1.0))], element_size=0.12,
+    before=['[motion]\nx = {{ file = "{rec}", units = "m/s2" }}\n'],
+    after=[sensor("top", (3.0, 3.0, 1.0)), "[analysis]\nmodes = 30\n"])
 
 
 def _cpu_seconds(pid: int) -> float:

@@ -24,7 +24,7 @@ PACKAGE = Path(__file__).resolve().parents[1] / "groundshake"
 # Modules at the package root that every stage may use (no groundshake imports of their own
 # beyond each other).
 BASE = {"_errors", "_atomic", "_cautions", "_constants", "_progress", "_plausible", "_jit_cache",
-        "_json", "_grid", "__init__"}
+        "_json", "_grid", "_toml", "__init__"}
 
 # Stage -> the stages it may import (besides itself and BASE).
 ALLOWED: dict[str, set[str]] = {

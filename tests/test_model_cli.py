@@ -11,36 +11,17 @@ from pathlib import Path
 
 import numpy as np
 
+from _tables import block_scenario, equipment, part, sensor
+
 from groundshake.cli import main
 
 EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "transformer-pad.toml"
 
-SMALL = """
-title = "small pad (invented)"
-[materials.c]
-youngs_modulus = 30e9
-poisson_ratio = 0.2
-density = 2400
-[[parts]]
-name = "pad"
-material = "c"
-origin = [0.0, 0.0, 0.0]
-size = [3.0, 2.0, 1.0]
-[mesh]
-element_size = 0.5
-[[equipment]]
-name = "box"
-mass = 1000.0
-mount = [1.5, 1.0]
-footprint = [1.0, 1.0]
-cg_height = 0.5
-anchors = [[-0.4, -0.4], [0.4, 0.4]]
-[[sensors]]
-name = "corner"
-at = [3.0, 2.0, 1.0]
-[analysis]
-modes = 5
-"""
+SMALL = block_scenario(
+    "small pad (invented)", [part("pad", (3.0, 2.0, 1.0))], element_size=0.5,
+    after=[equipment("box", 1000.0, (1.5, 1.0), (1.0, 1.0), 0.5,
+                     extra="anchors = [[-0.4, -0.4], [0.4, 0.4]]\n"),
+           sensor("corner", (3.0, 2.0, 1.0)), "[analysis]\nmodes = 5\n"])
 
 
 def test_modes_json_contract(tmp_path, capsys):

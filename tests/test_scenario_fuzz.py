@@ -11,9 +11,7 @@ strategies for ≥ 10,000 inputs and prints the count of inputs and of uncaught 
 from __future__ import annotations
 
 import copy
-import datetime as dt
 import json
-import math
 import tomllib
 import warnings
 from pathlib import Path
@@ -23,6 +21,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from groundshake._errors import ScenarioError
+from groundshake._toml import toml_key, toml_value
 from groundshake.scenario import Scenario, parse_scenario_text
 
 from _tables import block_scenario, equipment, part, soil
@@ -145,39 +144,10 @@ random_trees = st.dictionaries(keys, values, max_size=6)
 
 
 def to_toml(tree: dict) -> str:
-    """A TOML document for ``tree``: one ``key = value`` line per top-level key."""
-    return "".join(f"{_key(k)} = {_value(v)}\n" for k, v in tree.items())
-
-
-def _key(k: str) -> str:
-    return _string(str(k))
-
-
-def _string(s: str) -> str:
-    # JSON escapes are valid TOML basic-string escapes; TOML also forbids a raw DEL.
-    return json.dumps(s).replace("\x7f", "\\u007f")
-
-
-def _value(v) -> str:
-    if isinstance(v, bool):
-        return "true" if v else "false"
-    if isinstance(v, int):
-        return str(v)
-    if isinstance(v, float):
-        if math.isnan(v):
-            return "nan"
-        if math.isinf(v):
-            return "inf" if v > 0 else "-inf"
-        return repr(v)
-    if isinstance(v, str):
-        return _string(v)
-    if isinstance(v, (dt.datetime, dt.date, dt.time)):
-        return v.isoformat()
-    if isinstance(v, list):
-        return "[" + ", ".join(_value(x) for x in v) + "]"
-    if isinstance(v, dict):
-        return "{ " + ", ".join(f"{_key(k)} = {_value(x)}" for k, x in v.items()) + " }"
-    raise TypeError(type(v))
+    """A TOML document for ``tree``: one ``key = value`` line per top-level key, floats
+    written exactly and every key quoted."""
+    return "".join(f"{toml_key(str(k), bare=False)} = {toml_value(v, exact=True, bare_keys=False)}\n"
+                   for k, v in tree.items())
 
 
 @st.composite

@@ -15,6 +15,7 @@ import numpy as np
 import pytest
 
 from _blocks import concrete_block
+from _tables import equipment
 
 PACKAGE = Path(__file__).resolve().parents[1] / "groundshake"
 FORBIDDEN_CALLS = {"eval", "exec", "compile", "__import__"}
@@ -59,16 +60,8 @@ def test_suite_workers_receive_plain_data_only():
     from groundshake.suite._plain import from_plain
     from groundshake.suite._run import prepare_suite
 
-    text = 'title = "plain data test (invented)"\n' + concrete_block(support="soil") + """
-[[equipment]]
-name = "unit"
-mass = 500.0
-mount = [1.0, 1.0]
-footprint = [1.0, 1.0]
-cg_height = 0.5
-[analysis]
-modes = 4
-"""
+    text = ('title = "plain data test (invented)"\n' + concrete_block(support="soil")
+            + equipment("unit", 500.0, (1.0, 1.0), (1.0, 1.0), 0.5) + "[analysis]\nmodes = 4\n")
     shared = prepare_suite(parse_scenario_text(text, source="plain.toml"))
     _plain_only(shared)
     model = from_plain(shared["model"])

@@ -35,6 +35,19 @@ def test_single_component_scenario_gives_one_set_per_file(tmp_path):
     assert all(list(s.files) == ["x"] for s in sets)
 
 
+def test_folder_takes_every_reader_ending_and_gzip(tmp_path):
+    # PEER .AT2, GeoNet .V2A and gzip-compressed files are record files; notes are not
+    # (the endings come from the readers' EXTENSIONS)
+    _touch(tmp_path, "p-h1.AT2", "p-h2.AT2", "g-x.V2A", "g-y.V2A", "m-x.csv.gz", "m-y.csv.gz",
+           "notes.md", ".hidden.csv", "README.md")
+    sets = discover_record_sets(str(tmp_path))
+    assert [s.name for s in sets] == ["g", "m", "p"]
+    assert all(set(s.files) == {"x", "y"} for s in sets)
+    assert sets[1].files["x"].endswith("m-x.csv.gz")
+    one = discover_record_sets(str(tmp_path / "m-x.csv.gz"), components=("x",))
+    assert [s.name for s in one] == ["m-x"]
+
+
 def test_glob_and_unknown_component(tmp_path):
     _touch(tmp_path, "a-h1.mseed", "a-h2.mseed", "c-foo.mseed")
     assert len(discover_record_sets(str(tmp_path / "a-*.mseed"))) == 1

@@ -7,10 +7,10 @@ Only the builders below produce markup.
 from __future__ import annotations
 
 import html
-import json
 import math
-import re
 from typing import Any, Iterable, Mapping, Sequence
+
+from .._toml import toml_key, toml_value
 
 __all__ = ["esc", "num", "raw", "table", "figure", "section", "toml_text", "CSS"]
 
@@ -93,52 +93,6 @@ def section(sid: str, title: str, body: str) -> str:
 
 
 # ---------------------------------------------------------------- scenario echo
-_BARE = re.compile(r"^[A-Za-z0-9_-]+$")
-
-
-def _key(k: str) -> str:
-    return k if _BARE.match(k) else json.dumps(k, ensure_ascii=False)
-
-
-def _toml_value(v: Any) -> str:
-    if isinstance(v, bool):
-        return "true" if v else "false"
-    if isinstance(v, int):
-        return str(v)
-    if isinstance(v, float):
-        if math.isnan(v):
-            return "nan"
-        if math.isinf(v):
-            return "inf" if v > 0 else "-inf"
-        return _short_float(v)
-    if isinstance(v, str):
-        return json.dumps(v, ensure_ascii=False)
-    if isinstance(v, Mapping):
-        items = [f"{_key(str(k))} = {_toml_value(x)}" for k, x in v.items() if x is not None]
-        return "{ " + ", ".join(items) + " }" if items else "{}"
-    if isinstance(v, (list, tuple)):
-        return "[" + ", ".join(_toml_value(x) for x in v if x is not None) + "]"
-    return json.dumps(str(v))
-
-
-def _short_float(v: float) -> str:
-    """A float as TOML text a person reads: 12 significant digits at most, and powers of
-    ten for large or small magnitudes (``30e9`` rather than ``30000000000.0``)."""
-    r = float(f"{v:.12g}")
-    if r == 0:
-        return "0.0"
-    if 1e-4 <= abs(r) < 1e6:
-        return repr(r)
-    mant, exp = f"{r:.12e}".split("e")
-    mant = mant.rstrip("0").rstrip(".")
-    e = int(exp)
-    # engineering style: an exponent that is a multiple of 3 (30e9, 118.75e6)
-    shift = e % 3
-    m = float(mant) * 10 ** shift
-    text = f"{m:.12g}"
-    return f"{text}e{e - shift}"
-
-
 def toml_text(d: Mapping[str, Any]) -> str:
     """A mapping written as TOML text (for display; keys set to None become comments).
 
@@ -150,9 +104,9 @@ def toml_text(d: Mapping[str, Any]) -> str:
 
     def put(lines: list[str], k: str, v: Any) -> None:
         if v is None:
-            lines.append(f"# {_key(k)}: not set")
+            lines.append(f"# {toml_key(k)}: not set")
         else:
-            lines.append(f"{_key(k)} = {_toml_value(v)}")
+            lines.append(f"{toml_key(k)} = {toml_value(v)}")
 
     for k, v in d.items():
         k = str(k)
@@ -160,18 +114,18 @@ def toml_text(d: Mapping[str, Any]) -> str:
                 and k in ("materials",):
             for name, sub in v.items():
                 tail.append("")
-                tail.append(f"[{_key(k)}.{_key(str(name))}]")
+                tail.append(f"[{toml_key(k)}.{toml_key(str(name))}]")
                 for kk, vv in sub.items():
                     put(tail, str(kk), vv)
         elif isinstance(v, Mapping):
             tail.append("")
-            tail.append(f"[{_key(k)}]")
+            tail.append(f"[{toml_key(k)}]")
             for kk, vv in v.items():
                 put(tail, str(kk), vv)
         elif isinstance(v, (list, tuple)) and v and all(isinstance(x, Mapping) for x in v):
             for item in v:
                 tail.append("")
-                tail.append(f"[[{_key(k)}]]")
+                tail.append(f"[[{toml_key(k)}]]")
                 for kk, vv in item.items():
                     put(tail, str(kk), vv)
         else:

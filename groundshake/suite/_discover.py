@@ -41,20 +41,16 @@ import os
 from pathlib import Path
 
 from .._errors import InputError
-from ..pipeline import COMPONENT_WORDS, RecordSet, group_by_component
+from ..pipeline import (COMPONENT_WORDS, RecordSet, group_by_component, is_record_file_name,
+                        plain_stem)
 
 __all__ = ["RecordSet", "discover_record_sets", "COMPONENT_WORDS"]
-
-_RECORD_SUFFIXES = {".mseed", ".miniseed", ".ms", ".sac", ".csv", ".txt", ".dat", ".asc",
-                    ".evt", ".v1", ".v2", ".knt", ".ew", ".ns", ".ud", ""}
-
 
 def _candidate_files(spec: str) -> list[Path]:
     """Record files of a folder, a pattern or one file, as absolute paths (from the cwd)."""
     p = Path(os.path.abspath(spec))
     if p.is_dir():
-        files = [q for q in sorted(p.iterdir()) if q.is_file() and not q.name.startswith(".")
-                 and q.suffix.lower() in _RECORD_SUFFIXES and q.name.lower() != "readme.md"]
+        files = [q for q in sorted(p.iterdir()) if q.is_file() and is_record_file_name(q)]
         if not files:
             raise InputError(f"{spec}: folder holds no record files")
         return files
@@ -96,7 +92,7 @@ def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", 
     files = _candidate_files(spec)
     if len(components) == 1:
         comp = components[0]
-        sets = [RecordSet(name=f.stem, files={comp: str(f)}, units=units, dt=dt) for f in files]
+        sets = [RecordSet(name=plain_stem(f), files={comp: str(f)}, units=units, dt=dt) for f in files]
         _check_unique([s.name for s in sets], spec)
         return sets
     return [RecordSet(name=stem, files=group, units=units, dt=dt)

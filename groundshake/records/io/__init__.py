@@ -32,7 +32,7 @@ from types import ModuleType
 from ..._errors import RecordError
 from ._common import read_head, unpacked
 
-__all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read"]
+__all__ = ["READERS", "HEAD_BYTES", "reader", "detect", "read", "formats_read", "record_suffixes"]
 
 #: Reader modules in the order they are tried (names inside this package). The
 #: strong-motion readers decide from content that no other format shares, so their order
@@ -66,6 +66,17 @@ def reader(name: str) -> ModuleType:
 def formats_read() -> str:
     """The formats of every reader, in order, for messages (``"A; B; C"``)."""
     return "; ".join(reader(name).FORMAT for name in READERS)
+
+
+def record_suffixes() -> frozenset[str]:
+    """File-name endings (lower case, with the dot) that some reader names in its
+    ``EXTENSIONS``, plus ``".ms"`` (a common short MiniSEED ending), ``".knt"`` and ``""``
+    (K-NET's and KiK-net's plain names). A name ending in ``.gz`` counts by what is
+    before it."""
+    out = {".ms", ".knt", ""}
+    for name in READERS:
+        out.update(e.lower() for e in getattr(reader(name), "EXTENSIONS", ()))
+    return frozenset(out)
 
 
 def detect(path) -> ModuleType | None:
