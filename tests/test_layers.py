@@ -320,3 +320,20 @@ def test_importing_the_stages_loads_no_matplotlib():
                          cwd=PACKAGE.parent, check=True,
                          env={**__import__("os").environ, "PYTHONPATH": str(PACKAGE.parent)})
     assert out.stdout.strip() == "[]"
+
+
+def test_shared_constants_have_one_home():
+    # standard gravity and the axis names are declared once, in groundshake/_constants.py
+    # (9.80665 m/s²: 3rd CGPM 1901); every other module imports them
+    found = []
+    for path in sorted(PACKAGE.rglob("*.py")):
+        if path.name == "_constants.py" and path.parent == PACKAGE:
+            continue
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.Constant) and node.value == 9.80665:
+                found.append(f"{path.relative_to(PACKAGE)}:{node.lineno}: 9.80665")
+            if isinstance(node, ast.Assign) and any(
+                    isinstance(t, ast.Name) and t.id in ("DIRECTIONS", "STANDARD_GRAVITY")
+                    for t in node.targets):
+                found.append(f"{path.relative_to(PACKAGE)}:{node.lineno}: assignment")
+    assert not found, found

@@ -13,11 +13,11 @@ from __future__ import annotations
 import math
 from typing import Literal
 
+from .._constants import STANDARD_GRAVITY
 from ..results._schema import UNITS
 
 __all__ = ["SYSTEMS", "display_unit", "to_display", "fmt", "STANDARD_GRAVITY", "check_system"]
 
-STANDARD_GRAVITY = 9.80665           # m/s², CGPM 1901
 _IN = 0.0254                         # m
 _FT = 0.3048                         # m
 _LBF = 4.4482216152605               # N

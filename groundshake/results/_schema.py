@@ -17,6 +17,8 @@ import re
 from dataclasses import dataclass
 from typing import Any, Iterator, Mapping
 
+from .._constants import DIRECTIONS
+
 __all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPORT_FILE", "FILES", "SUITE_FILES", "UNITS", "KIND_OF_UNIT", "Column", "COLUMNS", "SUMMARY_KINDS",
            "kind_of", "header", "parse_header", "history_label", "HISTORY_BASE",
            "iter_values", "DIRECTIONS", "SUMMARY_GROUPS", "declared", "read", "read_number",
@@ -24,8 +26,6 @@ __all__ = ["SCHEMA_VERSION", "SUMMARY_FILE", "CSV_FILES", "OUTPUT_FILES", "REPOR
 
 #: Version of the output contract, written into summary.json (``schema.version``).
 SCHEMA_VERSION = 2
-
-DIRECTIONS = ("x", "y", "z")
 
 #: The files of a run's output folder, by role.
 FILES: dict[str, str] = {
