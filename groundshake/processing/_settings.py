@@ -1,22 +1,47 @@
-"""Processing settings: the scenario's ``[processing]`` keys, with published defaults."""
+"""Processing settings: the scenario's ``[processing]`` keys, with published defaults.
+
+Each field is declared once, here: its default, and in its ``metadata`` a one-line
+description (``doc``), its unit and its limits (``ge``, ``gt``, ``le``, ``choices``) as
+plain data. The checks below read them, and so does the scenario's ``[processing]`` table,
+which is built from these fields (``groundshake.scenario``).
+"""
 from __future__ import annotations
 
+import functools
 import math
-from dataclasses import asdict, dataclass, fields
+import types
+import typing
+from dataclasses import asdict, dataclass, field, fields
 from typing import Any, Literal
 
 from .._errors import InputError
 
-__all__ = ["ProcessingSettings", "DEFAULT_PROCESSING"]
+__all__ = ["ProcessingSettings", "DEFAULT_PROCESSING", "setting"]
 
 #: The name these settings go by (the scenario's ``[processing]`` table has the same keys);
 #: an error of a field is shown at ``processing.FIELD`` until a caller locates it.
 SECTION = "processing"
 
 
+def setting(default: Any, *, doc: str, unit: str = "", zero_means_none: bool = False,
+            **limits: Any):
+    """A dataclass field with its description, unit and limits as plain metadata.
+
+    ``limits`` holds ``ge``, ``gt``, ``le`` (inclusive or strict bounds of a number) or
+    ``choices`` (the allowed strings). ``zero_means_none``: 0 is accepted and stored as
+    ``None`` (no such step), so the field's bounds apply to values other than 0.
+    """
+    meta = {"doc": doc, "unit": unit, **limits}
+    if zero_means_none:
+        meta["zero_means_none"] = True
+    return field(default=default, metadata=meta)
+
+
 @dataclass(frozen=True)
 class ProcessingSettings:
     """How a record is corrected (Boore & Bommer 2005; Boore 2005).
+
+    The limits of each field are in its metadata (``dataclasses.fields``).
 
     Attributes
     ----------
@@ -27,62 +52,51 @@ class ProcessingSettings:
     pre_event_s : float
         Length [s] of the pre-event part (for ``mean_removal="pre-event"``).
     baseline_order : int or None
-        Order k (0-6) of the polynomial fitted to velocity by least squares; its
+        Order k of the polynomial fitted to velocity by least squares; its
         derivative (order k-1) is removed from acceleration. 0 or ``None``: no fit.
     highpass_hz, lowpass_hz : float or None
         Corners [Hz] of the acausal Butterworth low-cut / high-cut filter; ``None``
         or 0 for none (0 is stored as ``None``, as the CLI and the scenario spell it).
     filter_order : int
-        Order n (1-12) of each Butterworth pass; applied forward and backward, so
+        Order n of each Butterworth pass; applied forward and backward, so
         the gain is |H|² with -6 dB (one half) at the corner.
     taper_percent : float
-        Length of the half-cosine taper at each end, percent of the record (0-25).
+        Length of the half-cosine taper at each end, percent of the record.
     pad : bool
         Zero pads of 1.5·n/fc in total (half at each end) before a low-cut filter;
         the padded record is kept (Boore 2005).
     """
 
-    enabled: bool = True
-    mean_removal: Literal["whole", "pre-event"] = "whole"
-    pre_event_s: float = 0.0
-    baseline_order: int | None = 1
-    highpass_hz: float | None = 0.1
-    lowpass_hz: float | None = None
-    filter_order: int = 4
-    taper_percent: float = 5.0
-    pad: bool = True
+    enabled: bool = setting(True, doc="false uses the records exactly as read")
+    mean_removal: Literal["whole", "pre-event"] = setting(
+        "whole", choices=("whole", "pre-event"),
+        doc="remove the mean of the whole record or of its pre-event part")
+    pre_event_s: float = setting(0.0, ge=0.0, unit="s", doc="length of the pre-event part")
+    baseline_order: int | None = setting(1, ge=0, le=6,
+                                         doc="order of the polynomial baseline removed")
+    highpass_hz: float | None = setting(0.1, ge=0.0, unit="Hz", zero_means_none=True,
+                                        doc="high-pass corner; 0 = no high-pass")
+    lowpass_hz: float | None = setting(None, ge=0.0, unit="Hz", zero_means_none=True,
+                                       doc="low-pass corner; none or 0 = no low-pass")
+    filter_order: int = setting(4, ge=1, le=12, doc="Butterworth filter order")
+    taper_percent: float = setting(5.0, ge=0.0, le=25.0, unit="%",
+                                   doc="cosine taper at each end, percent of the length")
+    pad: bool = setting(True, doc="pad with zeros before filtering (kept in the result)")
 
     def __post_init__(self) -> None:
-        for key in ("highpass_hz", "lowpass_hz"):      # one spelling of "no filter": None
-            value = getattr(self, key)
-            if isinstance(value, (int, float)) and not isinstance(value, bool) and value == 0:
-                object.__setattr__(self, key, None)
-        if not isinstance(self.enabled, bool):
-            raise _bad("enabled", self.enabled, "true or false")
-        if self.mean_removal not in ("whole", "pre-event"):
-            raise _bad("mean_removal", self.mean_removal, "'whole' or 'pre-event'")
-        _number("pre_event_s", self.pre_event_s, minimum=0.0)
+        for f in fields(self):                           # one spelling of "none": None
+            value = getattr(self, f.name)
+            if (f.metadata.get("zero_means_none") and _is_number(value) and value == 0):
+                object.__setattr__(self, f.name, None)
+        for f in fields(self):
+            _check(f, getattr(self, f.name))
         if self.mean_removal == "pre-event" and self.pre_event_s <= 0:
             raise _bad("pre_event_s", self.pre_event_s, "a pre-event length > 0 s "
                        "(a 'pre-event' mean needs one)")
-        if self.baseline_order is not None and (
-                isinstance(self.baseline_order, bool) or not isinstance(self.baseline_order, int)
-                or not 0 <= self.baseline_order <= 6):
-            raise _bad("baseline_order", self.baseline_order, "an integer 0-6")
-        for key in ("highpass_hz", "lowpass_hz"):
-            value = getattr(self, key)
-            if value is not None:
-                _number(key, value, minimum=0.0, strict=True)
         if (self.highpass_hz is not None and self.lowpass_hz is not None
                 and self.lowpass_hz <= self.highpass_hz):
             raise _bad("lowpass_hz", self.lowpass_hz,
                        f"a corner above the high-pass corner {self.highpass_hz!r} Hz")
-        if (isinstance(self.filter_order, bool) or not isinstance(self.filter_order, int)
-                or not 1 <= self.filter_order <= 12):
-            raise _bad("filter_order", self.filter_order, "an integer 1-12")
-        _number("taper_percent", self.taper_percent, minimum=0.0, maximum=25.0)
-        if not isinstance(self.pad, bool):
-            raise _bad("pad", self.pad, "true or false")
 
     @classmethod
     def from_dict(cls, values: dict[str, Any], *, where: str = SECTION) -> "ProcessingSettings":
@@ -127,8 +141,52 @@ def _bad(param: str, value, allowed: str) -> InputError:
                       where=f"{SECTION}.{param}")
 
 
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+@functools.lru_cache(maxsize=None)
+def value_type(cls: type, name: str) -> tuple[type, bool]:
+    """The type of a settings field's values and whether ``None`` is allowed:
+    ``(bool | int | float | str, optional)``, read from the class's annotations (a
+    ``Literal`` of strings is ``str``)."""
+    hint = typing.get_type_hints(cls)[name]
+    args = typing.get_args(hint)
+    if typing.get_origin(hint) in (typing.Union, types.UnionType):
+        rest = [a for a in args if a is not type(None)]
+        base, optional = rest[0], len(rest) < len(args)
+    else:
+        base, optional = hint, False
+    if typing.get_origin(base) is Literal:
+        base = str
+    return base, optional
+
+
+def _check(f, value) -> None:
+    """One field's value against its type and the limits in its metadata."""
+    base, optional = value_type(ProcessingSettings, f.name)
+    meta = f.metadata
+    if value is None and optional:
+        return
+    if base is bool:
+        if not isinstance(value, bool):
+            raise _bad(f.name, value, "true or false")
+    elif meta.get("choices"):
+        if value not in meta["choices"]:
+            raise _bad(f.name, value, " or ".join(repr(c) for c in meta["choices"]))
+    elif base is int:
+        lo, hi = meta.get("ge"), meta.get("le")
+        if isinstance(value, bool) or not isinstance(value, int) or not lo <= value <= hi:
+            raise _bad(f.name, value, f"an integer {lo}-{hi}")
+    else:
+        # 0 is stored as None where it means "none": the other values lie strictly above
+        strict = meta.get("gt") is not None or bool(meta.get("zero_means_none"))
+        lowest = meta["gt"] if meta.get("gt") is not None else meta.get("ge")
+        _number(f.name, value, minimum=lowest, maximum=meta.get("le"), strict=strict)
+
+
 def _number(param: str, value, *, minimum=None, maximum=None, strict=False) -> None:
-    ok = isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+    ok = _is_number(value) and math.isfinite(value)
     if ok and minimum is not None:
         ok = value > minimum if strict else value >= minimum
     if ok and maximum is not None:
