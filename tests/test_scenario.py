@@ -246,15 +246,19 @@ def test_one_processing_schema_and_one_spelling_of_no_high_pass():
     import dataclasses
 
     from groundshake.processing import ProcessingSettings
-    from groundshake.scenario import ProcessingOptions, parse_scenario_text
+    from groundshake.scenario import parse_scenario_text
     from _blocks import concrete_block
 
-    assert ([f.name for f in dataclasses.fields(ProcessingOptions)]
-            == [f.name for f in dataclasses.fields(ProcessingSettings)])
+    (table,) = [f for f in dataclasses.fields(Scenario) if f.name == "processing"]
+    assert table.metadata["cls"] is ProcessingSettings                # one declaration
     assert ProcessingSettings(highpass_hz=0).highpass_hz is None
     assert ProcessingSettings(highpass_hz=0.0, lowpass_hz=0).lowpass_hz is None
     scen = parse_scenario_text("[processing]\nhighpass_hz = 0\nlowpass_hz = 25.0\n"
                                + concrete_block())
     settings = scen.processing_settings()
+    assert settings is scen.processing
     assert settings.highpass_hz is None and settings.lowpass_hz == 25.0
+    # the file's spelling comes back in the echo: 0, since an absent key means 0.1
+    assert scen.to_dict()["processing"]["highpass_hz"] == 0.0
+    assert Scenario.from_dict(scen.to_dict()) == scen
     assert "high-pass" not in settings.describe() and "low-pass 25 Hz" in settings.describe()

@@ -92,14 +92,63 @@ def test_defaults_match_the_internals_contract():
         assert defaults[key] == expected, key
 
 
-def test_dataclass_defaults_match_the_processing_settings():
-    # Same names and defaults as groundshake.processing.ProcessingSettings (INTERNALS.md).
-    pytest.importorskip("groundshake.processing")
+def _toml_value(value) -> str:
+    return ("true" if value else "false") if isinstance(value, bool) else (
+        f'"{value}"' if isinstance(value, str) else repr(value))
+
+
+def test_processing_defaults_and_limits_are_those_of_the_settings():
+    # one declaration (docs/architecture.md): the [processing] table is
+    # groundshake.processing.ProcessingSettings; read both sides through dataclasses.fields,
+    # every default and every limit of a setting holds in the scenario file too
     from groundshake.processing import ProcessingSettings
-    from groundshake.scenario import ProcessingOptions
-    ours = {f.name: f.default for f in dataclasses.fields(ProcessingOptions)}
-    theirs = {f.name: f.default for f in dataclasses.fields(ProcessingSettings)}
-    assert ours == theirs
+    from _blocks import concrete_block
+
+    (table,) = [f for f in dataclasses.fields(Scenario) if f.name == "processing"]
+    assert table.metadata["cls"] is ProcessingSettings
+    loaded = parse_scenario_text(concrete_block()).processing
+    shown = {row[0]: row[1] for row in schema_rows()}
+
+    def scenario_takes(name, value) -> bool:
+        extra = "pre_event_s = 1.0\n" if value == "pre-event" else ""
+        try:
+            parse_scenario_text(f"[processing]\n{extra}{name} = {_toml_value(value)}\n"
+                                + concrete_block())
+        except ScenarioError as e:
+            assert e.key == f"processing.{name}", str(e)
+            return False
+        return True
+
+    def library_takes(name, value) -> bool:
+        extra = {"pre_event_s": 1.0} if value == "pre-event" else {}
+        try:
+            ProcessingSettings(**extra, **{name: value})
+        except ValueError as e:
+            assert e.param == name, str(e)
+            return False
+        return True
+
+    checked = 0
+    for f in dataclasses.fields(ProcessingSettings):
+        assert getattr(loaded, f.name) == f.default, f.name          # same default
+        text = ("none" if f.default is None else f"{f.default:g}"
+                if isinstance(f.default, float) else _toml_value(f.default))
+        assert shown[f"processing.{f.name}"] == text, f.name            # as the guide shows
+        step = 1 if isinstance(f.default, int) and not isinstance(f.default, bool) else 0.5
+        probes = []
+        if "ge" in f.metadata:
+            probes += [(f.metadata["ge"], True), (f.metadata["ge"] - step, False)]
+        if "le" in f.metadata:
+            probes += [(f.metadata["le"], True), (f.metadata["le"] + step, False)]
+        if "choices" in f.metadata:
+            probes += [(c, True) for c in f.metadata["choices"]] + [("median", False)]
+        if isinstance(f.default, bool):
+            probes += [(not f.default, True), ("yes", False)]
+        for value, allowed in probes:
+            assert scenario_takes(f.name, value) is allowed, (f.name, value)
+            assert library_takes(f.name, value) is allowed, (f.name, value)
+            checked += 1
+    assert checked >= 20
 
 
 def _readme_example() -> str:

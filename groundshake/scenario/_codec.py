@@ -32,13 +32,23 @@ def scenario_from_dict(data: Any, *, source: str = "<dict>",
 
 def _plain(value: Any) -> Any:
     if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return {f.name: _plain(getattr(value, f.name)) for f in _schema_fields(type(value))}
+        return {f.name: _plain(_written(f, getattr(value, f.name)))
+                for f in _schema_fields(type(value))}
     if isinstance(value, dict):
         return {k: _plain(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
         return [_plain(v) for v in value]
     if isinstance(value, Path):
         return str(value)
+    return value
+
+
+def _written(f: dataclasses.Field, value: Any) -> Any:
+    """A field's value as the file writes it: a setting stored as None that the file spells
+    0 (``highpass_hz = 0``, no high-pass) is written 0 where None is not its default, since
+    an absent key means the default."""
+    if value is None and f.metadata.get("zero_means_none") and f.default is not None:
+        return 0.0
     return value
 
 

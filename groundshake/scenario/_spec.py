@@ -3,6 +3,7 @@ dataclass field (kind, range, units, choices) and turned into the field's value,
 ``FILE:LINE: key.path: given VALUE; allowed WHAT`` messages."""
 from __future__ import annotations
 
+import copy
 import dataclasses
 import difflib
 import functools
@@ -10,11 +11,13 @@ import json
 import math
 import os
 import re
+import types
 import warnings
 from pathlib import Path
 from typing import Any
 
-from .._errors import GroundshakeError, GroundshakeWarning, ScenarioError
+from .._errors import GroundshakeError, GroundshakeWarning, InputError, ScenarioError
+from ..processing._settings import value_type
 from ._lines import key_lines, line_of
 from ._types import Scenario
 
@@ -190,7 +193,27 @@ def _allowed_text(meta: dict) -> str:
 
 @functools.lru_cache(maxsize=None)
 def _schema_fields(cls) -> tuple[dataclasses.Field, ...]:
-    return tuple(f for f in dataclasses.fields(cls) if not f.metadata.get("internal"))
+    """The fields of a table of the schema, each with its key's metadata (``kind`` ...).
+
+    A scenario type declares it with :func:`spec`; a library's settings (plain metadata:
+    doc, unit, limits, choices) get the kind of their values' type (:func:`_adopted`).
+    """
+    return tuple(f if "kind" in f.metadata else _adopted(cls, f)
+                 for f in dataclasses.fields(cls) if not f.metadata.get("internal"))
+
+
+_KIND_OF_TYPE = {bool: "bool", int: "integer", float: "number", str: "string"}
+
+
+def _adopted(cls, f: dataclasses.Field) -> dataclasses.Field:
+    """A field of a library's settings dataclass as a key of the schema: its plain metadata
+    with the ``kind`` of its values (``choice`` where it lists choices) and no derived
+    default."""
+    base, _ = value_type(cls, f.name)
+    kind = "choice" if f.metadata.get("choices") else _KIND_OF_TYPE[base]
+    out = copy.copy(f)
+    out.metadata = types.MappingProxyType({"kind": kind, "derived": None, **f.metadata})
+    return out
 
 
 def _is_number(v: Any) -> bool:
@@ -385,6 +408,8 @@ def _parse_obj(cls, data: Any, path: tuple, ctx: _Context):
         values[f.name] = _convert(f, v, path + (f.name,), ctx)
     try:
         return cls(**values) if cls is not Scenario else values
+    except InputError as e:  # a library's settings checking their keys together
+        raise ctx.keyed(e, path, names) from None
     except TypeError as e:  # pragma: no cover - schema error
         raise ctx.error(path, "an incomplete table", str(e)) from None
 

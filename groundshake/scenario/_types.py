@@ -3,6 +3,9 @@
 Each field's ``metadata`` says what the TOML key accepts (kind, range, unit,
 a one-line description), so validation, the README table and ``to_dict`` all
 come from the same declarations. Attribute names equal the TOML key names.
+The ``[processing]`` table is the processing stage's own
+:class:`~groundshake.processing.ProcessingSettings`, declared there once with plain
+metadata (doc, unit, limits) that the spec engine reads as a table of its keys.
 Units: SI (m, kg, Pa, s, Hz); damping in percent, as written in the file.
 """
 from __future__ import annotations
@@ -13,11 +16,12 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Literal
 
+from ..processing import ProcessingSettings
+
 __all__ = [
     "Scenario",
     "MotionComponent",
     "MotionSettings",
-    "ProcessingOptions",
     "Material",
     "Part",
     "MeshSettings",
@@ -132,30 +136,6 @@ class MotionSettings:
     def components(self) -> dict[str, MotionComponent]:
         """The given components in x, y, z order, keyed by axis name."""
         return {k: v for k, v in (("x", self.x), ("y", self.y), ("z", self.z)) if v is not None}
-
-
-# --- processing --------------------------------------------------------------------------
-
-@dataclass(frozen=True, kw_only=True)
-class ProcessingOptions:
-    """The ``[processing]`` table; same names as ``groundshake.processing.ProcessingSettings``."""
-
-    enabled: bool = spec("bool", True, doc="false uses the records exactly as read")
-    mean_removal: Literal["whole", "pre-event"] = spec(
-        "choice", "whole", choices=("whole", "pre-event"),
-        doc="remove the mean of the whole record or of its pre-event part")
-    pre_event_s: float = spec("number", 0.0, ge=0.0, unit="s",
-                              doc="length of the pre-event part")
-    baseline_order: int = spec("integer", 1, ge=0, le=6,
-                               doc="order of the polynomial baseline removed")
-    highpass_hz: float = spec("number", 0.1, ge=0.0, unit="Hz",
-                              doc="high-pass corner; 0 = no high-pass")
-    lowpass_hz: float | None = spec("number", None, ge=0.0, unit="Hz",
-                                    doc="low-pass corner; none or 0 = no low-pass")
-    filter_order: int = spec("integer", 4, ge=1, le=12, doc="Butterworth filter order")
-    taper_percent: float = spec("number", 5.0, ge=0.0, le=25.0, unit="%",
-                                doc="cosine taper at each end, percent of the length")
-    pad: bool = spec("bool", True, doc="pad with zeros before filtering (kept in the result)")
 
 
 # --- model -------------------------------------------------------------------------------
@@ -450,8 +430,8 @@ class Scenario:
     title: str = spec("string", derived="file name without extension", doc="title of the run")
     motion: MotionSettings | None = spec("table", None, cls=MotionSettings,
                                          doc="ground motion; may be left out (modes only)")
-    processing: ProcessingOptions = spec("table", factory=ProcessingOptions,
-                                         cls=ProcessingOptions, doc="record processing")
+    processing: ProcessingSettings = spec("table", factory=ProcessingSettings,
+                                          cls=ProcessingSettings, doc="record processing")
     materials: dict[str, Material] = spec("named", cls=Material, doc="materials by name")
     parts: tuple[Part, ...] = spec("array", cls=Part, doc="boxes of the model")
     mesh: MeshSettings = spec("table", cls=MeshSettings, doc="mesh")
@@ -510,11 +490,10 @@ class Scenario:
         return _CODEC["replace_motion"](self, {"x": x, "y": y, "z": z},
                                         target, match_target, _KEEP_MARK)
 
-    def processing_settings(self):
-        """``groundshake.processing.ProcessingSettings`` built from :attr:`processing`."""
-        from groundshake.processing import ProcessingSettings
-        return ProcessingSettings(**{f.name: getattr(self.processing, f.name)
-                                     for f in dataclasses.fields(self.processing)})
+    def processing_settings(self) -> ProcessingSettings:
+        """How the records are corrected: the ``[processing]`` table, which is a
+        :class:`groundshake.processing.ProcessingSettings` (its fields are the table's keys)."""
+        return self.processing
 
     def estimated_dofs(self) -> float:
         """Rough number of degrees of freedom of the mesh (3 per grid node); an estimate."""

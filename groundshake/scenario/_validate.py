@@ -23,7 +23,6 @@ def _build(data: Any, ctx: _Context) -> Scenario:
     if "title" not in values:
         stem = Path(ctx.source).stem if ctx.source and not ctx.source.startswith("<") else ""
         values["title"] = stem or "untitled"
-    _check_processing(values, ctx)
     _check_materials_and_parts(values, ctx)
     _check_support(values, ctx)
     _check_plausible(values, ctx)
@@ -36,18 +35,6 @@ def _build(data: Any, ctx: _Context) -> Scenario:
     _geometry.check_geometry(values, ctx)
     return Scenario(**values, source=ctx.source, base_dir=ctx.base_dir, notes=tuple(ctx.notes),
                     key_lines=ctx.lines)
-
-
-def _check_processing(values, ctx):
-    p = values.get("processing")
-    if p is None:
-        return
-    if p.lowpass_hz and p.highpass_hz and not p.lowpass_hz > p.highpass_hz:
-        raise ctx.bad(("processing", "lowpass_hz"), p.lowpass_hz,
-                      f"a number > highpass_hz = {_fmt(p.highpass_hz)} [Hz]")
-    if p.mean_removal == "pre-event" and not p.pre_event_s > 0:
-        raise ctx.bad(("processing", "pre_event_s"), p.pre_event_s,
-                      'a number > 0 [s] when mean_removal = "pre-event"')
 
 
 def _check_materials_and_parts(values, ctx):
