@@ -4,6 +4,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from ._common import print_json, table
+from ._options import add_option
 from .._errors import InputError
 from .._progress import Progress
 
@@ -22,24 +23,19 @@ def register(subparsers, parents) -> None:
     p.add_argument("scenario", metavar="SCENARIO", help="scenario file (TOML)")
     p.add_argument("--records", required=True, metavar="DIR|GLOB|MANIFEST.csv",
                    help="a folder, a glob pattern (quote it) or a manifest CSV")
-    p.add_argument("--units", default=None, help="units of records that do not state them "
-                   "(g, m/s2, cm/s2, mm/s2, ft/s2, in/s2)")
-    p.add_argument("--dt", type=float, default=None, metavar="S",
-                   help="time step [s] of one-column text records")
+    add_option(p, "units", what="records")
+    add_option(p, "dt", what="records")
     grp = p.add_mutually_exclusive_group()
     grp.add_argument("--workers", type=int, default=None, metavar="N",
                      help="local worker processes (default: the CPU count)")
     grp.add_argument("--scheduler", default=None, metavar="ADDRESS",
                      help="dask.distributed scheduler address, e.g. tcp://10.0.0.5:8786")
-    p.add_argument("--method", choices=("auto", "modal", "coupled", "direct"), default=None,
-                   help="override [analysis] method")
-    p.add_argument("--target", default=None, metavar="SPEC",
-                   help="target spectrum drawn with the ground-spectra band")
-    p.add_argument("--scale-to", default=None, metavar="TARGET",
-                   help="scale each record set to this target spectrum before it runs "
-                        "(asce7:..., en1998:... or a CSV of period [s], PSA [g]); the results "
-                        "are then combined by the rule: the mean with 7 or more sets, else the "
-                        "maximum. Overrides [suite] scale_to")
+    add_option(p, "method", choices=("auto", "modal", "coupled", "direct"))
+    add_option(p, "target", what="target spectrum drawn with the ground-spectra band")
+    p.add_argument("--scale-to", default=None, metavar="SPEC",
+                   help="scale each record set to this target spectrum (the forms of --target) "
+                        "before it runs; the results are then combined by the rule: the mean "
+                        "with 7 or more sets, else the maximum. Overrides [suite] scale_to")
     p.add_argument("--scale-rule", choices=("asce7-16", "asce7-10", "en1998"), default=None,
                    help="period band, share of the target and horizontal spectrum of the "
                         "scaling (default asce7-16; from memory of the standards, verify)")
@@ -59,11 +55,9 @@ def register(subparsers, parents) -> None:
                    help="times a set is run again after its worker was lost (default 2)")
     p.add_argument("--resume", action="store_true",
                    help="keep finished records in DIR and run only the rest")
-    p.add_argument("--report-units", choices=("si", "us"), default=None,
-                   help="display units of suite.html: si (kN, mm, MPa, g) or us (kip, in, psi, "
-                        "g); default the scenario's [report] units. Files stay SI")
-    p.add_argument("--force", action="store_true", help="write into an existing DIR")
-    p.add_argument("-o", "--output", required=True, metavar="DIR", help="output folder")
+    add_option(p, "report_units", what="suite.html")
+    add_option(p, "force", what="write into an existing DIR")
+    add_option(p, "output", required=True, metavar="DIR", what="output folder")
     p.set_defaults(func=_suite)
 
 
