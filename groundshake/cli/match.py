@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from ._common import check_damping_percent, float_list, print_json, table
+from ._common import check_damping_percent, float_list, options_named, print_json, table
 from ._options import add_option
 from .._errors import GroundshakeWarning, InputError
 
@@ -83,7 +83,10 @@ def cmd_match(args: argparse.Namespace) -> int:
     raws = read_records_from_args([src], args)
     records = _correct_all(raws, settings_from_args(args), args)
     results = []
-    with warnings.catch_warnings(record=True) as caught:
+    # the band and periods are in seconds here and in the library, so an error about them
+    # names its option; damping and tolerance are percent here and ratios there (checked above)
+    seconds = {k: v for k, v in args.option_of.items() if k in ("band", "periods")}
+    with warnings.catch_warnings(record=True) as caught, options_named(args, table=seconds):
         warnings.simplefilter("always", GroundshakeWarning)
         for rec in records:
             results.append(match_spectrum_report(

@@ -96,11 +96,12 @@ def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
     from ..records._read import read_record
 
     out = []
-    for path in paths:
-        out.extend(read_record(path, units=getattr(args, "units", None),
-                               dt=getattr(args, "dt", None),
-                               resample=getattr(args, "resample", False),
-                               inventory=getattr(args, "inventory", None)))
+    with options_named(args):                  # an error about the units names --units
+        for path in paths:
+            out.extend(read_record(path, units=getattr(args, "units", None),
+                                   dt=getattr(args, "dt", None),
+                                   resample=getattr(args, "resample", False),
+                                   inventory=getattr(args, "inventory", None)))
     return distinct_names(out)
 
 

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ._common import print_json
+from ._common import options_named, print_json
 from ._options import add_option
 from .._errors import InputError
 
@@ -37,7 +37,8 @@ def _demo(args) -> int:
     from ..pipeline import run_demo
 
     quiet = bool(getattr(args, "quiet", False))
-    run = run_demo(args.output, force=bool(args.force), progress=not quiet)
+    with options_named(args, table={**args.option_of, "out_dir": args.option_of["output"]}):
+        run = run_demo(args.output, force=bool(args.force), progress=not quiet)
     s = run.summary
     if getattr(args, "json", False):
         print_json({"folder": str(run.folder), "scenario": str(run.scenario),

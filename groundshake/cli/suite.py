@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ._common import print_json, table
+from ._common import options_named, print_json, table
 from ._options import add_option
 from .._errors import InputError
 from .._progress import Progress
@@ -86,19 +86,23 @@ def _suite(args) -> int:
     comps = tuple(scenario.motion.components()) if scenario.motion is not None else ("x", "y", "z")
     if args.dt is not None and not args.dt > 0:
         raise InputError(f"--dt {args.dt}: must be > 0")
-    scaling = _scaling_of(args, scenario)
-    sets = discover_record_sets(args.records, components=comps, units=args.units, dt=args.dt)
+    with options_named(args):              # an error about an option's value names it
+        scaling = _scaling_of(args, scenario)
+        sets = discover_record_sets(args.records, components=comps, units=args.units,
+                                    dt=args.dt)
     quiet = bool(getattr(args, "quiet", False))
     bar = Progress("records", total=len(sets)) if not quiet else None
     if bar is not None:
         bar.enabled = bar.enabled and not quiet
         bar.__enter__()
     try:
-        result = run_suite(scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
-                           resume=args.resume, method=args.method,
-                           set_timeout="auto" if args.set_timeout is None else args.set_timeout,
-                           retries=args.retries, scaling=scaling,
-                           on_result=(lambda r: bar.advance()) if bar is not None else None)
+        with options_named(args):
+            result = run_suite(
+                scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
+                resume=args.resume, method=args.method,
+                set_timeout="auto" if args.set_timeout is None else args.set_timeout,
+                retries=args.retries, scaling=scaling,
+                on_result=(lambda r: bar.advance()) if bar is not None else None)
     finally:
         if bar is not None:
             bar.__exit__(None, None, None)
@@ -124,8 +128,10 @@ def _suite(args) -> int:
 def _scaling_of(args, scenario):
     """The scaling asked for: the command line's options over the scenario's ``[suite]``."""
     from ..pipeline import SuiteScaling
+    from ..scenario import errors_at_key
 
-    base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
+    with errors_at_key(scenario, ("suite",)):      # a bad [suite] value names its key
+        base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
     options = (args.scale_rule, args.scale_mode, args.scale_range, args.scale_period)
     if args.scale_to is None and base is None:
         if any(v is not None for v in options):

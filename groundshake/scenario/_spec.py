@@ -14,7 +14,8 @@ import warnings
 from pathlib import Path
 from typing import Any
 
-from .._errors import GroundshakeError, GroundshakeWarning, ScenarioError
+from .._errors import (GroundshakeError, GroundshakeWarning, RecordError, ScenarioError,
+                       ScenarioRecordError)
 from ._lines import key_lines, line_of
 from ._types import Scenario
 
@@ -76,7 +77,8 @@ class _Context:
         as a :class:`ScenarioError` that keeps its ``param`` and ``value`` and gains
         ``key``, ``line`` and ``file``."""
         key = format_path(path)
-        return err.located(f"{self.where(path)}: {key}", cls=ScenarioError, key=key,
+        cls = ScenarioRecordError if isinstance(err, RecordError) else ScenarioError
+        return err.located(f"{self.where(path)}: {key}", cls=cls, key=key,
                            line=line_of(self.lines, path), file=self.source)
 
     def keyed(self, err: GroundshakeError, path: tuple, params=()) -> ScenarioError:
