@@ -22,6 +22,7 @@ __all__ = [
     "InputError",
     "RecordError",
     "ScenarioError",
+    "ScenarioRecordError",
     "ModelTooLargeError",
     "GroundshakeWarning",
 ]
@@ -116,6 +117,11 @@ class RecordError(InputError):
 
 class ScenarioError(InputError):
     """A scenario file that does not validate."""
+
+
+class ScenarioRecordError(ScenarioError, RecordError):
+    """A record file a scenario names that cannot be read or used, shown at the scenario's
+    file, line and key: both a :class:`ScenarioError` and a :class:`RecordError`."""
 
 
 class ModelTooLargeError(GroundshakeError, MemoryError):

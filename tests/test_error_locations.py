@@ -210,3 +210,196 @@ def test_option_table_is_read_from_the_parser():
     table = option_table(sub.choices["correct"])
     assert table["highpass_hz"] == "--highpass" and table["pre_event_s"] == "--pre-event"
     assert table["output"] == "--output" and "record" not in table   # positionals have none
+
+
+# -- record readers: the units, dt, resample and inventory of a record --------------------------
+
+def _names_option(run_cli, option: str, text: str, *argv) -> str:
+    """The one-line refusal of ``argv`` (:func:`_one_line_refusal`) starts at ``option`` and
+    holds ``text``."""
+    line = _one_line_refusal(run_cli, *argv)
+    assert line.startswith(f"groundshake: error: {option}: ") and text in line, line
+    return line
+
+
+def _rows(n: int = 40) -> str:
+    """Rows of an invented two-column record (time [s], acceleration) at dt = 0.01 s."""
+    return "\n".join(f"{0.01 * i!r},{0.1 * np.sin(i / 5.0):.5f}" for i in range(n)) + "\n"
+
+
+@pytest.fixture
+def no_units(tmp_path):
+    """A two-column text record whose header states no units."""
+    path = tmp_path / "bare.csv"
+    path.write_text("t,a\n" + _rows())
+    return path
+
+
+def _scenario_with(tmp_path, motion: str) -> tuple:
+    """A scenario file whose ``[motion]`` holds ``motion``; (path, text)."""
+    text = BLOCK + "\n[processing]\nenabled = false\n\n[motion]\n" + motion + "\n"
+    scen = tmp_path / "case.toml"
+    scen.write_text(text, encoding="utf-8")
+    return scen, text
+
+
+def _motion_error(scen) -> ScenarioError:
+    from groundshake.pipeline import build_motion
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(ScenarioError) as info:
+            build_motion(load_scenario(scen))
+    return info.value
+
+
+def test_missing_units_named_by_parameter_key_and_option(no_units, tmp_path, run_cli):
+    from groundshake.records import read_record
+
+    with pytest.raises(RecordError, match=r"^units: .*bare\.csv: the file does not state its "
+                                          r"units; give them: g, m/s2") as info:
+        read_record(no_units)
+    assert info.value.param == "units"
+    _names_option(run_cli, "--units", "does not state its units", "info", no_units)
+    # the scenario: the component's units key (not written: the line of its table)
+    scen, text = _scenario_with(tmp_path, f'x = {{ file = "{no_units.name}" }}')
+    e = _motion_error(scen)
+    assert str(e).startswith(f"{scen}:{_line(text, 'x = {')}: motion.x.units: "), str(e)
+    assert e.key == "motion.x.units" and isinstance(e, RecordError)   # still a record error
+    refusal = _one_line_refusal(run_cli, "run", scen, "-o", tmp_path / "out", "--quiet")
+    assert f"{scen}:{_line(text, 'x = {')}: motion.x.units: " in refusal
+
+
+def test_units_against_the_file_named_by_key_and_option(record, tmp_path, run_cli):
+    # the record fixture's file states m/s2 (groundshake's CSV header)
+    _names_option(run_cli, "--units", "states units m/s2", "info", record, "--units", "g")
+    _names_option(run_cli, "--units", "unknown units 'stone'", "info", record, "--units", "stone")
+    scen, text = _scenario_with(tmp_path, f'x = {{ file = "{record.name}", units = "g" }}')
+    e = _motion_error(scen)
+    assert str(e).startswith(f"{scen}:{_line(text, 'units = ')}: motion.x.units: "), str(e)
+    assert "states units m/s2 but g was given" in str(e)
+
+
+def test_agency_file_without_units_names_the_option(tmp_path, run_cli):
+    # a CWB file with its '#AmplitudeUnit:' line taken out
+    src = (DATA / "cwb_us1000chhc_1-EAS.dat").read_text(encoding="utf-8", errors="replace")
+    path = tmp_path / "cut.dat"
+    path.write_text("".join(ln for ln in src.splitlines(keepends=True)
+                            if not ln.startswith("#AmplitudeUnit")), encoding="utf-8")
+    line = _one_line_refusal(run_cli, "info", path)
+    assert line.startswith("groundshake: error: --units: CWB (Taiwan) text file "), line
+    assert "no '#AmplitudeUnit:' line; give the units" in line
+    # the file states gal (its '#AmplitudeUnit:  gal.' line): other units contradict it
+    _names_option(run_cli, "--units", "drop them or fix",
+                  "info", DATA / "cwb_us1000chhc_1-EAS.dat", "--units", "g")
+
+
+def test_missing_time_step_named_by_key_and_option(tmp_path, run_cli):
+    path = tmp_path / "one.txt"
+    path.write_text("# units: g\n" + "\n".join(str(0.01 * i) for i in range(40)) + "\n")
+    _names_option(run_cli, "--dt", "needs a time step", "info", path)
+    _names_option(run_cli, "--dt", "allowed a finite time step > 0", "info", path, "--dt", "0")
+    scen, text = _scenario_with(tmp_path, f'x = {{ file = "{path.name}" }}')
+    e = _motion_error(scen)
+    assert str(e).startswith(f"{scen}:{_line(text, 'x = {')}: motion.x.dt: "), str(e)
+
+
+def test_uneven_steps_name_the_option(tmp_path, run_cli):
+    path = tmp_path / "uneven.csv"
+    path.write_text("t,a [g]\n" + _rows(20) + "0.2015,0.1\n"
+                    + "".join(f"{0.2015 + 0.01 * k!r},0.05\n" for k in range(1, 20)))
+    _names_option(run_cli, "--resample", "(more than 1 %)", "info", path)
+
+
+def test_counts_without_an_inventory_named_by_key_and_option(tmp_path, run_cli):
+    mseed = DATA / "fdsn_ci38457511_CI.CLC..HNE.mseed"
+    _names_option(run_cli, "--inventory", "raw counts", "info", mseed, "--units", "m/s2")
+    _names_option(run_cli, "--inventory", "holds accelerations",
+                  "info", DATA / "cwb_us1000chhc_1-EAS.dat", "--inventory",
+                  DATA / "fdsn_ci38457511_CI.CLC.xml")
+    # the scenario: [motion] inventory, the key of the table that encloses motion.x
+    scen, text = _scenario_with(tmp_path, f'x = {{ file = "{mseed.as_posix()}" }}')
+    e = _motion_error(scen)
+    assert str(e).startswith(f"{scen}:{_line(text, '[motion]')}: motion.inventory: "), str(e)
+
+
+# -- scaling, the demo folder, the suite's engine ------------------------------------------------
+
+def test_scaling_rule_named_by_parameter():
+    from groundshake.spectra._scaling import scale_to_target
+
+    with pytest.raises(InputError, match=r"^rule: given 'nz1170'; allowed 'asce7-16'"):
+        scale_to_target(np.ones((1, 6)), np.geomspace(0.1, 2, 6), np.ones(6), period=1.0,
+                        rule="nz1170")
+    with pytest.raises(InputError, match=r"^period: given -1.0; allowed a number > 0"):
+        scale_to_target(np.ones((1, 6)), np.geomspace(0.1, 2, 6), np.ones(6), period=-1.0)
+
+
+def test_suite_scaling_settings_are_the_options_and_keys():
+    from groundshake.cli import build_parser
+    from groundshake.cli._common import option_table
+    from groundshake.pipeline import SuiteScaling
+    from groundshake.pipeline._set_scaling import SCALING_OPTIONS, scale_record_sets
+    from groundshake.scenario._spec import table_keys
+
+    sub = next(a for a in build_parser()._actions if a.dest == "command")
+    table = option_table(sub.choices["suite"])
+    assert {k: table[k] for k in SCALING_OPTIONS} == SCALING_OPTIONS     # one name, two places
+    assert set(SCALING_OPTIONS) == set(table_keys(("suite",)))           # the [suite] keys
+    with pytest.raises(InputError) as info:
+        SuiteScaling(target="asce7:sds=1.0,sd1=0.6,tl=8", limits=(4.0, 0.25))
+    assert str(info.value) == "--scale-range: given 4,0.25; allowed two numbers LOW,HIGH with " \
+                              "0 < LOW < HIGH"
+    assert (info.value.param, info.value.value) == ("scale_range", (4.0, 0.25))
+    from types import SimpleNamespace
+
+    matched = SimpleNamespace(motion=SimpleNamespace(match_target=True))
+    with pytest.raises(InputError, match=r"^--scale-to: \[motion\] match_target = true"):
+        scale_record_sets(matched, [], SuiteScaling(target="asce7:sds=1.0,sd1=0.6,tl=8"))
+
+
+def test_suite_scale_range_named_by_option(record, tmp_path, run_cli):
+    scen, _ = _scenario_with(tmp_path, f'x = {{ file = "{record.name}" }}')
+    line = _one_line_refusal(run_cli, "suite", scen, "--records", record, "-o", tmp_path / "o",
+                             "--scale-to", "asce7:sds=1.0,sd1=0.6,tl=8", "--scale-range", "4,0.25")
+    assert line.startswith("groundshake: error: --scale-range: given 4,0.25; allowed"), line
+
+
+def test_demo_folder_errors_name_the_options(tmp_path, run_cli):
+    f = tmp_path / "afile"
+    f.write_text("x")
+    line = _one_line_refusal(run_cli, "demo", "-o", f, "--quiet")
+    assert line.startswith(f"groundshake: error: --output: {f} exists and is not a folder"), line
+    d = tmp_path / "full"
+    d.mkdir()
+    (d / "keep.txt").write_text("x")
+    line = _one_line_refusal(run_cli, "demo", "-o", d, "--quiet")
+    assert line.startswith(f"groundshake: error: --force: {d} already exists; give it"), line
+
+
+def test_suite_engine_errors_name_the_parameter():
+    from groundshake.cli import build_parser
+    from groundshake.cli._common import option_table
+    from groundshake.suite._engine import run_tasks
+    from groundshake.suite._run import _set_limits
+
+    with pytest.raises(InputError) as info:
+        list(run_tasks(lambda shared, item: item, {}, [{"name": "a"}, {"name": "b"}], workers=0))
+    assert str(info.value) == "workers: given 0; allowed an integer >= 1"
+    with pytest.raises(InputError, match=r"^set_timeout: given -1; allowed seconds > 0"):
+        _set_limits([], {}, None, None, -1)
+    # the command line's options of the same names
+    sub = next(a for a in build_parser()._actions if a.dest == "command")
+    table = option_table(sub.choices["suite"])
+    assert (table["workers"], table["scheduler"], table["set_timeout"]) == (
+        "--workers", "--scheduler", "--set-timeout")
+
+
+@pytest.mark.parametrize("argv, option, text", [
+    (["--band", "0.001,0.01"], "--band", "at or below the Nyquist period"),
+    (["--periods", "9,10", "--band", "0.05,4"], "--periods", "none fall in the band 0.05-4 s"),
+])
+def test_match_band_and_periods_name_the_option(record, run_cli, argv, option, text):
+    line = _one_line_refusal(run_cli, "match", record, "--target", "asce7:sds=1,sd1=0.6,tl=8",
+                             "--quiet", *argv)
+    assert line.startswith(f"groundshake: error: {option}: ") and text in line, line

@@ -71,11 +71,13 @@ def test_counts_without_an_inventory_are_an_error():
     with pytest.raises(RecordError, match=r"fdsn_ci38457511_CI.CLC..HNE.mseed: integer samples "
                                           r"peaking at 7.\d+e\+04 g when read as m/s2: these look "
                                           r"like raw counts; give the station's inventory "
-                                          r"\(--inventory"):
+                                          r"\(StationXML\)") as info:
         read_record(MSEED, units="m/s2")
-    with pytest.raises(RecordError, match=r"integer samples and no units in the file: raw counts.*"
-                                          r"--inventory"):
+    assert info.value.param == "inventory"         # the command line names --inventory
+    with pytest.raises(RecordError, match=r"^inventory: .*integer samples and no units in the "
+                                          r"file: raw counts.*inventory") as info:
         read_record(MSEED)
+    assert info.value.param == "inventory"
 
 
 def test_integer_samples_of_plausible_size_are_accepted(tmp_path):

@@ -3,8 +3,8 @@
 Each module of this package holds the commands of one stage (``records``: info and
 correct, ``spectrum``, ``match``, ``modes``, ``run``, ``suite``, ``report``: demo and
 report) and exposes ``register(subparsers, parents)``; options shared by several commands
-are built in ``_common`` and ``records``. A handler takes the parsed arguments and returns
-the exit status. The library never prints; only handlers do.
+are built in ``_options`` (``add_option``), ``_common`` and ``records``. A handler takes
+the parsed arguments and returns the exit status. The library never prints; only handlers do.
 
 Exit status: 0 success, 1 a run finished but some part failed (suites),
 2 bad input (one line on stderr, no traceback unless ``--debug``), 130 interrupted.

@@ -49,14 +49,15 @@ def options_named(args: argparse.Namespace, *, table: Mapping[str, str] | None =
     an option's destination is shown at that option (``--highpass: given -1; ...``).
 
     ``table`` defaults to the command's own (``args.option_of``, set by
-    :func:`groundshake.cli.build_parser` from :func:`option_table`).
+    :func:`groundshake.cli.build_parser` from :func:`option_table`). An error that already
+    names a scenario file (the value came from the scenario) passes unchanged.
     """
     table = getattr(args, "option_of", None) or {} if table is None else table
     try:
         yield
     except InputError as e:
         option = table.get(e.param) if e.param is not None else None
-        if option is None:
+        if option is None or getattr(e, "file", None) is not None:
             raise
         raise e.located(option) from None
 

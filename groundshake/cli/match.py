@@ -9,7 +9,8 @@ from pathlib import Path
 import numpy as np
 
 from .._cautions import CAUTIONS, SCREENING_NOTE
-from ._common import check_damping_percent, float_list, print_json, table
+from ._common import check_damping_percent, float_list, options_named, print_json, table
+from ._options import add_option
 from .._errors import GroundshakeWarning, InputError
 
 __all__ = ["register", "cmd_match"]
@@ -82,7 +83,10 @@ def cmd_match(args: argparse.Namespace) -> int:
     raws = read_records_from_args([src], args)
     records = _correct_all(raws, settings_from_args(args), args)
     results = []
-    with warnings.catch_warnings(record=True) as caught:
+    # the band and periods are in seconds here and in the library, so an error about them
+    # names its option; damping and tolerance are percent here and ratios there (checked above)
+    seconds = {k: v for k, v in args.option_of.items() if k in ("band", "periods")}
+    with warnings.catch_warnings(record=True) as caught, options_named(args, table=seconds):
         warnings.simplefilter("always", GroundshakeWarning)
         for rec in records:
             results.append(match_spectrum_report(
@@ -156,18 +160,12 @@ def register(subparsers, parents) -> None:
                     "(Al Atik & Abrahamson 2010) until its spectrum matches the target over the "
                     "band. Exit status 1 if the match does not converge.")
     p.add_argument("record", metavar="RECORD", help="record file (every trace is matched)")
-    p.add_argument("--target", required=True, action="append", metavar="SPEC",
-                   help="target spectrum: asce7:sds=G,sd1=G,tl=S (all three required; "
-                        "SDS, SD1 in g, TL in s), en1998:type=1|2,ground=A..E,ag=G"
-                        "[,damping=PCT], a CSV of period [s], PSA [g], or a CSMIP Volume 3 "
-                        "file FILE[:damping=PCT,channel=N] (the default band is clipped "
-                        "to a table's periods); once per damping")
-    p.add_argument("--damping", default="5", metavar="PCT",
-                   help="damping in percent, comma-separated to match several at once (default 5)")
+    add_option(p, "target", what="target spectrum, once per damping (the default band is "
+               "clipped to a table's periods)", required=True, repeat=True)
+    add_option(p, "damping", what=", matched at once")
     p.add_argument("--band", metavar="T1,T2", help="period band [s] (default 0.05,4; short end "
                    "at least 10·dt; within a target table's periods)")
-    p.add_argument("--periods", metavar="T,...", help="periods [s] to match (default 30 per "
-                   "decade over the band)")
+    add_option(p, "periods", what=" to match", default_text="30 per decade over the band")
     p.add_argument("--tolerance", type=float, default=5.0, metavar="PCT",
                    help="converged when max |PSA/target - 1| ≤ this, percent (default 5)")
     p.add_argument("--max-iterations", type=int, default=40, metavar="N",
@@ -184,9 +182,9 @@ def register(subparsers, parents) -> None:
     p.add_argument("--max-husid-change", type=float, default=d.max_husid_change, metavar="X",
                    help="acceptance: largest change of the normalised Husid curve, 0-1 "
                         f"(default {d.max_husid_change:g}, our choice)")
-    p.add_argument("-o", "--output", metavar="OUT", help="write the matched record: .mseed, "
-                   ".sac or .csv (m/s2)")
-    p.add_argument("--plot", metavar="PNG", help="plot spectra and acc/vel/disp before and after")
+    add_option(p, "output", metavar="OUT",
+               what="write the matched record: .mseed, .sac or .csv (m/s2)")
+    add_option(p, "plot", what="plot spectra and acc/vel/disp before and after")
     add_reading_options(p)
     add_processing_options(p)
     p.set_defaults(func=cmd_match)

@@ -16,9 +16,9 @@ import numpy as np
 
 from .._cautions import SCREENING_NOTE
 from ._common import options_named, print_json, table
+from ._options import add_option
 from .._errors import GroundshakeWarning, InputError
 from ..records._record import STANDARD_GRAVITY, Record
-from ..records._units import UNIT_NAMES
 
 __all__ = ["register", "add_reading_options", "add_processing_options", "settings_from_args",
            "distinct_names",
@@ -30,17 +30,12 @@ __all__ = ["register", "add_reading_options", "add_processing_options", "setting
 def add_reading_options(p: argparse.ArgumentParser) -> None:
     """Add ``--units``, ``--dt``, ``--resample`` and ``--inventory`` (how files are read)."""
     g = p.add_argument_group("reading")
-    g.add_argument("--units", metavar="U",
-                   help=f"units of files that do not state them: {UNIT_NAMES}")
-    g.add_argument("--dt", type=float, metavar="S",
-                   help="time step [s] of one-column text files")
+    add_option(g, "units")
+    add_option(g, "dt")
     g.add_argument("--resample", action="store_true",
                    help="put text files with uneven time steps on a uniform step "
                         "(linear interpolation at the median step)")
-    g.add_argument("--inventory", metavar="FILE",
-                   help="station inventory (StationXML) of records in raw counts (MiniSEED, "
-                        "SAC): the instrument sensitivity (accelerometers) or full response "
-                        "is removed")
+    add_option(g, "inventory")
 
 
 def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> None:
@@ -101,11 +96,12 @@ def read_records_from_args(paths, args: argparse.Namespace) -> list[Record]:
     from ..records._read import read_record
 
     out = []
-    for path in paths:
-        out.extend(read_record(path, units=getattr(args, "units", None),
-                               dt=getattr(args, "dt", None),
-                               resample=getattr(args, "resample", False),
-                               inventory=getattr(args, "inventory", None)))
+    with options_named(args):                  # an error about the units names --units
+        for path in paths:
+            out.extend(read_record(path, units=getattr(args, "units", None),
+                                   dt=getattr(args, "dt", None),
+                                   resample=getattr(args, "resample", False),
+                                   inventory=getattr(args, "inventory", None)))
     return distinct_names(out)
 
 
@@ -280,10 +276,10 @@ def register(subparsers, parents) -> None:
                     "Butterworth) and write the padded result in m/s²; the format follows "
                     "the extension of -o.")
     p.add_argument("record", metavar="RECORD", help="record file")
-    p.add_argument("-o", "--output", required=True, metavar="OUT",
-                   help="output file: .mseed, .sac or .csv")
-    p.add_argument("--plot", metavar="PNG", help="also plot acceleration, velocity and "
-                   "displacement before and after correction")
+    add_option(p, "output", required=True, metavar="OUT",
+               what="output file: .mseed, .sac or .csv")
+    add_option(p, "plot", what="also plot acceleration, velocity and displacement before and "
+               "after correction")
     add_reading_options(p)
     add_processing_options(p, raw=False)
     p.set_defaults(func=cmd_correct)

@@ -3,7 +3,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ._common import print_json
+from ._common import options_named, print_json
+from ._options import add_option
 from .._errors import InputError
 
 __all__ = ["register"]
@@ -16,9 +17,9 @@ def register(subparsers, parents) -> None:
         description="Copy the bundled example scenario (an invented transformer pad) and "
                     "the synthetic demo records into DIR, run it, and write the report to "
                     "DIR/results/report.html. Screening only.")
-    p.add_argument("-o", "--output", metavar="DIR", default="groundshake-demo",
-                   help="demo folder to create (default: ./groundshake-demo)")
-    p.add_argument("--force", action="store_true", help="replace the demo in DIR if it exists")
+    add_option(p, "output", metavar="DIR", default="groundshake-demo",
+               what="demo folder to create (default: ./groundshake-demo)")
+    add_option(p, "force", what="replace the demo in DIR if it exists")
     p.set_defaults(func=_demo)
 
     r = subparsers.add_parser(
@@ -27,10 +28,8 @@ def register(subparsers, parents) -> None:
         description="Rebuild DIR/report.html from the files a run wrote in DIR "
                     "(summary.json and the CSV tables).")
     r.add_argument("folder", metavar="DIR", help="output folder of `groundshake run`")
-    r.add_argument("--force", action="store_true", help="replace an existing report.html")
-    r.add_argument("--report-units", choices=("si", "us"), default=None,
-                   help="display units: si (kN, mm, MPa, g) or us (kip, in, psi, g); default "
-                        "the scenario's [report] units")
+    add_option(r, "force", what="replace an existing report.html")
+    add_option(r, "report_units")
     r.set_defaults(func=_report)
 
 
@@ -38,7 +37,8 @@ def _demo(args) -> int:
     from ..pipeline import run_demo
 
     quiet = bool(getattr(args, "quiet", False))
-    run = run_demo(args.output, force=bool(args.force), progress=not quiet)
+    with options_named(args, table={**args.option_of, "out_dir": args.option_of["output"]}):
+        run = run_demo(args.output, force=bool(args.force), progress=not quiet)
     s = run.summary
     if getattr(args, "json", False):
         print_json({"folder": str(run.folder), "scenario": str(run.scenario),

@@ -6,6 +6,7 @@ from pathlib import Path
 
 from .._cautions import SCREENING_NOTE
 from ._common import print_json, table
+from ._options import add_option
 from .._errors import InputError
 
 __all__ = ["register"]
@@ -19,21 +20,14 @@ def register(subparsers, parents) -> None:
                     "modes and the time history, and write summary.json, CSV tables and "
                     "report.html into DIR (SI units). Screening only.")
     p.add_argument("scenario", metavar="SCENARIO", help="scenario file (TOML)")
-    p.add_argument("-o", "--output", metavar="DIR", required=True,
-                   help="output folder to create")
-    p.add_argument("--force", action="store_true", help="replace DIR if it exists")
-    p.add_argument("--method", choices=("auto", "modal", "coupled", "direct", "spectrum"),
-                   default=None,
-                   help="override [analysis] method")
-    p.add_argument("--report-units", choices=("si", "us"), default=None,
-                   help="display units of report.html and of the table printed here: si (kN, "
-                        "mm, MPa, g; default) or us (kip, in, psi, g); overrides [report] units. "
-                        "Files stay SI")
+    add_option(p, "output", metavar="DIR", required=True, what="output folder to create")
+    add_option(p, "force", what="replace DIR if it exists")
+    add_option(p, "method", choices=("auto", "modal", "coupled", "direct", "spectrum"))
+    add_option(p, "report_units", what="report.html and of the table printed here",
+               default_text="si; overrides [report] units")
     p.add_argument("--no-report", action="store_true",
                    help="write summary.json and the CSV tables only (no report.html)")
-    p.add_argument("--inventory", metavar="FILE",
-                   help="station inventory (StationXML) of motion records in raw counts "
-                        "(replaces [motion] inventory)")
+    add_option(p, "inventory", what="the motion's records", note="replaces [motion] inventory")
     p.set_defaults(func=_run)
 
 

@@ -12,6 +12,7 @@ import numpy as np
 from .._atomic import atomic_write_text
 from .._cautions import CAUTIONS, SCREENING_NOTE
 from ._common import check_damping_percent, float_list, print_json, table
+from ._options import add_option
 from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
 from ..spectra._spectrum import SAMPLES_PER_PERIOD
@@ -336,23 +337,17 @@ def register(subparsers, parents) -> None:
         "spectrum", parents=parents,
         help="response spectra (SD, SV, SA, PSV, PSA), RotDnn, targets",
         description="Response spectra of records (corrected unless --raw), exact for "
-                    "piecewise-linear records. SI units in JSON and CSV.",
-        epilog="Targets: asce7:sds=G,sd1=G,tl=S | en1998:type=1|2,ground=A..E,ag=G"
-               "[,damping=PCT] | a CSV file of period [s], PSA [g] | a CSMIP Volume 3 "
-               "file FILE[:damping=PCT,channel=N] (its published PSA).")
+                    "piecewise-linear records. SI units in JSON and CSV.")
     p.add_argument("records", nargs="+", metavar="RECORD", help="record files")
-    p.add_argument("--damping", default="5", metavar="PCT",
-                   help="damping in percent, comma-separated (default 5)")
-    p.add_argument("--periods", metavar="S", help="periods [s], comma-separated "
-                   "(default: 100 log-spaced from 0.01 to 10 s)")
+    add_option(p, "damping")
+    add_option(p, "periods", default_text="100 log-spaced from 0.01 to 10 s")
     p.add_argument("--rotd", metavar="NN", help="also RotDnn of the horizontal records taken "
                    "in pairs, e.g. 50,100 (and GMRotD50)")
-    p.add_argument("--target", metavar="SPEC", help="target spectrum to compare with")
+    add_option(p, "target", what="target spectrum to compare with")
     p.add_argument("--no-interpolation", action="store_true",
                    help="do not Fourier-interpolate records for periods below 10·dt")
-    p.add_argument("-o", "--output", metavar="CSV", help="write the spectra as a CSV table")
-    p.add_argument("--plot", metavar="PNG", help="plot PSA (linear, log) and a four-way log "
-                   "plot (.png, .pdf or .svg)")
+    add_option(p, "output", metavar="CSV", what="write the spectra as a CSV table")
+    add_option(p, "plot", what="plot PSA (linear, log) and a four-way log plot")
     add_reading_options(p)
     add_processing_options(p)
     p.set_defaults(func=cmd_spectrum)

@@ -3,7 +3,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ._common import print_json, table
+from ._common import options_named, print_json, table
+from ._options import add_option
 from .._errors import InputError
 from .._progress import Progress
 
@@ -22,24 +23,19 @@ def register(subparsers, parents) -> None:
     p.add_argument("scenario", metavar="SCENARIO", help="scenario file (TOML)")
     p.add_argument("--records", required=True, metavar="DIR|GLOB|MANIFEST.csv",
                    help="a folder, a glob pattern (quote it) or a manifest CSV")
-    p.add_argument("--units", default=None, help="units of records that do not state them "
-                   "(g, m/s2, cm/s2, mm/s2, ft/s2, in/s2)")
-    p.add_argument("--dt", type=float, default=None, metavar="S",
-                   help="time step [s] of one-column text records")
+    add_option(p, "units", what="records")
+    add_option(p, "dt", what="records")
     grp = p.add_mutually_exclusive_group()
     grp.add_argument("--workers", type=int, default=None, metavar="N",
                      help="local worker processes (default: the CPU count)")
     grp.add_argument("--scheduler", default=None, metavar="ADDRESS",
                      help="dask.distributed scheduler address, e.g. tcp://10.0.0.5:8786")
-    p.add_argument("--method", choices=("auto", "modal", "coupled", "direct"), default=None,
-                   help="override [analysis] method")
-    p.add_argument("--target", default=None, metavar="SPEC",
-                   help="target spectrum drawn with the ground-spectra band")
-    p.add_argument("--scale-to", default=None, metavar="TARGET",
-                   help="scale each record set to this target spectrum before it runs "
-                        "(asce7:..., en1998:... or a CSV of period [s], PSA [g]); the results "
-                        "are then combined by the rule: the mean with 7 or more sets, else the "
-                        "maximum. Overrides [suite] scale_to")
+    add_option(p, "method", choices=("auto", "modal", "coupled", "direct"))
+    add_option(p, "target", what="target spectrum drawn with the ground-spectra band")
+    p.add_argument("--scale-to", default=None, metavar="SPEC",
+                   help="scale each record set to this target spectrum (the forms of --target) "
+                        "before it runs; the results are then combined by the rule: the mean "
+                        "with 7 or more sets, else the maximum. Overrides [suite] scale_to")
     p.add_argument("--scale-rule", choices=("asce7-16", "asce7-10", "en1998"), default=None,
                    help="period band, share of the target and horizontal spectrum of the "
                         "scaling (default asce7-16; from memory of the standards, verify)")
@@ -59,11 +55,9 @@ def register(subparsers, parents) -> None:
                    help="times a set is run again after its worker was lost (default 2)")
     p.add_argument("--resume", action="store_true",
                    help="keep finished records in DIR and run only the rest")
-    p.add_argument("--report-units", choices=("si", "us"), default=None,
-                   help="display units of suite.html: si (kN, mm, MPa, g) or us (kip, in, psi, "
-                        "g); default the scenario's [report] units. Files stay SI")
-    p.add_argument("--force", action="store_true", help="write into an existing DIR")
-    p.add_argument("-o", "--output", required=True, metavar="DIR", help="output folder")
+    add_option(p, "report_units", what="suite.html")
+    add_option(p, "force", what="write into an existing DIR")
+    add_option(p, "output", required=True, metavar="DIR", what="output folder")
     p.set_defaults(func=_suite)
 
 
@@ -92,19 +86,23 @@ def _suite(args) -> int:
     comps = tuple(scenario.motion.components()) if scenario.motion is not None else ("x", "y", "z")
     if args.dt is not None and not args.dt > 0:
         raise InputError(f"--dt {args.dt}: must be > 0")
-    scaling = _scaling_of(args, scenario)
-    sets = discover_record_sets(args.records, components=comps, units=args.units, dt=args.dt)
+    with options_named(args):              # an error about an option's value names it
+        scaling = _scaling_of(args, scenario)
+        sets = discover_record_sets(args.records, components=comps, units=args.units,
+                                    dt=args.dt)
     quiet = bool(getattr(args, "quiet", False))
     bar = Progress("records", total=len(sets)) if not quiet else None
     if bar is not None:
         bar.enabled = bar.enabled and not quiet
         bar.__enter__()
     try:
-        result = run_suite(scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
-                           resume=args.resume, method=args.method,
-                           set_timeout="auto" if args.set_timeout is None else args.set_timeout,
-                           retries=args.retries, scaling=scaling,
-                           on_result=(lambda r: bar.advance()) if bar is not None else None)
+        with options_named(args):
+            result = run_suite(
+                scenario, sets, out, workers=args.workers, scheduler=args.scheduler,
+                resume=args.resume, method=args.method,
+                set_timeout="auto" if args.set_timeout is None else args.set_timeout,
+                retries=args.retries, scaling=scaling,
+                on_result=(lambda r: bar.advance()) if bar is not None else None)
     finally:
         if bar is not None:
             bar.__exit__(None, None, None)
@@ -130,8 +128,10 @@ def _suite(args) -> int:
 def _scaling_of(args, scenario):
     """The scaling asked for: the command line's options over the scenario's ``[suite]``."""
     from ..pipeline import SuiteScaling
+    from ..scenario import errors_at_key
 
-    base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
+    with errors_at_key(scenario, ("suite",)):      # a bad [suite] value names its key
+        base = SuiteScaling.from_settings(getattr(scenario, "suite", None))
     options = (args.scale_rule, args.scale_mode, args.scale_range, args.scale_period)
     if args.scale_to is None and base is None:
         if any(v is not None for v in options):

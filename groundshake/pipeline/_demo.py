@@ -72,9 +72,11 @@ def run_demo(out_dir: str | Path = "groundshake-demo", *, force: bool = False,
     """
     out = Path(out_dir)
     if out.exists() and not out.is_dir():
-        raise InputError(f"-o {out}: exists and is not a folder")
+        raise InputError(f"{out} exists and is not a folder; allowed a folder to create",
+                         param="out_dir")
     if out.exists() and any(out.iterdir()) and not force:
-        raise InputError(f"-o {out}: already exists; use --force to replace the demo in it")
+        raise InputError(f"{out} already exists; give it to replace the demo in it",
+                         param="force")
     scen = out / "examples" / DEMO_SCENARIO
     atomic_write_text(scen, example_scenario_text())
     make_demo_records(out / "records")

@@ -54,8 +54,8 @@ def build_motion(scenario: Scenario | dict) -> Motion:
     raw: dict[str, Any] = {}
     used: dict[str, Any] = {}
     for d, spec in (motion.components() if motion is not None else {}).items():
-        recs = read_record(spec.file, units=spec.units, dt=spec.dt, inventory=motion.inventory)
         with errors_at_key(scenario, ("motion", d)):     # names the scenario file and key
+            recs = read_record(spec.file, units=spec.units, dt=spec.dt, inventory=motion.inventory)
             rec = pick_component(recs, trace=spec.trace, channel=spec.channel,
                                  azimuth=spec.azimuth, where=f"motion.{d}")
         scale = float(spec.scale)

@@ -48,6 +48,18 @@ BAND_PERIODS = 40
 
 _MODES = {"record": "each", "set": "set"}
 
+#: Each scaling setting's name (a key of a scenario's ``[suite]`` table and the ``dest`` of
+#: its command-line option) → the option, shown in front of an error no caller has located.
+SCALING_OPTIONS = {"scale_to": "--scale-to", "scale_rule": "--scale-rule",
+                   "scale_mode": "--scale-mode", "scale_range": "--scale-range",
+                   "scale_period": "--scale-period"}
+
+
+def _scaling_error(message: str, setting: str, value: Any = None) -> InputError:
+    """An error about one scaling setting: ``param`` is the setting (the scenario loader and
+    the command line put their own location in front); shown at its option otherwise."""
+    return InputError(message, param=setting, value=value, where=SCALING_OPTIONS[setting])
+
 
 @dataclass(frozen=True)
 class SuiteScaling:
@@ -78,24 +90,27 @@ class SuiteScaling:
 
     def __post_init__(self) -> None:
         if not isinstance(self.target, str) or not self.target.strip():
-            raise InputError(f"--scale-to: given {self.target!r}; allowed a target spec "
-                             "(asce7:..., en1998:...) or a CSV of period [s], PSA [g]")
+            raise _scaling_error(f"given {self.target!r}; allowed a target spec (asce7:..., "
+                                 "en1998:...) or a CSV of period [s], PSA [g]", "scale_to",
+                                 self.target)
         if self.rule not in SCALING_RULES:
-            raise InputError(f"--scale-rule: given {self.rule!r}; allowed "
-                             + ", ".join(SCALING_RULES))
+            raise _scaling_error(f"given {self.rule!r}; allowed " + ", ".join(SCALING_RULES),
+                                 "scale_rule", self.rule)
         if self.mode not in _MODES:
-            raise InputError(f"--scale-mode: given {self.mode!r}; allowed record, set")
+            raise _scaling_error(f"given {self.mode!r}; allowed record, set", "scale_mode",
+                                 self.mode)
         try:
             lo, hi = (float(v) for v in self.limits)
         except (TypeError, ValueError):
-            raise InputError(f"--scale-range: given {self.limits!r}; allowed two numbers "
-                             "LOW,HIGH with 0 < LOW < HIGH") from None
+            raise _scaling_error(f"given {self.limits!r}; allowed two numbers LOW,HIGH with "
+                                 "0 < LOW < HIGH", "scale_range", self.limits) from None
         if not (math.isfinite(lo) and math.isfinite(hi) and 0 < lo < hi):
-            raise InputError(f"--scale-range: given {lo:g},{hi:g}; allowed two numbers "
-                             "LOW,HIGH with 0 < LOW < HIGH")
+            raise _scaling_error(f"given {lo:g},{hi:g}; allowed two numbers LOW,HIGH with "
+                                 "0 < LOW < HIGH", "scale_range", self.limits)
         object.__setattr__(self, "limits", (lo, hi))
         if self.period is not None and not (math.isfinite(self.period) and self.period > 0):
-            raise InputError(f"--scale-period: given {self.period!r}; allowed a period > 0 [s]")
+            raise _scaling_error(f"given {self.period!r}; allowed a period > 0 [s]",
+                                 "scale_period", self.period)
 
     def to_dict(self) -> dict:
         return {"target": self.target, "rule": self.rule, "mode": self.mode,
@@ -115,8 +130,8 @@ def fundamental_period(periods: np.ndarray) -> float:
     p = np.asarray(periods, dtype=float)
     p = p[np.isfinite(p) & (p > 0)]
     if p.size == 0:
-        raise InputError("scaling: the model has no mode to take the fundamental period from; "
-                         "give --scale-period")
+        raise _scaling_error("the model has no mode to take the fundamental period from; "
+                             "give the period", "scale_period")
     return float(np.max(p))
 
 
@@ -206,25 +221,28 @@ def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling
     """
     motion = getattr(scenario, "motion", None)
     if motion is not None and getattr(motion, "match_target", False):
-        raise InputError("--scale-to: [motion] match_target = true would replace the scaled "
-                         "amplitudes by matched ones; set it false or leave out --scale-to")
+        raise _scaling_error("[motion] match_target = true would replace the scaled amplitudes "
+                             "by matched ones; set it false or scale to no target", "scale_to",
+                             scaling.target)
     try:
         target = parse_target(scaling.target, base_dir=getattr(scenario, "base_dir", None))
     except GroundshakeError as e:
-        raise InputError(f"--scale-to {scaling.target}: {e}") from None
+        raise _scaling_error(f"{scaling.target}: {e}", "scale_to", scaling.target) from None
     if scaling.period is not None:
         T, period_from = float(scaling.period), "given"
     else:
         if mode_periods is None:
-            raise InputError("scaling: give --scale-period (no modes to take it from)")
+            raise _scaling_error("no modes to take the fundamental period from; give the "
+                                 "period", "scale_period")
         T, period_from = fundamental_period(mode_periods), "the model's first mode"
     a, b, share, source = SCALING_RULES[scaling.rule]
     periods = np.geomspace(a * T, b * T, BAND_PERIODS)
     tgt = np.asarray(target.psa(periods), dtype=float)
     if not np.all(np.isfinite(tgt) & (tgt > 0)):
-        raise InputError(f"--scale-to {scaling.target}: the target is not defined (or is zero) "
-                         f"over the band {periods[0]:.3g}–{periods[-1]:.3g} s ({a:g}T to {b:g}T, "
-                         f"T = {T:.3g} s); give a target that covers it")
+        raise _scaling_error(f"{scaling.target}: the target is not defined (or is zero) over "
+                             f"the band {periods[0]:.3g}–{periods[-1]:.3g} s ({a:g}T to {b:g}T, "
+                             f"T = {T:.3g} s); give a target that covers it", "scale_to",
+                             scaling.target)
     readable: list[RecordSet] = []
     failed: list[dict] = []
     spectra = []

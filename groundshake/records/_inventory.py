@@ -51,12 +51,13 @@ def load_inventory(path) -> Any:
 
     p = Path(path)
     if not p.is_file():
-        raise RecordError(f"{p}: no such inventory file (StationXML expected)")
+        raise RecordError(f"{p}: no such inventory file (StationXML expected)",
+                          param="inventory")
     try:
         return obspy.read_inventory(str(p))
     except Exception as e:  # ObsPy raises many kinds here
         raise RecordError(f"{p}: not a station inventory ObsPy can read (StationXML expected): "
-                          f"{type(e).__name__}: {e}") from e
+                          f"{type(e).__name__}: {e}", param="inventory") from e
 
 
 def apply_inventory(stream, inventory, *, where: str, inventory_name: str = "inventory"):
@@ -95,7 +96,7 @@ def apply_inventory(stream, inventory, *, where: str, inventory_name: str = "inv
         except Exception as e:
             raise RecordError(f"{where}: trace {tr.id} has no response in {inventory_name} at "
                               f"{when.isoformat()} ({e}); give the inventory of this station "
-                              f"and channel") from e
+                              f"and channel", param="inventory") from e
         sens = getattr(response, "instrument_sensitivity", None)
         value = float(getattr(sens, "value", 0.0) or 0.0)
         input_units = str(getattr(sens, "input_units", "") or "").strip().upper()
@@ -141,7 +142,7 @@ def check_not_counts(data: np.ndarray, raw_dtype: np.dtype, factor_to_si: float,
     Raises
     ------
     RecordError
-        Naming the file, the peak and suggesting ``--inventory``.
+        Naming the file and the peak, with ``param="inventory"`` (an inventory is needed).
     """
     if np.dtype(raw_dtype).kind not in "iu" or data.size == 0:
         return
@@ -149,5 +150,5 @@ def check_not_counts(data: np.ndarray, raw_dtype: np.dtype, factor_to_si: float,
     if peak > COUNTS_PEAK:
         raise RecordError(f"{label}: integer samples peaking at {peak / STANDARD_GRAVITY:.3g} g "
                           f"when read as {units}: these look like raw counts; give the station's "
-                          f"inventory (--inventory FILE.xml, StationXML; 'inventory' in the "
-                          f"scenario's [motion]) to turn them into acceleration")
+                          f"inventory (StationXML) to turn them into acceleration",
+                          param="inventory")

@@ -97,11 +97,12 @@ def read_record(path, *, units: str | None = None, dt: float | None = None,
         raise RecordError(f"{where}: cannot be read ({e.strerror or e})") from e
     if len(head) <= 1 << 16 and not head.strip():
         raise RecordError(f"{where}: the file is empty")
-    user_units = None if units is None else canonical_units(units, where=f"{where}: units")
+    user_units = None if units is None else canonical_units(units, where=where, param="units")
     if dt is not None:
         dt = float(dt)
         if not (math.isfinite(dt) and dt > 0):
-            raise RecordError(f"{where}: dt={dt!r} must be a finite number > 0")
+            raise RecordError(f"{where}: given {dt!r}; allowed a finite time step > 0 [s]",
+                              param="dt", value=dt)
     if inventory is not None:
         _check_inventory_applies(path)
     records = _read_with_registry(path, units=user_units, dt=dt, resample=resample,
@@ -122,7 +123,7 @@ def _check_inventory_applies(path: Path) -> None:
     if module is not None and "inventory" not in inspect.signature(module.read).parameters:
         raise RecordError(f"{path}: an inventory was given but this {module.FORMAT} file holds "
                           f"accelerations already; an inventory goes with raw counts (MiniSEED, "
-                          f"SAC, ...)")
+                          f"SAC, ...)", param="inventory")
 
 
 def _warn_if_implausible(rec: Record) -> None:

@@ -42,7 +42,7 @@ def _squash(text: str) -> str:
     return t
 
 
-def canonical_units(text: str, *, where: str = "units") -> str:
+def canonical_units(text: str, *, where: str = "units", param: str | None = None) -> str:
     """The canonical name of a unit of acceleration.
 
     Parameters
@@ -50,7 +50,10 @@ def canonical_units(text: str, *, where: str = "units") -> str:
     text : str
         A unit as written, e.g. ``"gal"``, ``"m/s^2"``, ``"G"``, ``"cm/s²"``.
     where : str
-        What to name in the error message (file, option or key).
+        What to name in the error message (file, header or column).
+    param : str, optional
+        The parameter that gave ``text`` (``"units"`` for a user's units), carried by the
+        error so that callers name their option or key.
 
     Returns
     -------
@@ -66,7 +69,8 @@ def canonical_units(text: str, *, where: str = "units") -> str:
     try:
         return _ALIASES[key]
     except KeyError:
-        raise RecordError(f"{where}: unknown units {text!r}; allowed: {UNIT_NAMES}") from None
+        raise RecordError(f"{where}: unknown units {text!r}; allowed: {UNIT_NAMES}",
+                          param=param) from None
 
 
 def to_si_factor(units: str) -> float:

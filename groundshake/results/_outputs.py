@@ -73,7 +73,7 @@ def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = Fals
     """
     out_dir = Path(out_dir)
     if out_dir.exists() and not overwrite:
-        raise FileExistsError(17, "already exists (use --force to replace it)", str(out_dir))
+        raise FileExistsError(17, "already exists; not replaced (overwrite is off)", str(out_dir))
     rot = rotational_participation(results.model, results.modes)
     summary = _summary_with_contract(results.summary, rot)
     with atomic_directory(out_dir, overwrite=overwrite) as tmp:

@@ -129,10 +129,11 @@ def errors_at_key(scenario, path: tuple):
     ``("processing",)``): an :class:`~groundshake.InputError` raised inside becomes a
     :class:`~groundshake.ScenarioError` naming the scenario file, line and key.
 
-    An error whose ``param`` is a key of that table is shown at that key
-    (``case.toml:14: motion.x.trace: given 5; allowed 0..2 ...``); any other at ``path``
-    itself. Errors that already name a scenario file, and every error of a scenario
-    without a source file, pass unchanged.
+    An error whose ``param`` is a key of that table, or else of a table that encloses it,
+    is shown at that key (``case.toml:14: motion.x.trace: given 5; allowed 0..2 ...``,
+    ``motion.inventory`` for an error of ``("motion", "x")`` about the inventory); any other
+    at ``path`` itself. Errors that already name a scenario file, and every error of a
+    scenario without a source file, pass unchanged.
     """
     try:
         yield
@@ -146,7 +147,11 @@ def errors_at_key(scenario, path: tuple):
             raise ctx.located(e, full) from None
         if not path:
             raise
-        raise ctx.keyed(e, tuple(path), table_keys(path)) from None
+        path = tuple(path)
+        for n in range(len(path), 0, -1):          # this table's key, else an enclosing one's
+            if e.param is not None and e.param in table_keys(path[:n]):
+                raise ctx.located(e, path[:n] + (e.param,)) from None
+        raise ctx.keyed(e, path) from None
 
 
 def located_at(scenario, path: tuple, err: InputError) -> InputError:

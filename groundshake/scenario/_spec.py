@@ -16,7 +16,8 @@ import warnings
 from pathlib import Path
 from typing import Any
 
-from .._errors import GroundshakeError, GroundshakeWarning, InputError, ScenarioError
+from .._errors import (GroundshakeError, GroundshakeWarning, InputError, RecordError,
+                       ScenarioError, ScenarioRecordError)
 from ..processing._settings import value_type
 from ._lines import key_lines, line_of
 from ._types import Scenario
@@ -79,7 +80,8 @@ class _Context:
         as a :class:`ScenarioError` that keeps its ``param`` and ``value`` and gains
         ``key``, ``line`` and ``file``."""
         key = format_path(path)
-        return err.located(f"{self.where(path)}: {key}", cls=ScenarioError, key=key,
+        cls = ScenarioRecordError if isinstance(err, RecordError) else ScenarioError
+        return err.located(f"{self.where(path)}: {key}", cls=cls, key=key,
                            line=line_of(self.lines, path), file=self.source)
 
     def keyed(self, err: GroundshakeError, path: tuple, params=()) -> ScenarioError:

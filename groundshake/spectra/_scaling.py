@@ -116,12 +116,13 @@ def scale_to_target(psa: np.ndarray, periods: np.ndarray, target_psa: np.ndarray
         Unknown rule or mode, a band with no periods, or spectra that are zero in it.
     """
     if rule not in SCALING_RULES:
-        raise InputError(f"scaling rule: given {rule!r}; allowed "
-                         + ", ".join(repr(r) for r in SCALING_RULES))
+        raise InputError(f"given {rule!r}; allowed "
+                         + ", ".join(repr(r) for r in SCALING_RULES), param="rule", value=rule)
     if mode not in ("set", "each"):
-        raise InputError(f"scaling mode: given {mode!r}; allowed 'set', 'each'")
+        raise InputError(f"given {mode!r}; allowed 'set', 'each'", param="mode", value=mode)
     if not (math.isfinite(period) and period > 0):
-        raise InputError(f"scaling: period={period!r}; allowed a number > 0 [s]")
+        raise InputError(f"given {period!r}; allowed a number > 0 [s]", param="period",
+                         value=period)
     a, b, share, source = SCALING_RULES[rule]
     band = (a * period, b * period)
     T = np.asarray(periods, dtype=float)
@@ -131,7 +132,7 @@ def scale_to_target(psa: np.ndarray, periods: np.ndarray, target_psa: np.ndarray
     if not np.any(sel):
         raise InputError(f"scaling: no period between {band[0]:.3g} and {band[1]:.3g} s "
                          f"({rule}: {a:g}T to {b:g}T for T = {period:g} s); give periods "
-                         "that cover the band")
+                         "that cover the band", param="periods")
     Sb, tb = S[:, sel], tgt[sel]
     if np.any(~(Sb > 0)) or np.any(~(tb > 0)):
         raise InputError("scaling: spectra and target must be > 0 over the band")

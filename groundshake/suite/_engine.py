@@ -128,8 +128,8 @@ def _one_line(e: BaseException) -> str:
 
 
 def _timeout_text(limit: float) -> str:
-    return (f"stopped at the set time limit of {limit:.0f} s (--set-timeout; the default "
-            "grows with the model size and the record length)")
+    return (f"stopped at the set time limit of {limit:.0f} s (a limit that can be given; "
+            "its default grows with the model size and the record length)")
 
 
 class _Alarm:
@@ -226,7 +226,8 @@ def run_tasks(fn: TaskFn, shared: Mapping[str, Any], items: Sequence[Mapping[str
         return
     n = (os.cpu_count() or 1) if workers is None else int(workers)
     if n < 1:
-        raise InputError(f"--workers {workers}: must be >= 1")
+        raise InputError(f"given {workers}; allowed an integer >= 1", param="workers",
+                         value=workers)
     if n == 1 or len(items) <= 1:
         report.name, report.workers = "in-process", 1
         for item, limit in zip(items, limits):
@@ -520,12 +521,14 @@ def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator
     try:
         from distributed import Client, wait
     except ImportError:
-        raise InputError("--scheduler needs dask.distributed: pip install 'groundshake[cluster]'") from None
+        raise InputError("needs dask.distributed: pip install 'groundshake[cluster]'",
+                         param="scheduler") from None
     own = isinstance(scheduler, str)
     try:
         client = Client(scheduler, timeout="20s") if own else scheduler
     except (OSError, TimeoutError) as e:
-        raise InputError(f"--scheduler {scheduler}: cannot connect ({e})") from None
+        raise InputError(f"cannot connect to {scheduler} ({e})", param="scheduler",
+                         value=scheduler) from None
     run_id = uuid.uuid4().hex[:12]
     topic = f"groundshake-suite-{run_id}"
     started: dict[int, tuple[float, str]] = {}     # index → (monotonic time, worker)
@@ -617,7 +620,8 @@ def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator
                 if scatters > retries + 1:
                     raise SuiteStalled(f"suite: the cluster lost the shared model {scatters} "
                                        f"times; {len(lost) + len(futures)} set(s) not run "
-                                       "(finished sets are kept; use --resume)")
+                                       "(finished sets are kept; resuming the suite runs "
+                                       "the rest)")
                 log.warning("suite: the cluster lost the shared model; scattering it again "
                             "and resubmitting %d set(s)", len(lost))
                 scatter()
@@ -645,12 +649,14 @@ def _run_dask(fn, shared, items, limits, scheduler, retries, report) -> Iterator
             if futures and client.status in ("closing", "closed", "failed"):
                 raise SuiteStalled(f"suite: lost the connection to the Dask scheduler "
                                    f"{report.scheduler}; {len(futures)} set(s) not run "
-                                   "(finished sets are kept; use --resume)")
+                                   "(finished sets are kept; resuming the suite runs the "
+                                   "rest)")
             if silence is not None and futures and now - last_news[0] > silence:
                 raise SuiteStalled(
                     f"suite: the Dask scheduler {report.scheduler} gave no result and started "
                     f"no set for {now - last_news[0]:.0f} s (longer than any set may take); "
-                    f"{len(futures)} set(s) not run (finished sets are kept; use --resume)")
+                    f"{len(futures)} set(s) not run (finished sets are kept; resuming the "
+                    "suite runs the rest)")
         with lock:      # a set run again: started twice (lost worker) or resubmitted
             report.retries += sum(max(0, max(a, b) - 1) for a, b in zip(starts, submitted))
     finally:

@@ -110,7 +110,8 @@ def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario,
     if set_timeout != "auto":
         value = float(set_timeout)
         if not math.isfinite(value) or value < 0:
-            raise InputError(f"--set-timeout {set_timeout}: give seconds > 0 (0: no limit)")
+            raise InputError(f"given {set_timeout}; allowed seconds > 0 (0: no limit)",
+                             param="set_timeout", value=set_timeout)
         return [value] * len(sets)
     n_dof = int(shared.get("n_dof") or 0) or int(shared["model"]["fields"]["K"]["shape"][0])
     how = method or getattr(getattr(scenario, "analysis", None), "method", "modal")

@@ -38,10 +38,10 @@ def check_units(file_units: str, user_units: str | None, path: Path, fmt: str) -
     """Refuse ``user_units`` (any spelling; None: not given) other than ``file_units``."""
     if user_units is None:
         return
-    given = canonical_units(user_units, where=f"{path}: units")
+    given = canonical_units(user_units, where=str(path), param="units")
     if given != file_units:
         raise RecordError(f"{path}: units {given} were given but the {fmt} header says "
-                          f"{file_units}; drop --units or fix the file")
+                          f"{file_units}; drop them or fix the file", param="units")
 
 
 def make_record(values: np.ndarray, *, factor: float, file_units: str, dt: float, path: Path,

@@ -61,17 +61,17 @@ def resolve_units(file_units: str | None, user_units: str | None, label: str) ->
     """The units of a trace: the file's, checked against the user's; one of them is needed."""
     if file_units is not None and user_units is not None and file_units != user_units:
         raise RecordError(f"{label}: the file states units {file_units} but {user_units} was "
-                          f"given; drop the units option or fix the file")
+                          f"given; drop the units option or fix the file", param="units")
     found = file_units or user_units
     if found is None:
-        raise RecordError(f"{label}: the file does not state its units; give them "
-                          f"(--units, or 'units' in the scenario): {UNIT_NAMES}")
+        raise RecordError(f"{label}: the file does not state its units; give them: "
+                          f"{UNIT_NAMES}", param="units")
     return found
 
 
 def user_units(units: str | None, where: str) -> str | None:
     """The canonical name of a units option (None stays None)."""
-    return None if units is None else canonical_units(units, where=f"{where}: units")
+    return None if units is None else canonical_units(units, where=str(where), param="units")
 
 
 def check_samples(data: np.ndarray, label: str) -> None:
@@ -129,20 +129,22 @@ class FormatError(RecordError):
     """
 
     def __init__(self, fmt: str, path: Path | str, what: str, line: int | None = None,
-                 text: str | None = None, *, part: str = "line"):
+                 text: str | None = None, *, part: str = "line", param: str | None = None):
         self.fmt, self.path, self.what = fmt, str(path), what
         self.line, self.text, self.part = line, text, part
         where = f" ({part} {line}: {text.strip()[:60]!r})" if line is not None and text is not None \
             else (f" ({part} {line})" if line is not None else "")
-        super().__init__(f"{fmt} file {path}: {what}{where}")
+        super().__init__(f"{fmt} file {path}: {what}{where}", param=param)
 
     def __reduce__(self):
         return (_rebuild_format_error, (self.fmt, self.path, self.what, self.line, self.text,
-                                        self.part))
+                                        self.part, self.param, self.where))
 
 
-def _rebuild_format_error(fmt, path, what, line, text, part):
-    return FormatError(fmt, path, what, line, text, part=part)
+def _rebuild_format_error(fmt, path, what, line, text, part, param=None, where=None):
+    err = FormatError(fmt, path, what, line, text, part=part, param=param)
+    err.where = where
+    return err
 
 
 def looks_binary(head: bytes) -> bool:

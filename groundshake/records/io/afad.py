@@ -120,7 +120,7 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
         file_units, factor = units_factor(units, fmt=FORMAT, path=path)
     else:
         raise FormatError(FORMAT, path, "the header states no units (no 'PGA VALUES (unit)' "
-                          "line); give them (--units)")
+                          "line); give them", param="units")
     rows = [ln for ln in lines[first:] if ln.strip()]
     try:
         table = np.array(" ".join(rows).split(), dtype=float)

@@ -92,7 +92,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     unit = get("amplitudeunit")
     if unit is None:
         if units is None:
-            raise FormatError(FORMAT, path, "no '#AmplitudeUnit:' line; give the units (--units)")
+            raise FormatError(FORMAT, path, "no '#AmplitudeUnit:' line; give the units",
+                              param="units")
         file_units, factor = units_factor(units, fmt=FORMAT, path=path)
     else:
         word = re.split(r"[\s.,;]+", unit[0].strip())[0]  # "gal. DCoffset(corr)"

@@ -227,9 +227,8 @@ def _records_from_stream(stream, path: Path, user_units: str | None,
         file_units, scale, note = _file_units_and_scale(tr)
         if file_units is None and user_units is None and raw_dtype.kind in "iu":
             raise RecordError(f"{label}: integer samples and no units in the file: raw counts, "
-                              f"most likely; give the station's inventory (--inventory "
-                              f"FILE.xml, StationXML) or, if they are accelerations, their "
-                              f"units (--units)")
+                              f"most likely; give the station's inventory (StationXML) or, if "
+                              f"they are accelerations, their units", param="inventory")
         rec_units = resolve_units(file_units, user_units, label)
         if file_units is None:
             check_not_counts(data, raw_dtype, UNITS[rec_units], label=label, units=rec_units)

@@ -206,8 +206,8 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
         names = [header[0]] if header else [""]
         step = dt if dt is not None else header_dt
         if step is None:
-            raise RecordError(f"{where}: one column of values needs a time step: give dt "
-                              f"(--dt) or a '# dt: ...' header line")
+            raise RecordError(f"{where}: one column of values needs a time step: give it, "
+                              f"or write a '# dt: ...' header line", param="dt")
         if dt is not None and header_dt is not None and not math.isclose(dt, header_dt,
                                                                          rel_tol=1e-6):
             raise RecordError(f"{where}: dt={dt:g} s was given but the header says {header_dt:g} s")
@@ -236,8 +236,8 @@ def _read_text(text: str, path: Path, user_units: str | None, dt: float | None,
                     raise RecordError(
                         f"{where}:{lines[worst + 1]}: time step {steps[worst]:g} s differs from "
                         f"the median {med:g} s by {100 * spread[worst]:.1f} % (more than 1 %); "
-                        f"use --resample (read_record(..., resample=True)) to interpolate "
-                        f"onto a uniform step")
+                        f"ask for resampling to interpolate onto a uniform step",
+                        param="resample")
                 n_new = int(np.floor((time[-1] - time[0]) / med + 1e-9)) + 1
                 grid = time[0] + med * np.arange(n_new)
                 acc_cols = [np.interp(grid, time, a) for a in acc_cols]

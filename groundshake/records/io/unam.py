@@ -115,7 +115,8 @@ def read(path: Path, *, units: str | None = None, dt: float | None = None) -> li
     elif units is not None:
         file_units, factor = units_factor(units, fmt=FORMAT, path=path)
     else:
-        raise FormatError(FORMAT, path, "no 'UNIDADES DE LOS DATOS' line; give the units (--units)")
+        raise FormatError(FORMAT, path, "no 'UNIDADES DE LOS DATOS' line; give the units",
+                          param="units")
     check_units(file_units, units, path, FORMAT)
     for step in step_values:
         check_dt(dt, step, path, f"the {FORMAT} header", fmt=FORMAT, path=path)
