@@ -38,6 +38,31 @@ def add_reading_options(p: argparse.ArgumentParser) -> None:
     add_option(g, "inventory")
 
 
+def _setting(name: str):
+    import dataclasses
+
+    from ..processing._settings import ProcessingSettings
+
+    return next(f for f in dataclasses.fields(ProcessingSettings) if f.name == name)
+
+
+def _about(name: str, *, none_text: bool | None = None) -> str:
+    """``default X`` of a ProcessingSettings field, and ``0 for none`` where 0 means no
+    such step (``none_text`` forces that part on or off)."""
+    f = _setting(name)
+    d = f.default
+    parts = ["default none" if d is None else f"default {d:g}"]
+    if f.metadata.get("zero_means_none") if none_text is None else none_text:
+        parts.append("0 for none")
+    return "; ".join(parts)
+
+
+def _limits(name: str) -> str:
+    """``LO-HI`` of a field whose metadata bounds it on both sides."""
+    meta = _setting(name).metadata
+    return f"{meta['ge']:g}-{meta['le']:g}"
+
+
 def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> None:
     """Add the correction options (defaults: published practice).
 
@@ -49,15 +74,16 @@ def add_processing_options(p: argparse.ArgumentParser, *, raw: bool = True) -> N
         g.add_argument("--raw", action="store_true",
                        help="use each record exactly as read (no correction)")
     g.add_argument("--highpass", dest="highpass_hz", type=float, metavar="HZ",
-                   help="low-cut corner [Hz] (default 0.1; 0 for none)")
+                   help=f"low-cut corner [Hz] ({_about('highpass_hz')})")
     g.add_argument("--lowpass", dest="lowpass_hz", type=float, metavar="HZ",
-                   help="high-cut corner [Hz] (default none)")
+                   help=f"high-cut corner [Hz] ({_about('lowpass_hz', none_text=False)})")
     g.add_argument("--order", dest="filter_order", type=int, metavar="N",
-                   help="Butterworth order of each pass (default 4)")
+                   help=f"Butterworth order of each pass ({_about('filter_order')})")
     g.add_argument("--baseline-order", dest="baseline_order", type=int, metavar="K",
-                   help="order of the polynomial fitted to velocity, 0-6 (default 1; 0 for none)")
+                   help="order of the polynomial fitted to velocity, "
+                        f"{_limits('baseline_order')} ({_about('baseline_order', none_text=True)})")
     g.add_argument("--taper", dest="taper_percent", type=float, metavar="PCT",
-                   help="cosine taper at each end, percent of the record (default 5)")
+                   help=f"cosine taper at each end, percent of the record ({_about('taper_percent')})")
     g.add_argument("--pre-event", dest="pre_event_s", type=float, metavar="S",
                    help="remove the mean of the first S seconds instead of the whole record")
     g.add_argument("--no-pad", action="store_true", help="no zero pads before the low-cut filter")
