@@ -39,6 +39,9 @@ class RunResults:
     stress : StressPeaks
         Per element: the largest peaks of its corner stress points (NaN for an element
         with no corner on the surface).
+    target_psa : ndarray (n_p,) or None
+        The scenario's target [m/s²] at ``ground_spectra["periods"]``; ``target_damping``
+        the damping ratio it is for.
     """
 
     summary: dict
@@ -51,6 +54,7 @@ class RunResults:
     floor: dict
     stress: StressPeaks | None
     target_psa: np.ndarray | None = None
+    target_damping: float | None = None      # the damping ratio target_psa is for
     inputs: dict = field(default_factory=dict)
     base: np.ndarray | None = None
 

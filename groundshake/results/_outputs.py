@@ -239,7 +239,7 @@ def _ground_csv(results: RunResults) -> str:
             rows.append([np.full(n, d, dtype=object), np.full(n, float(z)), per,
                          np.asarray(g["psa"][j, i], float)])
     if results.target_psa is not None:
-        z = 0.05        # the target row is labelled 5 %, whatever the target's own damping
+        z = 0.05 if results.target_damping is None else float(results.target_damping)
         rows.append([np.full(n, "target", dtype=object), np.full(n, z), per,
                      np.asarray(results.target_psa, float)])
     return _long_csv(COLUMNS["ground_spectra"], rows)

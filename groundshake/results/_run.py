@@ -413,7 +413,7 @@ def _analyse(scenario: Scenario, *, progress, method, motion, model, modes, stre
     return RunResults(summary=summary, motion=motion, model=run.model, modes=run.modes,
                       time=run.time, histories=run.hist, ground_spectra=spectra["ground"],
                       floor=spectra["floor"], stress=stress, target_psa=spectra["target_psa"],
-                      inputs=inputs, base=run.base)
+                      target_damping=spectra["target_damping"], inputs=inputs, base=run.base)
 
 
 def _model_and_modes(scenario: Scenario, motion: Motion, model: BlockModel | None,
@@ -623,12 +623,14 @@ def _spectra(run: _Run, *, progress) -> dict:
                              "zpa": float(np.max(np.abs(run.point_acc[p][j])))}
                 for i, dp in enumerate(damp * 100)}
             for j, d in enumerate(DIRECTIONS)}
-    target_psa = None
+    target_psa = target_damping = None
     target_spec = run.scenario.motion.target if run.scenario.motion is not None else None
     if target_spec:
         tgt = parse_target(target_spec, base_dir=run.scenario.base_dir)
         target_psa = np.asarray(tgt.psa(periods), dtype=float)
-    return {"ground": ground, "floor": floor, "floor_out": floor_out, "target_psa": target_psa}
+        target_damping = tgt.damping
+    return {"ground": ground, "floor": floor, "floor_out": floor_out, "target_psa": target_psa,
+            "target_damping": target_damping}
 
 
 def _analysis_entry(run: _Run) -> dict:

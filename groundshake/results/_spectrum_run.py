@@ -264,7 +264,7 @@ def spectrum_analyse(scenario: Scenario, *, progress: bool, model: BlockModel | 
     return RunResults(summary=summary, motion=motion, model=run.model, modes=run.modes,
                       time=np.zeros(0), histories={}, ground_spectra=spectra["ground"],
                       floor=spectra["floor"], stress=speaks, target_psa=spectra["target_psa"],
-                      inputs=inputs, base=None)
+                      target_damping=spectra["target_damping"], inputs=inputs, base=None)
 
 
 def _setup(scenario: Scenario, *, model: BlockModel | None, modes: Modes | None, residual,
@@ -424,6 +424,7 @@ def _spectra(run: _Spectrum, *, progress: bool, analyse) -> dict:
                                                    scale=run.scales[j])
     out = {"ground": {"periods": periods, "damping": damp, "psa": gpsa, "sa": gpsa},
            "target_psa": np.asarray(run.th.psa(periods), dtype=float),
+           "target_damping": run.th.damping,
            "floor": {"periods": periods, "damping": damp, "points": []},
            "floor_out": {"damping_percent": [float(v) for v in damp * 100],
                          "points": {},
