@@ -217,3 +217,26 @@ def test_run_prints_engineering_units_and_where_the_report_is(tmp_path, capsys):
                  "--quiet"]) == 0
     assert "kip" in capsys.readouterr().out
     assert "[kip]" in (tmp_path / "us2" / "report.html").read_text(encoding="utf-8")
+
+
+def test_ground_spectra_target_row_carries_the_targets_own_damping():
+    """The target's rows in ground_spectra.csv name the damping the target is for: an
+    EN 1998-1 target at 2 % (η = √(10/7), EN 1998-1 §3.2.2.2) is labelled 0.02, not 5 %."""
+    from groundshake.dynamics import motion_from_arrays
+    from groundshake.results import RunResults
+    from groundshake.results._outputs import _ground_csv
+    from groundshake.spectra import parse_target
+
+    tgt = parse_target("en1998:type=1,ground=C,ag=0.3,damping=2")
+    periods = np.array([0.1, 0.5, 1.0])
+    mot = motion_from_arrays({"x": np.zeros(8)}, 0.01)
+    res = RunResults(summary={}, motion=mot, model=None, modes=None, time=mot.time,
+                     histories={}, ground_spectra={"periods": periods, "damping": np.array([0.05]),
+                                                   "psa": np.zeros((3, 1, 3))},
+                     floor={}, stress=None, target_psa=tgt.psa(periods),
+                     target_damping=tgt.damping)
+    rows = list(csv.reader(_ground_csv(res).splitlines()))
+    target = [r for r in rows[1:] if r[0] == "target"]
+    assert len(target) == 3
+    assert {float(r[1]) for r in target} == {0.02}      # the spec's damping=2 [%]
+    np.testing.assert_allclose([float(r[3]) for r in target], tgt.psa(periods), rtol=1e-9)

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import warnings
 from dataclasses import dataclass
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
 
 import numpy as np
 import scipy.linalg as sla
@@ -17,6 +17,9 @@ import scipy.sparse.linalg as spla
 
 from .._errors import GroundshakeWarning, InputError
 from ._damping import MODAL_DAMPING_CAP, modal_damping
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..model import BlockModel
 
 __all__ = ["Modes", "compute_modes", "lowest_modes", "mass_captured_warnings"]
 
@@ -315,7 +318,8 @@ def mass_captured_warnings(cumulative: np.ndarray, excited=(True, True, True), *
     return out
 
 
-def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None = None,
+def compute_modes(model: BlockModel, *, cutoff_hz: float | None = None,
+                  n_modes: int | None = None,
                   method: Literal["auto", "lanczos", "block", "amg"] = "auto",
                   excited=(True, True, True), warn: bool = True) -> Modes:
     """Lowest modes of a :class:`~groundshake.model.BlockModel`.
@@ -366,15 +370,12 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     freq = omega / (2 * np.pi)
     with np.errstate(divide="ignore"):
         period = np.where(freq > 0, 1.0 / np.where(freq > 0, freq, 1.0), np.inf)
-    load = getattr(model, "ground_load", None)
-    if load is None:
-        load = M @ model.influence
-    gamma = phi.T @ np.asarray(load)  # (m, 3)
+    gamma = phi.T @ np.asarray(model.ground_load)  # (m, 3)
     meff = gamma ** 2
     total = np.asarray(model.total_mass, float)
     ratio = meff / total[None, :]
     cum = np.cumsum(ratio, axis=0)
-    rigid = np.asarray(getattr(model, "rigid_mass", np.zeros(3)), float)
+    rigid = np.asarray(model.rigid_mass, float)
     # the mass moving rigidly with the ground needs no mode: judge what the modes capture
     # of the mass that can move relative to the ground
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -394,7 +395,7 @@ def compute_modes(model, *, cutoff_hz: float | None = None, n_modes: int | None 
     return Modes(omega=omega, frequency=freq, period=period, shapes=phi,
                  participation=gamma, effective_mass=meff, effective_mass_ratio=ratio,
                  cumulative_ratio=cum, damping=damping, total_mass=total, warnings=msgs,
-                 solver=f"{getattr(fac, 'kind', '')} + {_used(method, n, st)}",
+                 solver=f"{'' if fac is None else fac.kind} + {_used(method, n, st)}",
                  timings={"factor": t_factor, "eigen": t_eig,
                           **{f"eigen_{k}": v for k, v in st.items()
                              if k in ("solve_s", "orth_s", "ritz_s")}},

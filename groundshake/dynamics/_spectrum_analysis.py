@@ -30,12 +30,15 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
 
 import numpy as np
 import scipy.sparse as sp
 
 from .._errors import InputError
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..spectra import TargetSpectrum
 
 __all__ = ["cqc_correlation", "damping_factor", "spectral_accelerations", "combine_modes",
            "rigid_fractions", "zero_period_acceleration", "ellipsoid_quadratic_max",
@@ -116,7 +119,7 @@ def damping_factor(damping: np.ndarray | float) -> np.ndarray:
     return np.maximum(np.sqrt(10.0 / (5.0 + pct)), 0.55)
 
 
-def spectral_accelerations(target, periods: np.ndarray, damping: np.ndarray, *,
+def spectral_accelerations(target: TargetSpectrum, periods: np.ndarray, damping: np.ndarray, *,
                            scale: float = 1.0) -> tuple[np.ndarray, list[str]]:
     """Spectral pseudo-accelerations of a target at the modes' periods and damping.
 
@@ -154,7 +157,7 @@ def spectral_accelerations(target, periods: np.ndarray, damping: np.ndarray, *,
     if T.size == 0:
         return np.zeros(0), notes
     sa = _psa_held(target, T, notes)
-    if getattr(target, "kind", "") == "en1998":
+    if target.kind == "en1998":
         from ..spectra._targets import en1998_spectrum
         p = target.parameters
         uniq = np.unique(np.round(z, 12))

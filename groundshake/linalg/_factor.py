@@ -155,6 +155,7 @@ class _PardisoFactor(Factor):
         return np.ascontiguousarray(x)
 
     def free(self):
+        # also called from __del__, where __init__ may have failed before _pt was set
         if getattr(self, "_pt", None) is not None and np.any(self._pt):
             self._call(-1, np.zeros((self.n, 1)))
             self._pt[:] = 0

@@ -17,7 +17,7 @@ import numbers
 import os
 import warnings
 from dataclasses import dataclass, field
-from typing import Any, Callable, Sequence, Union
+from typing import TYPE_CHECKING, Any, Callable, Sequence, Union
 
 import numpy as np
 
@@ -28,10 +28,14 @@ from ._acceptance import AcceptanceCriteria, acceptance_checks
 from ._measures import integrate_motion
 from ._wavelets import HALF_WIDTH_GAMMAS, WaveletResponses, add_wavelets, wavelet_parameters
 
+if TYPE_CHECKING:  # pragma: no cover
+    from ..spectra import TargetSpectrum
+
 __all__ = ["MatchResult", "match_spectrum", "match_spectrum_report", "match_record_to_target",
            "default_band", "pad_seconds"]
 
-TargetLike = Union[str, np.ndarray, Sequence[Any], Callable[[np.ndarray], np.ndarray], Any]
+TargetLike = Union[str, "TargetSpectrum", np.ndarray, Sequence[Any],
+                   Callable[[np.ndarray], np.ndarray]]
 
 #: Default period band [s] when neither ``band`` nor ``periods`` is given.
 DEFAULT_BAND = (0.05, 4.0)
@@ -193,13 +197,13 @@ def _parsed(target):
 
 def _defined_range(target) -> tuple[float, float, str] | None:
     """Periods [s] where every target is defined (tables), with a label; None if all are."""
+    from ..spectra import TargetSpectrum
     items = target if isinstance(target, (list, tuple)) else [target]
     lo, hi, names = 0.0, math.inf, []
     for t in items:
-        r = getattr(t, "period_range", None)
-        if r is not None:
-            lo, hi = max(lo, r[0]), min(hi, r[1])
-            names.append(str(getattr(t, "label", "target")))
+        if isinstance(t, TargetSpectrum) and t.period_range is not None:
+            lo, hi = max(lo, t.period_range[0]), min(hi, t.period_range[1])
+            names.append(t.label)
     return (lo, hi, ", ".join(names)) if names else None
 
 
@@ -250,18 +254,18 @@ def _damping_array(damping) -> np.ndarray:
     return d
 
 
-def _one_target(t, periods: np.ndarray, ratio: float, warn: list) -> tuple[np.ndarray, str]:
+def _one_target(t: TargetLike, periods: np.ndarray, ratio: float,
+                warn: list) -> tuple[np.ndarray, str]:
+    from ..spectra import TargetSpectrum, parse_target
     if isinstance(t, str):
-        from ..spectra import parse_target
         t = parse_target(t)
-    if hasattr(t, "psa"):
+    if isinstance(t, TargetSpectrum):
         values = np.asarray(t.psa(periods), dtype=float)
-        tdamp = getattr(t, "damping", None)
-        if tdamp is not None and abs(float(tdamp) - ratio) > 1e-9:
-            warn.append(f"target {getattr(t, 'label', '')!s} is for {100 * float(tdamp):g} % "
+        if abs(float(t.damping) - ratio) > 1e-9:
+            warn.append(f"target {t.label} is for {100 * float(t.damping):g} % "
                         f"damping but is matched at {100 * ratio:g} %")
-        return values, str(getattr(t, "label", "target"))
-    if callable(t):
+        return values, t.label
+    if callable(t):     # a function, or any callable (a partial has no __name__)
         return np.asarray(t(periods), dtype=float), getattr(t, "__name__", "target")
     values = np.asarray(t, dtype=float)
     return values, "target values"
@@ -643,7 +647,7 @@ def match_record_to_target(record: Record, spec: str, *, damping: float | None =
 
     target = parse_target(spec, base_dir=base_dir)
     if damping is None:
-        damping = float(getattr(target, "damping", None) or 0.05)
+        damping = float(target.damping or 0.05)     # matching needs ξ > 0: 0 % → 5 %
     result = match_spectrum_report(record, target, damping, periods, band=band, **options)
     report = result.to_dict()
     report["cautions"] = list(CAUTIONS)

@@ -20,6 +20,7 @@ import warnings
 import numpy as np
 
 from .._errors import GroundshakeWarning, ScenarioError
+from ..scenario import SupportSettings
 
 __all__ = ["adjust_impedance", "modulus_ratio_of", "embedment_factors", "embedment_dashpots",
            "dynamic_stiffness_coefficients",
@@ -213,7 +214,8 @@ def shear_modulus_ratio(site_class: str, shaking_g: float) -> float:
     return float(np.interp(shaking_g, xs[ok], ys[ok]))
 
 
-def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=None):
+def adjust_impedance(impedance, lx: float, ly: float, *, support: SupportSettings,
+                     frequency_hz=None):
     """Surface springs of :func:`gazetas_rectangle` adjusted for embedment and frequency.
 
     Parameters
@@ -277,19 +279,12 @@ def adjust_impedance(impedance, lx: float, ly: float, *, support, frequency_hz=N
     return Impedance(stiffness=k, damping=c, shear_modulus=impedance.shear_modulus, notes=notes)
 
 
-def _sget(obj, key, default=None):
-    if obj is None:
-        return default
-    v = obj.get(key, default) if isinstance(obj, dict) else getattr(obj, key, default)
-    return default if v is None else v
-
-
-def modulus_ratio_of(support) -> tuple[float, str]:
+def modulus_ratio_of(support: SupportSettings) -> tuple[float, str]:
     """Strain-compatible G/G0 of a ``[support]`` table and where it came from.
 
     Parameters
     ----------
-    support : SupportSettings or dict
+    support : SupportSettings
 
     Returns
     -------
@@ -301,12 +296,11 @@ def modulus_ratio_of(support) -> tuple[float, str]:
     ScenarioError
         When the table asks for a site-specific study.
     """
-    r = _sget(support, "modulus_ratio")
-    if r is not None:
-        return float(r), "modulus_ratio as entered"
-    sc = _sget(support, "strain_compatible")
+    if support.modulus_ratio is not None:
+        return float(support.modulus_ratio), "modulus_ratio as entered"
+    sc = support.strain_compatible
     if sc is not None:
-        cls, g = _sget(sc, "site_class"), float(_sget(sc, "shaking_g"))
+        cls, g = sc.site_class, float(sc.shaking_g)
         try:
             ratio = shear_modulus_ratio(cls, g)
         except ValueError as exc:

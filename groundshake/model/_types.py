@@ -5,15 +5,20 @@ from __future__ import annotations
 
 import weakref
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING
 
 import numpy as np
 import scipy.sparse as sp
 
 from .._constants import STANDARD_GRAVITY
 from ..linalg import Factor, factorize
+from ._cone import RotationCones
+from ._mesh import GridMesh
 from ._recovery import StressPoints
 from ._supports import Impedance
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..scenario import AnchorCapacity, FpParameters
 
 __all__ = ["G_STANDARD", "Point", "EquipmentModel", "ReactionOperators", "BlockModel"]
 
@@ -45,8 +50,8 @@ class EquipmentModel:
     mount: np.ndarray
     anchors: np.ndarray
     dead_load_factor: float
-    capacity: Any
-    fp: Any
+    capacity: AnchorCapacity | None
+    fp: FpParameters | None
     operator: sp.csr_matrix
     frequency_hz: np.ndarray | None
     damping: float
@@ -122,14 +127,14 @@ class BlockModel:
     _dashpots: sp.csr_matrix | None = None             # discrete dashpots (n, n)
     _radiation: sp.csr_matrix | None = None            # soil radiation part of them
     notes: tuple[str, ...] = ()
-    mesh: Any = None  # the GridMesh, for plots
+    mesh: GridMesh | None = None  # the grid, for plots and the mesh description
     inertia_reaction: ReactionOperators | None = None
     _equipment_mass: sp.csr_matrix | None = None       # masses on flexible supports (n, n)
     _radiation_lowrank: tuple | None = None            # (U (n, r), d (r,))
     stress_points: StressPoints | None = None  # where the rows of ``stress`` sit
     #: rotational cones of a lumped soil base for step-by-step runs (model/_cone.py) and
     #: the reduced DOFs of the base's rotations about x, y, z they hang on
-    cones: Any = None
+    cones: RotationCones | None = None
     base_rotation_dofs: np.ndarray | None = None
 
     @property

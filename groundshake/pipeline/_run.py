@@ -3,23 +3,28 @@ stage's :func:`groundshake.results.analyse`."""
 from __future__ import annotations
 
 import time
+from typing import Mapping
 
 from .._errors import InputError
-from ..results import analyse as analyse_motion
+from ..dynamics import Motion
+from ..results import RunResults, analyse as analyse_motion
+from ..scenario import Scenario
 from ._motion import build_motion
 
 __all__ = ["analyse"]
 
 
-def analyse(scenario, *, motion=None, **options):
+def analyse(scenario: Scenario | Mapping, *, motion: Motion | None = None,
+            **options) -> RunResults:
     """Run a scenario: read its motion files (unless ``motion`` is given), then the model,
     modes, response and every result.
 
     Parameters
     ----------
-    scenario : Scenario
-        From :func:`groundshake.load_scenario`; needs a ``[motion]`` section unless
-        ``motion`` is given (the ``"spectrum"`` method reads only its target).
+    scenario : Scenario or dict
+        From :func:`groundshake.load_scenario` (a dict is validated once by
+        :meth:`Scenario.from_dict`); needs a ``[motion]`` section unless ``motion`` is
+        given (the ``"spectrum"`` method reads only its target).
     motion : Motion, optional
         The base motion, when it does not come from the scenario's files.
     **options
@@ -37,12 +42,13 @@ def analyse(scenario, *, motion=None, **options):
     InputError
         No ``[motion]`` and no ``motion``; any error of reading or correcting the records.
     """
+    if isinstance(scenario, Mapping):
+        scenario = Scenario.from_dict(scenario)
     read_s = None
-    method = options.get("method") or getattr(getattr(scenario, "analysis", None), "method",
-                                               None)
+    method = options.get("method") or scenario.analysis.method
     if motion is None and method != "spectrum":     # the spectrum method reads no records
-        if getattr(scenario, "motion", None) is None:
-            raise InputError(f"{getattr(scenario, 'source', 'scenario')}: [motion]: missing; "
+        if scenario.motion is None:
+            raise InputError(f"{scenario.source}: [motion]: missing; "
                              "allowed x, y, z = { file = ... } (at least one)")
         t0 = time.perf_counter()
         motion = build_motion(scenario)

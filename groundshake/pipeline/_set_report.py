@@ -9,12 +9,13 @@ from typing import Any, Mapping
 import numpy as np
 
 from ..report import write_suite_page
+from ..scenario import Scenario
 from ..spectra import parse_target
 
 __all__ = ["write_suite_report"]
 
 
-def write_suite_report(out_dir: str | os.PathLike, scenario, *,
+def write_suite_report(out_dir: str | os.PathLike, scenario: Scenario, *,
                        spectra: Mapping[str, Any] | None = None, target: str | None = None,
                        units: str | None = None,
                        provenance: Mapping[str, Any] | None = None) -> Path:
@@ -42,8 +43,9 @@ def write_suite_report(out_dir: str | os.PathLike, scenario, *,
     Path
         The page written (:func:`groundshake.report.write_suite_page`).
     """
-    units = units or getattr(getattr(scenario, "report", None), "units", None) or "si"
-    target = target or getattr(getattr(scenario, "motion", None), "target", None)
+    units = units or scenario.report.units
+    if not target and scenario.motion is not None:
+        target = scenario.motion.target
     target_psa = None
     if spectra and target:
         target_psa = np.asarray(parse_target(target, base_dir=scenario.base_dir)

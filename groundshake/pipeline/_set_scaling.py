@@ -23,11 +23,12 @@ from __future__ import annotations
 import math
 import warnings
 from dataclasses import dataclass
-from typing import Any, Literal, Mapping, Sequence
+from typing import Literal, Mapping, Sequence
 
 import numpy as np
 
 from .._errors import GroundshakeError, GroundshakeWarning, InputError
+from ..scenario import Scenario, SuiteSettings
 from ..spectra import parse_target, response_spectrum, rotd
 from ..spectra._scaling import SCALING_RULES, scale_to_target, set_statistic
 from ._motion import build_motion
@@ -117,9 +118,9 @@ class SuiteScaling:
                 "limits": list(self.limits), "period": self.period}
 
     @classmethod
-    def from_settings(cls, settings: Any) -> "SuiteScaling | None":
+    def from_settings(cls, settings: SuiteSettings | None) -> "SuiteScaling | None":
         """From a scenario's ``[suite]`` table (None when it asks for no scaling)."""
-        if settings is None or getattr(settings, "scale_to", None) is None:
+        if settings is None or settings.scale_to is None:
             return None
         return cls(target=settings.scale_to, rule=settings.scale_rule, mode=settings.scale_mode,
                    limits=tuple(settings.scale_range), period=settings.scale_period)
@@ -171,7 +172,7 @@ def set_spectrum(acc: Mapping[str, np.ndarray], dt: float, periods: np.ndarray, 
     return np.mean(psa, axis=0)
 
 
-def _set_motion(scenario, rs: RecordSet):
+def _set_motion(scenario: Scenario, rs: RecordSet):
     """The set's motion read and corrected as a run reads it (no matching, unscaled by
     the target factor)."""
     with warnings.catch_warnings():
@@ -179,7 +180,7 @@ def _set_motion(scenario, rs: RecordSet):
         return build_motion(set_scenario(scenario, rs, with_factor=False, match_target=False))
 
 
-def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling, *,
+def scale_record_sets(scenario: Scenario, sets: Sequence[RecordSet], scaling: SuiteScaling, *,
                       mode_periods: np.ndarray | None = None
                       ) -> tuple[list[RecordSet], list[dict], dict]:
     """Scale factors of a suite's sets; the sets with their factors.
@@ -219,13 +220,12 @@ def scale_record_sets(scenario, sets: Sequence[RecordSet], scaling: SuiteScaling
     GroundshakeWarning
         A factor outside ``scaling.limits``.
     """
-    motion = getattr(scenario, "motion", None)
-    if motion is not None and getattr(motion, "match_target", False):
+    if scenario.motion is not None and scenario.motion.match_target:
         raise _scaling_error("[motion] match_target = true would replace the scaled amplitudes "
                              "by matched ones; set it false or scale to no target", "scale_to",
                              scaling.target)
     try:
-        target = parse_target(scaling.target, base_dir=getattr(scenario, "base_dir", None))
+        target = parse_target(scaling.target, base_dir=scenario.base_dir)
     except GroundshakeError as e:
         raise _scaling_error(f"{scaling.target}: {e}", "scale_to", scaling.target) from None
     if scaling.period is not None:

@@ -16,7 +16,7 @@ import re
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import numpy as np
 
@@ -26,6 +26,10 @@ from ..records._components import describe
 from ..records.io import record_suffixes
 from ..scenario import Scenario
 from ._run import analyse
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..dynamics import Modes
+    from ..model import BlockModel
 
 __all__ = ["RecordSet", "COMPONENT_WORDS", "component_of_file", "is_record_file_name", "plain_stem", "group_by_component",
            "set_scenario", "set_failure", "record_set_samples", "run_set", "scalar_peaks",
@@ -159,7 +163,7 @@ def group_by_component(files: Sequence[str | os.PathLike]) -> dict[str, dict[str
     return {stem: dict(sorted(g.items())) for stem, g in sorted(groups.items())}
 
 
-def set_scenario(scenario, rs: RecordSet, *, with_factor: bool = True, **motion):
+def set_scenario(scenario: Scenario, rs: RecordSet, *, with_factor: bool = True, **motion):
     """The scenario with the set's files as its ``[motion]`` components.
 
     Each component is scaled by the set's ``scale`` times (``with_factor``) its target
@@ -250,7 +254,8 @@ def scalar_peaks(summary: Mapping[str, Any]) -> dict:
     return out
 
 
-def run_set(scenario, rs: RecordSet, *, model=None, modes=None, residual=None,
+def run_set(scenario: Scenario, rs: RecordSet, *, model: BlockModel | None = None,
+            modes: Modes | None = None, residual: np.ndarray | None = None,
             method: str | None = None) -> dict:
     """Run one record set through the scenario's model (built once); return plain data.
 

@@ -20,6 +20,9 @@ from ._base import PALETTE, mpl_text, new_figure, shape_map
 if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.figure import Figure
 
+    from ..dynamics import Modes
+    from ..model import BlockModel
+
 __all__ = ["VoxelGrid", "exterior_faces", "draw_bricks", "set_box_aspect", "model_figure",
            "mode_shapes_figure", "block_model_figure", "block_mode_figure"]
 
@@ -292,14 +295,14 @@ def mode_shapes_figure(grid: VoxelGrid, node_index: np.ndarray,
 
 
 # ----------------------------------------------------------------- from a BlockModel
-def _model_grid(model) -> VoxelGrid:
-    mesh = getattr(model, "mesh", None)
+def _model_grid(model: BlockModel) -> VoxelGrid:
+    mesh = model.mesh
     if mesh is None:
         raise ValueError("the model has no grid mesh (model.mesh) to draw")
     return VoxelGrid.from_cells(*mesh.lines, mesh.element_cell)
 
 
-def block_model_figure(model, *, title: str = "") -> "Figure":
+def block_model_figure(model: BlockModel, *, title: str = "") -> "Figure":
     """:func:`model_figure` of a :class:`~groundshake.model.BlockModel` (lengths in m):
     parts, equipment envelopes (footprint × twice the height of the centre of mass),
     anchor bolts and sensors; titled with the mesh size unless ``title`` is given."""
@@ -317,13 +320,13 @@ def block_model_figure(model, *, title: str = "") -> "Figure":
     anchors = np.vstack(anchors) if anchors else None
     sensors = [(s.name, np.asarray(s.position, float)) for s in model.sensors]
     return model_figure(grid, cell_part=cell_part,
-                        part_names=[str(p) for p in getattr(model, "part_names", [])],
+                        part_names=[str(p) for p in model.part_names],
                         equipment=boxes, anchors=anchors, sensors=sensors,
                         title=title or f"block model: {model.elements.shape[0]} elements, "
                                        f"{model.n_dof} DOFs, {model.support_kind} base")
 
 
-def block_mode_figure(model, modes, index: int) -> "Figure":
+def block_mode_figure(model: BlockModel, modes: Modes, index: int) -> "Figure":
     """Mode ``index`` (0-based) of ``modes`` (:class:`~groundshake.dynamics.Modes`) drawn
     on the block of ``model`` (:func:`mode_shapes_figure`, lengths in m), titled with its
     frequency [Hz] and effective mass ratios [%]."""

@@ -28,6 +28,7 @@ import re
 from typing import Any, Literal, Mapping, NamedTuple, Sequence
 
 from .._errors import InputError
+from ._record import Record
 
 __all__ = ["Orientation", "describe", "orientation", "azimuth_deg", "bearing_deg",
            "pick_component", "components_by_orientation", "AZIMUTH_TOLERANCE_DEG"]
@@ -190,20 +191,20 @@ def azimuth_deg(component: str, metadata: Mapping[str, Any] | None = None) -> fl
 AZIMUTH_TOLERANCE_DEG = 1.0
 
 
-def _listing(records: Sequence[Any]) -> str:
+def _listing(records: Sequence[Record]) -> str:
     """``0: 360 (horizontal, 0°), 1: UP (vertical), ...`` for messages."""
     out = []
     for i, r in enumerate(records):
-        o = describe(str(r.component or ""), getattr(r, "metadata", None))
+        o = describe(str(r.component or ""), r.metadata)
         what = o.kind if o.azimuth_deg is None else f"{o.kind}, {o.azimuth_deg:g}°"
         out.append(f"{i}: {r.component or r.name} ({what})")
     return ", ".join(out)
 
 
-def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
+def pick_component(records: Sequence[Record], *, trace: int | str | None = None,
                    channel: str | None = None, azimuth: float | None = None,
                    orientation: Literal["vertical", "horizontal"] | None = None,
-                   where: str = "component") -> Any:
+                   where: str = "component") -> Record:
     """The one record of a file that a scenario component asks for.
 
     At most one of the choices may be given; with none, the file must hold one record.
@@ -266,7 +267,7 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
                              value=value, where=f"{where}.azimuth")
         found = []
         for r in records:
-            o = describe(str(r.component or ""), getattr(r, "metadata", None))
+            o = describe(str(r.component or ""), r.metadata)
             if o.kind == "horizontal" and o.azimuth_deg is not None:
                 gap = abs((o.azimuth_deg - az + 180.0) % 360.0 - 180.0)
                 if gap <= AZIMUTH_TOLERANCE_DEG:
@@ -276,7 +277,7 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
             raise InputError(f"given {value!r}; allowed 'vertical', 'horizontal'",
                              param="orientation", value=value, where=f"{where}.orientation")
         found = [r for r in records
-                 if describe(str(r.component or ""), getattr(r, "metadata", None)).kind == value]
+                 if describe(str(r.component or ""), r.metadata).kind == value]
     if len(found) == 1:
         return found[0]
     what = "no channel matches" if not found else f"{len(found)} channels match"
@@ -284,8 +285,8 @@ def pick_component(records: Sequence[Any], *, trace: int | str | None = None,
                      param=key, value=value, where=f"{where}.{key}")
 
 
-def components_by_orientation(records: Sequence[Any], *, where: str = "motion.file"
-                              ) -> dict[str, Any]:
+def components_by_orientation(records: Sequence[Record], *, where: str = "motion.file"
+                              ) -> dict[str, Record]:
     """x, y, z records of a station file given once: the vertical to z, the horizontals
     to x and y in the file's order.
 
@@ -307,7 +308,7 @@ def components_by_orientation(records: Sequence[Any], *, where: str = "motion.fi
         More than one vertical or two horizontals, or a channel whose direction the
         file does not state (the message lists the channels; give x, y, z instead).
     """
-    kinds = [describe(str(r.component or ""), getattr(r, "metadata", None)).kind
+    kinds = [describe(str(r.component or ""), r.metadata).kind
              for r in records]
     vertical = [r for r, k in zip(records, kinds) if k == "vertical"]
     horizontal = [r for r, k in zip(records, kinds) if k == "horizontal"]

@@ -97,6 +97,7 @@ def apply_inventory(stream, inventory, *, where: str, inventory_name: str = "inv
             raise RecordError(f"{where}: trace {tr.id} has no response in {inventory_name} at "
                               f"{when.isoformat()} ({e}); give the inventory of this station "
                               f"and channel", param="inventory") from e
+        # ObsPy's Response: the sensitivity and its fields may be missing or None
         sens = getattr(response, "instrument_sensitivity", None)
         value = float(getattr(sens, "value", 0.0) or 0.0)
         input_units = str(getattr(sens, "input_units", "") or "").strip().upper()

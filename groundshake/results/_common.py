@@ -4,13 +4,16 @@ from __future__ import annotations
 import hashlib
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
 import numpy as np
 
-from .._constants import DIRECTIONS
 from ..dynamics._motion import Motion
 from ._stress import StressPeaks
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..dynamics import Modes
+    from ..model import BlockModel
 
 __all__ = ["RunResults"]
 
@@ -36,18 +39,22 @@ class RunResults:
     stress : StressPeaks
         Per element: the largest peaks of its corner stress points (NaN for an element
         with no corner on the surface).
+    target_psa : ndarray (n_p,) or None
+        The scenario's target [m/s²] at ``ground_spectra["periods"]``; ``target_damping``
+        the damping ratio it is for.
     """
 
     summary: dict
     motion: Motion
-    model: Any
-    modes: Any
+    model: BlockModel
+    modes: Modes
     time: np.ndarray
     histories: dict
     ground_spectra: dict
     floor: dict
     stress: StressPeaks | None
     target_psa: np.ndarray | None = None
+    target_damping: float | None = None      # the damping ratio target_psa is for
     inputs: dict = field(default_factory=dict)
     base: np.ndarray | None = None
 
@@ -61,18 +68,3 @@ def _sha256(path: Path) -> str | None:
         return h.hexdigest()
     except OSError:
         return None
-
-
-def _modes_dict(modes, model) -> dict:
-    if hasattr(modes, "to_dict"):
-        d = modes.to_dict()
-        if isinstance(d, dict):
-            d.setdefault("total_mass", [float(v) for v in model.total_mass])
-            return d
-        return {"total_mass": [float(v) for v in model.total_mass], "modes": d}
-    out = []
-    for i in range(np.asarray(modes.omega).size):
-        out.append({"frequency": float(modes.frequency[i]), "period": float(modes.period[i]),
-                    "effective_mass_ratio": {d: float(modes.effective_mass_ratio[i, j])
-                                             for j, d in enumerate(DIRECTIONS)}})
-    return {"total_mass": [float(v) for v in model.total_mass], "modes": out}

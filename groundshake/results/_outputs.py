@@ -5,7 +5,7 @@ import csv
 import io
 import os
 from pathlib import Path
-from typing import Callable, Iterable, Sequence
+from typing import TYPE_CHECKING, Callable, Iterable, Sequence
 
 import numpy as np
 import scipy.sparse as sp
@@ -13,6 +13,11 @@ import scipy.sparse as sp
 from .._atomic import atomic_directory
 from .._json import json_dumps
 from ._schema import COLUMNS, DIRECTIONS, FILES, OUTPUT_FILES, SCHEMA_VERSION, UNITS
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..dynamics import Modes
+    from ..model import BlockModel
+    from ._common import RunResults
 
 __all__ = ["write_outputs", "OUTPUT_FILES", "rotational_participation", "dominant_direction",
            "mesh_description"]
@@ -43,7 +48,7 @@ def _damp_label(r: float) -> str:
     return f"{100 * r:g}%"
 
 
-def write_outputs(results, out_dir: str | os.PathLike, *, overwrite: bool = False,
+def write_outputs(results: RunResults, out_dir: str | os.PathLike, *, overwrite: bool = False,
                   n_shapes: int = 6,
                   also: Callable[[Path], object] | None = None) -> Path:
     """Write a run's files into ``out_dir`` (a new folder, moved into place when complete).
@@ -116,7 +121,7 @@ def _summary_with_contract(summary: dict, rot: np.ndarray) -> dict:
     return out
 
 
-def mesh_description(model) -> dict:
+def mesh_description(model: BlockModel) -> dict:
     """The mesh once, for figures: grid lines [m], the filled cells in element order,
     each element's part, each node's grid indices, equipment and sensor positions.
 
@@ -129,22 +134,22 @@ def mesh_description(model) -> dict:
         mode_shapes.csv; ``equipment`` [{name, footprint_lo, footprint_hi, cg, anchors}]
         and ``sensors`` [{name, at}] [m].
     """
-    mesh = getattr(model, "mesh", None)
+    mesh = model.mesh
     out: dict = {"schema_version": SCHEMA_VERSION, "units": "m"}
     if mesh is None:
         return out
     xs, ys, zs = (np.asarray(a, float) for a in mesh.lines)
     out["lines"] = {"x": xs.tolist(), "y": ys.tolist(), "z": zs.tolist()}
-    out["parts"] = [str(p) for p in getattr(model, "part_names", [])]
+    out["parts"] = [str(p) for p in model.part_names]
     out["cells"] = np.asarray(mesh.element_cell, int).tolist()
     out["cell_part"] = np.asarray(mesh.element_part, int).tolist()
     nodes = np.asarray(model.nodes, float)
     out["node_cells"] = np.column_stack([_nearest(xs, nodes[:, 0]), _nearest(ys, nodes[:, 1]),
                                          _nearest(zs, nodes[:, 2])]).astype(int).tolist()
     eqs = []
-    for e in getattr(model, "equipment", []):
+    for e in model.equipment:
         mount = np.asarray(e.mount, float).reshape(3)
-        half = 0.5 * np.asarray(getattr(e, "footprint", np.zeros(2)), float).reshape(2)
+        half = 0.5 * np.asarray(e.footprint, float).reshape(2)
         anchors = np.asarray(e.anchors, float).reshape(-1, 2)
         eqs.append({"name": e.name,
                     "footprint_lo": [mount[0] - half[0], mount[1] - half[1], mount[2]],
@@ -154,7 +159,7 @@ def mesh_description(model) -> dict:
                                 for a in anchors]})
     out["equipment"] = eqs
     out["sensors"] = [{"name": s.name, "at": [float(v) for v in s.position]}
-                      for s in getattr(model, "sensors", [])]
+                      for s in model.sensors]
     return out
 
 
@@ -222,7 +227,7 @@ def _long_csv(columns, rows: list[list[np.ndarray]]) -> str:
     return _csv_text([c.header for c in columns], cols)
 
 
-def _ground_csv(results) -> str:
+def _ground_csv(results: RunResults) -> str:
     g = results.ground_spectra
     per = np.asarray(g["periods"], float)
     n = per.size
@@ -234,13 +239,13 @@ def _ground_csv(results) -> str:
             rows.append([np.full(n, d, dtype=object), np.full(n, float(z)), per,
                          np.asarray(g["psa"][j, i], float)])
     if results.target_psa is not None:
-        z = float(getattr(results, "target_damping", None) or 0.05)
+        z = 0.05 if results.target_damping is None else float(results.target_damping)
         rows.append([np.full(n, "target", dtype=object), np.full(n, z), per,
                      np.asarray(results.target_psa, float)])
     return _long_csv(COLUMNS["ground_spectra"], rows)
 
 
-def _floor_csv(results) -> str:
+def _floor_csv(results: RunResults) -> str:
     f = results.floor
     per = np.asarray(f["periods"], float)
     n = per.size
@@ -262,7 +267,7 @@ def _floor_csv(results) -> str:
     return _long_csv(COLUMNS["floor_spectra"], rows)
 
 
-def rotational_participation(model, modes) -> np.ndarray:
+def rotational_participation(model: BlockModel, modes: Modes) -> np.ndarray:
     """Effective-mass ratios of each mode for rigid rotation about x, y and z.
 
     The rotation axes pass through the centre of the base. For axis a the rigid-body
@@ -298,7 +303,7 @@ def rotational_participation(model, modes) -> np.ndarray:
         c = np.asarray(model.base.get("centre", np.zeros(3)), float)
         blocks, rhs_rows = [P], []
         eq_ops = [(np.asarray(e.cg, float), sp.csr_matrix(e.operator))
-                  for e in getattr(model, "equipment", []) if getattr(e, "operator", None) is not None]
+                  for e in model.equipment]
         for _, op in eq_ops:
             blocks.append(op)
         A = sp.vstack(blocks).tocsr()
@@ -320,7 +325,7 @@ def rotational_participation(model, modes) -> np.ndarray:
     return out
 
 
-def _modes_csv(modes, rot: np.ndarray | None = None) -> str:
+def _modes_csv(modes: Modes, rot: np.ndarray | None = None) -> str:
     m = int(np.asarray(modes.omega).size)
     emr = np.asarray(modes.effective_mass_ratio, float).reshape(m, 3)
     cum = np.asarray(modes.cumulative_ratio, float).reshape(m, 3)
@@ -353,7 +358,7 @@ def dominant_direction(effective_mass_ratio: np.ndarray, rotational: np.ndarray)
     return out
 
 
-def _elements_csv(results) -> str:
+def _elements_csv(results: RunResults) -> str:
     """element_peaks.csv (COLUMNS["element_peaks"]); a response-spectrum run has no
     times, so its ``time of von mises peak`` column is left out."""
     c = np.asarray(results.model.element_centres, float)
@@ -371,7 +376,7 @@ def _elements_csv(results) -> str:
     return _csv_text([col.header for col in keep], cols)
 
 
-def _shapes_csv(results, n_shapes: int) -> str:
+def _shapes_csv(results: RunResults, n_shapes: int) -> str:
     model, modes = results.model, results.modes
     nodes = np.asarray(model.nodes, float)
     header = ["x [m]", "y [m]", "z [m]"]

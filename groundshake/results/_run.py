@@ -6,7 +6,7 @@ import time as _time
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Literal, Mapping
+from typing import TYPE_CHECKING, Any, Literal, Mapping
 
 import numpy as np
 import scipy.sparse as sp
@@ -19,7 +19,7 @@ from .._progress import Progress
 from ..dynamics._coupled import coupled_response
 from ..dynamics._damping import damping_matrix, modal_damping_matrix, rayleigh_coefficients
 from ..dynamics._direct import direct_response, substeps_for
-from ..dynamics._modes import compute_modes
+from ..dynamics._modes import Modes, compute_modes
 from ..dynamics._modal import (coupled_modal_response, modal_response, pruned_peak,
                                residual_vectors)
 from ..dynamics._motion import DIRECTIONS, Motion
@@ -33,6 +33,9 @@ from ._summary import (BASE_RESULTANTS, RESULTANTS, Clock, WorstBolts, anchorage
                        dense, displacement_peak, equipment_entry, floor_grid, fp_entry,
                        free_mass_ratio, input_hashes, low_mass_text, provenance, retained_mass,
                        sensor_entry, stability_entry, stress_peak_entries, summary_head)
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..model import BlockModel
 
 __all__ = ["RunResults", "analyse", "respond", "base_resultants"]
 
@@ -76,7 +79,7 @@ def _peak(x: np.ndarray, time: np.ndarray) -> dict:
     return {"value": float(abs(x[i])), "time": float(time[i]), "signed": float(x[i])}
 
 
-def _mount_operator(model, position) -> sp.csr_matrix:
+def _mount_operator(model: BlockModel, position) -> sp.csr_matrix:
     """(3, n) relative displacement of the block node nearest to ``position`` (3,)."""
     i = int(np.argmin(np.sum((np.asarray(model.nodes) - np.asarray(position)) ** 2, axis=1)))
     return sp.csr_matrix(model.node_map[3 * i:3 * i + 3])
@@ -118,7 +121,7 @@ def _direct_node_peak(res, motion: Motion) -> dict:
     return out
 
 
-def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
+def respond(model: BlockModel, modes: Modes | None, motion: Motion, output: sp.spmatrix, *,
             method: Literal["modal", "coupled", "direct"] = "modal",
             cutoff_hz: float | None = None,
             hht_alpha: float = 0.0, missing_mass: bool = True, stresses: bool = True,
@@ -144,24 +147,19 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
             residual = None
         elif residual is None:
             residual = residual_vectors(model.M, model.influence, shapes, gam,
-                                        model.factor().solve,
-                                        load=getattr(model, "ground_load", None))
+                                        model.factor().solve, load=model.ground_load)
         t0 = _time.perf_counter()
         if method == "coupled":   # the whole damping matrix on modes + missing-mass vectors
-            load = getattr(model, "ground_load", None)
-            if load is None:
-                load = model.M @ model.influence
             rayleigh = rayleigh_coefficients(model, modes=modes)
             r = coupled_response(model.K, model.M, damping_matrix(model, rayleigh=rayleigh),
-                                 shapes, residual, load, ag, dt,
-                                 damping_update=model.damping_update()
-                                 if hasattr(model, "damping_update") else None)
+                                 shapes, residual, model.ground_load, ag, dt,
+                                 damping_update=model.damping_update())
             info["modal_damping"] = "whole damping matrix on the reduced basis"
             info["reduced_basis"] = {"modes": int(shapes.shape[1]),
                                      "missing_mass_vectors": int(r.shapes.shape[1]
                                                                  - shapes.shape[1])}
             info["rayleigh_hz"] = rayleigh.frequencies_hz
-        elif getattr(model, "is_classically_damped", True):
+        elif model.is_classically_damped:
             r = modal_response(shapes, modes.omega, modes.damping, gam, ag, dt,
                                residual=residual)
         else:   # discrete dashpots couple the modes: keep ΦᵀCΦ whole
@@ -193,17 +191,17 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         modes = compute_modes(model, n_modes=min(12, model.n_dof - 1), warn=False)
     rayleigh = rayleigh_coefficients(model, modes=modes)
     C = damping_matrix(model, rayleigh=rayleigh)
-    update = model.damping_update() if hasattr(model, "damping_update") else None
-    K, M, iota, load = model.K, model.M, model.influence, getattr(model, "ground_load", None)
+    update = model.damping_update()
+    K, M, iota, load = model.K, model.M, model.influence, model.ground_load
     block_fn, rows, peak_rows = (on_block if peaks is not None else None), output, node_map
-    if getattr(model, "cones", None) is not None:   # the soil's rotational cones (model/_cone.py)
+    if model.cones is not None:   # the soil's rotational cones (model/_cone.py)
         from ..model._cone import cone_run
         K, M, C, iota, load, rows, peak_rows, block_fn, update = cone_run(
             model, C, output, node_map, block_fn, update)
     t0 = _time.perf_counter()
     res = direct_response(K, M, C, iota, ag, dt, output=rows,
                           hht_alpha=hht_alpha, substeps=n_sub, on_block=block_fn,
-                          peak_operator=peak_rows, solver=getattr(model, "solver", "auto"),
+                          peak_operator=peak_rows, solver=model.solver,
                           progress=progress, load=load, damping_update=update)
     node_peak = _direct_node_peak(res, motion)
     info.update(timings={"time_history": _time.perf_counter() - t0,
@@ -224,7 +222,7 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
         "soil radiation dashpots as modelled. Non-classical damping is kept whole (no modal "
         "uncoupling); the Rayleigh ratio differs from the target between and beyond the two "
         "frequencies.")
-    if getattr(model, "cones", None) is not None:
+    if model.cones is not None:
         assumptions.append(
             "Soil rocking and torsion frequency-dependent in time: rotational cones (Wolf "
             "1994, from memory) fitted to the static springs, each an extra rotation of "
@@ -235,10 +233,11 @@ def respond(model, modes, motion: Motion, output: sp.spmatrix, *,
 
 
 # --------------------------------------------------------------------------- the run
-def analyse(scenario, *, progress: bool = True,
+def analyse(scenario: Scenario | Mapping, *, progress: bool = True,
             method: Literal["auto", "modal", "coupled", "direct", "spectrum"] | None = None,
-            motion: Motion | None = None, model=None, modes=None,
-            stresses: bool = True, residual: np.ndarray | None = None) -> RunResults:
+            motion: Motion | None = None, model: BlockModel | None = None,
+            modes: Modes | None = None, stresses: bool = True,
+            residual: np.ndarray | None = None) -> RunResults:
     """Run a scenario on a given motion: model, modes, response and every result.
 
     Parameters
@@ -309,8 +308,8 @@ class _Run:
 
     scenario: Scenario
     motion: Motion
-    model: Any
-    modes: Any
+    model: BlockModel
+    modes: Modes
     method: str
     collected: list
     timings: dict
@@ -400,12 +399,12 @@ def _analyse(scenario: Scenario, *, progress, method, motion, model, modes, stre
              scenario=scenario)
     inputs = input_hashes([scenario.source])
     inputs.update({str(rec.source): _sha256(Path(rec.source)) for rec in motion.raw.values()
-                   if getattr(rec, "source", "")})
+                   if rec.source})
     summary["provenance"] = provenance(
         inputs=inputs,
         solver={"method": run.method, **{k: v for k, v in run.resp.info.items()
                                          if k in ("solver", "substeps", "hht_alpha")},
-                "factor": getattr(run.model, "solver", "auto")},
+                "factor": run.model.solver},
         settings={"cutoff_hz": an.cutoff_hz, "modes": an.modes,
                   "hht_alpha": float(an.hht_alpha)},
         timings=timings)
@@ -414,10 +413,11 @@ def _analyse(scenario: Scenario, *, progress, method, motion, model, modes, stre
     return RunResults(summary=summary, motion=motion, model=run.model, modes=run.modes,
                       time=run.time, histories=run.hist, ground_spectra=spectra["ground"],
                       floor=spectra["floor"], stress=stress, target_psa=spectra["target_psa"],
-                      inputs=inputs, base=run.base)
+                      target_damping=spectra["target_damping"], inputs=inputs, base=run.base)
 
 
-def _model_and_modes(scenario: Scenario, motion: Motion, model, modes, method: str, *,
+def _model_and_modes(scenario: Scenario, motion: Motion, model: BlockModel | None,
+                     modes: Modes | None, method: str, *,
                      progress, collected, timings, clock) -> _Run:
     """Step 1: the model (built unless given), the method (``"auto"`` resolved) and the
     modes (computed unless given), with the modes' own notes."""
@@ -429,7 +429,7 @@ def _model_and_modes(scenario: Scenario, motion: Motion, model, modes, method: s
         model = build_model(scenario)
     timings["model"] = clock.tick()
     if method == "auto":    # non-classical damping: the whole damping matrix, modal cost
-        method = "modal" if getattr(model, "is_classically_damped", True) else "coupled"
+        method = "modal" if model.is_classically_damped else "coupled"
     if modes is None:
         with Progress("modes", total=None, enabled=progress):
             modes = compute_modes(model, cutoff_hz=None if an.modes else an.cutoff_hz,
@@ -440,8 +440,8 @@ def _model_and_modes(scenario: Scenario, motion: Motion, model, modes, method: s
     # the modes' own notes, except the mass one (ours below also names the correction)
     # and the cap of composite modal damping ratios, which only classically damped modal
     # runs use (non-classical damping keeps the modal damping matrix whole, uncapped)
-    uses_cap = method == "modal" and getattr(model, "is_classically_damped", True)
-    collected.extend(m for m in getattr(modes, "warnings", []) or []
+    uses_cap = method == "modal" and model.is_classically_damped
+    collected.extend(m for m in modes.warnings
                      if not str(m).startswith("modes capture")
                      and not (not uses_cap and str(m).startswith("modal damping of mode")))
     return _Run(scenario=scenario, motion=motion, model=model, modes=modes, method=method,
@@ -459,7 +459,7 @@ def _respond(run: _Run, *, stresses, progress, residual) -> None:
         blocks.append(sp.csr_matrix(e.operator)); names.append(("equipment", e.name, 6))
     for e in model.equipment:
         blocks.append(_mount_operator(model, e.mount)); names.append(("mount", e.name, 3))
-    R = getattr(model, "inertia_reaction", None) or model.reaction
+    R = model.reaction if model.inertia_reaction is None else model.inertia_reaction
     blocks += [sp.csr_matrix(R.K), sp.csr_matrix(R.C), sp.csr_matrix(R.M)]
     run.output = sp.vstack(blocks, format="csr") if blocks else sp.csr_matrix((0, model.n_dof))
     run.clock.tick()
@@ -623,12 +623,14 @@ def _spectra(run: _Run, *, progress) -> dict:
                              "zpa": float(np.max(np.abs(run.point_acc[p][j])))}
                 for i, dp in enumerate(damp * 100)}
             for j, d in enumerate(DIRECTIONS)}
-    target_psa = None
+    target_psa = target_damping = None
     target_spec = run.scenario.motion.target if run.scenario.motion is not None else None
     if target_spec:
         tgt = parse_target(target_spec, base_dir=run.scenario.base_dir)
         target_psa = np.asarray(tgt.psa(periods), dtype=float)
-    return {"ground": ground, "floor": floor, "floor_out": floor_out, "target_psa": target_psa}
+        target_damping = tgt.damping
+    return {"ground": ground, "floor": floor, "floor_out": floor_out, "target_psa": target_psa,
+            "target_damping": target_damping}
 
 
 def _analysis_entry(run: _Run) -> dict:
@@ -685,8 +687,8 @@ def motion_band(scenario: Scenario, motion: Motion) -> tuple[float, str]:
     return nyq, f"the Nyquist frequency {nyq:.3g} Hz"
 
 
-def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff, peak_times,
-                   n_modes) -> None:
+def _auto_warnings(collected: list, *, scenario: Scenario, model: BlockModel, modes: Modes,
+                   motion: Motion, method: str, cutoff, peak_times, n_modes) -> None:
     """Append the automatic warnings of a run to ``collected`` (only those that apply)."""
     dt, dur = motion.dt, motion.duration
     f_band, band_why = motion_band(scenario, motion)
@@ -733,12 +735,9 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
     try:
         vs = min(math.sqrt(m.youngs_modulus / (2 * (1 + m.poisson_ratio)) / m.density)
                  for m in scenario.materials.values())
-        mesh = getattr(model, "mesh", None)
-        sizes = getattr(mesh, "element_sizes", None)
-        if callable(sizes):
-            sizes = sizes()
-        if sizes is not None and np.size(sizes):
-            h = float(np.max(np.asarray(sizes)))
+        sizes = None if model.mesh is None else model.mesh.element_sizes
+        if sizes is not None and sizes.size:
+            h = float(np.max(sizes))
         else:
             h = float(scenario.mesh.element_size)
         if f_use > 0 and h > vs / (10.0 * f_use):
@@ -746,7 +745,7 @@ def _auto_warnings(collected, *, scenario, model, modes, motion, method, cutoff,
                              f"wavelength at {f_use:.3g} Hz ({vs / f_use:.3g} m), the highest "
                              "frequency both modelled and carried by the motion: fewer than "
                              "about 10 elements per wavelength; refine the mesh.")
-    except (TypeError, ValueError, AttributeError):
+    except (TypeError, ValueError):
         pass
     tail = max(5 * dt, 0.02 * dur)
     late = [nm for nm, t in peak_times if t >= float(motion.time[-1]) - tail]

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import itertools
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.sparse as sp
@@ -15,6 +15,7 @@ import scipy.sparse as sp
 from .._errors import InputError
 from .._progress import Progress
 from ..dynamics._modal import residual_vectors
+from ..dynamics._modes import Modes
 from ..dynamics._motion import DIRECTIONS, Motion
 from ..dynamics._spectrum_analysis import (VON_MISES_FORM, ellipsoid_quadratic_max,
                                            modal_spectrum, spectral_accelerations)
@@ -27,6 +28,9 @@ from ._summary import (BASE_RESULTANTS, RESULTANTS, Clock, WorstBolts, anchorage
                        dense, displacement_peak, equipment_entry, floor_grid, fp_entry,
                        free_mass_ratio, input_hashes, low_mass_text, provenance, retained_mass,
                        sensor_entry, stability_entry, stress_peak_entries, summary_head)
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..model import BlockModel
 
 __all__ = ["spectrum_analyse", "stress_bounds", "stress_envelope", "SIGNS_LOST", "STRESS_RULE"]
 
@@ -148,8 +152,8 @@ class _Spectrum:
     """What the steps of one response-spectrum run share."""
 
     scenario: Scenario
-    model: Any
-    modes: Any
+    model: BlockModel
+    modes: Modes
     ms: Any                  # ModalSpectrum
     targets: tuple           # horizontal, horizontal, vertical target (or None)
     scales: tuple
@@ -182,7 +186,8 @@ class _Spectrum:
         return self.ms.peak(op, kind="acceleration", ground=dense(op @ iota))
 
 
-def spectrum_analyse(scenario: Scenario, *, progress: bool, model, modes, stresses: bool,
+def spectrum_analyse(scenario: Scenario, *, progress: bool, model: BlockModel | None,
+                     modes: Modes | None, stresses: bool,
                      collected: list, residual: np.ndarray | None = None,
                      timings: dict | None = None, analyse=None):
     """Run a scenario by response-spectrum analysis (``[analysis] method = "spectrum"``).
@@ -251,7 +256,7 @@ def spectrum_analyse(scenario: Scenario, *, progress: bool, model, modes, stress
                            run.tz.parameters.get("path") if run.tz is not None else None])
     summary["provenance"] = provenance(
         inputs=inputs,
-        solver={"method": "spectrum", "factor": getattr(run.model, "solver", "auto")},
+        solver={"method": "spectrum", "factor": run.model.solver},
         settings={"cutoff_hz": an.cutoff_hz, "modes": an.modes,
                   "direction_combination": an.direction_combination},
         timings=run.timings)
@@ -259,11 +264,11 @@ def spectrum_analyse(scenario: Scenario, *, progress: bool, model, modes, stress
     return RunResults(summary=summary, motion=motion, model=run.model, modes=run.modes,
                       time=np.zeros(0), histories={}, ground_spectra=spectra["ground"],
                       floor=spectra["floor"], stress=speaks, target_psa=spectra["target_psa"],
-                      inputs=inputs, base=None)
+                      target_damping=spectra["target_damping"], inputs=inputs, base=None)
 
 
-def _setup(scenario: Scenario, *, model, modes, residual, progress, collected,
-           timings) -> _Spectrum:
+def _setup(scenario: Scenario, *, model: BlockModel | None, modes: Modes | None, residual,
+           progress, collected, timings) -> _Spectrum:
     """Step 1: the design spectra, the model, the modes and their modal spectrum."""
     from ..dynamics import compute_modes
     from ..model import build_model
@@ -283,13 +288,12 @@ def _setup(scenario: Scenario, *, model, modes, residual, progress, collected,
             modes = compute_modes(model, cutoff_hz=None if an.modes else an.cutoff_hz,
                                   n_modes=an.modes, excited=excited, warn=False)
     timings["modes"] = clock.tick()
-    collected.extend(m for m in getattr(modes, "warnings", []) or []
-                     if not str(m).startswith("modes capture"))
+    collected.extend(m for m in modes.warnings if not str(m).startswith("modes capture"))
     shapes = np.asarray(modes.shapes)
     gam = np.asarray(modes.participation)
     if residual is None:
         residual = residual_vectors(model.M, model.influence, shapes, gam, model.factor().solve,
-                                    load=getattr(model, "ground_load", None))
+                                    load=model.ground_load)
     ms = modal_spectrum(shapes, modes.omega, modes.damping, gam, targets, scales=scales,
                         residual=residual, rule=an.direction_combination)
     collected.extend(n for n in ms.notes if n.startswith("target") and "held" in n)
@@ -334,7 +338,7 @@ def _base_entries(run: _Spectrum) -> tuple[dict, np.ndarray]:
     """Step 3: peak base resultants (d'Alembert: −Σ m ü_abs, acceleration type) and, on
     soil, the envelope of the linear contact pressure."""
     model = run.model
-    R = getattr(model, "inertia_reaction", None)
+    R = model.inertia_reaction
     if R is None:       # pragma: no cover - every model built here has it
         raise InputError("spectrum method: the model has no inertia reaction operators")
     base_pk = run.ms.peak(np.asarray(R.M), kind="acceleration", ground=np.asarray(R.G))
@@ -383,7 +387,7 @@ def _stress_entries(run: _Spectrum, peaks: dict, *, stresses: bool, progress: bo
     vm, t1, t3 = stress_envelope(comp.T, cov)
     zero = np.zeros(n_pts, dtype=np.int64)
     point_peaks = StressPeaks(vm, zero, t1, zero.copy(), t3, zero.copy())
-    pts = getattr(model, "stress_points", None)
+    pts = model.stress_points
     if pts is not None:            # stress points on the surface (nodal recovery)
         out, notes = stress_summary(point_peaks, pts, 0.0, part_names=list(model.part_names))
         run.collected.extend(notes)
@@ -420,6 +424,7 @@ def _spectra(run: _Spectrum, *, progress: bool, analyse) -> dict:
                                                    scale=run.scales[j])
     out = {"ground": {"periods": periods, "damping": damp, "psa": gpsa, "sa": gpsa},
            "target_psa": np.asarray(run.th.psa(periods), dtype=float),
+           "target_damping": run.th.damping,
            "floor": {"periods": periods, "damping": damp, "points": []},
            "floor_out": {"damping_percent": [float(v) for v in damp * 100],
                          "points": {},
@@ -465,7 +470,7 @@ def _assumptions(run: _Spectrum) -> list[str]:
         "Absolute accelerations: each mode at its pseudo-spectral acceleration; the rigid part "
         "of the modes left out at the ZPA.",
         "Modal damping: " + ("the composite ratio of each mode" if
-                             getattr(run.model, "is_classically_damped", True) else
+                             run.model.is_classically_damped else
                              "the diagonal ratios of ΦᵀCΦ; the coupling of the modes by discrete "
                              "dashpots (soil radiation, equipment supports) is neglected")
         + " (capped as the modal method does).",
@@ -554,8 +559,8 @@ def _with_bolt_maxima(summary) -> dict:
     return summary
 
 
-def _matched_floor(scenario, n, targets, scales, *, model, modes, residual, analyse,
-                   dt: float = 0.002, duration: float = 30.0):
+def _matched_floor(scenario: Scenario, n, targets, scales, *, model: BlockModel, modes: Modes,
+                   residual, analyse, dt: float = 0.002, duration: float = 30.0):
     """Floor spectra (mean over ``n`` spectrum-compatible motions) and the side-by-side rows.
 
     Each motion is invented: three components of stochastic ground acceleration

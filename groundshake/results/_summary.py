@@ -10,7 +10,7 @@ from __future__ import annotations
 import datetime as _dt
 import time as _time
 from pathlib import Path
-from typing import Any, Iterable, Sequence
+from typing import TYPE_CHECKING, Any, Iterable, Sequence
 
 import numpy as np
 import scipy.sparse as sp
@@ -20,8 +20,12 @@ from .._constants import DIRECTIONS, STANDARD_GRAVITY
 from ..scenario import AnchorCapacity, FpParameters, Scenario
 from ._anchorage import INTERACTION_FORMS, SCREENING_WORDING, bolt_interaction, fp_comparison, \
     worst_entries
-from ._common import _modes_dict, _sha256
+from ._common import _sha256
 from ._stability import base_stability
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..dynamics import Modes
+    from ..model import BlockModel
 
 __all__ = ["RESULTANTS", "Clock", "WorstBolts", "summary_head", "floor_grid", "sensor_entry",
            "equipment_entry", "anchorage_entries", "fp_entry", "base_entry", "base_geometry",
@@ -180,14 +184,14 @@ def fp_entry(e, anchors: np.ndarray, bolts: Sequence[dict]) -> dict:
     return out
 
 
-def base_entry(model, sign: str, peaks: dict) -> dict:
+def base_entry(model: BlockModel, sign: str, peaks: dict) -> dict:
     """The ``base`` entry: the point the moments are taken about, the sign convention and
     the peaks of the six resultants."""
     return {"about": [float(v) for v in np.asarray(model.base.get("centre", np.zeros(3)))],
             "sign": sign, "peaks": peaks}
 
 
-def base_geometry(model) -> tuple[float, float, float, float, float, float]:
+def base_geometry(model: BlockModel) -> tuple[float, float, float, float, float, float]:
     """Area [m²], lengths lx, ly [m], second moments Ix, Iy [m⁴] of the base face and the
     weight of block and equipment [N]."""
     A = float(model.base.get("area", 0.0)) or 1.0
@@ -208,7 +212,7 @@ def contact_entry(static: float, peak: float, least: float, method: str, *,
     return out
 
 
-def stability_entry(base: np.ndarray, model, scenario: Scenario, dt: float, *,
+def stability_entry(base: np.ndarray, model: BlockModel, scenario: Scenario, dt: float, *,
                     t0: float = 0.0) -> dict:
     """The ``stability`` entry of base resultants ``base`` (6, k) [N, N·m] (a history at
     step ``dt`` [s] from ``t0``, or k combinations of peaks)."""
@@ -243,18 +247,17 @@ def stress_peak_entries(peaks: dict, stresses: dict) -> None:
         peaks[key] = stresses.get(key, {}).get("value")
 
 
-def retained_mass(modes) -> dict[str, float]:
+def retained_mass(modes: Modes) -> dict[str, float]:
     """The modes' cumulative effective mass ratio in x, y, z (0 with no mode)."""
     if not np.asarray(modes.omega).size:
         return {d: 0.0 for d in DIRECTIONS}
     return _by_direction(np.asarray(modes.cumulative_ratio)[-1])
 
 
-def free_mass_ratio(modes) -> np.ndarray:
+def free_mass_ratio(modes: Modes) -> np.ndarray:
     """The modes' effective mass over the mass free to move (total less the rigidly moving
     mass), (3,); 1 where nothing is free."""
-    rigid = getattr(modes, "rigid_mass", None)
-    rigid = np.asarray(rigid if rigid is not None else np.zeros(3), float)
+    rigid = np.zeros(3) if modes.rigid_mass is None else np.asarray(modes.rigid_mass, float)
     total = np.asarray(modes.total_mass, float)
     held = (np.asarray(modes.effective_mass).sum(axis=0) if np.asarray(modes.omega).size
             else np.zeros(3))
@@ -270,7 +273,8 @@ def low_mass_text(free: np.ndarray, excited: Iterable[bool]) -> list[str]:
 
 def assemble(summary: dict, *, analysis: dict, peaks: dict, sensors: dict, equipment: dict,
              worst: WorstBolts, stresses: dict, base: dict, stability: dict, floor: dict,
-             modes, model, records: list, motion: dict, scenario: Scenario) -> None:
+             modes: Modes, model: BlockModel, records: list, motion: dict,
+             scenario: Scenario) -> None:
     """Put the run's entries into ``summary`` in the contract's order."""
     summary.update({
         "analysis": analysis,
@@ -282,7 +286,7 @@ def assemble(summary: dict, *, analysis: dict, peaks: dict, sensors: dict, equip
         "base": base,
         "stability": stability,
         "floor_spectra": floor,
-        "modes": _modes_dict(modes, model),
+        "modes": modes.to_dict(),
         "model": model.describe(),
         "records": records,
         "motion": motion,

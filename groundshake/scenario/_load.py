@@ -124,7 +124,7 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
 
 
 @contextlib.contextmanager
-def errors_at_key(scenario, path: tuple):
+def errors_at_key(scenario: Scenario, path: tuple):
     """Run library code on behalf of the scenario key ``path`` (``("motion", "x")``,
     ``("processing",)``): an :class:`~groundshake.InputError` raised inside becomes a
     :class:`~groundshake.ScenarioError` naming the scenario file, line and key.
@@ -138,8 +138,8 @@ def errors_at_key(scenario, path: tuple):
     try:
         yield
     except InputError as e:
-        source = getattr(scenario, "source", None)
-        if not source or getattr(e, "file", None) is not None:
+        # ``file`` is set only on errors already located in a scenario file (located(file=))
+        if not scenario.source or getattr(e, "file", None) is not None:
             raise
         ctx = _context_of(scenario)
         full = schema_path(e.param) if e.param else None
@@ -154,17 +154,16 @@ def errors_at_key(scenario, path: tuple):
         raise ctx.keyed(e, path) from None
 
 
-def located_at(scenario, path: tuple, err: InputError) -> InputError:
+def located_at(scenario: Scenario, path: tuple, err: InputError) -> InputError:
     """``err`` shown at the scenario key ``path``: ``FILE:LINE: key.path`` in front (a
     :class:`~groundshake.ScenarioError`), or the key alone for a scenario without a file."""
-    if not getattr(scenario, "source", None):
+    if not scenario.source:
         return err.located(format_path(path))
     return _context_of(scenario).located(err, tuple(path))
 
 
-def _context_of(scenario) -> _Context:
+def _context_of(scenario: Scenario) -> _Context:
     """The message context of a loaded scenario (file name and the lines of its keys)."""
-    ctx = _Context(str(scenario.source), None,
-                   Path(getattr(scenario, "base_dir", None) or Path.cwd()))
-    ctx.lines = getattr(scenario, "key_lines", None)
+    ctx = _Context(str(scenario.source), None, Path(scenario.base_dir))
+    ctx.lines = scenario.key_lines
     return ctx

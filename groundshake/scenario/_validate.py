@@ -136,12 +136,11 @@ def _check_plausible(values, ctx):
         _plausible("equipment_mass", e.mass, ("equipment", i, "mass"), ctx)
         _plausible("damping_percent", e.damping_percent, ("equipment", i, "damping_percent"), ctx)
         _plausible("cg_height", e.cg_height, ("equipment", i, "cg_height"), ctx)
-        cap = getattr(e, "capacity", None)
-        if cap is not None:
+        if e.capacity is not None:
             for key in ("tension", "shear"):
-                _plausible("bolt_capacity", getattr(cap, key, None),
+                _plausible("bolt_capacity", getattr(e.capacity, key),
                            ("equipment", i, "capacity", key), ctx)
-        if getattr(e, "fp", None) is not None:
+        if e.fp is not None:
             _plausible("sds", e.fp.sds, ("equipment", i, "fp", "sds"), ctx)
     fs = values.get("floor_spectra")
     if fs is not None:

@@ -24,13 +24,16 @@ import os
 import warnings
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Callable
+from typing import TYPE_CHECKING, Callable
 
 import numpy as np
 
 from .._constants import STANDARD_GRAVITY
 from .._errors import GroundshakeWarning, InputError
 from .._plausible import check_value
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..records.io.csmip import PublishedSpectrum
 
 __all__ = ["TargetSpectrum", "parse_target", "asce7_spectrum", "en1998_spectrum",
            "table_spectrum", "published_target", "volume3_target", "target_ratio",
@@ -252,7 +255,7 @@ def _log_log(tt: np.ndarray, vv: np.ndarray) -> Callable[[np.ndarray], np.ndarra
     return fn
 
 
-def published_target(spectrum, damping: float = 0.05) -> TargetSpectrum:
+def published_target(spectrum: PublishedSpectrum, damping: float = 0.05) -> TargetSpectrum:
     """A published response spectrum's PSA as a target curve.
 
     Parameters
@@ -278,7 +281,7 @@ def published_target(spectrum, damping: float = 0.05) -> TargetSpectrum:
     """
     k = np.flatnonzero(np.isclose(np.asarray(spectrum.damping, dtype=float), damping,
                                   rtol=0.0, atol=1e-9))
-    meta = dict(getattr(spectrum, "metadata", {}) or {})
+    meta = spectrum.metadata
     name = " ".join(str(v) for v in (meta.get("station", ""), spectrum.component) if v)
     if not k.size:
         have = ", ".join(f"{100 * d:g} %" for d in spectrum.damping)

@@ -5,13 +5,17 @@ from __future__ import annotations
 import csv
 import io
 from pathlib import Path
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 import numpy as np
 
 from .._atomic import atomic_write_text
 from .._constants import DIRECTIONS
 from ..pipeline import SUITE_FILES, write_suite_report
+
+if TYPE_CHECKING:  # pragma: no cover
+    from .. import Scenario
+    from ._run import SuiteResult
 
 __all__ = ["write_suite_outputs"]
 
@@ -54,7 +58,7 @@ def _spectra_csv(spec: dict) -> dict[str, str]:
     return files
 
 
-def write_suite_outputs(result, scenario, *, target: str | None = None,
+def write_suite_outputs(result: SuiteResult, scenario: Scenario, *, target: str | None = None,
                         units: str | None = None) -> list[Path]:
     """Write the spectra statistics (CSV) and ``suite.html`` into ``result.out_dir``.
 
@@ -76,10 +80,9 @@ def write_suite_outputs(result, scenario, *, target: str | None = None,
     if spec:
         for name, text in _spectra_csv(spec).items():
             written.append(atomic_write_text(out / name, text))
-    engine = getattr(result, "engine", None)
-    source = getattr(scenario, "source", None)
-    prov = {"version": None, "scenario": Path(str(source)).name if source else None,
-            "how it ran": engine.line() if engine is not None else None}
+    prov = {"version": None,
+            "scenario": Path(scenario.source).name if scenario.source else None,
+            "how it ran": result.engine.line()}
     written.append(write_suite_report(out, scenario, spectra=spec, target=target, units=units,
                                       provenance={k: v for k, v in prov.items()
                                                   if v is not None}))

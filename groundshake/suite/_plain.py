@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 import importlib
+import os
 from typing import Any
 
 import numpy as np
@@ -43,7 +44,7 @@ def to_plain(obj: Any) -> Any:
         return {"__tuple__": [to_plain(v) for v in obj]}
     if isinstance(obj, list):
         return [to_plain(v) for v in obj]
-    if hasattr(obj, "__fspath__"):
+    if isinstance(obj, os.PathLike):
         return str(obj)
     raise TypeError(f"{type(obj).__qualname__}: cannot be sent to a worker as plain data")
 

@@ -16,7 +16,7 @@ import time
 import uuid
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Callable, Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Callable, Mapping, Sequence
 
 import numpy as np
 
@@ -30,13 +30,16 @@ from ..pipeline import (SUITE_FILES, RecordSet, SuiteScaling, combine_by_rule, p
 from ._engine import EngineReport, SuiteStalled, run_tasks
 from ._plain import from_plain, to_plain
 
+if TYPE_CHECKING:  # pragma: no cover
+    from .. import Scenario
+
 __all__ = ["prepare_suite", "run_record_set", "run_suite", "SuiteResult",
            "default_set_timeout"]
 
 _PROGRESS_EVERY_S = 10.0     # suite.json is rewritten at most this often while running
 
 
-def prepare_suite(scenario, *, method: str | None = None) -> dict:
+def prepare_suite(scenario: Scenario, *, method: str | None = None) -> dict:
     """Build the model, its modes and the missing-mass shapes once.
 
     Returns the data every task shares, as arrays and plain data only: the
@@ -102,7 +105,7 @@ def default_set_timeout(n_dof: int, n_steps: int, *, method: str | None = "modal
     return _LIMIT_BASE_S + work
 
 
-def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario,
+def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario: Scenario,
                 method: str | None, set_timeout: float | None | str) -> list[float | None]:
     """Each set's time limit [s]: the given one, none (0 or None), or the default."""
     if set_timeout is None or set_timeout == 0:
@@ -114,7 +117,7 @@ def _set_limits(sets: Sequence[RecordSet], shared: Mapping[str, Any], scenario,
                              param="set_timeout", value=set_timeout)
         return [value] * len(sets)
     n_dof = int(shared.get("n_dof") or 0) or int(shared["model"]["fields"]["K"]["shape"][0])
-    how = method or getattr(getattr(scenario, "analysis", None), "method", "modal")
+    how = method or scenario.analysis.method
     steps = [record_set_samples(rs) for rs in sets]
     known = [s for s in steps if s]
     fallback = max(known) if known else 200 * 3600      # an hour at 200 Hz
@@ -185,7 +188,7 @@ def _load_done(out_dir: Path, sets: Sequence[RecordSet]) -> dict[str, dict]:
 
 
 
-def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
+def run_suite(scenario: Scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
               workers: int | None = 1, scheduler: Any = None, resume: bool = False,
               method: str | None = None, shared: Mapping[str, Any] | None = None,
               on_result: Callable[[dict], None] | None = None,
@@ -297,7 +300,8 @@ def run_suite(scenario, sets: Sequence[RecordSet], out_dir: str | Path, *,
     return result
 
 
-def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
+def _write_suite_json(out_dir: Path, scenario: Scenario, sets: Sequence[RecordSet],
+                      results: Mapping[str, dict], *, complete: bool,
                       stats: dict | None = None, engine: EngineReport | None = None,
                       set_timeout_s: dict | None = None, scaling: dict | None = None,
                       **extra) -> None:
@@ -313,7 +317,7 @@ def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
         records.append(entry)
     n_failed = sum(1 for r in records if r["status"] == "failed")
     doc = {
-        "title": getattr(scenario, "title", "suite"),
+        "title": scenario.title,
         "complete": complete,
         "counts": {"sets": len(sets), "ok": sum(1 for r in records if r["status"] == "ok"),
                    "failed": n_failed},
@@ -331,7 +335,7 @@ def _write_suite_json(out_dir: Path, scenario, sets, results, *, complete: bool,
                            | set((scaling or {}).get("warnings", []))),
         "cautions": list(CAUTIONS),
         **({"scaling": scaling} if scaling is not None else {}),
-        "scenario": scenario.to_dict() if hasattr(scenario, "to_dict") else {},
+        "scenario": scenario.to_dict(),
         "provenance": {"version": __version__, **{k: v for k, v in extra.items()}},
     }
     atomic_write_text(out_dir / SUITE_FILES["suite"], json_dumps(doc))

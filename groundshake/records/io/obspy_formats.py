@@ -168,7 +168,7 @@ def _plain(value: Any) -> Any:
 
 def _file_units_and_scale(tr) -> tuple[str | None, float, str]:
     """(units the file states or None, factor from stored values to those units, note)."""
-    fmt = getattr(tr.stats, "_format", "") or ""
+    fmt = getattr(tr.stats, "_format", "") or ""   # set by ObsPy's reader, absent otherwise
     if tr.stats.get("groundshake_units"):  # counts turned into m/s² with an inventory
         return str(tr.stats.groundshake_units), 1.0, str(tr.stats.get("groundshake_note", ""))
     if fmt == "KNET":
