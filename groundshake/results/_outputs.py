@@ -301,7 +301,7 @@ def rotational_participation(model: BlockModel, modes: Modes) -> np.ndarray:
         P = sp.csr_matrix(model.node_map)
         nodes = np.asarray(model.nodes, float)
         c = np.asarray(model.base.get("centre", np.zeros(3)), float)
-        blocks, rhs_rows = [P], []
+        blocks = [P]
         eq_ops = [(np.asarray(e.cg, float), sp.csr_matrix(e.operator))
                   for e in model.equipment]
         for _, op in eq_ops:
