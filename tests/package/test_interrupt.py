@@ -21,7 +21,7 @@ import pytest
 
 from _tables import block_scenario, part, sensor
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 SCENARIO = block_scenario(
     "interrupt test (invented)", [part("block", (3.0, 3.0, 1.0))], element_size=0.12,
