@@ -1,6 +1,6 @@
 """Long fuzzing profile of the scenario loader (issue 8): prints inputs and uncaught exceptions.
 
-Runs the strategies of tests/test_scenario_fuzz.py (mutated valid scenarios as trees and as
+Runs the strategies of tests/scenario/test_scenario_fuzz.py (mutated valid scenarios as trees and as
 TOML text, random trees, character-level edits of a valid file) for many more examples than
 CI does. The only allowed outcomes are a Scenario or a ScenarioError; anything else is
 counted as uncaught and its first few are shown. Also times the corpus of broken scenarios.
@@ -19,7 +19,7 @@ import warnings
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
-sys.path.insert(0, str(HERE.parent / "tests"))
+sys.path[:0] = [str(HERE.parent / "tests"), str(HERE.parent / "tests" / "scenario")]
 
 from hypothesis import HealthCheck, Phase, given, settings  # noqa: E402
 

@@ -2,7 +2,7 @@
 
     python benchmarks/report.py [OUTPUT_DIR]
 
-Without a folder it uses the invented output folder of tests/test_report_fixture.py
+Without a folder it uses the invented output folder of tests/_report_fixture.py
 (INVENTED TEST DATA). Prints CPU seconds for reading the files (the reference), for
 each figure and for the whole report, and their ratios to the reference.
 """
@@ -24,7 +24,7 @@ def main(argv: list[str]) -> int:
         folder = Path(argv[0])
     else:
         sys.path.insert(0, str(HERE.parent / "tests"))
-        from test_report_fixture import make_output_folder
+        from _report_fixture import make_output_folder
 
         folder = make_output_folder(Path(tempfile.mkdtemp()) / "run")
     c = time.process_time()

@@ -10,7 +10,7 @@ Pages:
                    keys, read from the folder the bundled demo writes;
 - ``api.md``       the public names of each stage, from their ``__all__`` and docstrings.
 
-The test tests/test_docs.py checks that the committed pages equal what this script writes.
+The test tests/package/test_docs.py checks that the committed pages equal what this script writes.
 """
 from __future__ import annotations
 

@@ -114,7 +114,7 @@ def test_round_trip_of_demo_files_matches_generator(tmp_path):
     paths = make_demo_records(tmp_path)
     assert [p.name for p in paths] == ["demo-h1.mseed", "demo-h2.mseed", "demo-up.mseed",
                                        "demo-h1.csv", "demo-h2.csv", "demo-up.csv"]
-    repo = Path(__file__).resolve().parents[1] / "records"
+    repo = Path(__file__).resolve().parents[2] / "records"
     for comp in ("h1", "h2", "up"):
         fresh = read_record(tmp_path / f"demo-{comp}.mseed", units="m/s2")[0]
         shipped = read_record(repo / f"demo-{comp}.mseed", units="m/s2")[0]

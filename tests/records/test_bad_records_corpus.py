@@ -15,7 +15,7 @@ import pytest
 
 from groundshake.cli import main
 
-HERE = Path(__file__).parent / "data" / "bad" / "records"
+HERE = Path(__file__).parents[1] / "data" / "bad" / "records"
 
 
 def _cases():

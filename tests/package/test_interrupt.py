@@ -21,12 +21,19 @@ import pytest
 
 from _tables import block_scenario, part, sensor
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 SCENARIO = block_scenario(
     "interrupt test (invented)", [part("block", (3.0, 3.0, 1.0))], element_size=0.12,
     before=['[motion]\nx = {{ file = "{rec}", units = "m/s2" }}\n'],
     after=[sensor("top", (3.0, 3.0, 1.0)), "[analysis]\nmodes = 30\n"])
+
+
+def _default_interrupt() -> None:
+    # A shell without job control starts background commands with SIGINT ignored (POSIX,
+    # Shell Command Language §2.11), and a child inherits that: give the run the usual
+    # disposition, as a terminal user's run has it.
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
 
 
 def _cpu_seconds(pid: int) -> float:
@@ -45,7 +52,8 @@ def test_interrupted_run_keeps_previous_output(tmp_path, sig):
     before = sorted((p.name, p.read_bytes()) for p in out.iterdir())
     proc = subprocess.Popen([sys.executable, "-m", "groundshake", "run", str(scen), "-o",
                              str(out), "--force", "--quiet"],
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, cwd=tmp_path)
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, cwd=tmp_path,
+                            preexec_fn=_default_interrupt)
     deadline = time.monotonic() + 600
     try:
         while proc.poll() is None and _cpu_seconds(proc.pid) < 7.0:

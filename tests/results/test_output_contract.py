@@ -182,7 +182,7 @@ def test_report_reads_only_declared_paths():
     from groundshake.results._schema import SUMMARY_GROUPS
 
     patterns = [tuple(p.split(".")) for p in (*SUMMARY_KINDS, *SUMMARY_GROUPS)]
-    report = Path(__file__).resolve().parents[1] / "groundshake" / "report"
+    report = Path(__file__).resolve().parents[2] / "groundshake" / "report"
     checked = 0
     for path in sorted(report.glob("*.py")):
         for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):

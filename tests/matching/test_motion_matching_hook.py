@@ -22,7 +22,7 @@ from groundshake._errors import GroundshakeWarning
 from groundshake.pipeline import build_motion
 from groundshake.scenario import parse_scenario_text
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 
 

@@ -33,7 +33,7 @@ from groundshake.processing import correct_record, intensity_measures
 from groundshake.records import read_record, write_record
 from groundshake.scenario import parse_scenario_text
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 H1 = (ROOT / "records" / "demo-h1.csv").as_posix()
 UP = (ROOT / "records" / "demo-up.csv").as_posix()
 DT = 0.005      # records/README.md: 0.005 s step

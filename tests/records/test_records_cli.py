@@ -19,7 +19,7 @@ import pytest
 from groundshake.cli import main
 from groundshake.records import read_record
 
-REPO = Path(__file__).resolve().parents[1]
+REPO = Path(__file__).resolve().parents[2]
 DEMO = [str(REPO / "records" / f"demo-{c}.mseed") for c in ("h1", "h2", "up")]
 
 

@@ -27,7 +27,7 @@ def test_closed_pipe_is_not_an_error(tmp_path):
     import sys
     from pathlib import Path
 
-    rec = Path(__file__).resolve().parents[1] / "records" / "demo-h1.csv"
+    rec = Path(__file__).resolve().parents[2] / "records" / "demo-h1.csv"
     cmd = (f'"{sys.executable}" -m groundshake info "{rec}" "{rec}" "{rec}" --json | head -c 10')
     res = subprocess.run(["bash", "-o", "pipefail", "-c", cmd], capture_output=True, text=True)
     assert "Traceback" not in res.stderr

@@ -16,7 +16,7 @@ from groundshake._errors import ScenarioError
 from groundshake.scenario import Scenario, parse_scenario_text
 from groundshake.scenario._schema import schema_markdown, schema_rows
 
-REPO = Path(__file__).resolve().parents[1]
+REPO = Path(__file__).resolve().parents[2]
 
 
 def _section() -> str:

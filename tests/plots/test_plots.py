@@ -15,7 +15,7 @@ from groundshake.processing import correct_record
 from groundshake.records import read_record
 from groundshake.spectra import response_spectrum
 
-REPO = Path(__file__).resolve().parents[1]
+REPO = Path(__file__).resolve().parents[2]
 PNG = b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948 §5.2)
 
 

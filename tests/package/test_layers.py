@@ -19,7 +19,7 @@ from pathlib import Path
 
 import pytest
 
-PACKAGE = Path(__file__).resolve().parents[1] / "groundshake"
+PACKAGE = Path(__file__).resolve().parents[2] / "groundshake"
 
 # Modules at the package root that every stage may use (no groundshake imports of their own
 # beyond each other).

@@ -15,7 +15,7 @@ from _tables import block_scenario, equipment, part, sensor
 
 from groundshake.cli import main
 
-EXAMPLE = Path(__file__).resolve().parents[1] / "examples" / "transformer-pad.toml"
+EXAMPLE = Path(__file__).resolve().parents[2] / "examples" / "transformer-pad.toml"
 
 SMALL = block_scenario(
     "small pad (invented)", [part("pad", (3.0, 2.0, 1.0))], element_size=0.5,

@@ -9,7 +9,7 @@ from pathlib import Path
 
 import pytest
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def _generator():
@@ -62,7 +62,7 @@ def test_cited_reference_sheet_is_in_the_repository():
     sheet = (ROOT / "docs" / "references.md").read_text(encoding="utf-8")
     sections = set(re.findall(r"^## (\d+)\.", sheet, re.M))
     cited = set()
-    for test in (ROOT / "tests").glob("*.py"):
+    for test in (ROOT / "tests").rglob("*.py"):
         cited |= set(re.findall(r"docs/references\.md §(\d+)", test.read_text(encoding="utf-8")))
     assert cited and cited <= sections
 

@@ -22,7 +22,7 @@ import pytest
 
 from _report_fixture import demo_run
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = sorted((ROOT / "examples").glob("*.toml"))
 SECTION_IDS = ["summary", "model", "modes", "response", "anchorage", "floor-spectra",
                "motion", "inputs", "provenance"]

@@ -19,7 +19,7 @@ import pytest
 
 from _report_fixture import demo_run, make_output_folder
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def test_packaged_example_equals_the_repository_example():

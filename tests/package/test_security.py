@@ -4,7 +4,7 @@ Sources (common practice, OWASP "Deserialization of untrusted data" and the Pyth
 documentation's warnings on ``pickle``, ``eval`` and ``yaml.load``): the package never
 evaluates, unpickles or YAML-loads what a user hands it; work sent to suite workers
 is arrays and plain data; the HTML report escapes user text (tested in
-tests/test_report.py with hostile titles and names).
+tests/report/test_report.py with hostile titles and names).
 """
 from __future__ import annotations
 
@@ -17,7 +17,7 @@ import pytest
 from _blocks import concrete_block
 from _tables import equipment
 
-PACKAGE = Path(__file__).resolve().parents[1] / "groundshake"
+PACKAGE = Path(__file__).resolve().parents[2] / "groundshake"
 FORBIDDEN_CALLS = {"eval", "exec", "compile", "__import__"}
 FORBIDDEN_MODULES = {"pickle", "cPickle", "dill", "cloudpickle", "yaml", "marshal", "shelve"}
 

@@ -24,7 +24,7 @@ from groundshake.scenario import (
     parse_scenario_text,
 )
 
-REPO = Path(__file__).resolve().parents[1]
+REPO = Path(__file__).resolve().parents[2]
 EXAMPLE = REPO / "examples" / "transformer-pad.toml"
 
 

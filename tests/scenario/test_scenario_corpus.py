@@ -2,7 +2,7 @@
 
 Each file says on its second line (``# expect: ...``) the fragment its error must
 contain; the line numbers there were counted by hand in the file, the physical limits
-are those of tests/test_scenario_errors.py (ν < 0.5 incompressibility, E > 0, damping
+are those of tests/scenario/test_scenario_errors.py (ν < 0.5 incompressibility, E > 0, damping
 below critical, HHT-α in [−1/3, 0] after Hilber, Hughes & Taylor 1977), the geometry
 rules are issue 4's (parts touch face to face, equipment on a top face, sensors in the
 model), and the TOML syntax cases follow Python's tomllib (the reference parser).
@@ -20,7 +20,7 @@ import pytest
 from groundshake._errors import ScenarioError
 from groundshake.scenario import load_scenario
 
-CORPUS = Path(__file__).resolve().parent / "data" / "bad" / "scenarios"
+CORPUS = Path(__file__).resolve().parents[1] / "data" / "bad" / "scenarios"
 FILES = sorted(CORPUS.glob("*.toml"))
 
 
