@@ -11,7 +11,7 @@ from typing import Any, Callable, Mapping
 
 import numpy as np
 
-from ..results._schema import DIRECTIONS, SCHEMA_VERSION, iter_values, kind_of, read
+from ..results._schema import DIRECTIONS, SCHEMA_VERSION, header, iter_values, kind_of, read
 from ..plots import to_data_uri
 from ._html import esc, figure, raw
 from ._load import OutputFolder
@@ -94,6 +94,15 @@ class Context:
         """A column heading with its display unit."""
         u = display_unit(kind, self.sys) if kind else ""
         return f"{label} [{u}]" if u else label
+
+    def timed_table(self, name: str):
+        """``(table, time [s])`` of the CSV file ``name`` of the output contract, or None
+        when the file is missing, empty or has no time column."""
+        t = self.f.table(name)
+        if t is None or t.n_rows == 0:
+            return None
+        time = t.get(header("time", "time"))
+        return None if time is None else (t, time)
 
     def cell(self, value: Any, kind: str | None, *, digits: int = 3) -> Any:
         return raw(f'<span class="n">{esc(self.n(value, kind, digits=digits))}</span>')

@@ -7,7 +7,7 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from ..results._schema import COLUMNS, DIRECTIONS, header, read, read_list, read_table
+from ..results._schema import COLUMNS, DIRECTIONS, read, read_list, read_table
 from . import _figures as F
 from ._html import esc, table
 from ._units import display_unit, to_display
@@ -54,12 +54,10 @@ class MotionPart(Context):
         return "".join(html_)
 
     def records_figure(self) -> str:
-        t = self.f.table("records")
-        if t is None or t.n_rows == 0:
+        found = self.timed_table("records")
+        if found is None:
             return ""
-        time = t.get(header("time", "time"))
-        if time is None:
-            return ""
+        t, time = found
         kinds = (("acc", "acceleration", "acceleration"), ("vel", "velocity", "velocity"),
                  ("disp", "displacement", "displacement"))
         figs = []

@@ -203,12 +203,10 @@ class ResponsePart(Context):
         return None if v is None else to_display(1.0, col.kind, self.sys) * v
 
     def history_figures(self) -> str:
-        h = self.f.table("histories")
-        if h is None or h.n_rows == 0:
+        found = self.timed_table("histories")
+        if found is None:
             return ""
-        time = h.get(header("time", "time"))
-        if time is None:
-            return ""
+        h, time = found
         out = []
         fu, mu = display_unit("force", self.sys), display_unit("moment", self.sys)
         strips = []
