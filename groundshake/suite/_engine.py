@@ -456,8 +456,7 @@ def _run_pool(fn, shared, items, limits, n, retries, report) -> Iterator[dict]:
                       if limits[s.task] is not None else math.inf) if s.started is not None
                      else s.sent + _STARTUP_S for s in busy]
             timeout = max(0.05, min(waits) - now) if min(waits) < math.inf else None
-            mpc.wait([s.conn for s in busy] + [s.proc.sentinel for s in busy],
-                             timeout=timeout)
+            mpc.wait([s.conn for s in busy] + [s.proc.sentinel for s in busy], timeout=timeout)
             for k, slot in enumerate(slots):
                 if slot.task is None:
                     continue
