@@ -57,7 +57,7 @@ def cmd_modes(args) -> int:
             figures.append(str(save_figure(fig, out / f"mode-{i + 1}.png", **kw)))
     d = modes.to_dict()
     doc = {"scenario": str(args.scenario), "title": scenario.title,
-           "total_mass": d["total_mass"], "modes": d["modes"],
+           "total_mass": d["total_mass"], "rigid_mass": d["rigid_mass"], "modes": d["modes"],
            "captured_ratio": d["captured_ratio"], "n_modes": d["n_modes"],
            "cutoff_hz": None if n_modes else cutoff,
            "model": model.describe(), "solver": d["solver"],
@@ -71,6 +71,14 @@ def cmd_modes(args) -> int:
           f"{desc['n_dof']} DOFs, {desc['support']['kind']} base; "
           f"driven mass x {d['total_mass']['x']:.6g} kg, y {d['total_mass']['y']:.6g} kg, "
           f"z {d['total_mass']['z']:.6g} kg")
+    rigid = d["rigid_mass"]
+    if any(rigid[k] > 0 for k in rigid):
+        most = {k: 100 * (1 - rigid[k] / d["total_mass"][k]) if d["total_mass"][k] > 0 else 100
+                for k in rigid}
+        print(f"moving rigidly with the base (needs no mode): x {rigid['x']:.6g} kg, "
+              f"y {rigid['y']:.6g} kg, z {rigid['z']:.6g} kg; the shares below are of the "
+              f"driven mass, so all modes together reach x {most['x']:.1f} %, "
+              f"y {most['y']:.1f} %, z {most['z']:.1f} %")
     rows = []
     for m in d["modes"]:
         r, c = m["effective_mass_ratio"], m["cumulative_ratio"]

@@ -56,6 +56,24 @@ def test_modes_table_on_the_example(capsys):
     assert "f [Hz]" in out and "screening" in out.lower()
 
 
+def test_modes_on_a_fixed_base_state_the_mass_moving_with_the_base(tmp_path, capsys):
+    # on a fixed base the base nodes' mass moves with the ground: the effective masses of
+    # all modes plus that rigid mass make the driven mass (m = Σ Γ² + (m − Lᵀ M⁻¹ L);
+    # Chopra §13.2 for Σ Γ² = m of a structure with every mass free), so the table's shares
+    # end below 100 % by exactly the rigid share
+    sc = tmp_path / "small.toml"
+    sc.write_text(SMALL)
+    assert main(["modes", str(sc), "--modes", "5", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    rigid, total = doc["rigid_mass"]["x"], doc["total_mass"]["x"]
+    assert 0 < rigid < total
+    assert doc["modes"][-1]["cumulative_ratio"]["x"] <= 1 - rigid / total + 1e-9
+    assert main(["modes", str(sc), "--modes", "5"]) == 0
+    out = capsys.readouterr().out
+    assert f"moving rigidly with the base (needs no mode): x {rigid:.6g} kg" in out
+    assert f"reach x {100 * (1 - rigid / total):.1f} %" in out
+
+
 def test_modes_bad_input_exit_2(tmp_path, capsys):
     sc = tmp_path / "bad.toml"
     sc.write_text(SMALL.replace("element_size = 0.5", "element_size = -1"))
