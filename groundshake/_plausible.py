@@ -155,6 +155,11 @@ RANGES: dict[str, Range] = {
     "shaking_g": Range("g", None, None, 1.5, 5.0, "",
                        "any recorded shaking (about 4 g)",
                        ((1 / STANDARD_GRAVITY, "m/s² typed for g"), (1 / (100 * STANDARD_GRAVITY), "cm/s² typed for g"))),
+    # The magnitude of a record's scale factor: record selection keeps factors within about
+    # 0.25-4 (common practice; NIST GCR 11-917-15, from memory), so beyond 0.1-10 the likely
+    # cause is a unit conversion typed as a scale (9.81 for g, 100 for m) instead of the
+    # record's units. Only a warning: a strong scaling may be meant.
+    "record_scale": Range("", None, 0.1, 10.0, None, "", ""),
     # A target table's PSA in g: design spectra peak near 2.5 × PGA (ASCE 7-16 §11.4.6,
     # EN 1998-1 §3.2.2.2), so above about 10 g a table is in another unit.
     "target_psa": Range("g", None, None, 6.0, 15.0, "", "any design spectrum (in g)",

@@ -147,6 +147,10 @@ def _check_plausible(values, ctx):
         for z in fs.damping_percent:
             _plausible("damping_percent", z, ("floor_spectra", "damping_percent"), ctx)
     m = values.get("motion")
+    for d in ("x", "y", "z"):
+        comp = None if m is None else getattr(m, d)   # the component tables by axis name
+        if comp is not None:
+            _plausible("record_scale", abs(comp.scale), ("motion", d, "scale"), ctx)
     if m is not None and m.target is not None:
         _check_target(m.target, ("motion", "target"), ctx)
     if m is not None and m.target_z is not None:

@@ -226,3 +226,23 @@ def test_bolt_capacity_in_kn_typed_as_n_is_an_error(tmp_path):
     assert msg.startswith(f"case.toml:{line_of(text, line)}: equipment[0].capacity.tension = 20 N")
     assert "did you mean 20000 N (kN typed as N)" in msg
     assert "\n" not in msg
+
+
+@pytest.mark.parametrize("scale,warns", [(80.0, True), (-80.0, True), (0.05, True),
+                                         (2.0, False), (-1.0, False)])
+def test_record_scale_far_from_one_warns(tmp_path, scale, warns):
+    # record selection keeps scale factors within about 0.25-4 (common practice; NIST GCR
+    # 11-917-15, from memory); a factor beyond 10 (or below 0.1) is more likely a unit
+    # conversion typed as a scale than a scaling meant, so it is named with file and line
+    (tmp_path / "rec-x.csv").write_text("0.0\n")        # the loader checks existence only
+    motion = f'[motion]\nx = {{ file = "rec-x.csv", units = "g", dt = 0.01, scale = {scale!r} }}\n'
+    text = BASE.replace("[damping]", motion + "[damping]", 1)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        parse_case(text, tmp_path)
+    mine = [str(w.message) for w in caught if "motion.x.scale" in str(w.message)]
+    if warns:
+        assert len(mine) == 1
+        assert mine[0].startswith(f"case.toml:{line_of(text, 'scale =')}: motion.x.scale = ")
+    else:
+        assert mine == []
