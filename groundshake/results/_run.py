@@ -687,6 +687,44 @@ def motion_band(scenario: Scenario, motion: Motion) -> tuple[float, str]:
     return nyq, f"the Nyquist frequency {nyq:.3g} Hz"
 
 
+def motion_highpass(scenario: Scenario) -> float | None:
+    """The high-pass (low-cut) corner [Hz] the scenario's processing applies, or None."""
+    try:
+        settings = scenario.processing_settings()
+    except (TypeError, ValueError, InputError):
+        return None
+    if not settings.enabled or settings.highpass_hz is None:
+        return None
+    return float(settings.highpass_hz)
+
+
+def _highpass_warnings(collected: list, *, scenario: Scenario, motion: Motion,
+                       freq: np.ndarray, ratio: np.ndarray, excited: np.ndarray) -> None:
+    """Warnings for modes and spectrum periods the high-pass filter took the motion from.
+
+    The acausal Butterworth low-cut removes the motion below its corner f_c; response
+    spectra are usable to periods of about 1/(1.25·f_c) (Boore & Bommer 2005, Soil Dyn.
+    Earthq. Eng. 25; Akkar & Bommer 2006, from memory)."""
+    f_hp = motion_highpass(scenario) if motion.corrected else None   # arrays given as they are
+    if f_hp is None:
+        return
+    f_use = 1.25 * f_hp
+    low = (freq < f_use) & np.any((ratio >= 0.05) & excited[None, :], axis=1) \
+        if freq.size else np.zeros(0, bool)
+    if np.any(low):
+        collected.append(
+            f"Mode(s) at {', '.join(f'{f:.3g}' for f in freq[low][:4])} Hz holding mass lie "
+            f"below 1.25 × the high-pass corner ({f_hp:.3g} Hz): the correction removed the "
+            "ground motion that drives them, so their response is underestimated; lower "
+            "processing.highpass_hz as far as the record's noise allows.")
+    t_max = float(scenario.floor_spectra.periods.max)
+    if t_max > 1.0 / f_use:
+        collected.append(
+            f"Spectra are computed to {t_max:.3g} s but the high-pass corner {f_hp:.3g} Hz "
+            f"leaves them usable only to about {1.0 / f_use:.3g} s (1/(1.25·f_c)); read the "
+            "longer periods with care or lower processing.highpass_hz.")
+
+
 def _auto_warnings(collected: list, *, scenario: Scenario, model: BlockModel, modes: Modes,
                    motion: Motion, method: str, cutoff, peak_times, n_modes) -> None:
     """Append the automatic warnings of a run to ``collected`` (only those that apply)."""
@@ -724,6 +762,8 @@ def _auto_warnings(collected: list, *, scenario: Scenario, model: BlockModel, mo
                              f"{f_band:.3g} Hz): the missing-mass correction treats them "
                              "statically; raise cutoff_hz or modes (ASCE 7-16 §12.9.1.1 asks "
                              "for 90 %).")
+        _highpass_warnings(collected, scenario=scenario, motion=motion, freq=freq, ratio=ratio,
+                           excited=excited)
         f_model = f_hi if method in ("modal", "coupled") else max(f_hi, float(cutoff or 0.0))
         f_use = min(f_model, f_band)
     else:

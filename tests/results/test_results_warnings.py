@@ -10,6 +10,7 @@ stay in compression (common practice). Records are invented test signals.
 from __future__ import annotations
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -111,3 +112,32 @@ def test_quiet_run_has_no_spurious_warnings():
     # a stiff block, a gentle 10-s motion and a fine mesh: none of the rules apply
     assert "uplift" not in w.lower() and "end of the record" not in w
     assert "elements per wavelength" not in w
+
+
+def test_high_pass_above_the_block_and_the_spectra(scenario_file):
+    # the acausal low-cut removes the motion below its corner; spectra are usable to about
+    # 1/(1.25 f_c) (Boore & Bommer 2005; Akkar & Bommer 2006, from memory). A slender
+    # block on soil and the demo records (processed from their files) with a 4 Hz high-pass
+    from groundshake.scenario import load_scenario
+
+    path = scenario_file("[processing]\nhighpass_hz = 4.0\n"
+                         "[floor_spectra]\ndamping_percent = [5]\n"
+                         "[floor_spectra.periods]\nmin = 0.05\nmax = 2.0\ncount = 6\n"
+                         "[analysis]\nmodes = 3\n", size=(1.0, 1.0, 6.0), element_size=0.5,
+                         support="soil")
+    with pytest.warns(GroundshakeWarning):
+        res = analyse(load_scenario(path), progress=False)
+    w = " | ".join(res.summary["warnings"])
+    f1 = res.summary["modes"]["modes"][0]["frequency"]
+    assert f1 < 1.25 * 4.0                           # precondition: the rocking mode is below
+    assert "below 1.25 × the high-pass corner (4 Hz)" in w
+    assert f"usable only to about {1 / (1.25 * 4.0):.3g} s" in w
+    # the same block with the default 0.1 Hz corner: neither warning
+    quiet = scenario_file("[floor_spectra]\ndamping_percent = [5]\n"
+                          "[analysis]\nmodes = 3\n", size=(1.0, 1.0, 6.0), element_size=0.5,
+                          support="soil")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        res = analyse(load_scenario(quiet), progress=False)
+    w = " | ".join(res.summary["warnings"])
+    assert "high-pass corner" not in w
