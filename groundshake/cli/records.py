@@ -249,18 +249,23 @@ def cmd_correct(args: argparse.Namespace) -> int:
         if _same_file(src, plot) or plot.resolve() in (src.resolve(), dst.resolve()):
             raise InputError(f"--plot {plot}: would overwrite the input or the output")
     settings = settings_from_args(args)
-    from ..records._write import write_record
+    from ..records._write import output_paths, write_records
 
     with _collect_warnings() as found:
         raws = read_records_from_args([src], args)
         corrected = _correct_all(raws, settings, args)
-        write_record(corrected, dst)
+        paths = output_paths(corrected, dst)
+        if any(_same_file(src, p) or src.resolve() == p.resolve() for p in paths):
+            raise InputError(f"-o {dst}: would overwrite the input file; give another output "
+                             "path (inputs are never overwritten)")
+        written = write_records(corrected, dst)
         if args.plot is not None:
             from ..plots import correction_figure, save_figure
 
             save_figure(correction_figure(raws, corrected), Path(args.plot), dpi=110)
     if getattr(args, "json", False):
-        print_json({"output": str(dst), "plot": args.plot, "warnings": found,
+        print_json({"output": str(dst), "files": [str(p) for p in written],
+                    "plot": args.plot, "warnings": found,
                     "note": SCREENING_NOTE,
                     "processing": {**settings.to_dict(), "description": settings.describe()},
                     "records": [{"name": c.name, "component": c.component, "dt": c.dt,
@@ -271,7 +276,11 @@ def cmd_correct(args: argparse.Namespace) -> int:
                                  "history": list(c.history)}
                                 for r, c in zip(raws, corrected)]})
         return 0
-    print(f"wrote {dst} ({len(corrected)} record{'s' if len(corrected) > 1 else ''}, m/s2)")
+    if len(written) == 1:
+        print(f"wrote {dst} ({len(corrected)} record{'s' if len(corrected) > 1 else ''}, m/s2)")
+    else:
+        print(f"wrote {len(written)} files, one record each ({dst.suffix} holds them only one "
+              f"at a time; m/s2): {', '.join(p.name for p in written)}")
     if args.plot is not None:
         print(f"wrote {args.plot}")
     print(f"processing: {settings.describe()}")

@@ -12,7 +12,7 @@ from .._errors import InputError
 from ._components import Orientation, describe
 from ._record import Record
 
-__all__ = ["write_record", "WRITE_FORMATS", "restore_written_pad"]
+__all__ = ["write_record", "write_records", "output_paths", "WRITE_FORMATS", "restore_written_pad"]
 
 #: SAC header ``kuser1`` of a file whose ``b`` < 0 is a leading pad (written here).
 SAC_PAD_MARK = "padded"
@@ -91,6 +91,46 @@ def write_record(records: Record | Iterable[Record], path) -> Path:
         else:
             stream.write(str(tmp), format="SAC")
     return path
+
+
+def _csv_together(recs: list[Record]) -> bool:
+    """Whether the records can share one CSV time column (same length, step and pad)."""
+    n, dt = recs[0].n, recs[0].dt
+    return (all(r.n == n and np.isclose(r.dt, dt, rtol=1e-9, atol=0) for r in recs[1:])
+            and len({_pad_before(r) for r in recs}) == 1)
+
+
+def output_paths(records: Record | Iterable[Record], path) -> list[Path]:
+    """Where :func:`write_records` puts ``records`` for the output ``path``.
+
+    ``[path]`` when the format holds them together (MiniSEED always; CSV when they share
+    length, time step and pad; SAC for one record); otherwise one file per record,
+    ``STEM-CODE.EXT``, CODE the record's component (or channel, or its position) in
+    letters and digits, made unique with ``-2``, ``-3`` …
+    """
+    recs = [records] if isinstance(records, Record) else list(records)
+    path = Path(path)
+    fmt = WRITE_FORMATS.get(path.suffix.lower())
+    if len(recs) < 2 or fmt == "MSEED" or (fmt == "CSV" and _csv_together(recs)):
+        return [path]
+    out: list[Path] = []
+    for k, r in enumerate(recs):
+        code = _code(r.component or r.metadata.get("channel", ""), 12) or f"{k + 1}"
+        name, extra = f"{path.stem}-{code}{path.suffix}", 2
+        while path.with_name(name) in out:
+            name, extra = f"{path.stem}-{code}-{extra}{path.suffix}", extra + 1
+        out.append(path.with_name(name))
+    return out
+
+
+def write_records(records: Record | Iterable[Record], path) -> list[Path]:
+    """Write ``records`` in m/s² to ``path``, or one file per record where the format
+    holds them only one at a time (:func:`output_paths`); return the paths written."""
+    recs = [records] if isinstance(records, Record) else list(records)
+    paths = output_paths(recs, path)
+    if len(paths) == 1:
+        return [write_record(recs, paths[0])]
+    return [write_record(r, p) for r, p in zip(recs, paths)]
 
 
 def _code(text: str, size: int) -> str:

@@ -159,3 +159,36 @@ def test_info_json_carries_warnings_and_note(tmp_path, capsys):
     assert any("high-pass corner" in w for w in doc["warnings"])
     assert "warning" in captured.err
     assert "screening" in doc["note"].lower()
+
+
+@pytest.mark.parametrize("ext", [".sac", ".csv", ".mseed"])
+def test_correct_a_three_channel_file_to_each_format(tmp_path, capsys, ext):
+    # a real three-channel record (CWB text, tests/data/strong-motion/SOURCES.md); SAC holds
+    # one trace per file (the SAC format), so it gets one file per channel; CSV and MiniSEED
+    # hold the three together. Each file reads back, independently of groundshake, with
+    # ObsPy or as text, to the corrected values (float32 in SAC: 1e-6 relative)
+    import obspy
+
+    src = REPO / "tests" / "data" / "strong-motion" / "cwb_us1000chhc_1-EAS.dat"
+    out = tmp_path / f"corrected{ext}"
+    assert main(["correct", str(src), "-o", str(out), "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    files = [Path(f) for f in doc["files"]]
+    assert len(doc["records"]) == 3
+    if ext == ".sac":
+        assert len(files) == 3 and len({f.name for f in files}) == 3
+        assert all(f.name.startswith("corrected-") and f.suffix == ".sac" for f in files)
+        traces = [obspy.read(str(f))[0] for f in files]
+    else:
+        assert files == [out]
+        traces = None if ext == ".csv" else list(obspy.read(str(out)))
+    pgas = [r["pga"] for r in doc["records"]]
+    if traces is not None:
+        np.testing.assert_allclose([np.max(np.abs(t.data)) for t in traces], pgas, rtol=1e-6)
+    else:
+        # the CSV as plain text: comment lines, a header row, then time and three columns
+        lines = [ln for ln in out.read_text().splitlines() if not ln.startswith("#")]
+        assert lines[0].startswith("time [s],")
+        data = np.array([[float(v) for v in ln.split(",")] for ln in lines[1:]])
+        assert data.shape[1] == 4
+        np.testing.assert_allclose(np.max(np.abs(data[:, 1:]), axis=0), pgas, rtol=1e-12)
