@@ -232,6 +232,11 @@ def _same_file(a: Path, b: Path) -> bool:
         return False
 
 
+def _is_input(src: Path, path: Path) -> bool:
+    """Whether writing ``path`` would overwrite the input ``src`` (same file or path)."""
+    return _same_file(src, path) or src.resolve() == path.resolve()
+
+
 def cmd_correct(args: argparse.Namespace) -> int:
     from ..records._write import WRITE_FORMATS
 
@@ -239,7 +244,7 @@ def cmd_correct(args: argparse.Namespace) -> int:
     if dst.suffix.lower() not in WRITE_FORMATS:
         raise InputError(f"-o {dst}: unknown output format {dst.suffix or '(none)'!r}; "
                          f"allowed: {', '.join(WRITE_FORMATS)}")
-    if _same_file(src, dst) or src.resolve() == dst.resolve():
+    if _is_input(src, dst):
         raise InputError(f"-o {dst}: is the input file; give another output path "
                          f"(inputs are never overwritten)")
     if args.plot is not None:
@@ -255,7 +260,7 @@ def cmd_correct(args: argparse.Namespace) -> int:
         raws = read_records_from_args([src], args)
         corrected = _correct_all(raws, settings, args)
         paths = output_paths(corrected, dst)
-        if any(_same_file(src, p) or src.resolve() == p.resolve() for p in paths):
+        if any(_is_input(src, p) for p in paths):
             raise InputError(f"-o {dst}: would overwrite the input file; give another output "
                              "path (inputs are never overwritten)")
         written = write_records(corrected, dst)

@@ -22,13 +22,13 @@ from ._set_scaling import SuiteScaling, combine_by_rule, scale_record_sets, set_
 from ._set_statistics import (flatten_scalars, peak_statistics, scalar_statistics,
                               spectra_statistics)
 from ._sets import (COMPONENT_WORDS, RecordSet, group_by_component, is_record_file_name,
-                    plain_stem, record_set_samples, run_set, scenario_from_plain, set_failure)
+                    file_stem, record_set_samples, run_set, scenario_from_plain, set_failure)
 from ._write import write_run
 
 __all__ = ["analyse", "build_motion", "prepare_model", "PreparedModel", "write_run",
            "DEMO_SCENARIO", "DemoRun", "example_scenario_text", "run_demo", "kernel_threads",
            "RecordSet", "COMPONENT_WORDS", "group_by_component", "is_record_file_name",
-           "plain_stem", "set_failure",
+           "file_stem", "set_failure",
            "record_set_samples", "run_set", "scenario_from_plain", "SuiteScaling",
            "scale_record_sets", "set_spectrum", "combine_by_rule",
            "flatten_scalars", "scalar_statistics", "peak_statistics", "spectra_statistics",

@@ -24,6 +24,7 @@ from .._errors import GroundshakeError, GroundshakeWarning, InputError
 from ..records import read_record
 from ..records._components import describe
 from ..records.io import record_suffixes
+from ..records.io._common import file_stem, inner_name
 from ..scenario import Scenario
 from ._run import analyse
 
@@ -31,7 +32,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from ..dynamics import Modes
     from ..model import BlockModel
 
-__all__ = ["RecordSet", "COMPONENT_WORDS", "component_of_file", "is_record_file_name", "plain_stem", "group_by_component",
+__all__ = ["RecordSet", "COMPONENT_WORDS", "component_of_file", "is_record_file_name", "file_stem", "group_by_component",
            "set_scenario", "set_failure", "record_set_samples", "run_set", "scalar_peaks",
            "scenario_from_plain"]
 
@@ -87,24 +88,13 @@ class RecordSet:
                    units=d.get("units"), dt=d.get("dt"), factor=float(d.get("factor", 1.0)))
 
 
-def _plain_name(path: str | os.PathLike) -> Path:
-    """The file's name without a trailing ``.gz`` (``a-x.csv.gz`` → ``a-x.csv``)."""
-    name = Path(path).name
-    return Path(name[:-3] if name.lower().endswith(".gz") else name)
-
-
-def plain_stem(path: str | os.PathLike) -> str:
-    """The file's stem without a trailing ``.gz`` (``r1.csv.gz`` → ``r1``)."""
-    return _plain_name(path).stem
-
-
 def is_record_file_name(path: str | os.PathLike) -> bool:
     """Whether the file's ending (before a ``.gz``) is one a record reader names
     (:func:`groundshake.records.io.record_suffixes`); hidden files and README.md are not."""
     name = Path(path).name
     if name.startswith(".") or name.lower() == "readme.md":
         return False
-    return _plain_name(path).suffix.lower() in record_suffixes()
+    return Path(inner_name(path)).suffix.lower() in record_suffixes()
 
 
 def component_of_file(path: str | os.PathLike) -> tuple[str, str] | None:
@@ -120,7 +110,7 @@ def component_of_file(path: str | os.PathLike) -> tuple[str, str] | None:
     number needs two digits (``rec-1`` is a set number, not 1°); a diagonal (45°) is
     not guessed.
     """
-    m = _SPLIT.match(_plain_name(path).stem)
+    m = _SPLIT.match(file_stem(path))
     if not m:
         return None
     word = m.group("word")

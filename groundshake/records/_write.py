@@ -93,11 +93,20 @@ def write_record(records: Record | Iterable[Record], path) -> Path:
     return path
 
 
-def _csv_together(recs: list[Record]) -> bool:
-    """Whether the records can share one CSV time column (same length, step and pad)."""
+def _csv_mismatch(recs: list[Record]) -> str | None:
+    """Why the records cannot share one CSV time column (length, time step or leading
+    pad), or None when they can."""
     n, dt = recs[0].n, recs[0].dt
-    return (all(r.n == n and np.isclose(r.dt, dt, rtol=1e-9, atol=0) for r in recs[1:])
-            and len({_pad_before(r) for r in recs}) == 1)
+    for r in recs[1:]:
+        if r.n != n or not np.isclose(r.dt, dt, rtol=1e-9, atol=0):
+            return (f"records of different length or time step cannot share one CSV file "
+                    f"({recs[0].name}: {n} x {dt:g} s, {r.name}: {r.n} x {r.dt:g} s)")
+    pads = {_pad_before(r) for r in recs}
+    if len(pads) > 1:
+        return (f"records with different leading pads "
+                f"({', '.join(f'{p:g} s' for p in sorted(pads))}) cannot share one "
+                "time column; write one file per record")
+    return None
 
 
 def output_paths(records: Record | Iterable[Record], path) -> list[Path]:
@@ -111,7 +120,7 @@ def output_paths(records: Record | Iterable[Record], path) -> list[Path]:
     recs = [records] if isinstance(records, Record) else list(records)
     path = Path(path)
     fmt = WRITE_FORMATS.get(path.suffix.lower())
-    if len(recs) < 2 or fmt == "MSEED" or (fmt == "CSV" and _csv_together(recs)):
+    if len(recs) < 2 or fmt == "MSEED" or (fmt == "CSV" and _csv_mismatch(recs) is None):
         return [path]
     out: list[Path] = []
     for k, r in enumerate(recs):
@@ -270,17 +279,10 @@ def _whole_samples(pad: float, dt: float) -> float:
 
 
 def _csv_text(recs: list[Record], path: Path) -> str:
+    why = _csv_mismatch(recs)
+    if why is not None:
+        raise InputError(f"{path}: {why}")
     n, dt = recs[0].n, recs[0].dt
-    for r in recs[1:]:
-        if r.n != n or not np.isclose(r.dt, dt, rtol=1e-9, atol=0):
-            raise InputError(f"{path}: records of different length or time step cannot share "
-                             f"one CSV file ({recs[0].name}: {n} x {dt:g} s, "
-                             f"{r.name}: {r.n} x {r.dt:g} s)")
-    pads = {_pad_before(r) for r in recs}
-    if len(pads) > 1:
-        raise InputError(f"{path}: records with different leading pads "
-                         f"({', '.join(f'{p:g} s' for p in sorted(pads))}) cannot share one "
-                         "time column; write one file per record")
     names = [re.sub(r"[,;\[\]()\s]+", "_", r.name).strip("_") or f"acc{k + 1}"
              for k, r in enumerate(recs)]
     lines = ["# groundshake acceleration record (SI units)", "# units: m/s2", f"# dt: {dt!r}"]

@@ -671,17 +671,21 @@ def _records_summary(motion: Motion) -> list:
     return out
 
 
+def _applied_processing(scenario: Scenario):
+    """The scenario's processing settings when they correct the records, else None."""
+    try:
+        settings = scenario.processing_settings()
+    except (TypeError, ValueError, InputError):
+        return None
+    return settings if settings.enabled else None
+
+
 def motion_band(scenario: Scenario, motion: Motion) -> tuple[float, str]:
     """Upper edge [Hz] of the motion's usable band and what sets it: the low-pass corner of
     the processing when one is applied, else the Nyquist frequency 1/(2·dt)."""
     nyq = 0.5 / motion.dt
-    lp = None
-    try:
-        settings = scenario.processing_settings()
-        if settings.enabled:
-            lp = settings.lowpass_hz
-    except (TypeError, ValueError, InputError):
-        lp = None
+    settings = _applied_processing(scenario)
+    lp = None if settings is None else settings.lowpass_hz
     if lp is not None and float(lp) < nyq:
         return float(lp), f"the low-pass corner {float(lp):.3g} Hz"
     return nyq, f"the Nyquist frequency {nyq:.3g} Hz"
@@ -689,17 +693,14 @@ def motion_band(scenario: Scenario, motion: Motion) -> tuple[float, str]:
 
 def motion_highpass(scenario: Scenario) -> float | None:
     """The high-pass (low-cut) corner [Hz] the scenario's processing applies, or None."""
-    try:
-        settings = scenario.processing_settings()
-    except (TypeError, ValueError, InputError):
-        return None
-    if not settings.enabled or settings.highpass_hz is None:
+    settings = _applied_processing(scenario)
+    if settings is None or settings.highpass_hz is None:
         return None
     return float(settings.highpass_hz)
 
 
 def _highpass_warnings(collected: list, *, scenario: Scenario, motion: Motion,
-                       freq: np.ndarray, ratio: np.ndarray, excited: np.ndarray) -> None:
+                       freq: np.ndarray, holding: np.ndarray) -> None:
     """Warnings for modes and spectrum periods the high-pass filter took the motion from.
 
     The acausal Butterworth low-cut removes the motion below its corner f_c; response
@@ -709,8 +710,7 @@ def _highpass_warnings(collected: list, *, scenario: Scenario, motion: Motion,
     if f_hp is None:
         return
     f_use = 1.25 * f_hp
-    low = (freq < f_use) & np.any((ratio >= 0.05) & excited[None, :], axis=1) \
-        if freq.size else np.zeros(0, bool)
+    low = (freq < f_use) & holding
     if np.any(low):
         collected.append(
             f"Mode(s) at {', '.join(f'{f:.3g}' for f in freq[low][:4])} Hz holding mass lie "
@@ -743,8 +743,9 @@ def _auto_warnings(collected: list, *, scenario: Scenario, model: BlockModel, mo
         # the frequency from which design practice treats a structure as rigid (33 Hz, the
         # zero-period end of USNRC RG 1.60 spectra, from memory); stiffer modes respond
         # quasi-statically to any real ground motion anyway
-        above = ((freq > f_band) & (freq <= RIGID_HZ)
-                 & np.any((ratio >= 0.05) & excited[None, :], axis=1))
+        # modes holding at least 5 % of the mass in an excited direction
+        holding = np.any((ratio >= 0.05) & excited[None, :], axis=1)
+        above = (freq > f_band) & (freq <= RIGID_HZ) & holding
         if method in ("modal", "coupled") and np.any(above):
             share = float(np.max(np.sum(np.where(above[:, None], ratio, 0.0), axis=0)
                                  * excited))
@@ -762,8 +763,8 @@ def _auto_warnings(collected: list, *, scenario: Scenario, model: BlockModel, mo
                              f"{f_band:.3g} Hz): the missing-mass correction treats them "
                              "statically; raise cutoff_hz or modes (ASCE 7-16 §12.9.1.1 asks "
                              "for 90 %).")
-        _highpass_warnings(collected, scenario=scenario, motion=motion, freq=freq, ratio=ratio,
-                           excited=excited)
+        _highpass_warnings(collected, scenario=scenario, motion=motion, freq=freq,
+                           holding=holding)
         f_model = f_hi if method in ("modal", "coupled") else max(f_hi, float(cutoff or 0.0))
         f_use = min(f_model, f_band)
     else:

@@ -42,7 +42,7 @@ from pathlib import Path
 
 from .._errors import InputError
 from ..pipeline import (COMPONENT_WORDS, RecordSet, group_by_component, is_record_file_name,
-                        plain_stem)
+                        file_stem)
 
 __all__ = ["RecordSet", "discover_record_sets", "COMPONENT_WORDS"]
 
@@ -92,7 +92,7 @@ def discover_record_sets(spec: str, *, components: tuple[str, ...] = ("x", "y", 
     files = _candidate_files(spec)
     if len(components) == 1:
         comp = components[0]
-        sets = [RecordSet(name=plain_stem(f), files={comp: str(f)}, units=units, dt=dt) for f in files]
+        sets = [RecordSet(name=file_stem(f), files={comp: str(f)}, units=units, dt=dt) for f in files]
         _check_unique([s.name for s in sets], spec)
         return sets
     return [RecordSet(name=stem, files=group, units=units, dt=dt)

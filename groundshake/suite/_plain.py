@@ -3,8 +3,9 @@
 A suite's workers receive only arrays and plain data. Our own data classes are
 taken apart field by field (``{"__class__": "groundshake.model....", ...}``) and
 put together again on the worker, for classes inside the ``groundshake`` package
-only; sparse matrices travel as their CSR arrays. Cached solver objects (a
-factorization) are dropped: each worker makes its own once, if it needs one.
+only; sparse matrices travel as their CSR arrays. A model's factorization is kept
+beside it, not in a field, so it does not travel: each worker makes its own once, if
+it needs one.
 """
 from __future__ import annotations
 
@@ -17,9 +18,6 @@ import numpy as np
 import scipy.sparse as sp
 
 __all__ = ["to_plain", "from_plain"]
-
-_DROP = {"_factor"}     # caches that hold solver handles
-
 
 def to_plain(obj: Any) -> Any:
     """Plain-data form of ``obj`` (see the module notes)."""
@@ -35,8 +33,7 @@ def to_plain(obj: Any) -> Any:
         cls = type(obj)
         if not cls.__module__.startswith("groundshake."):
             raise TypeError(f"{cls.__qualname__}: not a groundshake data class")
-        fields = {f.name: to_plain(getattr(obj, f.name)) for f in dataclasses.fields(obj)
-                  if f.name not in _DROP}
+        fields = {f.name: to_plain(getattr(obj, f.name)) for f in dataclasses.fields(obj)}
         return {"__class__": f"{cls.__module__}:{cls.__qualname__}", "fields": fields}
     if isinstance(obj, dict):
         return {"__dict__": [[to_plain(k), to_plain(v)] for k, v in obj.items()]}

@@ -31,7 +31,7 @@ __all__ = ["MIN_SAMPLES", "TIME_TOLERANCE", "PEAK_NAMES", "LENGTH_TO_M", "to_si"
            "looks_binary", "fixed_width", "free_numbers", "iso_time", "azimuth_from_code",
            "orientation_metadata", "unique_names", "detector", "read_lines", "head_lines",
            "is_number", "header_units", "peak_factor", "even_step", "si_record", "GZIP_MAGIC",
-           "is_gzip", "unpacked", "read_bytes", "read_head", "file_stem"]
+           "is_gzip", "unpacked", "read_bytes", "read_head", "file_stem", "inner_name"]
 
 #: Fewest samples a record may have.
 MIN_SAMPLES = 16
@@ -411,12 +411,15 @@ def read_head(path, size: int) -> bytes:
         raise RecordError(f"{path}: gzip-compressed, but it does not decompress ({e})") from None
 
 
+def inner_name(path) -> str:
+    """The file's name without a trailing ``.gz`` (``a.mseed.gz`` → ``a.mseed``)."""
+    name = Path(path).name
+    return name[:-3] if name.lower().endswith(".gz") else name
+
+
 def file_stem(path) -> str:
     """The file's name without its extension, and without ``.gz`` before that."""
-    name = Path(path).name
-    if name.lower().endswith(".gz"):
-        name = name[:-3]
-    return Path(name).stem
+    return Path(inner_name(path)).stem
 
 
 def read_lines(path, *, encoding: str | None = None, fallback: str = "latin-1") -> list[str]:

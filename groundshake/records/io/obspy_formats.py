@@ -21,7 +21,8 @@ from .._components import describe
 from .._inventory import check_not_counts
 from .._record import Record
 from .._units import UNITS, canonical_units
-from ._common import (check_samples, detector, file_stem, is_gzip, read_bytes, resolve_units,
+from ._common import (check_samples, detector, file_stem, inner_name, is_gzip, read_bytes,
+                      resolve_units,
                       to_si, user_units)
 
 __all__ = ["FORMAT", "EXTENSIONS", "is_format", "read"]
@@ -77,8 +78,7 @@ def is_format(path: Path, head: bytes) -> bool:
 
 def _inner_name(path: Path) -> str:
     """The file's name, without ``.gz`` (``a.mseed.gz`` → ``a.mseed``)."""
-    name = path.name[:-3] if path.name.lower().endswith(".gz") else path.name
-    return name or "record"
+    return inner_name(path) or "record"
 
 
 def read(path: Path, *, units: str | None = None, dt: float | None = None,
